@@ -1,0 +1,335 @@
+package render
+
+import (
+	"bytes"
+	"encoding/binary"
+	"errors"
+	"hash/crc32"
+	"image"
+	"image/color"
+	"image/png"
+	"io"
+	"math/rand/v2"
+	"strings"
+	"testing"
+)
+
+type pngChunk struct {
+	typ  string
+	data []byte
+}
+
+// parsePNGChunks splits a PNG datastream into chunks, checking the
+// signature and every CRC (W3C PNG Specification 2nd ed. §5.2, §5.3, §5.5)
+// [pub].
+func parsePNGChunks(t *testing.T, b []byte) []pngChunk {
+	t.Helper()
+	const sig = "\x89PNG\r\n\x1a\n" // §5.2 [pub]
+	if !bytes.HasPrefix(b, []byte(sig)) {
+		t.Fatalf("missing PNG signature: % x", b[:min(8, len(b))])
+	}
+	b = b[8:]
+	var out []pngChunk
+	for len(b) > 0 {
+		if len(b) < 12 {
+			t.Fatalf("truncated chunk: %d bytes left", len(b))
+		}
+		n := int(binary.BigEndian.Uint32(b))
+		if len(b) < 12+n {
+			t.Fatalf("chunk length %d exceeds remaining %d", n, len(b)-12)
+		}
+		typ := string(b[4:8])
+		have := binary.BigEndian.Uint32(b[8+n:])
+		want := crc32.ChecksumIEEE(b[4 : 8+n])
+		if have != want {
+			t.Errorf("chunk %s CRC: have %08x, want %08x", typ, have, want)
+		}
+		out = append(out, pngChunk{typ, b[8 : 8+n]})
+		b = b[12+n:]
+	}
+	return out
+}
+
+func testNRGBA(w, h int, seed uint64) *image.NRGBA {
+	rng := rand.New(rand.NewPCG(seed, 1))
+	img := image.NewNRGBA(image.Rect(0, 0, w, h))
+	for i := range img.Pix {
+		img.Pix[i] = uint8(rng.UintN(256))
+	}
+	return img
+}
+
+func testNRGBA64(w, h int, seed uint64) *image.NRGBA64 {
+	rng := rand.New(rand.NewPCG(seed, 2))
+	img := image.NewNRGBA64(image.Rect(0, 0, w, h))
+	for i := range img.Pix {
+		img.Pix[i] = uint8(rng.UintN(256))
+	}
+	for i := 6; i < len(img.Pix); i += 8 { // opaque, so the encoder drops alpha
+		img.Pix[i], img.Pix[i+1] = 0xff, 0xff
+	}
+	return img
+}
+
+func TestWritePNGRoundTrip(t *testing.T) {
+	meta := []KV{
+		{"Software", "skyframe"},
+		{"beta", "0.9"},
+		{"Comment", "Größe naïve"}, // Latin-1 → tEXt
+		{"Title", "β = 0.99 γ ≈ 7.09"}, // outside Latin-1 → iTXt
+	}
+	for _, tc := range []struct {
+		name  string
+		img   image.Image
+		depth byte // IHDR bit depth, §11.2.2 [pub]
+	}{
+		{"nrgba8", testNRGBA(37, 23, 1), 8},
+		{"nrgba64", testNRGBA64(19, 41, 2), 16},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			var buf bytes.Buffer
+			if err := WritePNG(&buf, tc.img, meta); err != nil {
+				t.Fatal(err)
+			}
+			dec, err := png.Decode(bytes.NewReader(buf.Bytes()))
+			if err != nil {
+				t.Fatalf("image/png cannot decode: %v", err)
+			}
+			b := tc.img.Bounds()
+			if dec.Bounds() != b {
+				t.Fatalf("bounds: have %v, want %v", dec.Bounds(), b)
+			}
+			for y := b.Min.Y; y < b.Max.Y; y++ {
+				for x := b.Min.X; x < b.Max.X; x++ {
+					have := color.NRGBA64Model.Convert(dec.At(x, y))
+					want := color.NRGBA64Model.Convert(tc.img.At(x, y))
+					if have != want {
+						t.Fatalf("pixel (%d,%d): have %v, want %v", x, y, have, want)
+					}
+				}
+			}
+
+			ch := parsePNGChunks(t, buf.Bytes())
+			if ch[0].typ != "IHDR" || ch[0].data[8] != tc.depth {
+				t.Fatalf("first chunk %s depth %d, want IHDR depth %d", ch[0].typ, ch[0].data[8], tc.depth)
+			}
+			// Our chunks follow IHDR directly, before any IDAT (§5.6) [pub].
+			wantTypes := []string{"IHDR", "cHRM", "gAMA", "sRGB", "tEXt", "tEXt", "tEXt", "iTXt", "IDAT"}
+			for i, typ := range wantTypes {
+				if ch[i].typ != typ {
+					t.Errorf("chunk %d: have %s, want %s", i, ch[i].typ, typ)
+				}
+			}
+			if last := ch[len(ch)-1].typ; last != "IEND" {
+				t.Errorf("last chunk: have %s, want IEND", last)
+			}
+			// §11.3.3.5 [pub]: sRGB is one byte, intent 0 = perceptual;
+			// gAMA 45455; cHRM 31270 32900 64000 33000 30000 60000 15000 6000.
+			if d := ch[3].data; !bytes.Equal(d, []byte{0}) {
+				t.Errorf("sRGB data: have % x, want 00", d)
+			}
+			if g := binary.BigEndian.Uint32(ch[2].data); g != 45455 {
+				t.Errorf("gAMA: have %d, want 45455", g)
+			}
+			wantCHRM := []uint32{31270, 32900, 64000, 33000, 30000, 60000, 15000, 6000}
+			for i, v := range wantCHRM {
+				if have := binary.BigEndian.Uint32(ch[1].data[4*i:]); have != v {
+					t.Errorf("cHRM[%d]: have %d, want %d", i, have, v)
+				}
+			}
+			// tEXt: keyword NUL Latin-1 text (§11.3.4.3) [pub].
+			wantText := []string{"Software\x00skyframe", "beta\x000.9", "Comment\x00Gr\xf6\xdfe na\xefve"}
+			for i, w := range wantText {
+				if have := string(ch[4+i].data); have != w {
+					t.Errorf("tEXt %d: have %q, want %q", i, have, w)
+				}
+			}
+			// iTXt: keyword NUL flag method lang NUL transkey NUL UTF-8 (§11.3.4.5) [pub].
+			if have, want := string(ch[7].data), "Title\x00\x00\x00\x00\x00β = 0.99 γ ≈ 7.09"; have != want {
+				t.Errorf("iTXt: have %q, want %q", have, want)
+			}
+		})
+	}
+}
+
+func TestWritePNGDeterministic(t *testing.T) {
+	img := testNRGBA(64, 64, 3)
+	meta := SortedKV(map[string]string{"b": "2", "a": "1", "c": "3"})
+	var first []byte
+	for i := range 3 {
+		var buf bytes.Buffer
+		if err := WritePNG(&buf, img, meta); err != nil {
+			t.Fatal(err)
+		}
+		if i == 0 {
+			first = buf.Bytes()
+			continue
+		}
+		if !bytes.Equal(buf.Bytes(), first) {
+			t.Fatalf("run %d differs from run 0", i)
+		}
+	}
+	ch := parsePNGChunks(t, first)
+	for i, want := range []string{"a\x001", "b\x002", "c\x003"} {
+		if have := string(ch[4+i].data); have != want {
+			t.Errorf("sorted tEXt %d: have %q, want %q", i, have, want)
+		}
+	}
+}
+
+func TestWritePNGBadMeta(t *testing.T) {
+	img := testNRGBA(4, 4, 4)
+	// Keyword rules of §11.3.4.2 [pub].
+	for _, tc := range []struct {
+		name string
+		kv   KV
+		want error
+	}{
+		{"empty", KV{"", "x"}, ErrPNGKeyword},
+		{"80 bytes", KV{strings.Repeat("k", 80), "x"}, ErrPNGKeyword},
+		{"leading space", KV{" key", "x"}, ErrPNGKeyword},
+		{"trailing space", KV{"key ", "x"}, ErrPNGKeyword},
+		{"double space", KV{"a  b", "x"}, ErrPNGKeyword},
+		{"NUL in key", KV{"a\x00b", "x"}, ErrPNGKeyword},
+		{"control in key", KV{"a\nb", "x"}, ErrPNGKeyword},
+		{"non-Latin-1 key", KV{"βeta", "x"}, ErrPNGKeyword},
+		{"invalid UTF-8 key", KV{"a\xffb", "x"}, ErrPNGKeyword},
+		{"NUL in value", KV{"key", "a\x00b"}, ErrPNGText},
+		{"invalid UTF-8 value", KV{"key", "a\xffb"}, ErrPNGText},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			var buf bytes.Buffer
+			err := WritePNG(&buf, img, []KV{tc.kv})
+			if !errors.Is(err, tc.want) {
+				t.Fatalf("error: have %v, want %v", err, tc.want)
+			}
+			if buf.Len() != 0 {
+				t.Errorf("wrote %d bytes before failing", buf.Len())
+			}
+		})
+	}
+	// 79 bytes is the longest allowed keyword [pub §11.3.4.2].
+	if err := WritePNG(io.Discard, img, []KV{{strings.Repeat("k", 79), "x"}}); err != nil {
+		t.Errorf("79-byte keyword: %v", err)
+	}
+	var e PNGEncoder
+	e.Compression = PNGCompression(99)
+	if err := e.Encode(io.Discard, img, nil); err == nil {
+		t.Error("unknown compression: no error")
+	}
+}
+
+type failWriter struct{ left int }
+
+var errDiskFull = errors.New("disk full")
+
+func (f *failWriter) Write(p []byte) (int, error) {
+	if len(p) > f.left {
+		n := f.left
+		f.left = 0
+		return n, errDiskFull
+	}
+	f.left -= len(p)
+	return len(p), nil
+}
+
+func TestWritePNGWriterError(t *testing.T) {
+	img := testNRGBA(64, 64, 5)
+	for _, left := range []int{0, 10, 40, 200, 2000} {
+		err := WritePNG(&failWriter{left: left}, img, []KV{{"k", "v"}})
+		if !errors.Is(err, errDiskFull) {
+			t.Errorf("fail after %d bytes: have %v, want %v", left, err, errDiskFull)
+		}
+	}
+}
+
+func TestPNGCompressionLevels(t *testing.T) {
+	img := testNRGBA(32, 32, 6)
+	for _, c := range []PNGCompression{PNGFast, PNGDefault, PNGBest, PNGNone} {
+		var buf bytes.Buffer
+		e := PNGEncoder{Compression: c}
+		if err := e.Encode(&buf, img, nil); err != nil {
+			t.Fatalf("%v: %v", c, err)
+		}
+		if _, err := png.Decode(&buf); err != nil {
+			t.Errorf("%v: decode: %v", c, err)
+		}
+	}
+}
+
+// sparseStars is a mostly black frame with a few thousand small bright
+// blobs, like a rendered star field.
+func sparseStars(w, h int, deep bool) image.Image {
+	rng := rand.New(rand.NewPCG(7, 7))
+	var img8 *image.NRGBA
+	var img16 *image.NRGBA64
+	if deep {
+		img16 = image.NewNRGBA64(image.Rect(0, 0, w, h))
+	} else {
+		img8 = image.NewNRGBA(image.Rect(0, 0, w, h))
+	}
+	for i := range w * h {
+		x, y := i%w, i/w
+		if deep {
+			img16.SetNRGBA64(x, y, color.NRGBA64{A: 0xffff})
+		} else {
+			img8.Pix[4*i+3] = 0xff
+		}
+	}
+	n := w * h / 2000
+	for range n {
+		cx, cy := rng.IntN(w), rng.IntN(h)
+		v := uint16(rng.UintN(65536))
+		for dy := -1; dy <= 1; dy++ {
+			for dx := -1; dx <= 1; dx++ {
+				x, y := cx+dx, cy+dy
+				if x < 0 || y < 0 || x >= w || y >= h {
+					continue
+				}
+				c := color.NRGBA64{R: v, G: v / 2, B: v / 3, A: 0xffff}
+				if deep {
+					img16.SetNRGBA64(x, y, c)
+				} else {
+					img8.Set(x, y, c)
+				}
+			}
+		}
+	}
+	if deep {
+		return img16
+	}
+	return img8
+}
+
+func benchmarkPNG(b *testing.B, deep bool, c PNGCompression) {
+	size := 4096
+	if testing.Short() {
+		size = 512
+	}
+	img := sparseStars(size, size, deep)
+	e := PNGEncoder{Compression: c}
+	var cw countWriter
+	bpp := 4
+	if deep {
+		bpp = 8
+	}
+	b.SetBytes(int64(size * size * bpp))
+	b.ReportAllocs()
+	b.ResetTimer()
+	for b.Loop() {
+		cw = 0
+		if err := e.Encode(&cw, img, []KV{{"Software", "skyframe"}}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(cw), "file-bytes")
+}
+
+type countWriter int64
+
+func (c *countWriter) Write(p []byte) (int, error) { *c += countWriter(len(p)); return len(p), nil }
+
+func BenchmarkWritePNG8(b *testing.B)         { benchmarkPNG(b, false, PNGFast) }
+func BenchmarkWritePNG16(b *testing.B)        { benchmarkPNG(b, true, PNGFast) }
+func BenchmarkWritePNG8Default(b *testing.B)  { benchmarkPNG(b, false, PNGDefault) }
+func BenchmarkWritePNG16Default(b *testing.B) { benchmarkPNG(b, true, PNGDefault) }
