@@ -75,7 +75,7 @@ func TestWritePNGRoundTrip(t *testing.T) {
 	meta := []KV{
 		{"Software", "skyframe"},
 		{"beta", "0.9"},
-		{"Comment", "Größe naïve"}, // Latin-1 → tEXt
+		{"Comment", "Größe naïve"},     // Latin-1 → tEXt
 		{"Title", "β = 0.99 γ ≈ 7.09"}, // outside Latin-1 → iTXt
 	}
 	for _, tc := range []struct {
