@@ -1,0 +1,82 @@
+// Package render turns a star catalogue into an image of the sky seen from
+// a moving observer: per-star relativistic transform and photometry, a
+// pixel-exact Gaussian splat into a linear HDR buffer, tone mapping and
+// sRGB encoding at output, and a JSON sidecar with the physical state.
+//
+// # Pipeline
+//
+// For each star (catalogue row i) Render
+//
+//  1. asks camera.Observer.See for the apparent direction n′ (unit vector,
+//     ICRS axes, ship frame), the Doppler factor D and the dilution
+//     (d⊙/r)² from moving the observer;
+//  2. sets the observed temperature T′ = D·T and the observed dilution
+//     W′ = W₀·(d⊙/r)²·Beaming.WScale(D), where W₀ is fixed by the
+//     catalogue V and the rest temperature (Prepare) so that at rest, from
+//     the Sun, the observed V′ equals the catalogue V exactly;
+//  3. reads the per-unit-W photometry at ln T′ from spectrum.Lookup:
+//     illuminance Y = W′·e^LnY lux, X = (x/y)·Y, Z = ((1−x−y)/y)·Y, and
+//     V′ = −2.5·log10(W′·e^LnV / V0FluxLambda);
+//  4. culls stars with V′ > Options.Limit (default Exposure + 10 mag);
+//  5. projects n′ with camera.Projection.Forward, dropping stars that are
+//     undefined there (behind a pinhole), whose PSF would lie wholly
+//     outside the image, or that fall outside a fisheye's circle;
+//  6. converts XYZ to linear sRGB (spectrum.XYZToLinearSRGB, then
+//     spectrum.GamutMap for out-of-gamut colours), multiplies by the
+//     exposure scale and deposits the star with the PSF.
+//
+// # Units
+//
+// Buffer values are linear sRGB in units of full scale. The exposure is
+// given in V magnitudes: a 6504 K blackbody (WhiteTemperature, the CCT of
+// D65) of apparent V = Exposure, centred on a pixel, has peak-pixel
+// luminance exactly 1 with the default 1.5 px PSF. With E_ref the
+// illuminance (lux) of that star and p₀ the fraction of a pixel-centred
+// default PSF in its central pixel (0.2788),
+//
+//	value = Scale · illuminance · PSF weight,  Scale = 1/(E_ref·p₀).
+//
+// Scale does not change with Options.FWHM, so a wider PSF spreads the same
+// light. The exposure is fixed by the caller, never adapted to the frame.
+// The naked-eye preset NakedEyeExposure() = 6.5 + 2.5·log10(8/255/12.92)
+// = −0.036 mag makes a V = 6.5 white star's peak encode to 8/255; the zero
+// Exposure, 0 mag, is within 0.04 mag of it.
+//
+// # Pixels and the PSF
+//
+// Continuous pixel coordinates have (0, 0) at the top-left corner of the
+// image, x to the right, y down; pixel (i, j) spans [i, i+1)×[j, j+1) and
+// its centre is (i+0.5, j+0.5). The PSF is a circular Gaussian (FWHM
+// default 1.5 px, σ = FWHM/2.3548), truncated at 4σ and integrated exactly
+// over each pixel as wx[i]·wy[j] with wx[i] = (erf((i+1−x)/σ√2) −
+// erf((i−x)/σ√2))/2 renormalised over the support, so a star inside the
+// image deposits its flux to rounding and the deposit's centroid is the
+// star position to 10⁻³ px for FWHM ≥ 1.5 px. Light that falls outside the
+// image is lost; in an equirectangular frame it wraps across the ±180°
+// seam; in a cube strip it is clipped to the star's own face (it is not
+// carried to the geometrically adjacent face). Stars are circular in the
+// image even where a projection stretches the sky (equirect near the
+// poles).
+//
+// # Doppler channel
+//
+// With Options.Doppler the buffer keeps, per pixel, the luminance-weighted
+// mean Doppler factor Σ(Yᵢ·Dᵢ)/ΣYᵢ over the stars deposited there (Yᵢ the
+// luminance star i put into that pixel); unlit pixels hold 0.
+//
+// # Determinism
+//
+// The output is bit-identical for any Options.Workers and GOMAXPROCS:
+// stars are transformed in fixed chunks of 8192, binned in catalogue order
+// into 64×64-pixel tiles, and each tile sums its stars in catalogue order
+// in float64 before one rounding to float32. Library code never reads the
+// clock, never uses global randomness and never sets GOMAXPROCS.
+//
+// # Tone and encoding
+//
+// ToneLinear clips channels to [0, 1]; ToneShoulder leaves luminance below
+// 0.5 unchanged, rolls it smoothly toward 1 above, scaling R, G, B
+// together, and desaturates toward equal-luminance grey whatever channel
+// still exceeds 1, so hues hold. The IEC 61966-2-1 sRGB transfer curve is
+// applied once, at output, to 8- or 16-bit NRGBA images.
+package render
