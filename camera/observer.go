@@ -1,0 +1,62 @@
+package camera
+
+import (
+	"math"
+
+	"gonum.org/v1/gonum/spatial/r3"
+)
+
+// Observer is a ship: where it is and how it moves. The zero value is an
+// observer at rest at the Sun.
+type Observer struct {
+	// Position in parsecs on ICRS axes, Sun at the origin.
+	Position r3.Vec
+	// Boost from the catalogue frame to the ship frame.
+	Boost Boost
+}
+
+// See returns what the observer sees of a star in catalogue direction u
+// (unit vector from the Sun, ICRS) at dist parsecs from the Sun:
+//
+//   - n: apparent unit direction in the ship frame (ICRS axes);
+//   - d: Doppler factor D of the star's light;
+//   - dilution: (dist/r)², the factor by which the star's dilution W
+//     changes from the Sun to the observer, W(P) = W⊙·(d⊙/r)²;
+//   - r: distance from the observer to the star, parsecs.
+//
+// Stars of unknown distance (dist = +Inf; also NaN, zero or negative, which
+// are read as unknown) are infinitely far: n is u boosted, dilution is 1 and
+// r is +Inf. The Sun itself should be given a finite distance such as 1 au
+// (AU parsecs) with its apparent magnitude there.
+//
+// Degenerate case: when the observer is exactly at the star (r = 0) the
+// direction is undefined. See then returns r = 0 and dilution = +Inf as the
+// flag, with n and d those of u; callers must skip such stars (test r == 0).
+// See never panics and returns no error.
+func (o Observer) See(u r3.Vec, dist float64) (n r3.Vec, d float64, dilution float64, r float64) {
+	if !(dist > 0) || math.IsInf(dist, 1) {
+		n, d = o.Boost.Apply(u)
+		return n, d, 1, math.Inf(1)
+	}
+	p := o.Position
+	if p == (r3.Vec{}) {
+		n, d = o.Boost.Apply(u)
+		return n, d, 1, dist
+	}
+	v := r3.Vec{X: dist*u.X - p.X, Y: dist*u.Y - p.Y, Z: dist*u.Z - p.Z}
+	r = math.Sqrt(v.X*v.X + v.Y*v.Y + v.Z*v.Z)
+	if r == 0 {
+		n, d = o.Boost.Apply(u)
+		return n, d, math.Inf(1), 0
+	}
+	if math.IsInf(r, 1) { // overflow of the squares: recompute safely
+		r = r3.Norm(v)
+	}
+	n, d = o.Boost.Apply(r3.Vec{X: v.X / r, Y: v.Y / r, Z: v.Z / r})
+	q := dist / r
+	return n, d, q * q, r
+}
+
+// AU is the astronomical unit in parsecs (IAU 2012 B2: 1 au =
+// 149 597 870 700 m; 1 pc = 648000/π au), so 1 au = π/648000 pc.
+const AU = math.Pi / 648000
