@@ -20,7 +20,8 @@ const (
 	// Gaia teff_gspphot) rather than derived from a colour index.
 	FlagTeffFromCatalogue
 	// FlagTeffExtrapolated: the colour index lies outside the validity range
-	// of the colour–temperature relation used; Teff was clamped to its edge.
+	// of the colour–temperature relation used; Teff was clamped to its edge
+	// (B−V) or extrapolated by a documented rule (BP−RP), see teff.go.
 	FlagTeffExtrapolated
 )
 

@@ -1,0 +1,407 @@
+package catalog
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// Column roles of delimited tables.
+const (
+	roleID = iota
+	roleRA
+	roleDec
+	roleVmag
+	roleBV
+	roleTeff
+	rolePlx
+	roleDist
+	roleName
+	rolePMRA
+	rolePMDec
+	roleRV
+	roleG    // Gaia phot_g_mean_mag
+	roleBPRP // Gaia bp_rp
+	roleEpoch
+	nRoles
+)
+
+var roleDefaults = [nRoles][]string{
+	roleID:    {"id", "hip", "hr", "source_id"},
+	roleRA:    {"ra", "ra_deg", "radeg", "raj2000", "_raj2000", "ra_icrs"},
+	roleDec:   {"dec", "de", "dec_deg", "dedeg", "dej2000", "_dej2000", "de_icrs"},
+	roleVmag:  {"vmag", "v", "mag", "v_mag", "phot_v_mean_mag"},
+	roleBV:    {"b-v", "bv", "b_v", "bmv", "b-v_mag"},
+	roleTeff:  {"teff", "t_eff", "teff_k"},
+	rolePlx:   {"parallax", "plx"},
+	roleDist:  {"dist", "distance", "dist_pc"},
+	roleName:  {"name"},
+	rolePMRA:  {"pmra", "pm_ra"},
+	rolePMDec: {"pmdec", "pmde", "pm_dec"},
+	roleRV:    {"rv", "radial_velocity", "radvel"},
+}
+
+var roleLabels = [nRoles]string{"id", "ra", "dec", "vmag", "bv", "teff", "parallax", "dist", "name", "pmra", "pmdec", "rv", "phot_g_mean_mag", "bp_rp", "ref_epoch"}
+
+// readDelimited reads a Gaia archive CSV or a generic CSV/TSV table.
+//
+// Lines starting with '#' before the header are comments. A comment of the
+// form "# rows: N" or "# nrows = N" declares the row count: it is used to
+// preallocate (at most 2²⁰ rows up front) and a count above
+// ReadOptions.MaxRows is refused before anything is allocated. Fields may
+// be double-quoted ("" inside quotes is a quote); a row must have as many
+// fields as the header. "null" and blanks are missing values.
+//
+// Gaia: required columns source_id, ra, dec, parallax, phot_g_mean_mag,
+// bp_rp; optional teff_gspphot, pmra, pmdec, radial_velocity, ref_epoch
+// (positions are at ref_epoch of the first row, else 2016.0, Gaia DR3).
+// V comes from G and BP−RP by VFromGaia; without BP−RP, SolarBPRP is used
+// for G → V and the star gets DefaultTeff with FlagNoColour unless
+// teff_gspphot is given.
+func readDelimited(lr *lineReader, b *builder, f Format) error {
+	var header []byte
+	for {
+		line, err := lr.next()
+		if err == io.EOF {
+			return &ParseError{File: b.file, Line: lr.line, Err: fmt.Errorf("%w: no header line", ErrMissingColumn)}
+		}
+		if err != nil {
+			return err
+		}
+		if isBlank(line) {
+			continue
+		}
+		if line[0] == '#' {
+			if n, ok, err := declaredRows(line); err != nil {
+				return &ParseError{File: b.file, Line: lr.line, Field: "rows", Value: shortValue(line), Err: err}
+			} else if ok {
+				if err := b.declare(n, lr.line); err != nil {
+					return err
+				}
+			}
+			continue
+		}
+		header = append([]byte(nil), line...)
+		break
+	}
+	hline := lr.line
+	delim := pickDelimiter(header)
+	if f == FormatTSV {
+		delim = '\t'
+	}
+	names, err := splitFields(header, delim, nil)
+	if err != nil {
+		return &ParseError{File: b.file, Line: hline, Err: err}
+	}
+	index := map[string]int{}
+	for i, nm := range names {
+		key := strings.ToLower(strings.TrimSpace(string(nm)))
+		if _, dup := index[key]; !dup {
+			index[key] = i
+		}
+	}
+	var cols [nRoles]int
+	for i := range cols {
+		cols[i] = -1
+	}
+	missing := func(name string) error {
+		return &ParseError{File: b.file, Line: hline, Field: name, Err: fmt.Errorf("%w: header has %d columns, none named %q", ErrMissingColumn, len(names), name)}
+	}
+	gaia := f == FormatGaiaCSV
+	if gaia {
+		for role, name := range map[int]string{roleID: "source_id", roleRA: "ra", roleDec: "dec", rolePlx: "parallax", roleG: "phot_g_mean_mag", roleBPRP: "bp_rp"} {
+			i, ok := index[name]
+			if !ok {
+				return missing(name)
+			}
+			cols[role] = i
+		}
+		for role, name := range map[int]string{roleTeff: "teff_gspphot", rolePMRA: "pmra", rolePMDec: "pmdec", roleRV: "radial_velocity", roleEpoch: "ref_epoch"} {
+			if i, ok := index[name]; ok {
+				cols[role] = i
+			}
+		}
+	} else {
+		cm := b.opt.Columns
+		given := [nRoles]string{roleID: cm.ID, roleRA: cm.RA, roleDec: cm.Dec, roleVmag: cm.Vmag, roleBV: cm.BV, roleTeff: cm.Teff,
+			rolePlx: cm.Parallax, roleDist: cm.Dist, roleName: cm.Name, rolePMRA: cm.PMRA, rolePMDec: cm.PMDec, roleRV: cm.RV}
+		for role := 0; role < roleG; role++ {
+			if g := strings.ToLower(strings.TrimSpace(given[role])); g != "" {
+				i, ok := index[g]
+				if !ok {
+					return missing(given[role])
+				}
+				cols[role] = i
+				continue
+			}
+			for _, d := range roleDefaults[role] {
+				if i, ok := index[d]; ok {
+					cols[role] = i
+					break
+				}
+			}
+		}
+		for _, role := range [...]int{roleRA, roleDec, roleVmag} {
+			if cols[role] < 0 {
+				name := given[role]
+				if name == "" {
+					name = roleLabels[role]
+				}
+				return missing(name)
+			}
+		}
+		if (cols[rolePMRA] < 0) != (cols[rolePMDec] < 0) {
+			cols[rolePMRA], cols[rolePMDec] = -1, -1
+		}
+	}
+	var fields [][]byte
+	row := 0
+	epochSet := false
+	for {
+		line, err := lr.next()
+		if err == io.EOF {
+			return nil
+		}
+		if err != nil {
+			return err
+		}
+		if isBlank(line) || line[0] == '#' {
+			continue
+		}
+		n := lr.line
+		row++
+		fields, err = splitFields(line, delim, fields[:0])
+		if err != nil {
+			return &ParseError{File: b.file, Line: n, Err: err}
+		}
+		if len(fields) != len(names) {
+			return &ParseError{File: b.file, Line: n, Err: fmt.Errorf("%w: %d fields, header has %d", ErrFieldCount, len(fields), len(names))}
+		}
+		get := func(role int) []byte {
+			if cols[role] < 0 {
+				return nil
+			}
+			return fields[cols[role]]
+		}
+		label := func(role int) string { return string(bytes.TrimSpace(names[cols[role]])) }
+		num := func(role int, lo, hi float64) (float64, bool, error) {
+			if cols[role] < 0 {
+				return math.NaN(), false, nil
+			}
+			return b.ranged(get(role), label(role), n, lo, hi)
+		}
+		st := Star{RV: math.NaN(), ID: int64(row)}
+		if cols[roleID] >= 0 {
+			if st.ID, err = b.integer(get(roleID), label(roleID), n); err != nil {
+				return err
+			}
+		}
+		raHi := 360.0
+		if !gaia && b.opt.Columns.RAHours {
+			raHi = 24
+		}
+		ra, okRA, err := num(roleRA, 0, raHi)
+		if err != nil {
+			return err
+		}
+		dec, okDE, err := num(roleDec, -90, 90)
+		if err != nil {
+			return err
+		}
+		if gaia && !epochSet {
+			if e, ok, err := num(roleEpoch, -1e4, 1e4); err != nil {
+				return err
+			} else if ok {
+				b.setEpoch(e)
+			}
+			epochSet = true
+		}
+		// Validate every numeric field before deciding to skip, so a
+		// malformed value is never hidden by a blank required one.
+		teff, _, err := num(roleTeff, teffLo, teffHi)
+		if err != nil {
+			return err
+		}
+		plx, okPlx, err := num(rolePlx, -1e6, 1e6)
+		if err != nil {
+			return err
+		}
+		pmra, _, err := num(rolePMRA, -pmLim, pmLim)
+		if err != nil {
+			return err
+		}
+		pmde, _, err := num(rolePMDec, -pmLim, pmLim)
+		if err != nil {
+			return err
+		}
+		rv, _, err := num(roleRV, -rvLim, rvLim)
+		if err != nil {
+			return err
+		}
+		var mag, bv, bprp, dist float64
+		var okMag, okDist bool
+		if gaia {
+			mag, okMag, err = num(roleG, vmagLo, vmagHi)
+			if err != nil {
+				return err
+			}
+			bprp, _, err = num(roleBPRP, bvLo, bvHi)
+			if err != nil {
+				return err
+			}
+			bv = math.NaN()
+		} else {
+			mag, okMag, err = num(roleVmag, vmagLo, vmagHi)
+			if err != nil {
+				return err
+			}
+			bv, _, err = num(roleBV, bvLo, bvHi)
+			if err != nil {
+				return err
+			}
+			bprp = math.NaN()
+			dist, okDist, err = num(roleDist, 0, 1e12)
+			if err != nil {
+				return err
+			}
+		}
+		if !okRA || !okDE {
+			b.skip("no position", n)
+			continue
+		}
+		if !okMag {
+			if gaia {
+				b.skip("no G magnitude", n)
+			} else {
+				b.skip("no V magnitude", n)
+			}
+			continue
+		}
+		if !gaia && b.opt.Columns.RAHours {
+			ra *= 15
+		}
+		if ra >= 360 {
+			ra -= 360
+		}
+		st.RA, st.Dec, st.BV, st.RV = ra, dec, bv, rv
+		if gaia {
+			c := bprp
+			if math.IsNaN(c) {
+				c = SolarBPRP
+			}
+			st.Vmag = VFromGaia(mag, c)
+		} else {
+			st.Vmag = mag
+		}
+		if !math.IsNaN(pmra) && !math.IsNaN(pmde) {
+			st.PMRA, st.PMDec = pmra, pmde
+		}
+		var fd, fc Flag
+		switch {
+		case cols[rolePlx] >= 0:
+			st.Dist, fd = distFromParallax(plx, okPlx)
+		case okDist && dist > 0:
+			st.Dist = dist
+		default:
+			st.Dist, fd = math.Inf(1), FlagNoDistance
+		}
+		st.Teff, fc = starColour(teff, bv, bprp)
+		st.Flags = fd | fc
+		if cols[roleName] >= 0 {
+			if nm := bytes.TrimSpace(get(roleName)); len(nm) > 0 {
+				st.Name = string(nm)
+			}
+		}
+		if err := b.add(st, n); err != nil {
+			return err
+		}
+	}
+}
+
+// declaredRows recognises "# rows: N", "# nrows = N" (any case).
+func declaredRows(line []byte) (int64, bool, error) {
+	t := strings.ToLower(strings.TrimSpace(strings.TrimLeft(string(line), "#")))
+	var rest string
+	switch {
+	case strings.HasPrefix(t, "nrows"):
+		rest = t[5:]
+	case strings.HasPrefix(t, "rows"):
+		rest = t[4:]
+	default:
+		return 0, false, nil
+	}
+	rest = strings.TrimSpace(rest)
+	if rest == "" || (rest[0] != ':' && rest[0] != '=') {
+		return 0, false, nil
+	}
+	v := strings.TrimSpace(rest[1:])
+	n, err := strconv.ParseInt(v, 10, 64)
+	if err != nil {
+		if f, ferr := strconv.ParseFloat(v, 64); ferr == nil && f >= 0 && f == math.Trunc(f) {
+			if f > math.MaxInt64/2 {
+				return math.MaxInt64, true, nil
+			}
+			return int64(f), true, nil
+		}
+		return 0, false, fmt.Errorf("%w: row count", ErrNotNumber)
+	}
+	return n, true, nil
+}
+
+// splitFields splits a delimited line, honouring double quotes.
+func splitFields(line []byte, delim byte, out [][]byte) ([][]byte, error) {
+	if bytes.IndexByte(line, '"') < 0 {
+		for {
+			i := bytes.IndexByte(line, delim)
+			if i < 0 {
+				return append(out, line), nil
+			}
+			out = append(out, line[:i])
+			line = line[i+1:]
+		}
+	}
+	for {
+		t := bytes.TrimLeft(line, " ")
+		if len(t) > 0 && t[0] == '"' {
+			var field []byte
+			i := 1
+			closed := false
+			for i < len(t) {
+				if t[i] == '"' {
+					if i+1 < len(t) && t[i+1] == '"' {
+						field = append(field, '"')
+						i += 2
+						continue
+					}
+					closed = true
+					i++
+					break
+				}
+				field = append(field, t[i])
+				i++
+			}
+			if !closed {
+				return out, fmt.Errorf("%w: unterminated quoted field", ErrFieldCount)
+			}
+			rest := bytes.TrimLeft(t[i:], " ")
+			out = append(out, field)
+			if len(rest) == 0 {
+				return out, nil
+			}
+			if rest[0] != delim {
+				return out, fmt.Errorf("%w: text after a closing quote", ErrFieldCount)
+			}
+			line = rest[1:]
+			continue
+		}
+		i := bytes.IndexByte(line, delim)
+		if i < 0 {
+			return append(out, line), nil
+		}
+		out = append(out, line[:i])
+		line = line[i+1:]
+	}
+}
