@@ -3,6 +3,7 @@ package flight
 import (
 	"fmt"
 	"sort"
+	"strings"
 
 	"gonum.org/v1/gonum/spatial/r3"
 )
@@ -15,6 +16,19 @@ type Trajectory struct {
 	segs []*segment // all segments in order, for lookups
 	home r3.Vec     // start position
 }
+
+// LegError is an error in one leg of a trajectory, numbered from 1.
+type LegError struct {
+	Leg int
+	Err error
+}
+
+func (e *LegError) Error() string {
+	return fmt.Sprintf("flight: leg %d: %s", e.Leg, strings.TrimPrefix(e.Err.Error(), "flight: "))
+}
+
+// Unwrap returns the leg's error (ErrAccel, ErrDisconnected, ...).
+func (e *LegError) Unwrap() error { return e.Err }
 
 // NewTrajectory places specs one after another from start (see RestAt,
 // MovingAt). resolve looks up star destinations; it may be nil when no leg
@@ -31,15 +45,15 @@ func NewTrajectory(start State, specs []LegSpec, resolve Resolver) (*Trajectory,
 	cur := start
 	for i, sp := range specs {
 		if sp == nil {
-			return nil, fmt.Errorf("flight: leg %d: %w: nil leg", i+1, ErrDuration)
+			return nil, &LegError{Leg: i + 1, Err: fmt.Errorf("%w: nil leg", ErrDuration)}
 		}
 		lg, err := sp.Build(cur, resolve)
 		if err != nil {
-			return nil, fmt.Errorf("flight: leg %d: %w", i+1, err)
+			return nil, &LegError{Leg: i + 1, Err: err}
 		}
 		l, ok := lg.(*leg)
 		if !ok {
-			return nil, fmt.Errorf("flight: leg %d: unsupported leg type %T", i+1, lg)
+			return nil, &LegError{Leg: i + 1, Err: fmt.Errorf("flight: unsupported leg type %T", lg)}
 		}
 		tr.legs = append(tr.legs, l)
 		cur = l.End()
