@@ -473,3 +473,22 @@ func (v VoyageSpec) Build(start State, resolve Resolver) (Leg, error) {
 	l.finish(start, u, phiS)
 	return l, nil
 }
+
+// TurnoverTimes returns the ship and catalogue time (years) to cover
+// distance pc from rest to rest at constant proper acceleration accel
+// (m/s²), turning over at the midpoint:
+// τ = (2c/a) acosh(1 + a d/(2c²)), t = (2c/a) sinh(acosh(1 + a d/(2c²))).
+func TurnoverTimes(accel, distance float64) (tau, t float64, err error) {
+	if !isFinite(accel) || !isFinite(distance) {
+		return 0, 0, fmt.Errorf("%w: accel %v, distance %v", ErrNotFinite, accel, distance)
+	}
+	if accel <= 0 {
+		return 0, 0, fmt.Errorf("%w: %v m/s²", ErrAccel, accel)
+	}
+	if distance < 0 {
+		return 0, 0, fmt.Errorf("%w: distance %v pc", ErrDuration, distance)
+	}
+	rate := rapidityRate(accel)
+	phi := acosh1p(distance * rate / CPcPerYr / 2)
+	return 2 * phi / rate, 2 * math.Sinh(phi) / rate, nil
+}
