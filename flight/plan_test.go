@@ -1,0 +1,309 @@
+package flight
+
+import (
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"os"
+	"strconv"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/gonum/floats/scalar"
+	"gonum.org/v1/gonum/spatial/r3"
+)
+
+func readPlan(t *testing.T, name string) []byte {
+	t.Helper()
+	b, err := os.ReadFile("../testdata/plans/" + name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
+}
+
+func TestParseExamplePlan(t *testing.T) {
+	p, err := ParsePlan(readPlan(t, "voyage.toml"), "voyage.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	// 24 fps × (1 + 20 + 2) s.
+	if p.Frames() != 24*23 {
+		t.Errorf("frames: have %d, want %d", p.Frames(), 24*23)
+	}
+	first, _ := p.FrameState(0)
+	fly0, _ := p.FrameState(24)
+	last, _ := p.FrameState(24 + 480 - 1)
+	end, _ := p.FrameState(p.Frames() - 1)
+	if first.Phase != PhaseHoldStart || fly0.Phase != PhaseFlight || end.Phase != PhaseHoldEnd {
+		t.Errorf("phases %v %v %v", first.Phase, fly0.Phase, end.Phase)
+	}
+	if fly0.State != first.State || last.State != end.State {
+		t.Errorf("flight frames must start at the start state and end at arrival")
+	}
+	if end.State.Pos != (r3.Vec{X: 1.5}) || end.State.Beta != 0 {
+		t.Errorf("arrival: %+v", end.State)
+	}
+	// Ship-time spacing: equal steps in τ.
+	a, _ := p.FrameState(100)
+	b, _ := p.FrameState(101)
+	c, _ := p.FrameState(102)
+	if !scalar.EqualWithinRel(b.State.Tau-a.State.Tau, c.State.Tau-b.State.Tau, 1e-9) {
+		t.Errorf("uneven ship-time steps: %v, %v", b.State.Tau-a.State.Tau, c.State.Tau-b.State.Tau)
+	}
+	// Look keys: "behind" from 8 s, interpolating toward RA/Dec by 14 s.
+	at8, _ := p.FrameState(8 * 24)
+	if at8.Look.Look != "behind" || r3.Dot(at8.LookDir, at8.State.Dir) > -1+1e-12 {
+		t.Errorf("at 8 s look %q dir %v, ship dir %v", at8.Look.Look, at8.LookDir, at8.State.Dir)
+	}
+	at14, _ := p.FrameState(14 * 24)
+	if want := RADec(219.9, -60.8); r3.Norm(r3.Sub(at14.LookDir, want)) > 1e-12 {
+		t.Errorf("at 14 s look dir %v, want %v", at14.LookDir, want)
+	}
+	// Determinism: the same index gives the same state.
+	again, _ := p.FrameState(101)
+	if again != b {
+		t.Errorf("FrameState not deterministic")
+	}
+	if p.FrameName(7, "") != "frames/00007.png" || p.FrameName(7, ".fits") != "frames/00007.fits" {
+		t.Errorf("frame names %q %q", p.FrameName(7, ""), p.FrameName(7, ".fits"))
+	}
+	if _, err := p.FrameState(p.Frames()); !errors.Is(err, ErrRange) {
+		t.Errorf("frame past the end: %v", err)
+	}
+}
+
+func TestPlanHashStable(t *testing.T) {
+	a := `
+[[leg]]
+kind = "cruise"   # comment
+ship_years = 1.0
+[show]
+seconds = 5
+fps = 30
+[camera]
+width = 320
+height = 200
+`
+	b := `[camera]
+height=200
+width=320
+
+[show]
+fps=30.0
+seconds=5
+
+[[leg]]
+ship_years=1
+kind="cruise"
+`
+	c := strings.Replace(a, "seconds = 5", "seconds = 6", 1)
+	pa, err := ParsePlan([]byte(a), "a")
+	if err != nil {
+		t.Fatal(err)
+	}
+	pb, err := ParsePlan([]byte(b), "b")
+	if err != nil {
+		t.Fatal(err)
+	}
+	pc, err := ParsePlan([]byte(c), "c")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if pa.Hash() != pb.Hash() {
+		t.Errorf("same plan, different layout: %s vs %s", pa.Hash(), pb.Hash())
+	}
+	if pa.Hash() == pc.Hash() {
+		t.Errorf("different plans share a hash")
+	}
+	if len(pa.Hash()) != 64 {
+		t.Errorf("hash %q is not hex SHA-256", pa.Hash())
+	}
+}
+
+func TestPlanErrors(t *testing.T) {
+	base := "[[leg]]\nkind = \"cruise\"\nship_years = 1\n[show]\nseconds = 5\n"
+	for _, c := range []struct {
+		name, src       string
+		want            error
+		line            int
+		key, suggestion string
+	}{
+		{"unknown key in table", base + "[camera]\nwidht = 100\n", ErrUnknownKey, 7, "camera.widht", "camera.width"},
+		{"unknown key in leg", "[[leg]]\nkind = \"boost\"\nacel_g = 1\nship_years = 1\n[show]\nseconds = 5\n", ErrUnknownKey, 3, "leg.acel_g", "leg.accel_g"},
+		{"unknown table", base + "[camra]\nwidth = 100\n", ErrUnknownKey, 6, "camra", "camera"},
+		{"unknown column", base + "[catalogue.columns]\nvmg = \"Vmag\"\n", ErrUnknownKey, 7, "catalogue.columns.vmg", "catalogue.columns.vmag"},
+		{"NaN", base + "[camera]\nfov = nan\n", ErrPlanValue, 7, "camera.fov", ""},
+		{"Inf", strings.Replace(base, "seconds = 5", "seconds = inf", 1), ErrPlanValue, 5, "show.seconds", ""},
+		{"absurd size", base + "[camera]\nwidth = 100000\nheight = 10\n", ErrPlanValue, 7, "camera.width", ""},
+		{"bad kind", "[[leg]]\nkind = \"cruize\"\nship_years = 1\n[show]\nseconds = 5\n", ErrPlanValue, 2, "leg[0].kind", "cruise"},
+		{"second leg field", base + "[[leg]]\nkind = \"voyage\"\naccel_g = 1\nto_position = [1,0,0]\nship_years = 2\n", ErrPlanValue, 10, "leg[1].ship_years", ""},
+		{"escape", base + "[output]\nframes = \"../x/{frame:05}.png\"\n", ErrPlanValue, 7, "output.frames", ""},
+		{"absolute", base + "[output]\nframes = \"/tmp/{frame}.png\"\n", ErrPlanValue, 7, "output.frames", ""},
+		{"no placeholder", base + "[output]\nframes = \"frame.png\"\n", ErrPlanValue, 7, "output.frames", ""},
+		{"overlay type", base + "[overlays]\ngrid = 3\n", ErrPlanValue, 7, "overlays.grid", ""},
+		{"syntax", base + "[camera]\nwidth = = 3\n", ErrPlanSyntax, 7, "", ""},
+		{"deep", base + "x = [[[[[[[1]]]]]]]\n", ErrPlanTooDeep, 6, "", ""},
+		{"speed cap c", "[[leg]]\nkind = \"voyage\"\naccel_g = 1\nto_position = [1,0,0]\nspeed_cap = 1.0\n[show]\nseconds = 5\n", ErrPlanValue, 5, "leg[0].speed_cap", ""},
+		{"look order", base + "[[camera.look]]\nat = 2\n[[camera.look]]\nat = 1\n", ErrPlanValue, 9, "camera.look[1].at", ""},
+	} {
+		_, err := ParsePlan([]byte(c.src), "t.toml")
+		if !errors.Is(err, c.want) {
+			t.Errorf("%s: have %v, want %v", c.name, err, c.want)
+			continue
+		}
+		var pe *PlanError
+		if !errors.As(err, &pe) {
+			t.Errorf("%s: %v is not a *PlanError", c.name, err)
+			continue
+		}
+		if pe.Line != c.line || pe.Key != c.key || pe.Suggest != c.suggestion {
+			t.Errorf("%s: have line %d key %q suggestion %q, want %d %q %q (%v)", c.name, pe.Line, pe.Key, pe.Suggest, c.line, c.key, c.suggestion, err)
+		}
+		if !strings.Contains(err.Error(), "t.toml:"+strconv.Itoa(c.line)) {
+			t.Errorf("%s: message %q lacks file:line", c.name, err)
+		}
+	}
+}
+
+func TestBrokenPlanFiles(t *testing.T) {
+	for _, c := range []struct {
+		file string
+		want []string
+	}{
+		{"bad_unknown_key.toml", []string{"bad_unknown_key.toml:12", "camera.lok", `did you mean "camera.look"`}},
+		{"bad_legs.toml", []string{"bad_legs.toml:5: leg[0].accel_g", "bad_legs.toml:7: leg[0].speed_cap", "bad_legs.toml:9: leg[1]"}},
+		{"bad_frames_escape.toml", []string{"bad_frames_escape.toml:10: output.frames", `".."`}},
+	} {
+		_, err := ParsePlan(readPlan(t, c.file), c.file)
+		if err == nil {
+			t.Errorf("%s: accepted", c.file)
+			continue
+		}
+		for _, w := range c.want {
+			if !strings.Contains(err.Error(), w) {
+				t.Errorf("%s: error %q lacks %q", c.file, err, w)
+			}
+		}
+	}
+}
+
+func TestFramePatterns(t *testing.T) {
+	for _, c := range []struct {
+		pat string
+		ok  bool
+	}{
+		{"frames/{frame:05}.png", true},
+		{"{frame}.png", true},
+		{"a/b/f{frame:03}", true},
+		{"../{frame}.png", false},
+		{"a/../../{frame}.png", false},
+		{"/abs/{frame}.png", false},
+		{"C:/x/{frame}.png", false},
+		{`a\{frame}.png`, false},
+		{"{frame}{frame}.png", false},
+		{"{frame:5}.png", false},
+		{"{frame}/", false},
+		{"x{y}{frame}.png", false},
+	} {
+		_, err := parseFramePattern(c.pat)
+		if (err == nil) != c.ok {
+			t.Errorf("%q: have error %v, want ok=%v", c.pat, err, c.ok)
+		}
+	}
+}
+
+func TestBindStars(t *testing.T) {
+	src := `
+[start]
+star = "Home"
+[[leg]]
+kind = "voyage"
+accel_g = 1
+to_star = "Far"
+[show]
+seconds = 2
+fps = 10
+[[camera.look]]
+look = "Far"
+`
+	p, err := ParsePlan([]byte(src), "s.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !p.NeedsResolver() {
+		t.Fatal("plan naming stars must need a resolver")
+	}
+	if _, err := p.FrameState(0); !errors.Is(err, ErrUnbound) {
+		t.Errorf("unbound FrameState: %v", err)
+	}
+	stars := map[string]r3.Vec{"Home": {X: 1}, "Far": {X: 1, Y: 2}}
+	res := func(n string) (r3.Vec, bool) { v, ok := stars[n]; return v, ok }
+	if err := p.Bind(func(string) (r3.Vec, bool) { return r3.Vec{}, false }); !errors.Is(err, ErrUnknownDestination) {
+		t.Errorf("unknown star: %v", err)
+	}
+	if err := p.Bind(res); err != nil {
+		t.Fatal(err)
+	}
+	fs, _ := p.FrameState(0)
+	if fs.State.Pos != (r3.Vec{X: 1}) || r3.Norm(r3.Sub(fs.LookDir, r3.Vec{Y: 1})) > 1e-15 {
+		t.Errorf("start %v look %v", fs.State.Pos, fs.LookDir)
+	}
+	if e := p.Trajectory().End(); e.Pos != (r3.Vec{X: 1, Y: 2}) {
+		t.Errorf("end %v", e.Pos)
+	}
+}
+
+// The dry-run table at β = 0.6 [cp]: γ = 1.25, Doppler ahead 2, behind 0.5;
+// home straight behind ticks at 0.5 per second, the destination ahead at 2.
+func TestDryRunCSV(t *testing.T) {
+	src := `
+[start]
+speed = 0.6
+ra = 0
+dec = 0
+[[leg]]
+kind = "cruise"
+distance_ly = 4
+[show]
+seconds = 1
+fps = 5
+`
+	p, err := ParsePlan([]byte(src), "d.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var buf bytes.Buffer
+	if err := WriteDryRunCSV(&buf, p, Range{1, 3}); err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(&buf).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Join(rows[0], ",") != "frame,tau_yr,t_yr,beta,gamma,x_pc,y_pc,z_pc,doppler_ahead,doppler_behind,rate_home,rate_dest" {
+		t.Fatalf("header %v", rows[0])
+	}
+	if len(rows) != 4 {
+		t.Fatalf("have %d rows, want header + 3", len(rows))
+	}
+	want := map[string]float64{"beta": 0.6, "gamma": 1.25, "doppler_ahead": 2, "doppler_behind": 0.5, "rate_home": 0.5, "rate_dest": 2}
+	for _, r := range rows[1:] {
+		for col, w := range want {
+			j := -1
+			for k, n := range rows[0] {
+				if n == col {
+					j = k
+				}
+			}
+			v, err := strconv.ParseFloat(r[j], 64)
+			if err != nil || !scalar.EqualWithinRel(v, w, 1e-9) {
+				t.Errorf("frame %s %s: have %s, want %v", r[0], col, r[j], w)
+			}
+		}
+	}
+	// Catalogue time over the whole flight is 4/0.6 yr [cp].
+	if e := p.Trajectory().End(); !scalar.EqualWithinRel(e.T, 4/0.6, 1e-12) {
+		t.Errorf("t = %v, want %v", e.T, 4/0.6)
+	}
+}
