@@ -107,7 +107,7 @@ func TestFixturesGood(t *testing.T) {
 		},
 		{
 			file: "generic_good.csv", format: FormatCSV, epoch: 2000,
-			opt: ReadOptions{Columns: ColumnMap{ID: "star", RA: "alpha_h", RAHours: true, Dec: "delta", Vmag: "mag", BV: "colour", Parallax: "plx_mas", Name: "label"}},
+			opt:   ReadOptions{Columns: ColumnMap{ID: "star", RA: "alpha_h", RAHours: true, Dec: "delta", Vmag: "mag", BV: "colour", Parallax: "plx_mas", Name: "label"}},
 			skips: []Skip{{"no V magnitude", 1, 4}},
 			stars: []wantStar{
 				// 6 h = 90°; 100 mas → 10 pc [cp].
