@@ -1,52 +1,5 @@
 package catalog
 
-// The built-in sky: a synthetic catalogue drawn from a Milky-Way-like model,
-// used when no catalogue is given.
-//
-// Model. Stars are drawn from a local luminosity function φ(M_V) (Allen,
-// Astrophysical Quantities, 3rd ed. 1973, §117, V column) split into
-//
-//   - main-sequence stars of the thin disk, whose scale height grows from
-//     50 pc (O) to 300 pc (G–M dwarfs) with absolute magnitude (Mihalas &
-//     Binney 1981, Table 4-16 [mem]) and whose colour follows the
-//     Schmidt-Kaler (1982) B−V against M_V relation with 0.06 mag scatter;
-//   - red giants and the red clump (B−V ≈ 1.0 at M_V ≈ +0.7), and bright
-//     giants and supergiants at M_V < −2.5, with a giant share of φ that peaks
-//     at the clump;
-//   - old stars (dwarfs fainter than the M_V = 3.5 turn-off, and giants) shared
-//     between the thin disk (scale height 300 pc), a thick disk (900 pc, 10 %
-//     of old stars at the Sun) and a halo (ρ ∝ r^−2.8, axis ratio 0.64,
-//     0.5 %).
-//
-// Disks are exponential in galactocentric radius R (scale lengths 2.6 and
-// 3.6 kpc) and in height |z|, with the Sun at R0 = 8.2 kpc and z⊙ = +20 pc;
-// each component's density equals its share of φ at the Sun (Jurić et al.
-// 2008, ApJ 673, 864 for the disk and halo parameters [mem]; Bland-Hawthorn &
-// Gerhard 2016, ARA&A 54, 529 for R0 and z⊙ [mem]). Light is dimmed by a
-// dust layer (0.7 mag/kpc in the plane, scale height 110 pc) and reddened by
-// E(B−V) = A_V/3.1 (Cardelli, Clayton & Mathis 1989). There is no bulge,
-// no spiral structure and no clusters: to V = 8 the bulge contributes no
-// stars and the rest only modulates the counts.
-//
-// Sampling. The sky is cut into 72 × 40 cells equal in galactic l and sin b.
-// For each cell the model integrates, along the line of sight through its
-// centre on a logarithmic distance grid from 5 pc to 30 kpc, the cumulative
-// number of stars per steradian C(r) = ∫ ρ r² dr of every density component,
-// and the distance modulus with extinction m(r) = 5 log10(r/10 pc) + A(r).
-// For each 0.25-mag bin of M_V the stars brighter than the limit lie within
-// m(r) ≤ V_lim − M_V, so the expected count is φ ΔM ΔΩ C(r_lim). The number
-// of stars in the cell is Poisson-drawn, and each star's bin, M_V (rejection
-// within the bin), distance (inverse of C) and direction (uniform within the
-// cell) follow; V = M_V + m(r) ≤ V_lim by construction. The cost is
-// proportional to the number of cells and of stars kept, not to the number
-// of stars in the model volume. The invented stars of NearbyStars fill the
-// sphere of 5 pc that the sampled population leaves empty.
-//
-// Values. B−V is the reddened colour a catalogue would list; Teff is from the
-// intrinsic colour (B−V)₀ through the Ballesteros (2012) relation, so it is
-// the star's own temperature. Every synthetic star has a distance. There are
-// no proper motions or radial velocities.
-
 import (
 	"math"
 	"math/rand/v2"
@@ -71,7 +24,7 @@ const (
 	// DefaultSynthMagLimit is the faintest V of BuiltIn.
 	DefaultSynthMagLimit = 8.0
 	// MaxSynthMagLimit caps SynthOptions.MagLimit: a V = 11 sky already has
-	// about two million stars.
+	// about 800 000 stars.
 	MaxSynthMagLimit = 11.0
 	// MinSynthMagLimit is the brightest useful limit.
 	MinSynthMagLimit = -2.0
@@ -119,7 +72,7 @@ var (
 )
 
 // BuiltIn returns the default sky: Synthetic(SynthOptions{}), every star to
-// V = 8 (about 40 000) plus the invented nearby stars. It is built once, on
+// V = 8 (about 42 000) plus the invented nearby stars. It is built once, on
 // first use, and shared: callers must not modify it (copy the columns they
 // want to change). Safe for concurrent use.
 func BuiltIn() *Stars {
@@ -127,11 +80,67 @@ func BuiltIn() *Stars {
 	return builtInStars
 }
 
-// Synthetic builds a synthetic sky from the model described in the package
-// source (synth.go): deterministic for given options. The nearby stars come
-// first, in the order of NearbyStars and whatever MagLimit (they are
-// destinations, not background), then the sampled stars in sky-cell order. Every star has a distance, B−V and Teff; Epoch is 2000, Source
-// SyntheticSource and Format SyntheticFormat.
+// Synthetic builds a synthetic sky, a catalogue drawn from a Milky-Way-like
+// model; it is deterministic for given options. The nearby stars come first,
+// in the order of NearbyStars and whatever MagLimit (they are destinations,
+// not background), then the sampled stars in sky-cell order. Every star has a
+// distance, B−V and Teff; Epoch is 2000, Source SyntheticSource and Format
+// SyntheticFormat.
+//
+// Model. Stars are drawn from a local luminosity function φ(M_V) (Allen,
+// Astrophysical Quantities, 3rd ed. 1973, §117, V column, with a calibration
+// of up to +0.5 dex at the luminous end and −0.3 dex for late-B–A stars,
+// fitted to the Bright Star Catalogue counts by magnitude and colour), split
+// into
+//
+//   - main-sequence stars of the thin disk, whose scale height grows from
+//     50 pc (O) to 300 pc (G–M dwarfs) with absolute magnitude (Mihalas &
+//     Binney 1981, Table 4-16 [mem]) and whose colour follows the
+//     Schmidt-Kaler (1982) B−V against M_V relation with 0.06 mag scatter
+//     and a red tail for stars evolving off the upper main sequence;
+//   - red giants and the red clump (B−V ≈ 1.0 at M_V ≈ +0.7), and bright
+//     giants and supergiants at M_V < −2.5, with a giant share of φ that peaks
+//     at the clump, a fifth of the giants being yellow (B−V 0.4–0.9);
+//   - old stars (dwarfs fainter than the M_V = 3.5 turn-off, and giants) shared
+//     between the thin disk (scale height 300 pc), a thick disk (900 pc, 10 %
+//     of old stars at the Sun) and a halo (ρ ∝ r^−2.8, axis ratio 0.64,
+//     0.5 %).
+//
+// Disks are exponential in galactocentric radius R (scale lengths 2.6 and
+// 3.6 kpc) and in height |z|, with the Sun at R0 = 8.2 kpc and z⊙ = +20 pc;
+// each component's density equals its share of φ at the Sun (Jurić et al.
+// 2008, ApJ 673, 864 for the disk and halo parameters [mem]; Bland-Hawthorn &
+// Gerhard 2016, ARA&A 54, 529 for R0 and z⊙ [mem]). Light is dimmed by a
+// dust layer (1.1 mag/kpc in the plane, scale height 112.5 pc) and reddened by
+// E(B−V) = A_V/3.1 (Cardelli, Clayton & Mathis 1989). There is no bulge,
+// no spiral structure and no clusters: to V = 8 the bulge contributes no
+// stars and the rest only modulates the counts.
+//
+// Sampling. The sky is cut into 72 × 40 cells equal in galactic l and sin b.
+// For each cell the model integrates, along the line of sight through its
+// centre on a logarithmic grid of 80 distances from 5 pc to 30 kpc, the
+// cumulative number of stars per steradian C(r) = ∫ ρ r² dr of every density component,
+// and the distance modulus with extinction m(r) = 5 log10(r/10 pc) + A(r).
+// For each 0.25-mag bin of M_V the stars brighter than the limit lie within
+// m(r) ≤ V_lim − M_V, so the expected count is φ ΔM ΔΩ C(r_lim). The number
+// of stars in the cell is Poisson-drawn, and each star's bin, M_V (rejection
+// within the bin), distance (inverse of C) and direction (uniform within the
+// cell) follow; V = M_V + m(r) ≤ V_lim by construction. The cost is
+// proportional to the number of cells and of stars kept, not to the number
+// of stars in the model volume. The invented stars of NearbyStars fill the
+// sphere of 5 pc that the sampled population leaves empty.
+//
+// Values. B−V is the reddened colour a catalogue would list; Teff is from the
+// intrinsic colour (B−V)₀ through the Ballesteros (2012) relation, so it is
+// the star's own temperature. Every synthetic star has a distance. There are
+// no proper motions or radial velocities. Teff outside the validity range of
+// TeffFromBV carries FlagTeffExtrapolated.
+//
+// Counts. The default V = 8 sky has about 42 000 stars; to V = 6, 7, 9, 10
+// and 11 about 4 900, 14 000, 117 000, 314 000 and 816 000. Building the
+// default sky takes a few tens of milliseconds; the cost grows with the
+// number of stars kept. The model constants and their sources are in
+// synth_model.go.
 func Synthetic(opt SynthOptions) *Stars {
 	s := &Stars{Epoch: 2000, Source: SyntheticSource, Format: SyntheticFormat}
 	if !opt.NoNearby {

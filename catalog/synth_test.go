@@ -3,6 +3,7 @@ package catalog
 import (
 	"bufio"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"sort"
@@ -183,5 +184,219 @@ func BenchmarkSynthetic(b *testing.B) {
 		if s.Len() == 0 {
 			b.Fatal("empty sky")
 		}
+	}
+}
+
+// TestGalacticRotation checks the private ICRS↔galactic rotation against the
+// defining constants and the position of the galactic centre.
+func TestGalacticRotation(t *testing.T) {
+	radec := func(x, y, z float64) (float64, float64) {
+		ra := math.Atan2(y, x) * 180 / math.Pi
+		if ra < 0 {
+			ra += 360
+		}
+		return ra, math.Asin(z) * 180 / math.Pi
+	}
+	cases := []struct {
+		name          string
+		l, b          float64
+		wantRA, wantD float64
+		tol           float64 // degrees
+		src           string
+	}{
+		// Defining constants, ESA SP-1200 Vol. 1 §1.5.3 [pub].
+		{"north galactic pole", 0, 90, 192.85948, 27.12825, 1e-7, "ESA SP-1200 §1.5.3 [pub]"},
+		// Galactic centre (l, b) = (0, 0) at α = 266.40499°, δ = −28.93617°
+		// (ESA SP-1200 Vol. 1 §1.5.3, Eq. 1.5.11) [mem].
+		{"galactic centre", 0, 0, 266.40499, -28.93617, 1e-4, "ESA SP-1200 §1.5.3 [mem]"},
+	}
+	for _, c := range cases {
+		gx, gy, gz := galacticLB(c.l, c.b)
+		ra, dec := radec(galacticToICRS(gx, gy, gz))
+		if c.b == 90 {
+			ra = math.Mod(ra+360, 360)
+		}
+		if math.Abs(ra-c.wantRA) > c.tol || math.Abs(dec-c.wantD) > c.tol {
+			t.Errorf("%s: have (α, δ) = (%.6f, %.6f), want (%.6f, %.6f) (%s)", c.name, ra, dec, c.wantRA, c.wantD, c.src)
+		}
+	}
+	// The north celestial pole lies at galactic longitude 122.93192° and
+	// latitude δ_NGP = 27.12825° (ESA SP-1200 §1.5.3) [pub].
+	gx, gy, gz := icrsToGalactic(0, 0, 1)
+	l := math.Atan2(gy, gx) * 180 / math.Pi
+	b := math.Asin(gz) * 180 / math.Pi
+	if math.Abs(l-122.93192) > 1e-7 || math.Abs(b-27.12825) > 1e-7 {
+		t.Errorf("NCP: have (l, b) = (%.7f, %.7f), want (122.93192, 27.12825) (ESA SP-1200 §1.5.3)", l, b)
+	}
+	// Round trip [cp]: the rotation is orthogonal.
+	for _, lb := range [][2]float64{{10, 5}, {200, -60}, {300, 33}} {
+		gx, gy, gz := galacticLB(lb[0], lb[1])
+		hx, hy, hz := icrsToGalactic(galacticToICRS(gx, gy, gz))
+		if d := math.Abs(hx-gx) + math.Abs(hy-gy) + math.Abs(hz-gz); d > 1e-14 {
+			t.Errorf("round trip of (l, b) = %v: error %g, want < 1e-14", lb, d)
+		}
+	}
+}
+
+func TestBuiltInSharedAndDeterministic(t *testing.T) {
+	a, b := BuiltIn(), BuiltIn()
+	if a != b {
+		t.Fatal("BuiltIn returned two different catalogues; want one shared value")
+	}
+	c := Synthetic(SynthOptions{})
+	if c.Len() != a.Len() {
+		t.Fatalf("Synthetic(zero options) has %d stars, BuiltIn %d; want equal", c.Len(), a.Len())
+	}
+	for i := 0; i < a.Len(); i++ {
+		if a.ID[i] != c.ID[i] || a.X[i] != c.X[i] || a.Vmag[i] != c.Vmag[i] || a.BV[i] != c.BV[i] || a.Dist[i] != c.Dist[i] {
+			t.Fatalf("row %d differs between two builds with the same options", i)
+		}
+	}
+	d := Synthetic(SynthOptions{Seed: 12345})
+	same := d.Len() == a.Len()
+	for i := len(nearbyStars); same && i < a.Len(); i++ {
+		same = a.X[i] == d.X[i] && a.Vmag[i] == d.Vmag[i]
+	}
+	if same {
+		t.Error("seed 12345 gave the same sky as the default seed")
+	}
+}
+
+func TestSyntheticInvariants(t *testing.T) {
+	for _, opt := range []SynthOptions{{}, {MagLimit: 6, NoExtinction: true, Seed: 7}, {MagLimit: 4.5, NoNearby: true}} {
+		s := Synthetic(opt)
+		if err := s.Validate(); err != nil {
+			t.Fatalf("%+v: Validate: %v", opt, err)
+		}
+		if s.Epoch != 2000 || s.Source != SyntheticSource || s.Format != SyntheticFormat {
+			t.Errorf("%+v: epoch/source/format = %v/%q/%q", opt, s.Epoch, s.Source, s.Format)
+		}
+		first := len(nearbyStars)
+		if opt.NoNearby {
+			first = 0
+		}
+		if opt.NoNearby && len(s.Names) != 0 {
+			t.Errorf("%+v: %d named stars, want none", opt, len(s.Names))
+		}
+		lim := opt.magLimit()
+		for i := first; i < s.Len(); i++ {
+			if want := SyntheticIDBase + int64(i-first); s.ID[i] != want {
+				t.Fatalf("%+v: row %d has id %d, want %d", opt, i, s.ID[i], want)
+			}
+			// Every sampled star is brighter than the limit and outside the
+			// 5 pc sphere (float32 rounding allowed).
+			if float64(s.Vmag[i]) > lim+1e-5 {
+				t.Fatalf("%+v: row %d has V = %v, fainter than the limit %v", opt, i, s.Vmag[i], lim)
+			}
+			if d := float64(s.Dist[i]); d < synthRMin*(1-1e-6) || math.IsInf(d, 0) {
+				t.Fatalf("%+v: row %d has distance %v pc, want ≥ %v pc and finite", opt, i, d, synthRMin)
+			}
+			if n := float64(s.X[i])*float64(s.X[i]) + float64(s.Y[i])*float64(s.Y[i]) + float64(s.Z[i])*float64(s.Z[i]); math.Abs(n-1) > 1e-6 {
+				t.Fatalf("%+v: row %d direction has |n|² = %v, want 1", opt, i, n)
+			}
+			if math.IsNaN(float64(s.BV[i])) {
+				t.Fatalf("%+v: row %d has no B−V", opt, i)
+			}
+			// Without dust, B−V is the intrinsic colour and Teff must be its
+			// Ballesteros (2012) temperature [pub].
+			if opt.NoExtinction {
+				want := TeffFromBV(float64(s.BV[i]))
+				if math.Abs(float64(s.Teff[i])-want) > 1e-3*want {
+					t.Fatalf("%+v: row %d: Teff = %v for B−V = %v, want %v (Ballesteros 2012)", opt, i, s.Teff[i], s.BV[i], want)
+				}
+			}
+		}
+	}
+}
+
+func TestSyntheticMagLimitOption(t *testing.T) {
+	cases := []struct {
+		in, want float64
+	}{
+		{0, DefaultSynthMagLimit}, {math.NaN(), DefaultSynthMagLimit}, {-40, MinSynthMagLimit},
+		{99, MaxSynthMagLimit}, {math.Inf(1), MaxSynthMagLimit}, {5.5, 5.5},
+	}
+	for _, c := range cases {
+		if have := (SynthOptions{MagLimit: c.in}).magLimit(); have != c.want {
+			t.Errorf("MagLimit %v: have limit %v, want %v", c.in, have, c.want)
+		}
+	}
+	// A very bright limit must work and give (almost) no sampled stars.
+	s := Synthetic(SynthOptions{MagLimit: -40, NoNearby: true})
+	if s.Len() > 10 {
+		t.Errorf("MagLimit −40 (clamped to %v): %d stars, want a handful at most", MinSynthMagLimit, s.Len())
+	}
+}
+
+// TestSyntheticCountsFaint compares the number of stars brighter than V = 8
+// and V = 9 with the whole-sky counts log N(<V) ≈ 4.61 and 5.07, i.e. about
+// 41 000 and 117 000 stars (Allen's Astrophysical Quantities, star counts
+// table) [mem, ±20 %].
+func TestSyntheticCountsFaint(t *testing.T) {
+	cases := []struct {
+		v    float64
+		want float64
+	}{{8, 41000}, {9, 117000}}
+	if testing.Short() {
+		cases = cases[:1]
+	}
+	for _, c := range cases {
+		s := Synthetic(SynthOptions{MagLimit: c.v, NoNearby: true})
+		if rel := float64(s.Len())/c.want - 1; math.Abs(rel) > 0.2 {
+			t.Errorf("V ≤ %g: have %d stars, want %.0f ± 20 %% (Allen [mem])", c.v, s.Len(), c.want)
+		}
+	}
+}
+
+// TestSyntheticSeedsRobust checks that other seeds pass the statistics that
+// are not dominated by small numbers: the 1-mag bins fainter than V = 3
+// within 20 %, the low-latitude share within 20 % and the median B−V within
+// 0.1 mag of BSC5 (tolerances as in TestSyntheticMatchesBSC [cp]).
+func TestSyntheticSeedsRobust(t *testing.T) {
+	real := synthBSCStats(t)
+	seeds := []uint64{1, 2, 3, 4, 5}
+	if testing.Short() {
+		seeds = seeds[:2]
+	}
+	for _, seed := range seeds {
+		syn := synthStats(Synthetic(SynthOptions{Seed: seed}))
+		for i, e := range synthStatBins {
+			if e <= 3 {
+				continue
+			}
+			if rel := float64(syn.bins[i])/float64(real.bins[i]) - 1; math.Abs(rel) > 0.2 {
+				t.Errorf("seed %d, bin ending at V = %g: have %d, want %d ± 20 %% (BSC5)", seed, e, syn.bins[i], real.bins[i])
+			}
+		}
+		if rel := syn.lowShare/real.lowShare - 1; math.Abs(rel) > 0.2 {
+			t.Errorf("seed %d: share at |b| < 20° have %.3f, want %.3f ± 20 %% (BSC5)", seed, syn.lowShare, real.lowShare)
+		}
+		if d := syn.medianBV - real.medianBV; math.Abs(d) > 0.1 {
+			t.Errorf("seed %d: median B−V have %.3f, want %.3f ± 0.1 (BSC5)", seed, syn.medianBV, real.medianBV)
+		}
+	}
+}
+
+// TestPoisson checks the sampler's mean and variance, both λ for a Poisson
+// distribution [cp], in each of its regimes.
+func TestPoisson(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	for _, lam := range []float64{0.3, 7, 120, 2000} {
+		const n = 20000
+		var sum, sum2 float64
+		for i := 0; i < n; i++ {
+			k := float64(poisson(rng, lam))
+			sum += k
+			sum2 += k * k
+		}
+		mean := sum / n
+		vari := sum2/n - mean*mean
+		// 5 standard errors of the mean; 10 % on the variance.
+		if math.Abs(mean-lam) > 5*math.Sqrt(lam/n) || math.Abs(vari/lam-1) > 0.1 {
+			t.Errorf("λ = %v: have mean %.4f, variance %.4f, want both %v", lam, mean, vari, lam)
+		}
+	}
+	if poisson(rng, 0) != 0 || poisson(rng, -1) != 0 || poisson(rng, math.NaN()) != 0 {
+		t.Error("poisson of a non-positive or NaN mean must be 0")
 	}
 }
