@@ -230,13 +230,11 @@ func (p Projection) Validate() error {
 	return p.Orient.Validate()
 }
 
-// frame returns the cached constants when they are current, else derives
-// them (without storing: p is never modified here).
-func (p *Projection) frame() frame {
-	if p.ready && p.key == p.keyOf() {
-		return p.cache
-	}
-	return p.derive()
+// current reports whether the cached constants match the exported fields.
+func (p *Projection) current() bool {
+	k := &p.key
+	return p.ready && k.kind == p.Kind && k.w == p.Width && k.h == p.Height &&
+		k.fov == p.FOV && k.tilt == p.Tilt && k.o == p.Orient
 }
 
 // Centre returns the direction seen at the image centre (W/2, H/2): Forward
@@ -275,7 +273,10 @@ func (p Projection) PixelScale() float64 {
 // 180°] about Forward, so the point straight behind maps to x = W.
 // Forward does not allocate.
 func (p *Projection) Forward(dir r3.Vec) (x, y float64, ok bool) {
-	fr := p.frame()
+	if p.current() {
+		return p.cache.forward(p.Kind, dir)
+	}
+	fr := p.derive()
 	return fr.forward(p.Kind, dir)
 }
 
@@ -285,7 +286,10 @@ func (p *Projection) Forward(dir r3.Vec) (x, y float64, ok bool) {
 // every finite (x, y) is a direction). dir is then the zero vector.
 // Inverse does not allocate.
 func (p *Projection) Inverse(x, y float64) (dir r3.Vec, ok bool) {
-	fr := p.frame()
+	if p.current() {
+		return p.cache.inverse(p.Kind, p.Width, p.Height, x, y)
+	}
+	fr := p.derive()
 	return fr.inverse(p.Kind, p.Width, p.Height, x, y)
 }
 
