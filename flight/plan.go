@@ -326,6 +326,10 @@ func ParsePlan(data []byte, name string) (*Plan, error) {
 		if errors.As(err, &te) {
 			pe.Line = te.Position.Line
 			pe.Msg = te.Message
+		} else if m := tomlTypeErr.FindStringSubmatch(err.Error()); m != nil {
+			// Type mismatches come as plain errors naming line and key.
+			pe.Line, _ = strconv.Atoi(m[1])
+			pe.Key, pe.Msg, pe.Err = m[2], m[3], ErrPlanValue
 		}
 		return nil, pe
 	}
@@ -430,6 +434,8 @@ const (
 	lookFixed
 	lookStar
 )
+
+var tomlTypeErr = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]*)"\): (.*)$`)
 
 var raDecRe = regexp.MustCompile(`^\s*([-+]?[0-9.]+(?:[eE][-+]?[0-9]+)?)\s*,\s*([-+]?[0-9.]+(?:[eE][-+]?[0-9]+)?)\s*$`)
 

@@ -4,11 +4,13 @@ import (
 	"bytes"
 	"encoding/csv"
 	"errors"
+	"math"
 	"os"
 	"strconv"
 	"strings"
 	"testing"
 
+	"github.com/skyframe/skyframe/catalog"
 	"gonum.org/v1/gonum/floats/scalar"
 	"gonum.org/v1/gonum/spatial/r3"
 )
@@ -145,6 +147,7 @@ func TestPlanErrors(t *testing.T) {
 		{"syntax", base + "[camera]\nwidth = = 3\n", ErrPlanSyntax, 7, "", ""},
 		{"deep", base + "x = [[[[[[[1]]]]]]]\n", ErrPlanTooDeep, 6, "", ""},
 		{"speed cap c", "[[leg]]\nkind = \"voyage\"\naccel_g = 1\nto_position = [1,0,0]\nspeed_cap = 1.0\n[show]\nseconds = 5\n", ErrPlanValue, 5, "leg[0].speed_cap", ""},
+		{"wrong type", strings.Replace(base, "ship_years = 1", "ship_years = \"one\"", 1), ErrPlanValue, 3, "leg.ship_years", ""},
 		{"look order", base + "[[camera.look]]\nat = 2\n[[camera.look]]\nat = 1\n", ErrPlanValue, 9, "camera.look[1].at", ""},
 	} {
 		_, err := ParsePlan([]byte(c.src), "t.toml")
@@ -305,5 +308,29 @@ fps = 5
 	// Catalogue time over the whole flight is 4/0.6 yr [cp].
 	if e := p.Trajectory().End(); !scalar.EqualWithinRel(e.T, 4/0.6, 1e-12) {
 		t.Errorf("t = %v, want %v", e.T, 4/0.6)
+	}
+}
+
+func TestStarsResolver(t *testing.T) {
+	stars := &catalog.Stars{ID: []int64{1, 2}, X: []float32{0, 1}, Y: []float32{1, 0}, Z: []float32{0, 0},
+		Dist: []float32{2, float32(math.Inf(1))}}
+	find := func(s string) (int, bool) {
+		switch s {
+		case "near":
+			return 0, true
+		case "far":
+			return 1, true
+		}
+		return 0, false
+	}
+	r := StarsResolver(stars, find)
+	if p, ok := r("near"); !ok || p != (r3.Vec{Y: 2}) {
+		t.Errorf("near: have %v %v, want (0,2,0) true", p, ok)
+	}
+	if _, ok := r("far"); ok {
+		t.Errorf("a star at unknown distance must not resolve")
+	}
+	if _, ok := r("none"); ok {
+		t.Errorf("unknown name resolved")
 	}
 }
