@@ -57,6 +57,35 @@ func (o Observer) See(u r3.Vec, dist float64) (n r3.Vec, d float64, dilution flo
 	return n, d, q * q, r
 }
 
+// SeeBatch applies See to the catalogue columns x, y, z (unit directions
+// from the Sun) and dist (parsecs, +Inf unknown), in the float32 form the
+// catalogue stores them, writing n′ to (nx, ny, nz), D to d, the dilution
+// factor to dilution and the distance from the observer to r. dilution and r
+// may be nil. It processes the length of the shortest slice given and never
+// allocates. Each u is renormalised in float64 first (float32 unit vectors
+// are unit only to ~1e-7).
+func (o Observer) SeeBatch(x, y, z, dist []float32, nx, ny, nz, d, dilution, r []float64) {
+	n := min(len(x), len(y), len(z), len(dist), len(nx), len(ny), len(nz), len(d))
+	if dilution != nil {
+		n = min(n, len(dilution))
+	}
+	if r != nil {
+		n = min(n, len(r))
+	}
+	for i := range n {
+		u := r3.Vec{X: float64(x[i]), Y: float64(y[i]), Z: float64(z[i])}
+		ux, uy, uz := unitish(u.X, u.Y, u.Z)
+		v, dd, dil, rr := o.See(r3.Vec{X: ux, Y: uy, Z: uz}, float64(dist[i]))
+		nx[i], ny[i], nz[i], d[i] = v.X, v.Y, v.Z, dd
+		if dilution != nil {
+			dilution[i] = dil
+		}
+		if r != nil {
+			r[i] = rr
+		}
+	}
+}
+
 // AU is the astronomical unit in parsecs (IAU 2012 B2: 1 au =
 // 149 597 870 700 m; 1 pc = 648000/π au), so 1 au = π/648000 pc.
 const AU = math.Pi / 648000

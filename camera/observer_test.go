@@ -60,6 +60,30 @@ func TestObserverBoosted(t *testing.T) {
 	}
 }
 
+func TestSeeBatch(t *testing.T) {
+	o := Observer{Position: r3.Vec{X: 0.5, Y: -0.2, Z: 0.1}, Boost: mustGamma(t, r3.Vec{Y: 1}, 3)}
+	dirs := []r3.Vec{{X: 1}, r3.Unit(r3.Vec{X: 1, Y: 1, Z: 1}), r3.Unit(r3.Vec{X: -1, Y: 0.2, Z: -3})}
+	dists := []float32{1.3, float32(math.Inf(1)), 40}
+	var x, y, z []float32
+	for _, v := range dirs {
+		x, y, z = append(x, float32(v.X)), append(y, float32(v.Y)), append(z, float32(v.Z))
+	}
+	nx, ny, nz, d, dil, r := make([]float64, 3), make([]float64, 3), make([]float64, 3), make([]float64, 3), make([]float64, 3), make([]float64, 3)
+	o.SeeBatch(x, y, z, dists, nx, ny, nz, d, dil, r)
+	for i := range dirs {
+		u := r3.Unit(r3.Vec{X: float64(x[i]), Y: float64(y[i]), Z: float64(z[i])})
+		wn, wd, wdil, wr := o.See(u, float64(dists[i]))
+		have := r3.Vec{X: nx[i], Y: ny[i], Z: nz[i]}
+		if angle(have, wn) > 1e-15 || !scalar.EqualWithinRel(d[i], wd, 1e-15) ||
+			!scalar.EqualWithinRel(dil[i], wdil, 1e-15) || !(r[i] == wr || scalar.EqualWithinRel(r[i], wr, 1e-15)) {
+			t.Errorf("star %d: batch (%v %v %v %v), See (%v %v %v %v)", i, have, d[i], dil[i], r[i], wn, wd, wdil, wr)
+		}
+	}
+	if a := testing.AllocsPerRun(10, func() { o.SeeBatch(x, y, z, dists, nx, ny, nz, d, nil, nil) }); a != 0 {
+		t.Errorf("SeeBatch allocates %v times", a)
+	}
+}
+
 func BenchmarkObserverSee(b *testing.B) {
 	o := Observer{Position: r3.Vec{X: 1, Y: 0.3}, Boost: mustGamma(b, r3.Vec{X: 1}, 5)}
 	u := r3.Unit(r3.Vec{X: 1, Y: 2, Z: 3})
@@ -70,4 +94,23 @@ func BenchmarkObserverSee(b *testing.B) {
 		sink += n.X + d + dil
 	}
 	_ = sink
+}
+
+func BenchmarkSeeBatch1e6(b *testing.B) {
+	o := Observer{Position: r3.Vec{X: 1, Y: 0.3}, Boost: mustGamma(b, r3.Vec{X: 1}, 5)}
+	const n = 1_000_000
+	x, y, z, dist := make([]float32, n), make([]float32, n), make([]float32, n), make([]float32, n)
+	for i := range x {
+		zz := float64(i)/n*2 - 1 + 1.0/n
+		ph := float64(i) * 2.399963
+		s := math.Sqrt(1 - zz*zz)
+		x[i], y[i], z[i] = float32(s*math.Cos(ph)), float32(s*math.Sin(ph)), float32(zz)
+		dist[i] = float32(1 + i%500)
+	}
+	nx, ny, nz, d, dil := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
+	b.ReportAllocs()
+	for b.Loop() {
+		o.SeeBatch(x, y, z, dist, nx, ny, nz, d, dil, nil)
+	}
+	b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mstars/s")
 }
