@@ -259,7 +259,10 @@ func TestWCSMatchesProjection(t *testing.T) {
 	}
 	// Fixed cases: north up on the equator (native and celestial poles
 	// coincide for CAR), looking at either celestial pole, rolled.
-	type axis struct{ fwd, up r3.Vec; roll float64 }
+	type axis struct {
+		fwd, up r3.Vec
+		roll    float64
+	}
 	axes := []axis{
 		{r3.Vec{X: 1}, r3.Vec{Z: 1}, 0},
 		{r3.Vec{X: -1, Y: 1}, r3.Vec{Z: -1}, 0},
