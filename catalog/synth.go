@@ -103,7 +103,7 @@ func BuiltIn() *Stars {
 //     at the clump, a fifth of the giants being yellow (B−V 0.4–0.9);
 //   - old stars (dwarfs fainter than the M_V = 3.5 turn-off, and giants) shared
 //     between the thin disk (scale height 300 pc), a thick disk (900 pc, 10 %
-//     of old stars at the Sun) and a halo (ρ ∝ r^−2.8, axis ratio 0.64,
+//     of old stars at the Sun) and a halo (ρ ∝ r^−3, axis ratio 0.64,
 //     0.5 %).
 //
 // Disks are exponential in galactocentric radius R (scale lengths 2.6 and
@@ -306,13 +306,16 @@ func (g *synthGen) lineOfSight(cbl, sb float64) {
 		var rho [geomCount]float64
 		// e = exp(−(|z| − z⊙)/synthHBase); exp(−(|z| − z⊙)/h) = e^n.
 		e := math.Exp(-(az - synthZSun) / synthHBase)
-		thinR := math.Exp(-(R - synthR0) / synthThinL)
+		er := math.Exp(-(R - synthR0) / synthLBase)
+		thinR := ipow(er, synthThinLN)
 		for i, n := range synthThinN {
 			rho[geomThin0+i] = thinR * ipow(e, n)
 		}
-		rho[geomThick] = math.Exp(-(R-synthR0)/synthThickL) * ipow(e, synthThickN)
+		rho[geomThick] = ipow(er, synthThickLN) * ipow(e, synthThickN)
 		rgc2 := R*R + (z/synthHaloQ)*(z/synthHaloQ) + synthHaloCore*synthHaloCore
-		rho[geomHalo] = math.Exp(-0.5 * synthHaloN * math.Log(rgc2/rgcSun2))
+		// (r/r⊙)^−3 with n = synthHaloN = 3, as q^−3/2 of the squares.
+		q := rgc2 / rgcSun2
+		rho[geomHalo] = 1 / (q * math.Sqrt(q))
 		r3 := r * r * r
 		dust := 0.0
 		if g.dust {

@@ -12,22 +12,22 @@ import (
 
 // Galactic structure.
 const (
-	synthR0       = 8200.0                   // Sun's galactocentric radius, pc (Bland-Hawthorn & Gerhard 2016, ARA&A 54, 529: 8.2 ± 0.1 kpc) [mem]
-	synthZSun     = 20.0                     // Sun's height above the plane, pc (ibid.: 25 ± 5 pc; Jurić et al. 2008: 25 pc) [mem, rounded]
-	synthThinL    = 2600.0                   // thin-disk scale length, pc (Jurić et al. 2008, ApJ 673, 864: 2.6 kpc) [mem]
-	synthThickL   = 3600.0                   // thick-disk scale length, pc (ibid.: 3.6 kpc) [mem]
-	synthThickH   = synthHBase / synthThickN // thick-disk scale height, pc (ibid.: 900 pc) [mem]
-	synthThickF   = 0.10                     // thick-disk share of old stars at the Sun (ibid.: 0.12 of the thin disk) [mem, rounded]
-	synthHaloF    = 0.005                    // halo share of old stars at the Sun (ibid.: 0.005) [mem]
-	synthHaloN    = 2.8                      // halo power-law index, ρ ∝ r^−n (ibid.: 2.77) [mem, rounded]
-	synthHaloQ    = 0.64                     // halo axis ratio c/a (ibid.: 0.64) [mem]
-	synthHaloCore = 500.0                    // halo core radius, pc, keeps ρ finite at the centre [cal]
+	synthR0       = 8200.0                    // Sun's galactocentric radius, pc (Bland-Hawthorn & Gerhard 2016, ARA&A 54, 529: 8.2 ± 0.1 kpc) [mem]
+	synthZSun     = 20.0                      // Sun's height above the plane, pc (ibid.: 25 ± 5 pc; Jurić et al. 2008: 25 pc) [mem, rounded]
+	synthThinL    = synthLBase / synthThinLN  // thin-disk scale length, pc (Jurić et al. 2008, ApJ 673, 864: 2.6 kpc) [mem]
+	synthThickL   = synthLBase / synthThickLN // thick-disk scale length, pc (ibid.: 3.6 kpc) [mem]
+	synthThickH   = synthHBase / synthThickN  // thick-disk scale height, pc (ibid.: 900 pc) [mem]
+	synthThickF   = 0.10                      // thick-disk share of old stars at the Sun (ibid.: 0.12 of the thin disk) [mem, rounded]
+	synthHaloF    = 0.005                     // halo share of old stars at the Sun (ibid.: 0.005) [mem]
+	synthHaloN    = 3.0                       // halo power-law index, ρ ∝ r^−n (ibid.: 2.77; 3 is the classical value) [mem, rounded]; lineOfSight hard-codes n = 3
+	synthHaloQ    = 0.64                      // halo axis ratio c/a (ibid.: 0.64) [mem]
+	synthHaloCore = 500.0                     // halo core radius, pc, keeps ρ finite at the centre [cal]
 
 	// Dust: a thin exponential layer with extinction a0 per kpc in the plane.
 	// About 1 mag/kpc in V near the plane is the usual textbook figure
 	// (e.g. Binney & Merrifield 1998, §3.7) [mem]; the scale height of the dust
 	// is ~100–130 pc (Marshall et al. 2006, A&A 453, 635: 125 pc) [mem].
-	synthDustA0 = 1.1                     // mag per kpc at the plane [cal, within the published range]
+	synthDustA0 = 1.1                     // mag per kpc at the plane [cal, close to the textbook 1 mag/kpc]
 	synthDustH  = synthHBase / synthDustN // 112.5 pc [mem, rounded]
 	// Ratio of total to selective extinction R_V = A_V/E(B−V) = 3.1
 	// (Cardelli, Clayton & Mathis 1989, ApJ 345, 245) [pub].
@@ -40,9 +40,10 @@ const (
 
 // synthLogPhi is the local luminosity function log10 φ(M_V), stars pc⁻³ per
 // magnitude, for M_V = −8 … +16 in steps of 1, all stars of all luminosity
-// classes. From −6 to +16 these are the V-column values of the classical table
-// in Allen, Astrophysical Quantities, 3rd ed. (1973), §117 [pub]; −7 and −8 are
-// extrapolated with the slope of the −6…−4 values [cal].
+// classes. From −6 to +16 these are the V-column values of the classical
+// luminosity-function table of Allen, Astrophysical Quantities, 3rd ed.
+// (1973) [pub; section §117 from memory]; −7 and −8 are extrapolated with the
+// slope of the −6…−4 values [cal].
 var synthLogPhi = [...]float64{
 	-9.3, -8.6, // −8, −7 (extrapolated)
 	-7.9, -7.2, -6.54, -5.90, -5.28, -4.60, -3.95, // −6 … 0
@@ -54,9 +55,10 @@ const synthPhiMMin = -8.0 // M_V of synthLogPhi[0]
 
 // synthLogPhiCal is added to synthLogPhi, at the same M_V nodes [cal]: the
 // calibration against the Bright Star Catalogue counts by magnitude and
-// colour. It lowers the late-B and A main sequence (M_V −1 … +2) and raises
-// the luminous end, within the scatter of published local luminosity
-// functions [mem].
+// colour (synth_test.go). It lowers late-B to A stars (M_V −0.5 … +2) by up
+// to 0.3 dex and raises the luminous end (M_V −7 … −2) by up to 0.5 dex; the
+// latter also stands in for the Gould Belt, the excess of young luminous
+// stars within ~500 pc of the Sun that the smooth disk leaves out.
 var synthLogPhiCal = [...]float64{
 	0, 0.1, // −8, −7
 	0.25, 0.45, 0.48, 0.45, 0.30, -0.03, -0.30, // −6 … 0
@@ -101,6 +103,14 @@ var synthRGBBV = [...]float64{1.62, 1.58, 1.50, 1.35, 1.15, 1.00, 0.95, 0.85}
 // the n of synthThinH (F stars 190 → 180 pc, dust 110 → 112.5 pc).
 var synthThinH = [...]float64{50, 60, 90, 120, 180, 300}
 var synthThinN = [...]int{36, 30, 20, 15, 10, 6}
+
+// The two radial scale lengths are likewise synthLBase/n: thin 46800/18 =
+// 2600 pc, thick 46800/13 = 3600 pc.
+const (
+	synthLBase   = 46800.0
+	synthThinLN  = 18
+	synthThickLN = 13
+)
 
 const (
 	synthHBase  = 1800.0
