@@ -246,8 +246,10 @@ func TestBoostErrors(t *testing.T) {
 		{"γ<1", second(NewBoostGamma(dir, 0.5)), ErrSpeed},
 		{"γ NaN", second(NewBoostGamma(dir, nan)), ErrSpeed},
 		{"γ Inf", second(NewBoostGamma(dir, math.Inf(1))), ErrSpeed},
+		{"γ > MaxGamma", second(NewBoostGamma(dir, 1e151)), ErrSpeed},
 		{"φ<0", second(NewBoostRapidity(dir, -1)), ErrSpeed},
 		{"φ huge", second(NewBoostRapidity(dir, 800)), ErrSpeed},
+		{"φ > acosh MaxGamma", second(NewBoostRapidity(dir, 347)), ErrSpeed},
 		{"φ NaN", second(NewBoostRapidity(dir, nan)), ErrSpeed},
 		{"zero dir", second(NewBoost(r3.Vec{}, 0.5)), ErrDirection},
 		{"NaN dir", second(NewBoost(r3.Vec{X: nan}, 0.5)), ErrDirection},
@@ -280,6 +282,25 @@ func TestBoostErrors(t *testing.T) {
 		if angle(np, n) > 1e-16 || d != 1 {
 			t.Errorf("identity boost moved n: %v → %v, D=%v", n, np, d)
 		}
+	}
+}
+
+// TestMaxGamma: at the largest accepted γ nothing overflows, ahead or
+// behind: D ahead = γ(1+β) → 2γ, behind 1/(γ(1+β)) → 1/(2γ) [cp].
+func TestMaxGamma(t *testing.T) {
+	b := mustGamma(t, r3.Vec{X: 1}, MaxGamma)
+	for _, c := range []struct {
+		n     r3.Vec
+		cos   float64
+		wantD float64
+	}{{r3.Vec{X: 1}, 1, 2 * MaxGamma}, {r3.Vec{X: -1}, -1, 0.5 / MaxGamma}, {r3.Vec{Y: 1}, 1, MaxGamma}} {
+		np, d := b.Apply(c.n)
+		if !scalar.EqualWithinRel(d, c.wantD, 1e-15) || !scalar.EqualWithinAbs(np.X, c.cos, 1e-15) {
+			t.Errorf("n=%v: n′=%v D=%v, want cos θ′=%v D=%v", c.n, np, d, c.cos, c.wantD)
+		}
+	}
+	if _, err := NewBoostRapidity(r3.Vec{X: 1}, math.Acosh(MaxGamma)*0.999); err != nil {
+		t.Error(err)
 	}
 }
 
