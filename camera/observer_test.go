@@ -109,8 +109,13 @@ func BenchmarkSeeBatch1e6(b *testing.B) {
 	}
 	nx, ny, nz, d, dil := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
 	b.ReportAllocs()
-	for b.Loop() {
-		o.SeeBatch(x, y, z, dist, nx, ny, nz, d, dil, nil)
+	o.SeeBatch(x, y, z, dist, nx, ny, nz, d, dil, nil) // touch the output pages
+	// One op is one star, processed in batches over the 1e6-star arrays.
+	b.ResetTimer()
+	for done := 0; done < b.N; {
+		m := min(n, b.N-done)
+		o.SeeBatch(x[:m], y[:m], z[:m], dist[:m], nx[:m], ny[:m], nz[:m], d[:m], dil[:m], nil)
+		done += m
 	}
-	b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mstars/s")
+	b.ReportMetric(float64(b.N)/b.Elapsed().Seconds()/1e6, "Mstars/s")
 }
