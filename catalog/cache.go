@@ -233,8 +233,9 @@ func (c *cacheReader) f32s(n, prealloc int) ([]float32, error) {
 		base := len(out)
 		out = grown(out, k, n)
 		dst := out[base : base+k]
+		src := b[:4*len(dst)]
 		for i := range dst {
-			dst[i] = math.Float32frombits(binary.LittleEndian.Uint32(b[4*i:]))
+			dst[i] = math.Float32frombits(binary.LittleEndian.Uint32(src[4*i : 4*i+4]))
 		}
 	}
 	return out, nil

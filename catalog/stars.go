@@ -176,7 +176,8 @@ func (s *Stars) Validate() error {
 	return nil
 }
 
+// finite32 reports whether v is neither NaN nor ±Inf (exponent bits not
+// all set), without converting to float64.
 func finite32(v float32) bool {
-	f := float64(v)
-	return !math.IsNaN(f) && !math.IsInf(f, 0)
+	return math.Float32bits(v)&0x7f800000 != 0x7f800000
 }
