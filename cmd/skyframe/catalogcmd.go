@@ -1,0 +1,306 @@
+package main
+
+import (
+	"bufio"
+	"fmt"
+	"io"
+	"math"
+	"net/http"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"time"
+
+	"github.com/schollz/progressbar/v3"
+	"github.com/spf13/pflag"
+	"golang.org/x/term"
+
+	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/render"
+)
+
+const catalogHelp = `Usage: skyframe catalog <inspect|pack|fetch> [options] ...
+
+  inspect FILE          report the format, rows read and skipped (with reasons and
+                        first line numbers), and the magnitude, colour and
+                        distance ranges
+  pack FILE -o OUT      convert any catalogue into skyframe's compact, versioned,
+                        checksummed binary cache (loads fast; use it with --catalog)
+  fetch NAME            download a catalogue from the CDS archive into the user
+                        cache directory, verify its structure, print its path.
+                        NAME: ` + "%s" + `
+
+Examples:
+  skyframe catalog inspect ../shared/catalogs/bsc5.dat
+  skyframe catalog pack hip_main.dat.gz -o hip.skyc
+  skyframe catalog fetch bsc5
+`
+
+func sourceNames() string {
+	var names []string
+	for k := range catalog.KnownSources {
+		names = append(names, k)
+	}
+	sort.Strings(names)
+	return strings.Join(names, ", ")
+}
+
+func runCatalog(e *env, args []string) error {
+	if len(args) == 0 || args[0] == "-h" || args[0] == "--help" {
+		fmt.Fprintf(e.stdout, catalogHelp, sourceNames())
+		fmt.Fprint(e.stdout, exitStatusHelp)
+		if len(args) == 0 {
+			return usagef("catalog: missing subcommand (inspect, pack or fetch)")
+		}
+		return errHelp
+	}
+	switch args[0] {
+	case "inspect":
+		return catalogInspect(e, args[1:])
+	case "pack":
+		return catalogPack(e, args[1:])
+	case "fetch":
+		return catalogFetch(e, args[1:])
+	}
+	return usagef("catalog: unknown subcommand %q (want inspect, pack or fetch)", args[0])
+}
+
+func catalogFlagSet(e *env, name, usage string) *pflag.FlagSet {
+	fs := pflag.NewFlagSet("catalog "+name, pflag.ContinueOnError)
+	fs.SetOutput(e.stderr)
+	fs.Usage = func() {
+		fmt.Fprint(e.stdout, usage)
+		fs.SetOutput(e.stdout)
+		fs.PrintDefaults()
+		fmt.Fprint(e.stdout, exitStatusHelp)
+	}
+	return fs
+}
+
+func readOptions(format string, columns []string) (catalog.ReadOptions, error) {
+	var opt catalog.ReadOptions
+	if format != "" {
+		f, err := catalog.ParseFormat(format)
+		if err != nil {
+			return opt, usagef("--catalog-format: %v", err)
+		}
+		opt.Format = f
+	}
+	cm, err := parseColumnMap(columns)
+	if err != nil {
+		return opt, err
+	}
+	opt.Columns = cm
+	return opt, nil
+}
+
+func catalogInspect(e *env, args []string) error {
+	fs := catalogFlagSet(e, "inspect", "Usage: skyframe catalog inspect [options] FILE\n\nOptions:\n")
+	format := fs.String("catalog-format", "", "format, overriding detection")
+	cols := fs.StringSlice("column", nil, "generic CSV/TSV column map, FIELD=NAME (fields: "+strings.Join(columnFields, ", ")+")")
+	if err := fs.Parse(args); err != nil {
+		if err == pflag.ErrHelp {
+			return errHelp
+		}
+		return usageError{err}
+	}
+	if fs.NArg() != 1 {
+		return usagef("catalog inspect: want exactly one FILE")
+	}
+	opt, err := readOptions(*format, *cols)
+	if err != nil {
+		return err
+	}
+	start := time.Now()
+	stars, rep, err := catalog.Open(fs.Arg(0), opt)
+	if err != nil {
+		return usageError{err}
+	}
+	printReport(e.stdout, stars, rep, time.Since(start))
+	return nil
+}
+
+func printReport(w io.Writer, s *catalog.Stars, r *catalog.Report, took time.Duration) {
+	fmt.Fprintf(w, "file:        %s\n", r.Source)
+	comp := ""
+	if r.Compressed {
+		comp = " (gzip)"
+	}
+	fmt.Fprintf(w, "format:      %s%s\n", r.Format, comp)
+	fmt.Fprintf(w, "lines:       %d\n", r.Lines)
+	fmt.Fprintf(w, "stars kept:  %d\n", r.Rows)
+	fmt.Fprintf(w, "rows skipped: %d\n", r.Skipped)
+	for _, sk := range r.Skips {
+		fmt.Fprintf(w, "  %-28s %7d  (first at line %d)\n", sk.Reason, sk.Count, sk.FirstLine)
+	}
+	rng := func(name, unit string, q catalog.Range) {
+		if q.N == 0 {
+			fmt.Fprintf(w, "%-12s none\n", name+":")
+			return
+		}
+		fmt.Fprintf(w, "%-12s %.2f … %.2f%s (%d stars)\n", name+":", q.Min, q.Max, unit, q.N)
+	}
+	rng("V", " mag", r.V)
+	rng("B−V", " mag", r.BV)
+	rng("distance", " pc", r.Dist)
+	fmt.Fprintf(w, "flags:       %d without distance (infinitely far), %d without colour (T = %d K), %d with catalogue Teff, %d with colour outside the relation's range\n",
+		r.NoDistance, r.NoColour, catalog.DefaultTeff, r.TeffFromCatalogue, r.TeffExtrapolated)
+	fmt.Fprintf(w, "epoch:       J%.2f\n", r.Epoch)
+	fmt.Fprintf(w, "read in:     %v\n", took.Round(time.Millisecond))
+	_ = s
+}
+
+func catalogPack(e *env, args []string) error {
+	fs := catalogFlagSet(e, "pack", "Usage: skyframe catalog pack [options] FILE -o OUT\n\nOptions:\n")
+	format := fs.String("catalog-format", "", "input format, overriding detection")
+	cols := fs.StringSlice("column", nil, "generic CSV/TSV column map, FIELD=NAME")
+	out := fs.StringP("output", "o", "", "cache file to write (required)")
+	if err := fs.Parse(args); err != nil {
+		if err == pflag.ErrHelp {
+			return errHelp
+		}
+		return usageError{err}
+	}
+	if fs.NArg() != 1 {
+		return usagef("catalog pack: want exactly one input FILE")
+	}
+	if *out == "" {
+		return usagef("catalog pack: --output/-o is required")
+	}
+	if err := checkWritable("output", *out); err != nil {
+		return err
+	}
+	opt, err := readOptions(*format, *cols)
+	if err != nil {
+		return err
+	}
+	stars, rep, err := catalog.Open(fs.Arg(0), opt)
+	if err != nil {
+		return usageError{err}
+	}
+	err = render.WriteFileAtomic(*out, func(w io.Writer) error { return catalog.WriteCache(w, stars) })
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(e.stdout, "%s: %d stars from %s (%s, %d rows skipped)\n", *out, stars.Len(), rep.Source, rep.Format, rep.Skipped)
+	return nil
+}
+
+func catalogFetch(e *env, args []string) error {
+	fs := catalogFlagSet(e, "fetch", "Usage: skyframe catalog fetch [options] NAME\n\nNAME: "+sourceNames()+"\n\nOptions:\n")
+	url := fs.String("url", "", "download from this address instead of the CDS archive (a mirror)")
+	out := fs.StringP("output", "o", "", "file to write (default: the user cache directory)")
+	if err := fs.Parse(args); err != nil {
+		if err == pflag.ErrHelp {
+			return errHelp
+		}
+		return usageError{err}
+	}
+	if fs.NArg() != 1 {
+		return usagef("catalog fetch: want one NAME (%s)", sourceNames())
+	}
+	src, ok := catalog.KnownSources[fs.Arg(0)]
+	if !ok {
+		return usagef("catalog fetch: unknown catalogue %q (want %s)", fs.Arg(0), sourceNames())
+	}
+	u := src.URL
+	if *url != "" {
+		u = *url
+	}
+	dst := *out
+	if dst == "" {
+		dir, err := catalog.CacheDir()
+		if err != nil {
+			return err
+		}
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			return err
+		}
+		dst = filepath.Join(dir, src.File)
+	}
+	if err := checkWritable("output", dst); err != nil {
+		return err
+	}
+	progress := newByteProgress(e.stderr, "fetch "+src.Name)
+	client := &http.Client{Timeout: 30 * time.Minute}
+	err := catalog.FetchWith(e.ctx, client, u, dst, progress.update, catalog.FetchOptions{Format: src.Format})
+	progress.finish()
+	if err != nil {
+		return err
+	}
+	fmt.Fprintln(e.stdout, dst)
+	return nil
+}
+
+// byteProgress shows download progress: a bar on a terminal, plain lines
+// otherwise.
+type byteProgress struct {
+	w     io.Writer
+	label string
+	bar   *progressbar.ProgressBar
+	tty   bool
+	last  time.Time
+}
+
+func newByteProgress(w io.Writer, label string) *byteProgress {
+	p := &byteProgress{w: w, label: label}
+	if f, ok := w.(*os.File); ok && term.IsTerminal(int(f.Fd())) {
+		p.tty = true
+	}
+	return p
+}
+
+func (p *byteProgress) update(done, total int64) {
+	if p.tty {
+		if p.bar == nil {
+			p.bar = progressbar.NewOptions64(total, progressbar.OptionSetWriter(p.w),
+				progressbar.OptionSetDescription(p.label), progressbar.OptionShowBytes(true),
+				progressbar.OptionShowCount(), progressbar.OptionSetPredictTime(true))
+		}
+		_ = p.bar.Set64(done)
+		return
+	}
+	if now := time.Now(); now.Sub(p.last) >= 5*time.Second || done == total {
+		p.last = now
+		if total > 0 {
+			fmt.Fprintf(p.w, "%s: %d / %d bytes (%.0f%%)\n", p.label, done, total, 100*float64(done)/float64(total))
+		} else {
+			fmt.Fprintf(p.w, "%s: %d bytes\n", p.label, done)
+		}
+	}
+}
+
+func (p *byteProgress) finish() {
+	if p.bar != nil {
+		_ = p.bar.Finish()
+		fmt.Fprintln(p.w)
+	}
+}
+
+// checkWritable fails early, with the flag's name, when path's directory
+// cannot take a new file.
+func checkWritable(flag, path string) error {
+	dir := filepath.Dir(path)
+	st, err := os.Stat(dir)
+	if err != nil {
+		return usagef("--%s %s: directory %s does not exist", flag, path, dir)
+	}
+	if !st.IsDir() {
+		return usagef("--%s %s: %s is not a directory", flag, path, dir)
+	}
+	f, err := os.CreateTemp(dir, ".skyframe-probe-*")
+	if err != nil {
+		return usagef("--%s %s: cannot write in %s: %v", flag, path, dir, err)
+	}
+	name := f.Name()
+	f.Close()
+	os.Remove(name)
+	if st, err := os.Stat(path); err == nil && st.IsDir() {
+		return usagef("--%s %s: is a directory", flag, path)
+	}
+	return nil
+}
+
+var _ = bufio.NewReader
+var _ = math.Inf

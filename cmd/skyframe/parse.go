@@ -1,0 +1,72 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// parseFloats splits "a,b[,c]" into exactly n finite numbers, naming the flag
+// in any error.
+func parseFloats(flag, s string, n int) ([]float64, error) {
+	parts := strings.Split(s, ",")
+	if len(parts) != n {
+		return nil, usagef("--%s %q: want %d comma-separated numbers", flag, s, n)
+	}
+	out := make([]float64, n)
+	for i, p := range parts {
+		v, err := strconv.ParseFloat(strings.TrimSpace(p), 64)
+		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, usagef("--%s %q: %q is not a finite number", flag, s, p)
+		}
+		out[i] = v
+	}
+	return out, nil
+}
+
+// parseRADec reads "RA,DEC" in ICRS degrees.
+func parseRADec(flag, s string) (ra, dec float64, err error) {
+	v, err := parseFloats(flag, s, 2)
+	if err != nil {
+		return 0, 0, err
+	}
+	if v[1] < -90 || v[1] > 90 {
+		return 0, 0, usagef("--%s %q: declination %g is outside [-90, 90]", flag, s, v[1])
+	}
+	return math.Mod(math.Mod(v[0], 360)+360, 360), v[1], nil
+}
+
+// maxSize is the largest width or height a frame may have.
+const maxSize = 32768
+
+// parseSize reads "WxH".
+func parseSize(flag, s string) (w, h int, err error) {
+	a, b, ok := strings.Cut(strings.ToLower(s), "x")
+	if !ok {
+		return 0, 0, usagef("--%s %q: want WIDTHxHEIGHT, e.g. 1920x1080", flag, s)
+	}
+	w, err1 := strconv.Atoi(strings.TrimSpace(a))
+	h, err2 := strconv.Atoi(strings.TrimSpace(b))
+	if err1 != nil || err2 != nil {
+		return 0, 0, usagef("--%s %q: want WIDTHxHEIGHT in whole pixels", flag, s)
+	}
+	if w < 1 || h < 1 || w > maxSize || h > maxSize {
+		return 0, 0, usagef("--%s %q: each side must be between 1 and %d pixels", flag, s, maxSize)
+	}
+	return w, h, nil
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// checkFinite names a flag whose value is NaN or infinite.
+func checkFinite(flag string, v float64) error {
+	if !finite(v) {
+		return usagef("--%s %v: want a finite number", flag, v)
+	}
+	return nil
+}
+
+func fmtFloat(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+var _ = fmt.Sprint

@@ -1,0 +1,184 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/pflag"
+	"gonum.org/v1/gonum/spatial/r3"
+
+	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/spectrum"
+)
+
+// physicsFlags are the options shared by every command that transforms the
+// sky: the catalogue, the ship's velocity and position, the beaming convention.
+type physicsFlags struct {
+	catalog       string
+	catalogFormat string
+	speed         float64
+	gamma         float64
+	rapidity      float64
+	toward        string
+	position      string
+	beaming       string
+	epoch         float64
+	columns       []string
+}
+
+// Default heading: the galactic centre (ICRS, ESA SP-1200 galactic pole and
+// origin), so a default frame looks into the densest part of the sky.
+const defaultToward = "266.405,-28.936"
+
+func (p *physicsFlags) register(fs *pflag.FlagSet, defaultSpeed float64) {
+	fs.StringVar(&p.catalog, "catalog", "", "star catalogue file (BSC5, Hipparcos, Gaia CSV, CSV/TSV, skyframe cache; gzip ok); default: the built-in synthetic sky")
+	fs.StringVar(&p.catalogFormat, "catalog-format", "", "catalogue format, overriding detection: "+formatNames())
+	fs.Float64Var(&p.speed, "speed", defaultSpeed, "ship speed β = v/c, 0 ≤ β < 1")
+	fs.Float64Var(&p.gamma, "gamma", 0, "Lorentz factor γ ≥ 1 instead of --speed (exact up to γ = 1e8 and beyond)")
+	fs.Float64Var(&p.rapidity, "rapidity", 0, "rapidity φ = atanh β instead of --speed")
+	fs.StringVar(&p.toward, "toward", defaultToward, "direction of motion as RA,DEC (ICRS degrees), or a star id or name from the catalogue")
+	fs.StringVar(&p.position, "position", "0,0,0", "ship position X,Y,Z in parsecs (ICRS axes, Sun at origin), or a star id or name")
+	fs.StringVar(&p.beaming, "beaming", "exact", "point-source beaming convention: exact (flux ∝ D²), d3, d4 (moving-source conventions of published figures)")
+	fs.StringSliceVar(&p.columns, "column", nil, "generic CSV/TSV column map, FIELD=NAME, repeatable (fields: "+strings.Join(columnFields, ", ")+"; add ra-hours if RA is in hours)")
+	fs.Float64Var(&p.epoch, "epoch", 0, "propagate positions by proper motion to this Julian epoch (e.g. 2100); 0 keeps the catalogue epoch")
+}
+
+func formatNames() string {
+	s := ""
+	for f := catalog.FormatAuto + 1; ; f++ {
+		name := f.String()
+		if _, err := catalog.ParseFormat(name); err != nil || name == "" {
+			break
+		}
+		if s != "" {
+			s += ", "
+		}
+		s += name
+	}
+	return s
+}
+
+// scene is the resolved physical state of one observation.
+type scene struct {
+	stars    *catalog.Stars
+	observer camera.Observer
+	beaming  spectrum.Beaming
+	heading  r3.Vec // unit direction of motion (ICRS)
+}
+
+func (p *physicsFlags) resolve(fs *pflag.FlagSet) (*scene, error) {
+	stars, err := loadStars(p.catalog, p.catalogFormat, p.columns, p.epoch)
+	if err != nil {
+		return nil, err
+	}
+	sc := &scene{stars: stars}
+	if sc.beaming, err = spectrum.ParseBeaming(p.beaming); err != nil {
+		return nil, usagef("--beaming: %v", err)
+	}
+	pos, err := resolvePosition(stars, "position", p.position)
+	if err != nil {
+		return nil, err
+	}
+	sc.heading, err = resolveDirection(stars, "toward", p.toward, pos)
+	if err != nil {
+		return nil, err
+	}
+	nset := 0
+	for _, name := range []string{"speed", "gamma", "rapidity"} {
+		if fs.Changed(name) {
+			nset++
+		}
+	}
+	if nset > 1 {
+		return nil, usagef("give only one of --speed, --gamma, --rapidity")
+	}
+	var b camera.Boost
+	switch {
+	case fs.Changed("gamma"):
+		if !(p.gamma >= 1) || math.IsInf(p.gamma, 0) {
+			return nil, usagef("--gamma %v: want a finite γ ≥ 1", p.gamma)
+		}
+		b, err = camera.NewBoostGamma(sc.heading, p.gamma)
+	case fs.Changed("rapidity"):
+		if !(p.rapidity >= 0) || math.IsInf(p.rapidity, 0) {
+			return nil, usagef("--rapidity %v: want a finite φ ≥ 0", p.rapidity)
+		}
+		b, err = camera.NewBoostRapidity(sc.heading, p.rapidity)
+	default:
+		if !(p.speed >= 0 && p.speed < 1) {
+			return nil, usagef("--speed %v: β must satisfy 0 ≤ β < 1 (use --gamma for speeds closer to light)", p.speed)
+		}
+		b, err = camera.NewBoost(sc.heading, p.speed)
+	}
+	if err != nil {
+		return nil, usageError{err}
+	}
+	sc.observer = camera.Observer{Position: pos, Boost: b}
+	return sc, nil
+}
+
+func loadStars(path, format string, columns []string, epoch float64) (*catalog.Stars, error) {
+	if path == "" {
+		if format != "" {
+			return nil, usagef("--catalog-format needs --catalog")
+		}
+		s := catalog.BuiltIn()
+		if epoch != 0 {
+			return nil, usagef("--epoch: the built-in sky has no proper motions")
+		}
+		return s, nil
+	}
+	opt, err := readOptions(format, columns)
+	if err != nil {
+		return nil, err
+	}
+	opt.Epoch = epoch
+	stars, _, err := catalog.Open(path, opt)
+	if err != nil {
+		return nil, usageError{err}
+	}
+	return stars, nil
+}
+
+// resolvePosition reads X,Y,Z in parsecs or a star reference.
+func resolvePosition(stars *catalog.Stars, flag, s string) (r3.Vec, error) {
+	if v, err := parseFloats(flag, s, 3); err == nil {
+		return r3.Vec{X: v[0], Y: v[1], Z: v[2]}, nil
+	}
+	if i, ok := stars.Find(s); ok {
+		st := stars.At(i)
+		if math.IsInf(st.Dist, 0) {
+			return r3.Vec{}, usagef("--%s %q: that star has no known distance", flag, s)
+		}
+		return r3.Scale(st.Dist, r3.Vec{X: st.Dir[0], Y: st.Dir[1], Z: st.Dir[2]}), nil
+	}
+	return r3.Vec{}, usagef("--%s %q: want X,Y,Z in parsecs or a star id or name in %s", flag, s, stars.Source)
+}
+
+// resolveDirection reads RA,DEC or a star reference (seen from pos).
+func resolveDirection(stars *catalog.Stars, flag, s string, pos r3.Vec) (r3.Vec, error) {
+	if ra, dec, err := parseRADec(flag, s); err == nil {
+		return camera.FromRADec(ra, dec), nil
+	} else if _, ferr := parseFloats(flag, s, 2); ferr == nil {
+		return r3.Vec{}, err
+	}
+	if i, ok := stars.Find(s); ok {
+		st := stars.At(i)
+		u := r3.Vec{X: st.Dir[0], Y: st.Dir[1], Z: st.Dir[2]}
+		if math.IsInf(st.Dist, 0) {
+			return u, nil
+		}
+		d := r3.Sub(r3.Scale(st.Dist, u), pos)
+		if r3.Norm(d) == 0 {
+			return r3.Vec{}, usagef("--%s %q: the ship is at that star", flag, s)
+		}
+		return r3.Unit(d), nil
+	}
+	return r3.Vec{}, usagef("--%s %q: want RA,DEC in degrees or a star id or name in %s", flag, s, stars.Source)
+}
+
+var _ = fmt.Sprint
+var _ = strconv.Itoa
