@@ -3,11 +3,58 @@
 // catalogue is given.
 //
 // Frames and units: positions are ICRS unit vectors from the Sun at the
-// catalogue epoch (J2000.0 unless Stars.Epoch says otherwise); distances are
-// parsecs from the Sun, +Inf when the catalogue gives no usable parallax
-// (such stars are treated as infinitely far and carry FlagNoDistance);
-// magnitudes are Johnson V; temperatures are kelvin; proper motions are
-// mas/yr with μα including cos δ; radial velocities km/s.
+// catalogue epoch (Stars.Epoch: 2000.0 for BSC5 and generic tables, 1991.25
+// for both Hipparcos reductions, 2016.0 for Gaia DR3) unless ReadOptions.Epoch
+// asks for propagation by proper motion (linear model, documented on
+// ReadOptions.Epoch); distances are parsecs from the Sun, +Inf when the
+// catalogue gives no usable parallax (such stars are treated as infinitely
+// far and carry FlagNoDistance); magnitudes are Johnson V; temperatures are
+// kelvin; proper motions are mas/yr with μα including cos δ; radial
+// velocities km/s.
+//
+// # Readers
+//
+// Open and Read detect the format from the content — gzip magic (the stream
+// is inflated transparently and sniffed again), the cache magic "SKYFCAT",
+// hip_main.dat's leading "H|", a delimited header (Gaia when it names
+// source_id and phot_g_mean_mag), the fixed-width layouts of hip2.dat and
+// of the Bright Star Catalogue — and use the file extension (.csv, .tsv)
+// only when the content decides nothing. ReadOptions.Format overrides.
+// Supported: BSC5 (CDS V/50), Hipparcos (CDS I/239 hip_main.dat), Hipparcos
+// new reduction (CDS I/311 hip2.dat), Gaia archive CSV, any CSV/TSV with a
+// header through a ColumnMap, and the package's binary cache.
+//
+// Each read returns a Report: format, lines, rows kept, rows skipped by
+// reason with the line of the first one, declared row count, V, B−V and
+// distance ranges, and counts of flags.
+//
+// Bad input: a row lacking a required value (position, magnitude) is
+// skipped and counted, never dropped silently. Everything else fails the
+// file with a *ParseError ("catalog: file:line: field X: value "v":
+// reason") wrapping a sentinel (ErrNotNumber, ErrNotFinite, ErrOutOfRange,
+// ErrFieldCount, ErrMissingColumn, ErrLineTooLong, ErrTruncated, ErrCorrupt,
+// ErrDecompressedTooLarge, ErrTooManyRows, ErrUnknownFormat, ErrNoRows).
+// Limits on hostile input (ReadOptions): line length (1 MiB), rows (10⁸,
+// also applied to a declared "# rows: N" before any allocation), inflated
+// size (32 GiB) and inflation ratio (100× after the first 8 MiB).
+//
+// # Colours and magnitudes
+//
+// Teff comes from the catalogue when it has one (FlagTeffFromCatalogue),
+// else from B−V by Ballesteros (2012) or from Gaia BP−RP by Mucciarelli &
+// Bellazzini (2020) (FlagTeffExtrapolated outside their ranges), else it
+// is DefaultTeff (FlagNoColour); see teff.go. Gaia G → V uses Riello et al.
+// (2021); Hipparcos Hp → V (I/311 only, which has no V) uses the Bessell
+// (2000) table.
+//
+// # Cache, look-up, download
+//
+// WriteCache/ReadCache store Stars in a versioned, CRC-32C-checksummed,
+// little-endian column format (layout in cache.go) that loads at memory
+// speed. Stars.Find looks stars up by number, "HR n"/"HIP n"/"Gaia DR3 n",
+// or name. Fetch downloads a catalogue (KnownSources: CDS V/50, I/239,
+// I/311) to a temporary file, verifies it by reading it, and renames it
+// into place in CacheDir().
 //
 // The package sits at the start of the pipeline and imports no other
 // skyframe package.
