@@ -334,3 +334,56 @@ func TestStarsResolver(t *testing.T) {
 		t.Errorf("unknown name resolved")
 	}
 }
+
+func TestCatalogueSpacing(t *testing.T) {
+	src := `
+[[leg]]
+kind = "voyage"
+accel_g = 1
+to_position = [0, 0, 2]
+[show]
+seconds = 2
+fps = 10
+spacing = "catalogue"
+`
+	p, err := ParsePlan([]byte(src), "c.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	end := p.Trajectory().End()
+	for _, i := range []int{0, 5, 11, 19} {
+		fs, err := p.FrameState(i)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := end.T * float64(i) / 19
+		if !scalar.EqualWithinAbs(fs.State.T, want, 1e-12*end.T) {
+			t.Errorf("frame %d: t = %v, want %v (even catalogue-time steps)", i, fs.State.T, want)
+		}
+	}
+}
+
+// ParsePlan must return errors, never panic, on any input.
+func FuzzParsePlan(f *testing.F) {
+	for _, name := range []string{"voyage.toml", "bad_unknown_key.toml", "bad_legs.toml", "bad_frames_escape.toml"} {
+		b, err := os.ReadFile("../testdata/plans/" + name)
+		if err != nil {
+			f.Fatal(err)
+		}
+		f.Add(b)
+	}
+	f.Add([]byte("a.b.c.d.e.f.g.h = 1\n"))
+	f.Add([]byte("[[leg]]\nkind='boost'\naccel=1e300\nship_years=1e9\nra=0\ndec=0\n[show]\nseconds=1\n"))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		p, err := ParsePlan(data, "fuzz.toml")
+		if err != nil || p == nil {
+			return
+		}
+		_ = p.Hash()
+		if p.Trajectory() != nil && p.Frames() > 0 {
+			if _, err := p.FrameState(p.Frames() - 1); err != nil {
+				t.Fatalf("last frame: %v", err)
+			}
+		}
+	})
+}
