@@ -45,9 +45,11 @@
 // 1 K to 10¹² K, of ln Y + c₂u_Y/T, ln V + c₂u_V/T and of x, y, with exact
 // derivatives at the nodes; subtracting the dominant Wien term c₂u/T
 // (u = 1/λ at the passband's long end) keeps the interpolated functions
-// smooth. Measured against direct integration at random temperatures the
-// table's error is below 1e-8 in ln Y and ln V (i.e. 1e-8 relative flux)
-// and below 1e-9 in x, y; tests assert 1e-7 and 1e-8.
+// smooth. Measured against direct integration at 3000 random temperatures
+// the table's worst error is 6e-7 in ln Y (near 300 K, where many panels
+// contribute), 3e-8 in ln V and 1e-8 in x, y; tests assert 1e-6 in ln Y
+// and ln V (1e-6 relative flux, 1e-6 mag) and 2e-8 in x, y. Lookup takes
+// about 10 ns.
 //
 // Outside the table Lookup uses asymptotes: above 10¹² K the Rayleigh–Jeans
 // series B_λ = (2ckT/λ⁴)(1 − x/2 + x²/12), x = c₂/λT, with the passband

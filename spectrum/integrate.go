@@ -76,7 +76,10 @@ func taylor(m int, u0, lamL, s1, slope float64) (c [5]float64) {
 		if n >= 1 {
 			v -= bl * binom[m-1][n-1]
 		}
-		c[n] = v * math.Pow(u0, float64(m-n))
+		for j := n; j < m; j++ {
+			v *= u0
+		}
+		c[n] = v
 	}
 	return c
 }
