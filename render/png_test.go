@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/binary"
 	"errors"
+	"hash/adler32"
 	"hash/crc32"
 	"image"
 	"image/color"
@@ -71,6 +72,37 @@ func testNRGBA64(w, h int, seed uint64) *image.NRGBA64 {
 	return img
 }
 
+func opaque8(m *image.NRGBA) *image.NRGBA {
+	for i := 3; i < len(m.Pix); i += 4 {
+		m.Pix[i] = 0xff
+	}
+	return m
+}
+
+func alpha16(m *image.NRGBA64) *image.NRGBA64 {
+	m.Pix[6], m.Pix[7] = 0x12, 0x34
+	return m
+}
+
+func testRGBA(w, h int) *image.RGBA {
+	m := image.NewRGBA(image.Rect(0, 0, w, h))
+	for i := range m.Pix {
+		m.Pix[i] = uint8(i * 7)
+		if i%4 == 3 {
+			m.Pix[i] = 0xff
+		}
+	}
+	return m
+}
+
+func testGray16(w, h int) *image.Gray16 {
+	m := image.NewGray16(image.Rect(0, 0, w, h))
+	for i := range m.Pix {
+		m.Pix[i] = uint8(i * 13)
+	}
+	return m
+}
+
 func TestWritePNGRoundTrip(t *testing.T) {
 	meta := []KV{
 		{"Software", "skyframe"},
@@ -83,8 +115,15 @@ func TestWritePNGRoundTrip(t *testing.T) {
 		img   image.Image
 		depth byte // IHDR bit depth, §11.2.2 [pub]
 	}{
-		{"nrgba8", testNRGBA(37, 23, 1), 8},
-		{"nrgba64", testNRGBA64(19, 41, 2), 16},
+		{"nrgba8 alpha", testNRGBA(37, 23, 1), 8},
+		{"nrgba8 opaque", opaque8(testNRGBA(29, 31, 11)), 8},
+		{"nrgba64 opaque", testNRGBA64(19, 41, 2), 16},
+		{"nrgba64 alpha", alpha16(testNRGBA64(23, 17, 12)), 16},
+		{"nrgba8 many strips", sparseStars(700, 900, false), 8},
+		{"nrgba64 many strips", sparseStars(300, 1000, true), 16},
+		{"sub-image", testNRGBA(40, 40, 13).SubImage(image.Rect(3, 5, 31, 29)), 8},
+		{"rgba via image/png", image.Image(testRGBA(21, 13)), 8},
+		{"gray16 via image/png", testGray16(17, 9), 16},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			var buf bytes.Buffer
@@ -96,12 +135,12 @@ func TestWritePNGRoundTrip(t *testing.T) {
 				t.Fatalf("image/png cannot decode: %v", err)
 			}
 			b := tc.img.Bounds()
-			if dec.Bounds() != b {
-				t.Fatalf("bounds: have %v, want %v", dec.Bounds(), b)
+			if dec.Bounds().Size() != b.Size() {
+				t.Fatalf("size: have %v, want %v", dec.Bounds().Size(), b.Size())
 			}
 			for y := b.Min.Y; y < b.Max.Y; y++ {
 				for x := b.Min.X; x < b.Max.X; x++ {
-					have := color.NRGBA64Model.Convert(dec.At(x, y))
+					have := color.NRGBA64Model.Convert(dec.At(x-b.Min.X, y-b.Min.Y))
 					want := color.NRGBA64Model.Convert(tc.img.At(x, y))
 					if have != want {
 						t.Fatalf("pixel (%d,%d): have %v, want %v", x, y, have, want)
@@ -110,11 +149,17 @@ func TestWritePNGRoundTrip(t *testing.T) {
 			}
 
 			ch := parsePNGChunks(t, buf.Bytes())
+			if len(ch) < 10 {
+				t.Fatalf("only %d chunks", len(ch))
+			}
 			if ch[0].typ != "IHDR" || ch[0].data[8] != tc.depth {
 				t.Fatalf("first chunk %s depth %d, want IHDR depth %d", ch[0].typ, ch[0].data[8], tc.depth)
 			}
 			// Our chunks follow IHDR directly, before any IDAT (§5.6) [pub].
 			wantTypes := []string{"IHDR", "cHRM", "gAMA", "sRGB", "tEXt", "tEXt", "tEXt", "iTXt", "IDAT"}
+			if w, h := binary.BigEndian.Uint32(ch[0].data), binary.BigEndian.Uint32(ch[0].data[4:]); int(w) != b.Dx() || int(h) != b.Dy() {
+				t.Errorf("IHDR size %d×%d, want %v", w, h, b.Size())
+			}
 			for i, typ := range wantTypes {
 				if ch[i].typ != typ {
 					t.Errorf("chunk %d: have %s, want %s", i, ch[i].typ, typ)
@@ -149,6 +194,51 @@ func TestWritePNGRoundTrip(t *testing.T) {
 				t.Errorf("iTXt: have %q, want %q", have, want)
 			}
 		})
+	}
+}
+
+// TestWritePNGWorkers checks that the parallel encoder's output does not
+// depend on the number of workers, and that its Adler-32 combination
+// matches hash/adler32 over the concatenation (RFC 1950 §8.2) [pub].
+func TestWritePNGWorkers(t *testing.T) {
+	defer func(n int) { pngStripBytes = n }(pngStripBytes)
+	pngStripBytes = 20000 // 12 rows a strip: 28 strips, ragged last one
+	img := sparseStars(517, 333, false)
+	var first []byte
+	for _, workers := range []int{1, 2, 3, 8} {
+		for _, c := range []PNGCompression{PNGFast, PNGDefault, PNGNone} {
+			var buf bytes.Buffer
+			e := PNGEncoder{Compression: c, Workers: workers}
+			if err := e.Encode(&buf, img, nil); err != nil {
+				t.Fatal(err)
+			}
+			if _, err := png.Decode(bytes.NewReader(buf.Bytes())); err != nil {
+				t.Fatalf("workers %d %v: %v", workers, c, err)
+			}
+			if c != PNGFast {
+				continue
+			}
+			if first == nil {
+				first = buf.Bytes()
+			} else if !bytes.Equal(first, buf.Bytes()) {
+				t.Errorf("workers %d: output differs from workers 1", workers)
+			}
+		}
+	}
+	rng := rand.New(rand.NewPCG(5, 5))
+	for range 50 {
+		a := make([]byte, rng.IntN(200000))
+		b := make([]byte, rng.IntN(200000))
+		for i := range a {
+			a[i] = byte(rng.UintN(256))
+		}
+		for i := range b {
+			b[i] = byte(rng.UintN(256))
+		}
+		want := adler32.Checksum(append(append([]byte{}, a...), b...))
+		if have := adler32Combine(adler32.Checksum(a), adler32.Checksum(b), int64(len(b))); have != want {
+			t.Fatalf("adler32Combine (%d + %d bytes): have %08x, want %08x", len(a), len(b), have, want)
+		}
 	}
 }
 
