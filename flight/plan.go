@@ -27,11 +27,11 @@ var (
 
 // Limits on plan files.
 const (
-	MaxPlanBytes = 1 << 20 // largest plan file accepted
-	MaxPlanDepth = 6       // deepest key/table/array nesting accepted
-	MaxLegs      = 1000
-	MaxLookKeys  = 10000
-	MaxFrames    = 10_000_000
+	MaxPlanBytes = 1 << 20    // largest plan file accepted
+	MaxPlanDepth = 6          // deepest key/table/array nesting accepted
+	MaxLegs      = 1000       // most [[leg]] tables
+	MaxLookKeys  = 10000      // most [[camera.look]] keys
+	MaxFrames    = 10_000_000 // most frames in a video
 )
 
 // PlanError is a problem in a plan file, located by file, line and key.
@@ -44,6 +44,7 @@ type PlanError struct {
 	Err     error  // ErrPlanSyntax, ErrUnknownKey, ErrPlanValue, ...
 }
 
+// Error formats the problem as "flight: file:line: key: message (did you mean ...?)".
 func (e *PlanError) Error() string {
 	var b strings.Builder
 	b.WriteString("flight: ")

@@ -23,6 +23,7 @@ type LegError struct {
 	Err error
 }
 
+// Error formats the problem as "flight: leg N: message".
 func (e *LegError) Error() string {
 	return fmt.Sprintf("flight: leg %d: %s", e.Leg, strings.TrimPrefix(e.Err.Error(), "flight: "))
 }
