@@ -324,6 +324,9 @@ func fitsFloat(key string, v float64) (string, error) {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return "", fmt.Errorf("%w: keyword %s: value %v is not representable", ErrFITSCard, key, v)
 	}
+	if v == 0 {
+		v = 0 // write −0 as 0
+	}
 	withPoint := func(s string) string {
 		if strings.ContainsAny(s, ".") {
 			return s

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/binary"
 	"errors"
+	"fmt"
 	"io"
 	"math"
 	"math/rand/v2"
@@ -310,4 +311,35 @@ func BenchmarkWriteFITS(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
+}
+
+// A 2×2 RGB frame: the header's first cards, 80 bytes each, and the file
+// size, two 2880-byte blocks.
+func ExampleWriteFITS() {
+	pix := make([]float32, 3*2*2)
+	var buf bytes.Buffer
+	err := WriteFITS(&buf, 2, 2, pix, []Card{
+		{"BUNIT", "relative", "linear sRGB"},
+		{"GAMMA", 7.088812050083354, "Lorentz factor"},
+	})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	b := buf.Bytes()
+	for i := range 9 {
+		fmt.Println(strings.TrimRight(string(b[80*i:80*(i+1)]), " "))
+	}
+	fmt.Println(len(b))
+	// Output:
+	// SIMPLE  =                    T / conforms to FITS Standard 4.0
+	// BITPIX  =                  -32 / IEEE 754 single precision
+	// NAXIS   =                    3
+	// NAXIS1  =                    2 / [pixel] x, left to right
+	// NAXIS2  =                    2 / [pixel] y, bottom to top
+	// NAXIS3  =                    3 / planes: linear sRGB R, G, B
+	// BUNIT   = 'relative' / linear sRGB
+	// GAMMA   =    7.088812050083354 / Lorentz factor
+	// END
+	// 5760
 }

@@ -15,6 +15,7 @@ import (
 	"slices"
 	"strings"
 	"sync"
+	"sync/atomic"
 	"unicode/utf8"
 )
 
@@ -435,6 +436,7 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 	workers = min(workers, nStrips)
 	var next sync.Mutex
 	nextStrip := 0
+	var abort atomic.Bool // set when writing fails: skip the remaining strips
 	var wg sync.WaitGroup
 	for range workers {
 		wg.Add(1)
@@ -455,6 +457,10 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 					return
 				}
 				s := &strips[i]
+				if abort.Load() {
+					close(s.done)
+					continue
+				}
 				y0, y1 := i*rowsPer, min(height, (i+1)*rowsPer)
 				s.data, s.adler, s.n, s.err = e.deflateStrip(pix, stride, width, depth, opaque, y0, y1, i == nStrips-1, level, cur, prev, &filt)
 				close(s.done)
@@ -475,6 +481,7 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 		}
 		if s.err != nil {
 			werr = s.err
+			abort.Store(true)
 			continue
 		}
 		total = adler32Combine(total, s.adler, s.n)
@@ -487,6 +494,7 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 		}
 		if _, err := w.Write(appendChunk(nil, "IDAT", data)); err != nil {
 			werr = fmt.Errorf("render: writing PNG: %w", err)
+			abort.Store(true)
 		}
 		s.data = nil
 	}

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/binary"
 	"errors"
+	"fmt"
 	"hash/adler32"
 	"hash/crc32"
 	"image"
@@ -324,11 +325,18 @@ func (f *failWriter) Write(p []byte) (int, error) {
 }
 
 func TestWritePNGWriterError(t *testing.T) {
-	img := testNRGBA(64, 64, 5)
-	for _, left := range []int{0, 10, 40, 200, 2000} {
-		err := WritePNG(&failWriter{left: left}, img, []KV{{"k", "v"}})
-		if !errors.Is(err, errDiskFull) {
-			t.Errorf("fail after %d bytes: have %v, want %v", left, err, errDiskFull)
+	defer func(n int) { pngStripBytes = n }(pngStripBytes)
+	pngStripBytes = 4000 // many strips, so failures hit later IDAT chunks too
+	for _, img := range []image.Image{testNRGBA(64, 64, 5), testNRGBA64(64, 64, 6), testRGBA(64, 64)} {
+		var full countWriter
+		if err := WritePNG(&full, img, []KV{{"k", "v"}}); err != nil {
+			t.Fatal(err)
+		}
+		for _, left := range []int{0, 10, 40, 200, int(full) / 3, int(full) - 13, int(full) - 1} {
+			err := WritePNG(&failWriter{left: left}, img, []KV{{"k", "v"}})
+			if !errors.Is(err, errDiskFull) {
+				t.Errorf("%T, fail after %d bytes: have %v, want %v", img, left, err, errDiskFull)
+			}
 		}
 	}
 }
@@ -423,3 +431,37 @@ func BenchmarkWritePNG8(b *testing.B)         { benchmarkPNG(b, false, PNGFast) 
 func BenchmarkWritePNG16(b *testing.B)        { benchmarkPNG(b, true, PNGFast) }
 func BenchmarkWritePNG8Default(b *testing.B)  { benchmarkPNG(b, false, PNGDefault) }
 func BenchmarkWritePNG16Default(b *testing.B) { benchmarkPNG(b, true, PNGDefault) }
+
+// The chunks of a small frame and their data lengths: colour space and
+// metadata come right after the header (PNG spec §11.3: cHRM 32 bytes, gAMA
+// 4, sRGB 1, tEXt keyword NUL text).
+func ExampleWritePNG() {
+	img := image.NewNRGBA(image.Rect(0, 0, 4, 3))
+	for i := 3; i < len(img.Pix); i += 4 {
+		img.Pix[i] = 0xff // opaque: stored as 8-bit RGB
+	}
+	var buf bytes.Buffer
+	if err := WritePNG(&buf, img, SortedKV(map[string]string{"Software": "skyframe", "Beta": "0.9"})); err != nil {
+		fmt.Println(err)
+		return
+	}
+	b := buf.Bytes()[8:]
+	for len(b) >= 12 {
+		n := binary.BigEndian.Uint32(b)
+		if string(b[4:8]) == "IDAT" { // compressed size depends on zlib
+			fmt.Println("IDAT")
+		} else {
+			fmt.Printf("%s %d\n", b[4:8], n)
+		}
+		b = b[12+n:]
+	}
+	// Output:
+	// IHDR 13
+	// cHRM 32
+	// gAMA 4
+	// sRGB 1
+	// tEXt 8
+	// tEXt 17
+	// IDAT
+	// IEND 0
+}

@@ -131,8 +131,8 @@ func (g wcsGeometry) cards() ([]Card, error) {
 		{"CUNIT2", "deg", ""},
 		{"CRPIX1", crpix1, "reference pixel: image centre"},
 		{"CRPIX2", crpix2, "reference pixel: image centre"},
-		{"CRVAL1", ra0, "[deg] RA at reference pixel"},
-		{"CRVAL2", dec0, "[deg] Dec at reference pixel"},
+		{"CRVAL1", posZero(ra0), "[deg] RA at reference pixel"},
+		{"CRVAL2", posZero(dec0), "[deg] Dec at reference pixel"},
 		{"CDELT1", -g.scaleX, "[deg] x scale; negative: east to the left"},
 		{"CDELT2", g.scaleY, "[deg] y scale"},
 	}
@@ -150,10 +150,10 @@ func (g wcsGeometry) cards() ([]Card, error) {
 		pc21 := r3.Dot(n, g.right)
 		pc22 := r3.Dot(n, g.up)
 		c = append(c,
-			Card{"PC1_1", pc11, "rotation: image to east/north"},
-			Card{"PC1_2", pc12 * g.scaleY / g.scaleX, ""},
-			Card{"PC2_1", pc21 * g.scaleX / g.scaleY, ""},
-			Card{"PC2_2", pc22, ""},
+			Card{"PC1_1", posZero(pc11), "rotation: image to east/north"},
+			Card{"PC1_2", posZero(pc12 * g.scaleY / g.scaleX), ""},
+			Card{"PC2_1", posZero(pc21 * g.scaleX / g.scaleY), ""},
+			Card{"PC2_2", posZero(pc22), ""},
 			Card{"LONPOLE", 180.0, "[deg] native longitude of celestial pole"},
 		)
 	case "CAR":
@@ -201,13 +201,21 @@ func (g wcsGeometry) cards() ([]Card, error) {
 			phiP = math.Copysign(90, phiP)
 		}
 		c = append(c,
-			Card{"LONPOLE", phiP, "[deg] native longitude of celestial pole"},
-			Card{"LATPOLE", decP, "[deg] declination of native pole"},
+			Card{"LONPOLE", posZero(phiP), "[deg] native longitude of celestial pole"},
+			Card{"LATPOLE", posZero(decP), "[deg] declination of native pole"},
 		)
 	default:
 		return nil, fmt.Errorf("render: WCS projection code %q: %w", g.code, ErrNoWCS)
 	}
 	return c, nil
+}
+
+// posZero turns −0 into 0, for tidy headers.
+func posZero(v float64) float64 {
+	if v == 0 {
+		return 0
+	}
+	return v
 }
 
 // setCard replaces the value of the card with the given key.

@@ -421,3 +421,33 @@ func TestWCSConventions(t *testing.T) {
 		t.Errorf("cube: have %v, want %v", err, ErrNoWCS)
 	}
 }
+
+// The WCS of a 1000×600 pinhole frame with a 90° horizontal field, looking
+// at RA 0°, Dec 0° with north up: east (+RA) to the left, so CDELT1 < 0.
+func ExampleWCSCards() {
+	p := camera.Projection{Kind: camera.Pinhole, Width: 1000, Height: 600, FOV: 90,
+		Orient: camera.DefaultOrientation()}
+	cards, err := WCSCards(p)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, c := range cards {
+		switch c.Key {
+		case "CTYPE1", "CTYPE2", "CRPIX1", "CRPIX2", "CRVAL1", "CRVAL2", "CDELT1", "CDELT2", "PC1_1", "PC1_2", "LONPOLE":
+			fmt.Printf("%-8s %v\n", c.Key, c.Value)
+		}
+	}
+	// Output:
+	// CTYPE1   RA---TAN
+	// CTYPE2   DEC--TAN
+	// CRPIX1   500.5
+	// CRPIX2   300.5
+	// CRVAL1   0
+	// CRVAL2   0
+	// CDELT1   -0.11459155902616465
+	// CDELT2   0.11459155902616465
+	// PC1_1    1
+	// PC1_2    0
+	// LONPOLE  180
+}
