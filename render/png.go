@@ -176,11 +176,13 @@ var pngPool = &bufferPool{}
 
 type bufferPool struct{ p sync.Pool }
 
+// Get implements png.EncoderBufferPool.
 func (b *bufferPool) Get() *png.EncoderBuffer {
 	v, _ := b.p.Get().(*png.EncoderBuffer)
 	return v
 }
 
+// Put implements png.EncoderBufferPool.
 func (b *bufferPool) Put(v *png.EncoderBuffer) { b.p.Put(v) }
 
 // pngHeadLen is the signature (8 bytes) plus the IHDR chunk (4 length + 4
