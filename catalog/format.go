@@ -1,7 +1,13 @@
 package catalog
 
 import (
+	"bufio"
+	"bytes"
 	"fmt"
+	"io"
+	"math"
+	"path/filepath"
+	"strconv"
 	"strings"
 )
 
@@ -76,4 +82,128 @@ func ParseFormat(s string) (Format, error) {
 		return FormatCache, nil
 	}
 	return FormatAuto, fmt.Errorf("catalog: unknown format name %q (want bsc5, hipparcos, hipparcos2007, gaia, csv, tsv or cache)", s)
+}
+
+// --- format detection ---
+
+var cacheMagic = []byte("SKYFCAT")
+
+func detectFormat(br *bufio.Reader, name string, gz bool) (Format, error) {
+	head, err := br.Peek(sniffBytes)
+	if err != nil && err != io.EOF && err != bufio.ErrBufferFull {
+		return FormatAuto, &ParseError{File: name, Line: 1, Err: mapReadErr(err, gz)}
+	}
+	atEOF := err == io.EOF
+	if bytes.HasPrefix(head, cacheMagic) {
+		return FormatCache, nil
+	}
+	var first []byte
+	rest := head
+	for len(rest) > 0 {
+		i := bytes.IndexByte(rest, '\n')
+		var ln []byte
+		if i < 0 {
+			if !atEOF && len(head) == sniffBytes {
+				break
+			}
+			ln, rest = rest, nil
+		} else {
+			ln, rest = rest[:i], rest[i+1:]
+		}
+		ln = bytes.TrimRight(ln, "\r")
+		if isBlank(ln) || ln[0] == '#' {
+			continue
+		}
+		first = ln
+		break
+	}
+	if first != nil {
+		switch {
+		case bytes.HasPrefix(first, []byte("H|")):
+			return FormatHipparcos, nil
+		case looksLikeHeader(first):
+			return headerFormat(first), nil
+		case looksLikeHip2(first):
+			return FormatHipparcos2007, nil
+		case looksLikeBSC5(first):
+			return FormatBSC5, nil
+		}
+	}
+	ext := strings.ToLower(filepath.Ext(strings.TrimSuffix(strings.ToLower(name), ".gz")))
+	switch ext {
+	case ".csv":
+		return FormatCSV, nil
+	case ".tsv", ".tab":
+		return FormatTSV, nil
+	}
+	if len(head) == 0 {
+		return FormatAuto, &ParseError{File: name, Err: fmt.Errorf("%w: input is empty", ErrNoRows)}
+	}
+	return FormatAuto, &ParseError{File: name, Line: 1, Err: ErrUnknownFormat}
+}
+
+// looksLikeHeader: a delimited line whose first field starts with a letter.
+func looksLikeHeader(ln []byte) bool {
+	if bytes.IndexAny(ln, ",\t;") < 0 {
+		return false
+	}
+	t := bytes.TrimLeft(ln, " \"'")
+	if len(t) == 0 {
+		return false
+	}
+	c := t[0]
+	return c == '_' || (c|0x20 >= 'a' && c|0x20 <= 'z')
+}
+
+func headerFormat(ln []byte) Format {
+	lower := strings.ToLower(string(ln))
+	delim := pickDelimiter(ln)
+	names := map[string]bool{}
+	for _, f := range strings.Split(lower, string(delim)) {
+		names[strings.Trim(strings.TrimSpace(f), "\"'")] = true
+	}
+	if names["source_id"] && names["phot_g_mean_mag"] {
+		return FormatGaiaCSV
+	}
+	if delim == '\t' {
+		return FormatTSV
+	}
+	return FormatCSV
+}
+
+func pickDelimiter(header []byte) byte {
+	switch {
+	case bytes.IndexByte(header, '\t') >= 0:
+		return '\t'
+	case bytes.IndexByte(header, ',') < 0 && bytes.IndexByte(header, ';') >= 0:
+		return ';'
+	}
+	return ','
+}
+
+func looksLikeHip2(ln []byte) bool {
+	if len(ln) < 136 || ln[14] != ' ' || ln[28] != ' ' {
+		return false
+	}
+	if _, err := strconv.Atoi(string(bytes.TrimSpace(col(ln, 1, 6)))); err != nil {
+		return false
+	}
+	ra, err1 := strconv.ParseFloat(string(bytes.TrimSpace(col(ln, 16, 28))), 64)
+	de, err2 := strconv.ParseFloat(string(bytes.TrimSpace(col(ln, 30, 42))), 64)
+	return err1 == nil && err2 == nil && ra >= 0 && ra <= 2*math.Pi+1e-9 && math.Abs(de) <= math.Pi/2+1e-9
+}
+
+func looksLikeBSC5(ln []byte) bool {
+	if len(ln) < 107 {
+		return false
+	}
+	if _, err := strconv.Atoi(string(bytes.TrimSpace(col(ln, 1, 4)))); err != nil {
+		return false
+	}
+	pos := col(ln, 76, 90)
+	if isBlank(pos) {
+		return true
+	}
+	d := func(c byte) bool { return c >= '0' && c <= '9' }
+	return d(ln[75]) && d(ln[76]) && (ln[83] == '+' || ln[83] == '-') && d(ln[84]) && d(ln[85])
 }
