@@ -32,7 +32,7 @@
 // D65) of apparent V = Exposure, centred on a pixel, has peak-pixel
 // luminance exactly 1 with the default 1.5 px PSF. With E_ref the
 // illuminance (lux) of that star and p₀ the fraction of a pixel-centred
-// default PSF in its central pixel (0.2788),
+// default PSF in its central pixel (0.3221),
 //
 //	value = Scale · illuminance · PSF weight,  Scale = 1/(E_ref·p₀).
 //

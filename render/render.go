@@ -1,0 +1,612 @@
+package render
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"runtime"
+	"sort"
+	"sync"
+	"sync/atomic"
+
+	"gonum.org/v1/gonum/spatial/r3"
+
+	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/spectrum"
+)
+
+// WhiteTemperature is the temperature, in kelvin, of the reference "white"
+// star in the exposure definition: 6504 K, the correlated colour
+// temperature of CIE illuminant D65 [cp].
+const WhiteTemperature = 6504
+
+// DefaultLimitOffset is how many magnitudes fainter than Exposure the
+// default cull limit lies. A star 10 mag below full scale peaks at
+// 10^−4 in the linear buffer, under half an 8-bit sRGB code value
+// (0.5/255/12.92 = 1.5·10⁻⁴), so culling it changes no 8-bit pixel by
+// more than rounding.
+const DefaultLimitOffset = 10
+
+// DefaultBrightest is the number of brightest stars Stats lists when
+// Options.Brightest is zero.
+const DefaultBrightest = 10
+
+// NakedEyeLimit is the faintest V magnitude visible to the unaided eye
+// under a dark sky, 6.5 [cp].
+const NakedEyeLimit = 6.5
+
+// JustVisible is the 8-bit sRGB code value, out of 255, at which the naked-
+// eye preset puts a NakedEyeLimit star's peak pixel: 8, the faintest level
+// that stays distinguishable from black on a typical display [cp].
+const JustVisible = 8
+
+// ExposureForLimit returns the exposure (see Options.Exposure) at which a
+// white star of magnitude limit, centred on a pixel, has a peak pixel of
+// JustVisible/255 after sRGB encoding with the default PSF:
+//
+//	Exposure = limit + 2.5·log10(DecodeSRGB(JustVisible/255)).
+//
+// DecodeSRGB(8/255) = 8/255/12.92 = 2.428·10⁻³, so the offset is −6.536 mag.
+func ExposureForLimit(limit float64) float64 {
+	return limit + 2.5*math.Log10(spectrum.DecodeSRGB(JustVisible/255.0))
+}
+
+// NakedEyeExposure returns the naked-eye preset, ExposureForLimit(6.5) =
+// −0.036 mag: stars of V ≈ 0 reach full scale and V = 6.5 is just visible.
+// The zero Options.Exposure is within 0.04 mag of it.
+func NakedEyeExposure() float64 { return ExposureForLimit(NakedEyeLimit) }
+
+// Options control one frame. The zero value of every field except
+// Projection (which needs a size) selects the documented default.
+type Options struct {
+	// Projection maps apparent directions (ICRS axes, ship frame) to
+	// pixels; it is validated by Render.
+	Projection camera.Projection
+	// Observer is the ship's position and velocity.
+	Observer camera.Observer
+	// Beaming selects how a star's flux scales with D (default exact:
+	// W′ = W/D²).
+	Beaming spectrum.Beaming
+	// FWHM of the Gaussian PSF in pixels; 0 means DefaultFWHM.
+	FWHM float64
+	// Exposure, in V magnitudes: a WhiteTemperature blackbody star of
+	// apparent V = Exposure, centred on a pixel, gives a peak pixel of
+	// luminance exactly 1 in the linear buffer with the default PSF.
+	// The buffer scale is fixed by the default PSF whatever FWHM is, so a
+	// wider PSF keeps each star's total light and lowers its peak. The
+	// exposure is never adjusted to the frame's content.
+	Exposure float64
+	// Limit culls stars whose observed V′ is fainter (greater) than it.
+	// 0 means Exposure + DefaultLimitOffset; +Inf disables culling.
+	Limit float64
+	// Color selects the white point of the sRGB conversion.
+	Color spectrum.ColorOptions
+	// Workers is the number of goroutines; 0 means runtime.GOMAXPROCS(0).
+	// The output does not depend on it.
+	Workers int
+	// Doppler keeps the luminance-weighted Doppler-factor channel.
+	Doppler bool
+	// Brightest is how many of the brightest drawn stars Stats lists:
+	// 0 means DefaultBrightest, negative means none.
+	Brightest int
+}
+
+// Errors returned by Render for bad options.
+var (
+	ErrWorkers = errors.New("render: negative Workers")
+	ErrLimit   = errors.New("render: Limit is NaN")
+	ErrStars   = errors.New("render: no star list")
+	ErrBeaming = errors.New("render: unknown beaming convention")
+)
+
+// Frame is a rendered image with what went into it.
+type Frame struct {
+	Buffer
+	// Options are the options used, with defaults filled in (FWHM, Limit,
+	// Brightest).
+	Options Options
+	// Scale converts illuminance to buffer units: a star of illuminance
+	// E_v (lux) deposits a total luminance of Scale·E_v, spread by the PSF.
+	Scale float64
+	// Stats counts the stars and lists the brightest ones.
+	Stats Stats
+}
+
+// Stats counts what happened to each star of the catalogue. Every star is
+// in exactly one of Drawn, Culled, OffFrame and Invalid.
+type Stats struct {
+	Total    int // stars in the catalogue
+	Drawn    int // deposited (at least partly on the image)
+	Culled   int // observed V′ fainter than Options.Limit
+	OffFrame int // bright enough but outside the image (or behind a pinhole)
+	Invalid  int // non-finite observed brightness or position
+	// Brightest lists the brightest drawn stars by observed V′, brightest
+	// first, ties broken by catalogue row.
+	Brightest []StarInfo
+}
+
+// StarInfo describes one drawn star as the observer sees it.
+type StarInfo struct {
+	Row  int    `json:"row"` // catalogue row index
+	ID   int64  `json:"id"`  // catalogue identifier
+	Name string `json:"name,omitempty"`
+	// RA and Dec of the apparent (aberrated) direction n′, degrees, ICRS
+	// axes in the ship frame.
+	RA  float64 `json:"ra_deg"`
+	Dec float64 `json:"dec_deg"`
+	V   float64 `json:"v_mag"`   // observed V′
+	D   float64 `json:"doppler"` // Doppler factor
+	T   float64 `json:"t_k"`     // observed temperature T′ = D·T, K
+	X   float64 `json:"x_px"`    // continuous pixel coordinates
+	Y   float64 `json:"y_px"`
+}
+
+// Prepared holds per-star values that do not depend on the observer, so a
+// sequence of frames can skip recomputing them.
+type Prepared struct {
+	Stars *catalog.Stars
+	lnW0  []float64 // ln W of each star seen from the Sun at rest
+	lnV0  []float64 // LnV at the rest temperature
+	lnT0  []float64 // ln of the rest temperature
+	u     []r3.Vec  // unit direction in float64, normalised once
+}
+
+// Prepare validates stars and computes each star's dilution W from its
+// catalogue V magnitude and rest temperature, with the same V passband
+// table the observed magnitudes use (spectrum.Lookup), so that at β = 0
+// from the Sun the observed V′ equals the catalogue V.
+func Prepare(stars *catalog.Stars) (*Prepared, error) {
+	if stars == nil {
+		return nil, ErrStars
+	}
+	if err := stars.Validate(); err != nil {
+		return nil, fmt.Errorf("render: %w", err)
+	}
+	n := stars.Len()
+	p := &Prepared{Stars: stars, lnW0: make([]float64, n), lnV0: make([]float64, n), lnT0: make([]float64, n), u: make([]r3.Vec, n)}
+	lnV0Flux := math.Log(spectrum.V0FluxLambda)
+	for i := 0; i < n; i++ {
+		lnT := math.Log(float64(stars.Teff[i]))
+		s := spectrum.Lookup(lnT)
+		p.lnW0[i] = lnV0Flux - magToLn*float64(stars.Vmag[i]) - s.LnV
+		p.lnV0[i] = s.LnV
+		p.lnT0[i] = lnT
+		p.u[i] = r3.Unit(r3.Vec{X: float64(stars.X[i]), Y: float64(stars.Y[i]), Z: float64(stars.Z[i])})
+	}
+	return p, nil
+}
+
+// magToLn is 0.4·ln 10: a magnitude difference times this is a ln flux ratio.
+const magToLn = 0.4 * math.Ln10
+
+// chunkSize is the number of stars transformed per work item. It is fixed
+// so that the work split does not depend on the worker count.
+const chunkSize = 8192
+
+// tileSize is the side of a square accumulation tile in pixels.
+const tileSize = 64
+
+// splatRec is one star ready to deposit.
+type splatRec struct {
+	x, y  float64
+	rgb   [3]float32
+	d     float32
+	clip0 int32 // first column the star may light (cube faces)
+	clip1 int32 // one past the last column
+	wrap  int32 // equirect: also deposit at x + wrap·W
+	_     int32
+}
+
+// Render draws stars as seen by opt.Observer through opt.Projection.
+func Render(stars *catalog.Stars, opt Options) (*Frame, error) {
+	p, err := Prepare(stars)
+	if err != nil {
+		return nil, err
+	}
+	return p.Render(opt)
+}
+
+// Render draws the prepared stars; see the package Render.
+//
+// The work runs in three phases whose floating-point operations do not
+// depend on the worker count: stars are transformed in fixed chunks into
+// splat records; records are binned, in catalogue order, into 64×64-pixel
+// tiles (a star whose kernel crosses tiles goes into each); each tile then
+// accumulates its stars in catalogue order in float64 and is stored once.
+func (p *Prepared) Render(opt Options) (*Frame, error) {
+	if opt.Workers < 0 {
+		return nil, fmt.Errorf("%w: %d", ErrWorkers, opt.Workers)
+	}
+	if math.IsNaN(opt.Limit) || math.IsNaN(opt.Exposure) || math.IsInf(opt.Exposure, 0) {
+		return nil, fmt.Errorf("%w (or Exposure %v not finite)", ErrLimit, opt.Exposure)
+	}
+	if err := opt.Projection.Prepare(); err != nil {
+		return nil, fmt.Errorf("render: %w", err)
+	}
+	if opt.Beaming.FluxExponent() == 0 {
+		return nil, fmt.Errorf("%w: %d", ErrBeaming, int(opt.Beaming))
+	}
+	psf, err := NewPSF(opt.FWHM)
+	if err != nil {
+		return nil, err
+	}
+	opt.FWHM = psf.FWHM()
+	if opt.Limit == 0 {
+		opt.Limit = opt.Exposure + DefaultLimitOffset
+	}
+	if opt.Brightest == 0 {
+		opt.Brightest = DefaultBrightest
+	}
+	workers := opt.Workers
+	if workers == 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	buf, err := NewBuffer(opt.Projection.Width, opt.Projection.Height, opt.Doppler)
+	if err != nil {
+		return nil, err
+	}
+	f := &Frame{Buffer: *buf, Options: opt, Scale: ExposureScale(opt.Exposure)}
+	n := p.Stars.Len()
+	f.Stats.Total = n
+
+	// Phase 1: transform.
+	recs := make([]splatRec, n)
+	nChunks := (n + chunkSize - 1) / chunkSize
+	chunks := make([]chunkResult, nChunks)
+	parallel(workers, nChunks, func(c int) {
+		lo := c * chunkSize
+		hi := min(lo+chunkSize, n)
+		t := newTransformer(p, &f.Options, &psf, f.Scale)
+		t.run(lo, hi, recs[lo:hi], &chunks[c])
+	})
+	var best []StarInfo
+	for c := range chunks {
+		r := &chunks[c]
+		f.Stats.Drawn += r.n
+		f.Stats.Culled += r.culled
+		f.Stats.OffFrame += r.off
+		f.Stats.Invalid += r.invalid
+		best = append(best, r.best...)
+	}
+	sortInfos(best)
+	if opt.Brightest > 0 && len(best) > opt.Brightest {
+		best = best[:opt.Brightest]
+	}
+	if opt.Brightest < 0 {
+		best = nil
+	}
+	for i := range best {
+		best[i].Name = p.Stars.Names[best[i].Row]
+		best[i].ID = p.Stars.ID[best[i].Row]
+	}
+	f.Stats.Brightest = best
+
+	// Phase 2: bin into tiles.
+	g := newGrid(f.W, f.H, psf.Radius())
+	for pass := 0; pass < 2; pass++ {
+		for c := range chunks {
+			lo := c * chunkSize
+			for k := lo; k < lo+chunks[c].n; k++ {
+				g.bin(&recs[k], int32(k), pass)
+			}
+		}
+		g.finishPass(pass)
+	}
+
+	// Phase 3: accumulate tiles.
+	var pool sync.Pool
+	parallel(workers, len(g.start)-1, func(ti int) {
+		acc, _ := pool.Get().(*tileAcc)
+		if acc == nil {
+			acc = &tileAcc{}
+		}
+		acc.render(&f.Buffer, g, ti, recs, &psf)
+		pool.Put(acc)
+	})
+	return f, nil
+}
+
+// ExposureScale returns the buffer units per lux for the given exposure:
+// 1/(E_ref · PeakFraction(DefaultFWHM)), where E_ref is the illuminance of
+// a WhiteTemperature blackbody of V = exposure.
+func ExposureScale(exposure float64) float64 {
+	s := spectrum.Lookup(math.Log(WhiteTemperature))
+	lnW := math.Log(spectrum.V0FluxLambda) - magToLn*exposure - s.LnV
+	eRef := math.Exp(lnW + s.LnY)
+	psf, _ := NewPSF(DefaultFWHM)
+	return 1 / (eRef * psf.PeakFraction())
+}
+
+// parallel runs fn(0..n-1) on up to workers goroutines.
+func parallel(workers, n int, fn func(int)) {
+	if workers > n {
+		workers = n
+	}
+	if workers <= 1 {
+		for i := 0; i < n; i++ {
+			fn(i)
+		}
+		return
+	}
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for w := 0; w < workers; w++ {
+		wg.Go(func() {
+			for {
+				i := int(next.Add(1)) - 1
+				if i >= n {
+					return
+				}
+				fn(i)
+			}
+		})
+	}
+	wg.Wait()
+}
+
+func newTransformer(p *Prepared, opt *Options, psf *PSF, scale float64) *transformer {
+	return &transformer{p: p, opt: opt, proj: opt.Projection, psf: psf, lnScale: math.Log(scale),
+		beamExp: float64(opt.Beaming.FluxExponent() - 4)}
+}
+
+// chunkResult is what one chunk of stars produced.
+type chunkResult struct {
+	n, culled, off, invalid int
+	best                    []StarInfo
+}
+
+// transformer holds one chunk's per-star state.
+type transformer struct {
+	p       *Prepared
+	opt     *Options
+	proj    camera.Projection
+	psf     *PSF
+	lnScale float64
+	beamExp float64 // FluxExponent − 4: ln WScale(D) = beamExp·ln D
+}
+
+// Per-star outcomes of transformer.see.
+const (
+	seeOK = iota
+	seeCulled
+	seeInvalid
+)
+
+// see applies the boost and the photometry to star i: apparent direction
+// n′, Doppler factor, observed V′ and ln W′, and the table sample at T′.
+func (t *transformer) see(i int) (n r3.Vec, d, vObs, lnW float64, sm spectrum.Sample, status int) {
+	s := t.p.Stars
+	n, d, dil, r := t.opt.Observer.See(t.p.u[i], float64(s.Dist[i]))
+	if r == 0 || !(d > 0) {
+		return n, d, 0, 0, sm, seeInvalid
+	}
+	lnD := math.Log(d)
+	// ln W′ − ln W₀ = ln dilution + ln WScale(D), WScale(D) = D^(k−4).
+	dlnW := t.beamExp * lnD
+	if dil != 1 {
+		dlnW += math.Log(dil)
+	}
+	sm = spectrum.Lookup(t.p.lnT0[i] + lnD)
+	// V′ = V − 2.5 log10(F′_V/F_V), F_V ∝ W·exp(LnV).
+	vObs = float64(s.Vmag[i]) - lnToMag*(dlnW+sm.LnV-t.p.lnV0[i])
+	if !(vObs <= t.opt.Limit) {
+		if math.IsNaN(vObs) {
+			return n, d, vObs, 0, sm, seeInvalid
+		}
+		return n, d, vObs, 0, sm, seeCulled
+	}
+	return n, d, vObs, t.p.lnW0[i] + dlnW, sm, seeOK
+}
+
+// lnToMag converts a ln flux ratio to magnitudes: 2.5/ln 10.
+const lnToMag = 1 / magToLn
+
+func (t *transformer) run(lo, hi int, out []splatRec, res *chunkResult) {
+	nBest := t.opt.Brightest
+	w, h := float64(t.proj.Width), float64(t.proj.Height)
+	margin := t.psf.Radius() + 1
+	kind := t.proj.Kind
+	cx, cy := w/2, h/2
+	rFish := math.Min(w, h) / 2
+	k := 0
+	for i := lo; i < hi; i++ {
+		n, d, vObs, lnW, sm, st := t.see(i)
+		switch st {
+		case seeCulled:
+			res.culled++
+			continue
+		case seeInvalid:
+			res.invalid++
+			continue
+		}
+		x, y, ok := t.proj.Forward(n)
+		if !ok || !(x > -margin && x < w+margin && y > -margin && y < h+margin) {
+			res.off++
+			continue
+		}
+		if kind == camera.Fisheye && (x-cx)*(x-cx)+(y-cy)*(y-cy) > rFish*rFish {
+			res.off++
+			continue
+		}
+		yl := math.Exp(lnW + sm.LnY + t.lnScale)
+		xl := sm.X / sm.Y * yl
+		zl := (1 - sm.X - sm.Y) / sm.Y * yl
+		r, g, b := spectrum.XYZToLinearSRGB(xl, yl, zl, t.opt.Color)
+		r, g, b = spectrum.GamutMap(r, g, b, yl)
+		if !(finite(r) && finite(g) && finite(b)) {
+			res.invalid++
+			continue
+		}
+		rec := &out[k]
+		*rec = splatRec{x: x, y: y, rgb: [3]float32{float32(r), float32(g), float32(b)}, d: float32(d),
+			clip0: 0, clip1: int32(t.proj.Width)}
+		switch kind {
+		case camera.Equirect:
+			if x < margin {
+				rec.wrap = 1
+			} else if x > w-margin {
+				rec.wrap = -1
+			}
+		case camera.Cube:
+			face := int32(math.Floor(x / h))
+			face = max(0, min(5, face))
+			rec.clip0 = face * int32(t.proj.Height)
+			rec.clip1 = rec.clip0 + int32(t.proj.Height)
+		}
+		k++
+		if nBest > 0 && (len(res.best) < nBest || vObs < res.best[len(res.best)-1].V) {
+			ra, dec := camera.RADec(n)
+			res.best = insertBest(res.best, StarInfo{Row: i, RA: ra, Dec: dec, V: vObs, D: d, T: d * float64(t.p.Stars.Teff[i]), X: x, Y: y}, nBest)
+		}
+	}
+	res.n = k
+}
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// insertBest keeps list sorted by (V, Row) and at most n long.
+func insertBest(list []StarInfo, s StarInfo, n int) []StarInfo {
+	i := sort.Search(len(list), func(j int) bool { return lessInfo(&s, &list[j]) })
+	if len(list) < n {
+		list = append(list, StarInfo{})
+	}
+	copy(list[i+1:], list[i:len(list)-1])
+	list[i] = s
+	return list
+}
+
+func lessInfo(a, b *StarInfo) bool {
+	if a.V != b.V {
+		return a.V < b.V
+	}
+	return a.Row < b.Row
+}
+
+func sortInfos(s []StarInfo) {
+	sort.Slice(s, func(i, j int) bool { return lessInfo(&s[i], &s[j]) })
+}
+
+// grid bins splat records into tiles with a two-pass counting sort.
+type grid struct {
+	w, h, tw, th int
+	radius       float64
+	start        []int32 // tile t's records are idx[start[t]:start[t+1]]
+	fill         []int32
+	idx          []int32
+}
+
+func newGrid(w, h int, radius float64) *grid {
+	tw, th := (w+tileSize-1)/tileSize, (h+tileSize-1)/tileSize
+	return &grid{w: w, h: h, tw: tw, th: th, radius: radius, start: make([]int32, tw*th+1)}
+}
+
+// tileRange returns the tile columns [c0, c1] a kernel centred at x
+// touches within columns [clip0, clip1), or c0 > c1 when none.
+func (g *grid) tileRange(x float64, clip0, clip1 int) (int, int) {
+	p0 := max(int(math.Floor(x-g.radius)), clip0)
+	p1 := min(int(math.Floor(x+g.radius)), clip1-1)
+	if p0 > p1 {
+		return 1, 0
+	}
+	return p0 / tileSize, p1 / tileSize
+}
+
+func (g *grid) bin(r *splatRec, k int32, pass int) {
+	ty0, ty1 := g.tileRange(r.y, 0, g.h)
+	for rep := 0; rep < 2; rep++ {
+		x := r.x
+		if rep == 1 {
+			if r.wrap == 0 {
+				break
+			}
+			x += float64(r.wrap) * float64(g.w)
+		}
+		tx0, tx1 := g.tileRange(x, int(r.clip0), int(r.clip1))
+		for ty := ty0; ty <= ty1; ty++ {
+			for tx := tx0; tx <= tx1; tx++ {
+				t := ty*g.tw + tx
+				if pass == 0 {
+					g.start[t+1]++
+				} else {
+					g.idx[g.fill[t]] = k
+					g.fill[t]++
+				}
+			}
+		}
+	}
+}
+
+func (g *grid) finishPass(pass int) {
+	if pass != 0 {
+		return
+	}
+	for t := 1; t < len(g.start); t++ {
+		g.start[t] += g.start[t-1]
+	}
+	g.idx = make([]int32, g.start[len(g.start)-1])
+	g.fill = make([]int32, len(g.start)-1)
+	copy(g.fill, g.start)
+}
+
+// tileAcc is one worker's float64 accumulator for a tile.
+type tileAcc struct {
+	rgb    [tileSize * tileSize * 3]float64
+	dsum   [tileSize * tileSize]float64
+	wx, wy [maxTaps]float64
+}
+
+func (a *tileAcc) render(b *Buffer, g *grid, ti int, recs []splatRec, psf *PSF) {
+	ox, oy := (ti%g.tw)*tileSize, (ti/g.tw)*tileSize
+	tw, th := min(tileSize, b.W-ox), min(tileSize, b.H-oy)
+	list := g.idx[g.start[ti]:g.start[ti+1]]
+	if len(list) == 0 {
+		return // the buffer is already black there
+	}
+	clear(a.rgb[:])
+	clear(a.dsum[:])
+	for _, k := range list {
+		r := &recs[k]
+		y0, ny := psf.Weights(r.y, a.wy[:])
+		j0, j1 := max(y0, oy), min(y0+ny, oy+th)
+		rgb := [3]float64{float64(r.rgb[0]), float64(r.rgb[1]), float64(r.rgb[2])}
+		lumD := (lumR*rgb[0] + lumG*rgb[1] + lumB*rgb[2]) * float64(r.d)
+		for rep := 0; rep < 2; rep++ {
+			x := r.x
+			if rep == 1 {
+				if r.wrap == 0 {
+					break
+				}
+				x += float64(r.wrap) * float64(b.W)
+			}
+			x0, nx := psf.Weights(x, a.wx[:])
+			i0 := max(x0, ox, int(r.clip0))
+			i1 := min(x0+nx, ox+tw, int(r.clip1))
+			for j := j0; j < j1; j++ {
+				wy := a.wy[j-y0]
+				row := (j - oy) * tileSize
+				for i := i0; i < i1; i++ {
+					w := a.wx[i-x0] * wy
+					q := row + i - ox
+					a.rgb[3*q] += w * rgb[0]
+					a.rgb[3*q+1] += w * rgb[1]
+					a.rgb[3*q+2] += w * rgb[2]
+					a.dsum[q] += w * lumD
+				}
+			}
+		}
+	}
+	for j := 0; j < th; j++ {
+		for i := 0; i < tw; i++ {
+			q := j*tileSize + i
+			p := (oy+j)*b.W + ox + i
+			r, gg, bl := a.rgb[3*q], a.rgb[3*q+1], a.rgb[3*q+2]
+			b.Pix[3*p], b.Pix[3*p+1], b.Pix[3*p+2] = float32(r), float32(gg), float32(bl)
+			if b.Doppler != nil {
+				if l := lumR*r + lumG*gg + lumB*bl; l > 0 {
+					b.Doppler[p] = float32(a.dsum[q] / l)
+				}
+			}
+		}
+	}
+}

@@ -1,0 +1,142 @@
+package render
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+
+	"gonum.org/v1/gonum/spatial/r3"
+
+	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
+)
+
+// Sidecar is the full physical state behind a frame, written as JSON next
+// to the image so the picture can be reproduced and measured. Angles are
+// degrees, positions parsecs, magnitudes Johnson V, directions ICRS.
+type Sidecar struct {
+	Tool    string `json:"tool"`
+	Version string `json:"version"`
+
+	Beta     float64 `json:"beta"`
+	Gamma    float64 `json:"gamma"`
+	Rapidity float64 `json:"rapidity"`
+	// Heading is the direction of motion (absent at rest).
+	Heading *Direction `json:"heading,omitempty"`
+	// PositionPC is the observer's position, pc, Sun at the origin.
+	PositionPC [3]float64 `json:"position_pc"`
+
+	Look       Look           `json:"look"`
+	Projection ProjectionInfo `json:"projection"`
+
+	ExposureV float64 `json:"exposure_v"`
+	// LimitV is the cull limit; absent when culling is off (+Inf).
+	LimitV  *float64 `json:"limit_v,omitempty"`
+	FWHMPx  float64  `json:"fwhm_px"`
+	Scale   float64  `json:"scale_per_lux"`
+	Tone    string   `json:"tone"`
+	Beaming string   `json:"beaming"`
+
+	Catalog CatalogInfo `json:"catalog"`
+	Counts  Counts      `json:"stars"`
+	// Brightest are the brightest drawn stars, brightest first.
+	Brightest []StarInfo `json:"brightest"`
+}
+
+// Direction is a unit vector given as ICRS right ascension and declination.
+type Direction struct {
+	RA  float64 `json:"ra_deg"`
+	Dec float64 `json:"dec_deg"`
+}
+
+// Look is the camera orientation.
+type Look struct {
+	Forward Direction `json:"forward"`
+	Up      Direction `json:"up"`
+	Right   Direction `json:"right"`
+}
+
+// ProjectionInfo describes the projection of the frame.
+type ProjectionInfo struct {
+	Kind   string  `json:"kind"`
+	Width  int     `json:"width"`
+	Height int     `json:"height"`
+	FOV    float64 `json:"fov_deg"`
+	Tilt   float64 `json:"tilt_deg"`
+}
+
+// CatalogInfo names the star list.
+type CatalogInfo struct {
+	Source string  `json:"source"`
+	Format string  `json:"format"`
+	Rows   int     `json:"rows"`
+	Epoch  float64 `json:"epoch"`
+}
+
+// Counts are the frame's star counts (see Stats).
+type Counts struct {
+	Total    int `json:"total"`
+	Drawn    int `json:"drawn"`
+	Culled   int `json:"culled"`
+	OffFrame int `json:"off_frame"`
+	Invalid  int `json:"invalid"`
+}
+
+// DirectionOf returns the RA/Dec of v (which need not be unit length); the
+// zero vector gives (0, 0).
+func DirectionOf(v r3.Vec) Direction {
+	ra, dec := camera.RADec(v)
+	return Direction{RA: ra, Dec: dec}
+}
+
+// Sidecar collects the frame's state. stars is the list that was rendered
+// (nil leaves the catalogue fields empty); tone is the mode the image was
+// written with.
+func (f *Frame) Sidecar(tool, version string, stars *catalog.Stars, tone ToneMode) Sidecar {
+	o := &f.Options
+	b := o.Observer.Boost
+	look := o.Projection.Orient
+	if look.IsZero() {
+		look = camera.DefaultOrientation()
+	}
+	s := Sidecar{
+		Tool: tool, Version: version,
+		Beta: b.Beta(), Gamma: b.Gamma(), Rapidity: b.Rapidity(),
+		PositionPC: [3]float64{o.Observer.Position.X, o.Observer.Position.Y, o.Observer.Position.Z},
+		Look:       Look{Forward: DirectionOf(look.Forward), Up: DirectionOf(look.Up), Right: DirectionOf(look.Right)},
+		Projection: ProjectionInfo{Kind: o.Projection.Kind.String(), Width: o.Projection.Width,
+			Height: o.Projection.Height, FOV: o.Projection.FieldOfView(), Tilt: o.Projection.Tilt},
+		ExposureV: o.Exposure, FWHMPx: o.FWHM, Scale: f.Scale,
+		Tone: tone.String(), Beaming: o.Beaming.String(),
+		Counts: Counts{Total: f.Stats.Total, Drawn: f.Stats.Drawn, Culled: f.Stats.Culled,
+			OffFrame: f.Stats.OffFrame, Invalid: f.Stats.Invalid},
+		Brightest: append([]StarInfo(nil), f.Stats.Brightest...),
+	}
+	if b.Beta() > 0 {
+		d := DirectionOf(b.Dir())
+		s.Heading = &d
+	}
+	if !math.IsInf(o.Limit, 1) {
+		l := o.Limit
+		s.LimitV = &l
+	}
+	if stars != nil {
+		s.Catalog = CatalogInfo{Source: stars.Source, Format: stars.Format, Rows: stars.Len(), Epoch: stars.Epoch}
+	}
+	return s
+}
+
+// WriteSidecar writes s to w as indented JSON followed by a newline.
+// Non-finite numbers, which JSON cannot hold, are an error.
+func WriteSidecar(w io.Writer, s Sidecar) error {
+	data, err := json.MarshalIndent(s, "", "  ")
+	if err != nil {
+		return fmt.Errorf("render: sidecar: %w", err)
+	}
+	data = append(data, '\n')
+	if _, err := w.Write(data); err != nil {
+		return fmt.Errorf("render: sidecar: %w", err)
+	}
+	return nil
+}
