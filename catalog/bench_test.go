@@ -140,3 +140,26 @@ func BenchmarkCacheWrite100k(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkOpenCache1M: Open on a cache file of 10⁶ stars (the CLI path).
+func BenchmarkOpenCache1M(b *testing.B) {
+	p := b.TempDir() + "/c.skyfcat"
+	f, err := os.Create(p)
+	if err != nil {
+		b.Fatal(err)
+	}
+	if err := WriteCache(f, bigStars(1_000_000)); err != nil {
+		b.Fatal(err)
+	}
+	if err := f.Close(); err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		s, _, err := Open(p, ReadOptions{})
+		if err != nil || s.Len() != 1_000_000 {
+			b.Fatal(err)
+		}
+	}
+}

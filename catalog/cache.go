@@ -274,8 +274,8 @@ func remaining(r io.Reader) int64 {
 	return -1
 }
 
-func readCache(r io.Reader, maxRows int) (*Stars, error) {
-	s, err := readCacheSized(r, maxRows, -1)
+func readCache(r io.Reader, maxRows int, avail int64) (*Stars, error) {
+	s, err := readCacheSized(r, maxRows, avail)
 	if err != nil {
 		return nil, fmt.Errorf("cache: %w", err)
 	}

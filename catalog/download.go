@@ -38,6 +38,15 @@ var KnownSources = map[string]Source{
 		Format: FormatHipparcos2007, Description: "Hipparcos, the New Reduction, van Leeuwen 2007 (CDS I/311)"},
 }
 
+// CachePath returns where the source is kept: CacheDir()/File.
+func (s Source) CachePath() (string, error) {
+	d, err := CacheDir()
+	if err != nil {
+		return "", err
+	}
+	return filepath.Join(d, s.File), nil
+}
+
 // MaxDownloadBytes bounds what Fetch writes to disk.
 const MaxDownloadBytes = 1 << 30
 

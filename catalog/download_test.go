@@ -95,7 +95,12 @@ func TestKnownSources(t *testing.T) {
 			t.Errorf("missing source %q", k)
 		}
 	}
-	if d, err := CacheDir(); err == nil && filepath.Base(d) != "skyframe" {
-		t.Errorf("CacheDir: %q", d)
+	if d, err := CacheDir(); err == nil {
+		if filepath.Base(d) != "skyframe" {
+			t.Errorf("CacheDir: %q", d)
+		}
+		if p, err := KnownSources["bsc5"].CachePath(); err != nil || p != filepath.Join(d, "bsc5.dat.gz") {
+			t.Errorf("CachePath: %q, %v", p, err)
+		}
 	}
 }

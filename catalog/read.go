@@ -168,6 +168,7 @@ func Read(r io.Reader, name string, opt ReadOptions) (*Stars, *Report, error) {
 		return nil, nil, fmt.Errorf("catalog: epoch %v out of range", opt.Epoch)
 	}
 	rep := &Report{Source: name, DeclaredRows: -1}
+	avail := remaining(r) // bytes left in a file or in-memory reader, else -1
 	cr := &countingReader{r: r}
 	raw := bufio.NewReaderSize(cr, 64<<10)
 	var src io.Reader = raw
@@ -200,7 +201,10 @@ func Read(r io.Reader, name string, opt ReadOptions) (*Stars, *Report, error) {
 	}
 	rep.Format = format
 	if format == FormatCache {
-		s, err := readCache(br, opt.MaxRows)
+		if rep.Compressed {
+			avail = -1
+		}
+		s, err := readCache(br, opt.MaxRows, avail)
 		if err != nil {
 			return nil, rep, &ParseError{File: name, Err: err}
 		}
