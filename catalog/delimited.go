@@ -53,7 +53,10 @@ var roleLabels = [nRoles]string{"id", "ra", "dec", "vmag", "bv", "teff", "parall
 // preallocate (at most 2²⁰ rows up front) and a count above
 // ReadOptions.MaxRows is refused before anything is allocated. Fields may
 // be double-quoted ("" inside quotes is a quote); a row must have as many
-// fields as the header. "null" and blanks are missing values.
+// fields as the header. "null" and blanks are missing values. A leading
+// UTF-8 byte-order mark is ignored. An id column found by its usual name
+// (not given in the ColumnMap) whose first value is not an integer is not
+// used: rows are numbered instead.
 //
 // Gaia: required columns source_id, ra, dec, parallax, phot_g_mean_mag,
 // bp_rp; optional teff_gspphot, pmra, pmdec, radial_velocity, ref_epoch
@@ -111,6 +114,7 @@ func readDelimited(lr *lineReader, b *builder, f Format) error {
 		return &ParseError{File: b.file, Line: hline, Field: name, Err: fmt.Errorf("%w: header has %d columns, none named %q", ErrMissingColumn, len(names), name)}
 	}
 	gaia := f == FormatGaiaCSV
+	guessedID := false // the id column was found by its usual name, not mapped
 	if gaia {
 		for role, name := range map[int]string{roleID: "source_id", roleRA: "ra", roleDec: "dec", rolePlx: "parallax", roleG: "phot_g_mean_mag", roleBPRP: "bp_rp"} {
 			i, ok := index[name]
@@ -136,6 +140,9 @@ func readDelimited(lr *lineReader, b *builder, f Format) error {
 				}
 				cols[role] = i
 				continue
+			}
+			if role == roleID {
+				guessedID = true
 			}
 			for _, d := range roleDefaults[role] {
 				if i, ok := index[d]; ok {
@@ -195,9 +202,19 @@ func readDelimited(lr *lineReader, b *builder, f Format) error {
 		}
 		st := Star{RV: math.NaN(), ID: int64(row)}
 		if cols[roleID] >= 0 {
-			if st.ID, err = b.integer(get(roleID), label(roleID), n); err != nil {
+			id, err := b.integer(get(roleID), label(roleID), n)
+			switch {
+			case err == nil:
+				st.ID = id
+			case guessedID && row == 1:
+				// A column that merely has a usual id name but does not
+				// hold integers (e.g. "HD 48915") is not used as the id;
+				// rows are numbered instead. Decided on the first row only.
+				cols[roleID] = -1
+			default:
 				return err
 			}
+			guessedID = false
 		}
 		raHi := 360.0
 		if !gaia && b.opt.Columns.RAHours {

@@ -94,6 +94,7 @@ func detectFormat(br *bufio.Reader, name string, gz bool) (Format, error) {
 		return FormatAuto, &ParseError{File: name, Line: 1, Err: mapReadErr(err, gz)}
 	}
 	atEOF := err == io.EOF
+	head = bytes.TrimPrefix(head, utf8BOM)
 	if bytes.HasPrefix(head, cacheMagic) {
 		return FormatCache, nil
 	}

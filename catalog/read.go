@@ -28,7 +28,7 @@ const (
 	// so tiny, highly compressible files stay readable.
 	ratioAllowance = 8 << 20
 	// preallocCap bounds up-front allocation from a declared row count.
-	preallocCap = 1 << 20
+	preallocCap = 1 << 18
 	sniffBytes  = 64 << 10
 )
 
@@ -289,6 +289,8 @@ func mapReadErr(err error, gz bool) error {
 	return err
 }
 
+var utf8BOM = []byte("\xef\xbb\xbf")
+
 // lineReader yields lines without their end-of-line bytes, never holding
 // more than max bytes of one line.
 type lineReader struct {
@@ -319,6 +321,9 @@ func (l *lineReader) next() ([]byte, error) {
 	}
 	l.line++
 	b = bytes.TrimRight(b, "\r\n")
+	if l.line == 1 {
+		b = bytes.TrimPrefix(b, utf8BOM)
+	}
 	if len(b) > l.max {
 		return nil, &ParseError{File: l.file, Line: l.line, Err: fmt.Errorf("%w: more than %d bytes", ErrLineTooLong, l.max)}
 	}

@@ -333,6 +333,30 @@ func TestHostileInput(t *testing.T) {
 	}
 }
 
+func TestDelimitedDetails(t *testing.T) {
+	// A UTF-8 byte-order mark before the header is ignored [pub: Unicode §23.8].
+	s, rep, err := Read(strings.NewReader("\xef\xbb\xbfra;dec;vmag\n1;2;3\n"), "bom.txt", ReadOptions{})
+	if err != nil || rep.Format != FormatCSV || s.Len() != 1 {
+		t.Fatalf("BOM + semicolons: %v %+v", err, rep)
+	}
+	// A guessed id column holding names is not used; rows are numbered [cp: documented rule].
+	s, _, err = Read(strings.NewReader("id,ra,dec,vmag\nHD 1,1,2,3\nHD 2,4,5,6\n"), "ids.csv", ReadOptions{})
+	if err != nil || s.ID[0] != 1 || s.ID[1] != 2 {
+		t.Fatalf("guessed non-integer id: %v %v", err, s)
+	}
+	// The same column mapped explicitly must hold integers.
+	_, _, err = Read(strings.NewReader("id,ra,dec,vmag\nHD 1,1,2,3\n"), "ids.csv", ReadOptions{Columns: ColumnMap{ID: "id"}})
+	var pe *ParseError
+	if !errors.Is(err, ErrNotNumber) || !errors.As(err, &pe) || pe.Line != 2 || pe.Field != "id" {
+		t.Errorf("mapped non-integer id: have %v", err)
+	}
+	// After the first row the guessed column is strict.
+	_, _, err = Read(strings.NewReader("id,ra,dec,vmag\n1,1,2,3\nx,4,5,6\n"), "ids.csv", ReadOptions{})
+	if !errors.As(err, &pe) || pe.Line != 3 {
+		t.Errorf("non-integer id on row 2: have %v", err)
+	}
+}
+
 func TestEpochPropagation(t *testing.T) {
 	// pmDec = 1000 mas/yr over 3600 yr = 1° along the tangent plane: the
 	// linear model gives δ = atan(π/180) [cp: tangent-plane geometry].
