@@ -141,8 +141,9 @@ const SolarBV = 0.65
 // VFromHp converts a Hipparcos Hp magnitude to Johnson V using the star's
 // B−V, by linear interpolation in the Bessell (2000) V − Hp table (see
 // hpTable). Outside the table (B−V < −0.22 or > 1.03) the end value is
-// held; the table does not cover M stars, for which this is only a rough
-// estimate (|V − Hp| ≲ 0.2 mag). A NaN B−V uses SolarBV.
+// held. The part of the table used stops at early K; for M stars, whose
+// V − Hp departs from it by several tenths of a magnitude, the result is
+// only a rough estimate. A NaN B−V uses SolarBV.
 func VFromHp(hp, bv float64) float64 {
 	if math.IsNaN(bv) {
 		bv = SolarBV
