@@ -72,11 +72,41 @@ func (o Observer) SeeBatch(x, y, z, dist []float32, nx, ny, nz, d, dilution, r [
 	if r != nil {
 		n = min(n, len(r))
 	}
+	omb, beta, gamma, ig := o.Boost.consts()
+	bx, by, bz := o.Boost.dir.X, o.Boost.dir.Y, o.Boost.dir.Z
+	px, py, pz := o.Position.X, o.Position.Y, o.Position.Z
+	atSun := o.Position == (r3.Vec{})
+	inf := math.Inf(1)
 	for i := range n {
-		u := r3.Vec{X: float64(x[i]), Y: float64(y[i]), Z: float64(z[i])}
-		ux, uy, uz := unitish(u.X, u.Y, u.Z)
-		v, dd, dil, rr := o.See(r3.Vec{X: ux, Y: uy, Z: uz}, float64(dist[i]))
-		nx[i], ny[i], nz[i], d[i] = v.X, v.Y, v.Z, dd
+		ux, uy, uz := unitish(float64(x[i]), float64(y[i]), float64(z[i]))
+		dd := float64(dist[i])
+		dil, rr := 1.0, inf
+		switch {
+		case !(dd > 0) || math.IsInf(dd, 1):
+			// unknown distance: infinitely far
+		case atSun:
+			rr = dd
+		default:
+			vx, vy, vz := dd*ux-px, dd*uy-py, dd*uz-pz
+			r2 := vx*vx + vy*vy + vz*vz
+			if r2 == 0 || math.IsInf(r2, 1) { // at the star, or overflow: the careful path
+				v, dp, dl, rp := o.See(r3.Vec{X: ux, Y: uy, Z: uz}, dd)
+				nx[i], ny[i], nz[i], d[i] = v.X, v.Y, v.Z, dp
+				if dilution != nil {
+					dilution[i] = dl
+				}
+				if r != nil {
+					r[i] = rp
+				}
+				continue
+			}
+			rr = math.Sqrt(r2)
+			s := 1 / rr
+			ux, uy, uz = vx*s, vy*s, vz*s
+			q := dd * s
+			dil = q * q
+		}
+		nx[i], ny[i], nz[i], d[i] = kernel(bx, by, bz, omb, beta, gamma, ig, ux, uy, uz)
 		if dilution != nil {
 			dilution[i] = dil
 		}

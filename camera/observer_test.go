@@ -79,6 +79,12 @@ func TestSeeBatch(t *testing.T) {
 			t.Errorf("star %d: batch (%v %v %v %v), See (%v %v %v %v)", i, have, d[i], dil[i], r[i], wn, wd, wdil, wr)
 		}
 	}
+	// Observer exactly at the star: the documented flag r = 0, dilution +Inf.
+	at := Observer{Position: r3.Vec{Z: 5}}
+	at.SeeBatch([]float32{0}, []float32{0}, []float32{1}, []float32{5}, nx, ny, nz, d, dil, r)
+	if r[0] != 0 || !math.IsInf(dil[0], 1) || nz[0] != 1 {
+		t.Errorf("batch at the star: r=%v dilution=%v n=(%v,%v,%v)", r[0], dil[0], nx[0], ny[0], nz[0])
+	}
 	if a := testing.AllocsPerRun(10, func() { o.SeeBatch(x, y, z, dists, nx, ny, nz, d, nil, nil) }); a != 0 {
 		t.Errorf("SeeBatch allocates %v times", a)
 	}
