@@ -1,0 +1,17 @@
+package main
+
+import (
+	"errors"
+
+	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/flight"
+)
+
+// isInputError reports whether err is about the user's input (a catalogue or
+// plan file), which exits with status 2 like a usage error.
+func isInputError(err error) bool {
+	var pe *catalog.ParseError
+	var ple *flight.PlanError
+	var le *flight.LegError
+	return errors.As(err, &pe) || errors.As(err, &ple) || errors.As(err, &le)
+}
