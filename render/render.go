@@ -288,7 +288,7 @@ func (p *Prepared) Render(opt Options) (*Frame, error) {
 		for c := range chunks {
 			lo := c * chunkSize
 			for k := lo; k < lo+chunks[c].n; k++ {
-				g.bin(&recs[k], int32(k), pass)
+				g.bin(&recs[k], pass)
 			}
 		}
 		g.finishPass(pass)
@@ -301,7 +301,7 @@ func (p *Prepared) Render(opt Options) (*Frame, error) {
 		if acc == nil {
 			acc = &tileAcc{}
 		}
-		acc.render(&f.Buffer, g, ti, recs, &psf)
+		acc.render(&f.Buffer, g, ti, &psf)
 		pool.Put(acc)
 	})
 	return f, nil
@@ -487,13 +487,15 @@ func sortInfos(s []StarInfo) {
 	sort.Slice(s, func(i, j int) bool { return lessInfo(&s[i], &s[j]) })
 }
 
-// grid bins splat records into tiles with a two-pass counting sort.
+// grid bins splat records into tiles with a two-pass counting sort; each
+// tile gets its own copy of its records, in catalogue order, so phase 3
+// reads them sequentially.
 type grid struct {
 	w, h, tw, th int
 	radius       float64
-	start        []int32 // tile t's records are idx[start[t]:start[t+1]]
+	start        []int32 // tile t's records are recs[start[t]:start[t+1]]
 	fill         []int32
-	idx          []int32
+	recs         []splatRec
 }
 
 func newGrid(w, h int, radius float64) *grid {
@@ -512,7 +514,7 @@ func (g *grid) tileRange(x float64, clip0, clip1 int) (int, int) {
 	return p0 / tileSize, p1 / tileSize
 }
 
-func (g *grid) bin(r *splatRec, k int32, pass int) {
+func (g *grid) bin(r *splatRec, pass int) {
 	ty0, ty1 := g.tileRange(r.y, 0, g.h)
 	for rep := 0; rep < 2; rep++ {
 		x := r.x
@@ -529,7 +531,7 @@ func (g *grid) bin(r *splatRec, k int32, pass int) {
 				if pass == 0 {
 					g.start[t+1]++
 				} else {
-					g.idx[g.fill[t]] = k
+					g.recs[g.fill[t]] = *r
 					g.fill[t]++
 				}
 			}
@@ -544,7 +546,7 @@ func (g *grid) finishPass(pass int) {
 	for t := 1; t < len(g.start); t++ {
 		g.start[t] += g.start[t-1]
 	}
-	g.idx = make([]int32, g.start[len(g.start)-1])
+	g.recs = make([]splatRec, g.start[len(g.start)-1])
 	g.fill = make([]int32, len(g.start)-1)
 	copy(g.fill, g.start)
 }
@@ -556,17 +558,20 @@ type tileAcc struct {
 	wx, wy [maxTaps]float64
 }
 
-func (a *tileAcc) render(b *Buffer, g *grid, ti int, recs []splatRec, psf *PSF) {
+func (a *tileAcc) render(b *Buffer, g *grid, ti int, psf *PSF) {
 	ox, oy := (ti%g.tw)*tileSize, (ti/g.tw)*tileSize
 	tw, th := min(tileSize, b.W-ox), min(tileSize, b.H-oy)
-	list := g.idx[g.start[ti]:g.start[ti+1]]
+	list := g.recs[g.start[ti]:g.start[ti+1]]
 	if len(list) == 0 {
 		return // the buffer is already black there
 	}
+	doppler := b.Doppler != nil
 	clear(a.rgb[:])
-	clear(a.dsum[:])
-	for _, k := range list {
-		r := &recs[k]
+	if doppler {
+		clear(a.dsum[:])
+	}
+	for k := range list {
+		r := &list[k]
 		y0, ny := psf.Weights(r.y, a.wy[:])
 		j0, j1 := max(y0, oy), min(y0+ny, oy+th)
 		rgb := [3]float64{float64(r.rgb[0]), float64(r.rgb[1]), float64(r.rgb[2])}
@@ -582,16 +587,26 @@ func (a *tileAcc) render(b *Buffer, g *grid, ti int, recs []splatRec, psf *PSF) 
 			x0, nx := psf.Weights(x, a.wx[:])
 			i0 := max(x0, ox, int(r.clip0))
 			i1 := min(x0+nx, ox+tw, int(r.clip1))
+			if i0 >= i1 {
+				continue
+			}
+			wxs := a.wx[i0-x0 : i1-x0]
 			for j := j0; j < j1; j++ {
 				wy := a.wy[j-y0]
-				row := (j - oy) * tileSize
-				for i := i0; i < i1; i++ {
-					w := a.wx[i-x0] * wy
-					q := row + i - ox
-					a.rgb[3*q] += w * rgb[0]
-					a.rgb[3*q+1] += w * rgb[1]
-					a.rgb[3*q+2] += w * rgb[2]
-					a.dsum[q] += w * lumD
+				q0 := (j-oy)*tileSize + i0 - ox
+				row := a.rgb[3*q0 : 3*(q0+len(wxs))]
+				for ii, wx := range wxs {
+					w := wx * wy
+					px := row[3*ii : 3*ii+3 : 3*ii+3]
+					px[0] += w * rgb[0]
+					px[1] += w * rgb[1]
+					px[2] += w * rgb[2]
+				}
+				if doppler {
+					ds := a.dsum[q0 : q0+len(wxs)]
+					for ii, wx := range wxs {
+						ds[ii] += wx * wy * lumD
+					}
 				}
 			}
 		}

@@ -36,9 +36,8 @@ var ErrFWHM = errors.New("render: PSF FWHM out of range")
 // image. The zero value is not usable; build one with NewPSF.
 type PSF struct {
 	fwhm, sigma, radius float64
-	inv                 float64 // 1/(σ√2)
-	half                float64 // 1/(2·erf(4/√2)): normalisation over the support
-	edge                float64 // erf(4/√2)
+	inv                 float64 // 1/σ
+	norm                float64 // 1/(Φ(4) − Φ(−4)): normalisation over the support
 }
 
 // NewPSF returns the PSF of the given FWHM in pixels; 0 means DefaultFWHM.
@@ -50,9 +49,8 @@ func NewPSF(fwhm float64) (PSF, error) {
 		return PSF{}, fmt.Errorf("%w: %v px, want (0, %v]", ErrFWHM, fwhm, MaxFWHM)
 	}
 	s := fwhm / fwhmPerSigma
-	e := math.Erf(psfRadiusSigma / math.Sqrt2)
 	return PSF{fwhm: fwhm, sigma: s, radius: psfRadiusSigma * s,
-		inv: 1 / (s * math.Sqrt2), half: 0.5 / e, edge: e}, nil
+		inv: 1 / s, norm: 1 / (2 * cdfEdge)}, nil
 }
 
 // FWHM returns the full width at half maximum in pixels.
@@ -79,14 +77,59 @@ func (p *PSF) Weights(c float64, w []float64) (i0, n int) {
 	i1 := int(math.Floor(hi))
 	n = i1 - i0 + 1
 	w = w[:n]
-	prev := -p.edge
+	prev := -cdfEdge
 	for k := 0; k < n-1; k++ {
-		e := math.Erf((float64(i0+k+1) - c) * p.inv)
-		w[k] = (e - prev) * p.half
+		e := gaussCDF((float64(i0+k+1) - c) * p.inv)
+		w[k] = (e - prev) * p.norm
 		prev = e
 	}
-	w[n-1] = (p.edge - prev) * p.half
+	w[n-1] = (cdfEdge - prev) * p.norm
 	return i0, n
+}
+
+// The centred Gaussian CDF G(t) = Φ(t) − ½ = ½·erf(t/√2) for t in σ units
+// is tabulated on [−4, 4] at steps of 1/cdfPerSigma as cubic Hermite
+// pieces built from math.Erf and the exact derivative φ(t). The
+// interpolation error is below 4·10⁻⁹ (h⁴/384 · max|φ‴| with h = 1/32),
+// far below float32 resolution, and costs a fraction of math.Erf.
+const (
+	cdfPerSigma = 32
+	cdfN        = 2 * psfRadiusSigma * cdfPerSigma // intervals
+)
+
+var (
+	cdfEdge = 0.5 * math.Erf(psfRadiusSigma/math.Sqrt2) // G(4)
+	cdfTab  = buildCDF()
+)
+
+func buildCDF() *[cdfN][4]float64 {
+	var t [cdfN][4]float64
+	const h = 1.0 / cdfPerSigma
+	g := func(x float64) (float64, float64) {
+		return 0.5 * math.Erf(x/math.Sqrt2), h * math.Exp(-x*x/2) / math.Sqrt(2*math.Pi)
+	}
+	for k := range t {
+		x0 := -psfRadiusSigma + float64(k)*h
+		f0, m0 := g(x0)
+		f1, m1 := g(x0 + h)
+		t[k] = [4]float64{f0, m0, 3*(f1-f0) - 2*m0 - m1, 2*(f0-f1) + m0 + m1}
+	}
+	return &t
+}
+
+// gaussCDF returns G(t) from the table, clamped to ±G(4) outside [−4, 4].
+func gaussCDF(t float64) float64 {
+	u := (t + psfRadiusSigma) * cdfPerSigma
+	if !(u > 0) {
+		return -cdfEdge
+	}
+	j := int(u)
+	if j >= cdfN {
+		return cdfEdge
+	}
+	f := u - float64(j)
+	c := &cdfTab[j]
+	return c[0] + f*(c[1]+f*(c[2]+f*c[3]))
 }
 
 // PeakFraction returns the fraction of a star's flux that falls in the

@@ -157,3 +157,14 @@ func BenchmarkSplat(b *testing.B) {
 		buf.Splat(xs[i&1023], xs[(i+7)&1023], [3]float64{1, 1, 1}, 1, &p)
 	}
 }
+
+// The tabulated Gaussian CDF agrees with ½·erf(t/√2) from math.Erf to 1e-8.
+func TestGaussCDF(t *testing.T) {
+	for k := 0; k <= 80000; k++ {
+		x := -4.2 + 8.4*float64(k)/80000
+		want := 0.5 * math.Erf(math.Max(-4, math.Min(4, x))/math.Sqrt2)
+		if have := gaussCDF(x); math.Abs(have-want) > 1e-8 {
+			t.Fatalf("G(%v): have %v, want %v", x, have, want)
+		}
+	}
+}
