@@ -313,10 +313,10 @@ func (fr *frame) forward(kind Kind, dir r3.Vec) (x, y float64, ok bool) {
 			return nan, nan, false
 		}
 		lon := math.Atan2(b, a)
-		lat := math.Atan2(c, math.Hypot(a, b))
+		lat := math.Atan2(c, hypot(a, b))
 		return fr.cx + fr.k*lon, fr.cy - fr.ky*lat, true
 	case Fisheye:
-		s := math.Hypot(b, c)
+		s := hypot(b, c)
 		if s == 0 {
 			if a > 0 {
 				return fr.cx, fr.cy, true
@@ -416,6 +416,15 @@ func (fr *frame) inverse(kind Kind, width, height int, x, y float64) (r3.Vec, bo
 		}
 	}
 	return r3.Vec{}, false
+}
+
+// hypot is math.Hypot with a fast path for the magnitudes unit vectors have.
+func hypot(a, b float64) float64 {
+	s := a*a + b*b
+	if s > 1e-290 && s < 1e290 {
+		return math.Sqrt(s)
+	}
+	return math.Hypot(a, b)
 }
 
 // combine returns a·f + b·r + c·u.
