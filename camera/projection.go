@@ -197,9 +197,10 @@ func (p *Projection) Prepare() error {
 
 // Validate checks the exported fields, naming the first bad one: Kind
 // defined; Width and Height in 1..32768; Pinhole FOV in [1e-6, 179] and
-// Fisheye FOV in [1e-6, 360] degrees (0 meaning the default); Fisheye Tilt finite in
-// [−180, 180]; Cube Width = 6·Height; Orient orthonormal and right-handed
-// (or zero). Equirect accepts any size (2:1 gives square pixels).
+// Fisheye FOV in [1e-6, 360] degrees (0 meaning the default); Fisheye Tilt
+// in [−180, 180]; Cube Width = 6·Height; Orient orthonormal and
+// right-handed (or zero). Equirect accepts any size (2:1 gives square
+// pixels). NaN and infinite values are rejected where a field is used.
 func (p Projection) Validate() error {
 	if p.Kind < 0 || int(p.Kind) >= len(kindNames) {
 		return fmt.Errorf("%w: Kind = %d is not a projection", ErrProjection, int(p.Kind))

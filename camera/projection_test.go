@@ -408,3 +408,24 @@ func BenchmarkForwardPinholeUnprepared(b *testing.B) { benchForward(b, Pinhole, 
 func BenchmarkForwardEquirect(b *testing.B)          { benchForward(b, Equirect, true) }
 func BenchmarkForwardFisheye(b *testing.B)           { benchForward(b, Fisheye, true) }
 func BenchmarkForwardCube(b *testing.B)              { benchForward(b, Cube, true) }
+
+func benchInverse(b *testing.B, k Kind) {
+	p := Projection{Kind: k, Width: 1200, Height: 200, Tilt: 20}
+	if err := p.Prepare(); err != nil {
+		b.Fatal(err)
+	}
+	var sink float64
+	b.ReportAllocs()
+	i := 0
+	for b.Loop() {
+		d, _ := p.Inverse(float64(i%1200)+0.5, float64(i/1200%200)+0.5)
+		sink += d.X
+		i++
+	}
+	_ = sink
+}
+
+func BenchmarkInversePinhole(b *testing.B)  { benchInverse(b, Pinhole) }
+func BenchmarkInverseEquirect(b *testing.B) { benchInverse(b, Equirect) }
+func BenchmarkInverseFisheye(b *testing.B)  { benchInverse(b, Fisheye) }
+func BenchmarkInverseCube(b *testing.B)     { benchInverse(b, Cube) }
