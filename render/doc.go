@@ -39,7 +39,7 @@
 // Scale does not change with Options.FWHM, so a wider PSF spreads the same
 // light. The exposure is fixed by the caller, never adapted to the frame.
 // The naked-eye preset NakedEyeExposure() = 6.5 + 2.5·log10(8/255/12.92)
-// = −0.036 mag makes a V = 6.5 white star's peak encode to 8/255; the zero
+// = −0.037 mag makes a V = 6.5 white star's peak encode to 8/255; the zero
 // Exposure, 0 mag, is within 0.04 mag of it.
 //
 // # Pixels and the PSF

@@ -47,13 +47,13 @@ const JustVisible = 8
 //
 //	Exposure = limit + 2.5·log10(DecodeSRGB(JustVisible/255)).
 //
-// DecodeSRGB(8/255) = 8/255/12.92 = 2.428·10⁻³, so the offset is −6.536 mag.
+// DecodeSRGB(8/255) = 8/255/12.92 = 2.428·10⁻³, so the offset is −6.537 mag.
 func ExposureForLimit(limit float64) float64 {
 	return limit + 2.5*math.Log10(spectrum.DecodeSRGB(JustVisible/255.0))
 }
 
 // NakedEyeExposure returns the naked-eye preset, ExposureForLimit(6.5) =
-// −0.036 mag: stars of V ≈ 0 reach full scale and V = 6.5 is just visible.
+// −0.037 mag: stars of V ≈ 0 reach full scale and V = 6.5 is just visible.
 // The zero Options.Exposure is within 0.04 mag of it.
 func NakedEyeExposure() float64 { return ExposureForLimit(NakedEyeLimit) }
 
@@ -94,10 +94,11 @@ type Options struct {
 
 // Errors returned by Render for bad options.
 var (
-	ErrWorkers = errors.New("render: negative Workers")
-	ErrLimit   = errors.New("render: Limit is NaN")
-	ErrStars   = errors.New("render: no star list")
-	ErrBeaming = errors.New("render: unknown beaming convention")
+	ErrWorkers  = errors.New("render: negative Workers")
+	ErrLimit    = errors.New("render: Limit is NaN")
+	ErrExposure = errors.New("render: Exposure is not finite")
+	ErrStars    = errors.New("render: no star list")
+	ErrBeaming  = errors.New("render: unknown beaming convention")
 )
 
 // Frame is a rendered image with what went into it.
@@ -218,8 +219,11 @@ func (p *Prepared) Render(opt Options) (*Frame, error) {
 	if opt.Workers < 0 {
 		return nil, fmt.Errorf("%w: %d", ErrWorkers, opt.Workers)
 	}
-	if math.IsNaN(opt.Limit) || math.IsNaN(opt.Exposure) || math.IsInf(opt.Exposure, 0) {
-		return nil, fmt.Errorf("%w (or Exposure %v not finite)", ErrLimit, opt.Exposure)
+	if math.IsNaN(opt.Exposure) || math.IsInf(opt.Exposure, 0) {
+		return nil, fmt.Errorf("%w: %v", ErrExposure, opt.Exposure)
+	}
+	if math.IsNaN(opt.Limit) {
+		return nil, ErrLimit
 	}
 	if err := opt.Projection.Prepare(); err != nil {
 		return nil, fmt.Errorf("render: %w", err)

@@ -330,6 +330,15 @@ func TestRenderErrors(t *testing.T) {
 	if _, err := Render(s, Options{Projection: good, FWHM: -2}); !errors.Is(err, ErrFWHM) {
 		t.Errorf("FWHM -2: have %v", err)
 	}
+	if _, err := Render(s, Options{Projection: good, Exposure: math.NaN()}); !errors.Is(err, ErrExposure) {
+		t.Errorf("Exposure NaN: have %v", err)
+	}
+	if _, err := Render(s, Options{Projection: good, Limit: math.NaN()}); !errors.Is(err, ErrLimit) {
+		t.Errorf("Limit NaN: have %v", err)
+	}
+	if _, err := Render(s, Options{Projection: good, Beaming: 7}); !errors.Is(err, ErrBeaming) {
+		t.Errorf("Beaming 7: have %v", err)
+	}
 	if _, err := Render(s, Options{}); err == nil {
 		t.Errorf("zero projection: no error")
 	}
