@@ -65,7 +65,7 @@ func logTicks() plot.Ticker {
 		min, max := math.Pow(10, lmin), math.Pow(10, lmax)
 		k0, k1 := int(math.Floor(math.Log10(min))), int(math.Ceil(math.Log10(max)))
 		nd := k1 - k0
-		stride := max0((nd+6)/7) // ≤ 7 labels
+		stride := max0((nd + 6) / 7) // ≤ 7 labels
 		if stride < 1 {
 			stride = 1
 		}
