@@ -1,6 +1,7 @@
 package render
 
 import (
+	"io"
 	"math"
 	"testing"
 
@@ -81,4 +82,28 @@ func benchRender(b *testing.B, kind camera.Kind, w, h, n int) {
 }
 
 func BenchmarkRenderFisheye4096(b *testing.B) { benchRender(b, camera.Fisheye, 4096, 4096, 1_000_000) }
+
+// BenchmarkFrameFisheye4096PNG is the whole frame: render 10⁶ stars into a
+// 4096² fisheye, tone-map and encode to 8-bit sRGB, and write the PNG.
+func BenchmarkFrameFisheye4096PNG(b *testing.B) {
+	n := 1_000_000
+	if testing.Short() {
+		n /= 10
+	}
+	p, err := Prepare(randomStars(n, -1, 12, 13))
+	if err != nil {
+		b.Fatal(err)
+	}
+	opt := Options{Projection: proj(b, camera.Fisheye, 4096, 4096), Observer: observer(b, r3.Unit(r3.Vec{X: 1, Y: 1}), 0.9), Exposure: 4}
+	b.ReportAllocs()
+	for b.Loop() {
+		f, err := p.Render(opt)
+		if err != nil {
+			b.Fatal(err)
+		}
+		if err := WritePNG(io.Discard, f.ToNRGBA(ToneShoulder), nil); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
 func BenchmarkRenderPinhole1080(b *testing.B) { benchRender(b, camera.Pinhole, 1920, 1080, 1_000_000) }

@@ -150,8 +150,8 @@ func BenchmarkToneNRGBA(b *testing.B) {
 		buf.Pix[i] = float32(rng.ExpFloat64() * 0.3)
 	}
 	b.ReportAllocs()
-	b.SetBytes(int64(buf.W * buf.H))
 	for b.Loop() {
 		_ = buf.ToNRGBA(ToneShoulder)
 	}
+	b.ReportMetric(b.Elapsed().Seconds()*1e9/float64(b.N)/float64(buf.W*buf.H), "ns/px")
 }
