@@ -1,9 +1,11 @@
 package render
 
 import (
+	"bytes"
 	"errors"
 	"math"
 	"math/rand/v2"
+	"runtime"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -363,5 +365,77 @@ func TestEquirectWrap(t *testing.T) {
 	}
 	if f.Luminance(0, 32) == 0 || f.Luminance(127, 32) == 0 {
 		t.Errorf("seam star not on both edges: %v %v", f.Luminance(0, 32), f.Luminance(127, 32))
+	}
+}
+
+// Determinism across GOMAXPROCS [cp]: with Workers = 0 the worker count
+// follows GOMAXPROCS; the encoded image must not change with it.
+func TestDeterministicAcrossGOMAXPROCS(t *testing.T) {
+	stars := randomStars(20000, -1, 8, 21)
+	var imgs [][]byte
+	for _, procs := range []int{1, 2, 5} {
+		old := runtime.GOMAXPROCS(procs)
+		f, err := Render(stars, Options{Projection: proj(t, camera.Fisheye, 160, 160), Observer: observer(t, axisZ, 0.5), Exposure: 1})
+		if err == nil {
+			imgs = append(imgs, f.ToNRGBA64(ToneShoulder).Pix)
+		}
+		runtime.GOMAXPROCS(old)
+		if err != nil {
+			t.Fatal(err)
+		}
+	}
+	for k := 1; k < len(imgs); k++ {
+		if !bytes.Equal(imgs[0], imgs[k]) {
+			t.Errorf("GOMAXPROCS run %d gives a different image", k)
+		}
+	}
+}
+
+// A fisheye draws only inside its circle [doc.go]: a star 100° from the
+// axis of a 180° fisheye falls in the image corner (ok = true there) and
+// is off frame.
+func TestFisheyeCircle(t *testing.T) {
+	p := proj(t, camera.Fisheye, 100, 60)
+	dir := r3.Add(r3.Scale(math.Cos(100*math.Pi/180), axisX), r3.Scale(math.Sin(100*math.Pi/180), r3.Unit(r3.Vec{Y: -1, Z: 0.02})))
+	x, y, ok := p.Forward(dir)
+	if !ok || x < 0 || x > 100 || y < 0 || y > 60 {
+		t.Fatalf("test direction not in the image corner region: (%v, %v, %v)", x, y, ok)
+	}
+	f, err := Render(one(dir, 0, 5000), Options{Projection: p})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if f.Stats.OffFrame != 1 {
+		t.Errorf("have %+v, want the star off frame", f.Stats)
+	}
+}
+
+// A cube-strip star near a face edge lights only its own face [doc.go]:
+// nothing crosses into the neighbouring square of the strip.
+func TestCubeFaceClip(t *testing.T) {
+	const h = 32
+	p := proj(t, camera.Cube, 6*h, h)
+	// 44.5° to the right of Forward: inside the +Forward face (x in
+	// [4h, 5h)), about 0.4 px from its right edge.
+	a := 44.6 * math.Pi / 180
+	right := p.Orient.Right
+	dir := r3.Add(r3.Scale(math.Cos(a), axisX), r3.Scale(math.Sin(a), right))
+	x, _, ok := p.Forward(dir)
+	if !ok || x < 4*h || x >= 5*h {
+		t.Fatalf("test star at x = %v, want in [%d, %d)", x, 4*h, 5*h)
+	}
+	f, err := Render(one(dir, 0, 5000), Options{Projection: p, FWHM: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for j := 0; j < h; j++ {
+		for i := 5 * h; i < 6*h; i++ {
+			if l := f.Luminance(i, j); l != 0 {
+				t.Fatalf("light at (%d,%d) in the next face: %v", i, j, l)
+			}
+		}
+	}
+	if l := f.Luminance(5*h-1, h/2); l == 0 {
+		t.Errorf("no light at the face edge next to the star")
 	}
 }

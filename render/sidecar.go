@@ -37,6 +37,9 @@ type Sidecar struct {
 	Scale   float64  `json:"scale_per_lux"`
 	Tone    string   `json:"tone"`
 	Beaming string   `json:"beaming"`
+	White   string   `json:"white_point"`
+	// PSF is the point spread function model.
+	PSF string `json:"psf"`
 
 	Catalog CatalogInfo `json:"catalog"`
 	Counts  Counts      `json:"stars"`
@@ -108,7 +111,8 @@ func (f *Frame) Sidecar(tool, version string, stars *catalog.Stars, tone ToneMod
 		Projection: ProjectionInfo{Kind: o.Projection.Kind.String(), Width: o.Projection.Width,
 			Height: o.Projection.Height, FOV: o.Projection.FieldOfView(), Tilt: o.Projection.Tilt},
 		ExposureV: o.Exposure, FWHMPx: o.FWHM, Scale: f.Scale,
-		Tone: tone.String(), Beaming: o.Beaming.String(),
+		Tone: tone.String(), Beaming: o.Beaming.String(), White: o.Color.White.String(),
+		PSF: "gaussian, pixel-integrated, truncated at 4 sigma",
 		Counts: Counts{Total: f.Stats.Total, Drawn: f.Stats.Drawn, Culled: f.Stats.Culled,
 			OffFrame: f.Stats.OffFrame, Invalid: f.Stats.Invalid},
 		Brightest: append([]StarInfo(nil), f.Stats.Brightest...),

@@ -38,6 +38,9 @@ func TestSidecar(t *testing.T) {
 	if back.Projection.Kind != camera.Fisheye.String() || back.Projection.Width != 64 || back.Tone != "shoulder" {
 		t.Errorf("projection/tone: have %+v %q", back.Projection, back.Tone)
 	}
+	if back.White != "d65" && back.White != "D65" || back.Beaming != "exact" {
+		t.Errorf("white/beaming: have %q %q", back.White, back.Beaming)
+	}
 	if back.Catalog.Rows != stars.Len() || back.Catalog.Source != "handmade" {
 		t.Errorf("catalogue: have %+v", back.Catalog)
 	}
