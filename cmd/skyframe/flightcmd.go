@@ -1,5 +1,346 @@
 package main
 
+import (
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"github.com/spf13/pflag"
+	"gonum.org/v1/gonum/spatial/r3"
+
+	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/flight"
+	"github.com/skyframe/skyframe/render"
+)
+
+const flightHelp = `Usage: skyframe flight PLAN.toml [options]
+
+Render the frames of a flight plan: the ship's state at each frame follows
+the plan's legs in closed form, the camera follows its look keys, and every
+frame is written as PNG (and FITS, when the plan asks) with a JSON sidecar,
+each file atomically (a temporary file renamed into place).
+
+Paths in the plan (catalogue.path, output.dir) are relative to the plan
+file's directory; --out replaces output.dir and is relative to the current
+directory. Look directions in the plan ("ahead", "behind", "RA,Dec", a star)
+are catalogue-frame directions: the camera points where that direction
+appears from the moving ship (aberrated), so a star key keeps the star's
+light centred.
+
+A frame depends only on the plan and its index, so a render can be split
+and resumed:
+  --shard K/N       render the K-th (0-based) of N equal contiguous blocks;
+                    without it the shard comes from SKYFRAME_SHARD=K/N, a
+                    Kubernetes Indexed Job (JOB_COMPLETION_INDEX with
+                    SKYFRAME_SHARDS=N) or a Slurm job array
+                    (SLURM_ARRAY_TASK_ID, SLURM_ARRAY_TASK_COUNT).
+  --resume          skip frames whose sidecar records this plan's hash and
+                    whose image files match the SHA-256 recorded there.
+  --verify          render nothing: check that the output holds every
+                    selected frame intact (sidecar present, same plan hash,
+                    image SHA-256 as recorded); list missing and corrupt
+                    frames; exit status 1 if any, 0 if all are intact. It
+                    also runs the flash check over the whole sequence.
+
+Before rendering, the plan is checked (legs connect, accelerations are
+positive, destinations are known, speed caps are below c) and the output
+size (frames × PNG, FITS and sidecar estimates) is compared with the free
+space on the output file system; any problem exits with status 2.
+
+Photosensitivity: each sidecar records the frame's mean relative luminance
+(the linear luminance of the encoded 8-bit image). After rendering, the
+frames this run rendered or found done are checked against the WCAG 2.3.1 /
+ITU-R BT.1702 general flash threshold and a warning is printed when they
+fail. A sharded run checks only its own block: run --verify over the
+finished directory to check the whole sequence.
+
+On SIGINT or SIGTERM the frame being written is finished (never left
+partial) and the command exits with status 1 ("interrupted after frame N");
+--resume continues from there.
+
+Examples:
+  skyframe flight samples/plan.toml --dry-run
+  skyframe flight samples/plan.toml --frames 0-29 --out /tmp/preview
+  skyframe flight samples/plan.toml --shard 2/8 --resume
+  skyframe flight samples/plan.toml --verify
+
+Options:
+`
+
+type flightFlags struct {
+	frames  string
+	dryRun  bool
+	resume  bool
+	shard   string
+	verify  bool
+	out     string
+	workers int
+}
+
+func (f *flightFlags) register(fs *pflag.FlagSet) {
+	fs.StringVar(&f.frames, "frames", "", "frame range A-B (0-based, inclusive), A- (to the end) or A (one frame); default all")
+	fs.BoolVar(&f.dryRun, "dry-run", false, "print the per-frame state as CSV ("+strings.Join(flight.DryRunColumns, ", ")+") and render nothing")
+	fs.BoolVar(&f.resume, "resume", false, "skip frames already rendered intact for this plan")
+	fs.StringVar(&f.shard, "shard", "", "render shard K/N (0-based K); default from the environment, else the whole job")
+	fs.BoolVar(&f.verify, "verify", false, "check the output directory for missing or corrupt frames instead of rendering (exit 1 if any)")
+	fs.StringVar(&f.out, "out", "", "output directory, replacing the plan's output.dir")
+	fs.IntVar(&f.workers, "workers", 0, "goroutines per frame for rendering and PNG compression (0: all CPUs; output does not depend on it)")
+}
+
+// flightJob is a parsed, bound and checked plan with everything a render,
+// resume or verification needs.
+type flightJob struct {
+	plan    *flight.Plan
+	hash    string
+	stars   *catalog.Stars
+	outDir  string
+	frames  []int // the frames this invocation handles, ascending
+	shard   flight.Shard
+	kind    camera.Kind
+	tone    render.ToneMode
+	expo    float64
+	workers int
+}
+
 func runFlight(e *env, args []string) error {
-	return usagef("flight: not yet available")
+	fs := pflag.NewFlagSet("flight", pflag.ContinueOnError)
+	fs.SetOutput(e.stderr)
+	var f flightFlags
+	f.register(fs)
+	fs.Usage = func() {
+		fmt.Fprint(e.stdout, flightHelp)
+		fs.SetOutput(e.stdout)
+		fs.PrintDefaults()
+		fmt.Fprint(e.stdout, exitStatusHelp)
+	}
+	if err := fs.Parse(args); err != nil {
+		if err == pflag.ErrHelp {
+			return errHelp
+		}
+		return usageError{err}
+	}
+	if fs.NArg() != 1 {
+		return usagef("flight: want exactly one PLAN.toml (see --help)")
+	}
+	if f.workers < 0 {
+		return usagef("--workers %d: want N ≥ 0", f.workers)
+	}
+	if f.dryRun && f.verify {
+		return usagef("give only one of --dry-run and --verify")
+	}
+	job, err := loadFlightJob(e, fs.Arg(0), &f)
+	if err != nil {
+		return err
+	}
+	switch {
+	case f.dryRun:
+		if len(job.frames) == 0 {
+			return flight.WriteDryRunCSV(e.stdout, job.plan, flight.Range{First: 1, Last: 0})
+		}
+		r := flight.Range{First: job.frames[0], Last: job.frames[len(job.frames)-1]}
+		return flight.WriteDryRunCSV(e.stdout, job.plan, r)
+	case f.verify:
+		return job.verify(e)
+	}
+	return job.render(e, f.resume)
+}
+
+// loadFlightJob reads, binds and validates the plan, before any rendering.
+func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) {
+	data, err := readPlanFile(planPath)
+	if err != nil {
+		return nil, err
+	}
+	plan, err := flight.ParsePlan(data, planPath)
+	if err != nil {
+		return nil, err
+	}
+	base := filepath.Dir(planPath)
+	stars, err := planStars(plan, base)
+	if err != nil {
+		return nil, err
+	}
+	if err := plan.Bind(flight.StarsResolver(stars, stars.Find)); err != nil {
+		return nil, err
+	}
+	job := &flightJob{plan: plan, hash: plan.Hash(), stars: stars, workers: f.workers}
+	job.outDir = plan.Output.Dir
+	if !filepath.IsAbs(job.outDir) {
+		job.outDir = filepath.Join(base, job.outDir)
+	}
+	if f.out != "" {
+		job.outDir = f.out
+	}
+	rng, err := flight.ParseRange(f.frames)
+	if err != nil {
+		return nil, usagef("--frames: %v", err)
+	}
+	total := plan.Frames()
+	if lo, hi := rng.Clip(total); lo >= hi && f.frames != "" {
+		return nil, usagef("--frames %s: the plan has frames 0-%d", f.frames, total-1)
+	}
+	job.shard = flight.Shard{K: 0, N: 1}
+	if f.shard != "" {
+		if job.shard, err = flight.ParseShard(f.shard); err != nil {
+			return nil, usagef("--shard: %v", err)
+		}
+	} else if !f.verify {
+		sh, found, err := flight.ShardFromEnv(e.getenv)
+		if err != nil {
+			return nil, usagef("shard from the environment: %v", err)
+		}
+		if found {
+			job.shard = sh
+		}
+	}
+	job.frames = job.shard.Frames(total, rng)
+	if err := job.checkCamera(); err != nil {
+		return nil, err
+	}
+	if !*plan.Output.PNG && !plan.Output.FITS {
+		return nil, usagef("%s: output: png = false and fits = false: nothing to write", planPath)
+	}
+	if (f.resume || f.verify) && !*plan.Output.Sidecar {
+		return nil, usagef("%s: --resume and --verify need output.sidecar = true (the sidecar records each frame's checksums)", planPath)
+	}
+	return job, nil
+}
+
+func readPlanFile(path string) ([]byte, error) {
+	st, err := os.Stat(path)
+	if err != nil {
+		return nil, usagef("flight: %v", err)
+	}
+	if st.IsDir() {
+		return nil, usagef("flight: %s is a directory", path)
+	}
+	if st.Size() > flight.MaxPlanBytes {
+		return nil, usagef("flight: %s: %d bytes (a plan may have at most %d)", path, st.Size(), flight.MaxPlanBytes)
+	}
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, usagef("flight: %v", err)
+	}
+	return data, nil
+}
+
+// planStars opens the plan's catalogue (relative to the plan's directory)
+// or returns the built-in sky.
+func planStars(plan *flight.Plan, base string) (*catalog.Stars, error) {
+	c := plan.Catalogue
+	if c.Path == "" || c.Path == "builtin" {
+		if c.Format != "" || len(c.Columns) > 0 {
+			return nil, usagef("%s: catalogue.format and catalogue.columns need a catalogue.path", plan.Name)
+		}
+		return catalog.BuiltIn(), nil
+	}
+	var opt catalog.ReadOptions
+	if c.Format != "" {
+		fm, err := catalog.ParseFormat(c.Format)
+		if err != nil {
+			return nil, usagef("%s: catalogue.format: %v", plan.Name, err)
+		}
+		opt.Format = fm
+	}
+	for k, v := range c.Columns {
+		dst := map[string]*string{"id": &opt.Columns.ID, "name": &opt.Columns.Name, "ra": &opt.Columns.RA,
+			"dec": &opt.Columns.Dec, "parallax": &opt.Columns.Parallax, "distance": &opt.Columns.Dist,
+			"vmag": &opt.Columns.Vmag, "bv": &opt.Columns.BV, "teff": &opt.Columns.Teff,
+			"pmra": &opt.Columns.PMRA, "pmdec": &opt.Columns.PMDec, "rv": &opt.Columns.RV}[k]
+		if dst == nil {
+			return nil, usagef("%s: catalogue.columns.%s: only the Gaia reader uses this column, and it finds it itself", plan.Name, k)
+		}
+		*dst = v
+	}
+	path := c.Path
+	if !filepath.IsAbs(path) {
+		path = filepath.Join(base, path)
+	}
+	stars, _, err := catalog.Open(path, opt)
+	if err != nil {
+		return nil, usageError{err}
+	}
+	return stars, nil
+}
+
+// checkCamera validates the plan's camera with the first frame's view.
+func (j *flightJob) checkCamera() error {
+	cam := j.plan.Camera
+	var err error
+	if j.kind, err = camera.ParseKind(cam.Projection); err != nil {
+		return usagef("%s: camera.projection: %v", j.plan.Name, err)
+	}
+	if j.tone, err = render.ParseTone(cam.Tone); err != nil {
+		return usagef("%s: camera.tone: %v", j.plan.Name, err)
+	}
+	j.expo = render.NakedEyeExposure()
+	if cam.Exposure != nil {
+		j.expo = *cam.Exposure
+	}
+	fsx, err := j.plan.FrameState(0)
+	if err != nil {
+		return err
+	}
+	if _, err := j.projection(fsx); err != nil {
+		msg := err.Error()
+		key := "camera.projection"
+		switch {
+		case strings.Contains(msg, "FOV"):
+			key = "camera.fov"
+		case strings.Contains(msg, "Tilt"):
+			key = "camera.tilt"
+		case strings.Contains(msg, "Width"), strings.Contains(msg, "Height"):
+			key = "camera.width/height"
+		}
+		return usagef("%s: %s: %v", j.plan.Name, key, err)
+	}
+	return nil
+}
+
+// view returns the observer and the apparent forward direction of a frame.
+func view(fs flight.FrameState) (camera.Observer, r3.Vec, error) {
+	st := fs.State
+	b, err := camera.NewBoostRapidity(st.Dir, st.Rapidity)
+	if err != nil {
+		return camera.Observer{}, r3.Vec{}, fmt.Errorf("flight: frame %d: %w", fs.Index, err)
+	}
+	fwd := fs.LookDir
+	if r3.Norm(fwd) == 0 || math.IsNaN(r3.Norm(fwd)) {
+		fwd = st.Dir
+	}
+	if r3.Norm(fwd) == 0 {
+		fwd = r3.Vec{X: 1}
+	}
+	fwd, _ = b.Apply(r3.Unit(fwd))
+	return camera.Observer{Position: st.Pos, Boost: b}, fwd, nil
+}
+
+// projection builds the prepared camera projection of a frame.
+func (j *flightJob) projection(fs flight.FrameState) (camera.Projection, error) {
+	_, fwd, err := view(fs)
+	if err != nil {
+		return camera.Projection{}, err
+	}
+	orient, err := camera.LookAt(fwd, r3.Vec{Z: 1}, fs.Roll)
+	if err != nil {
+		return camera.Projection{}, fmt.Errorf("flight: frame %d: %w", fs.Index, err)
+	}
+	cam := j.plan.Camera
+	p := camera.Projection{Kind: j.kind, Width: cam.Width, Height: cam.Height, FOV: cam.FOV, Tilt: cam.Tilt, Orient: orient}
+	if err := p.Prepare(); err != nil {
+		return camera.Projection{}, err
+	}
+	return p, nil
+}
+
+// fmtDuration rounds d for progress lines.
+func fmtDuration(d time.Duration) string {
+	if d < 10*time.Second {
+		return d.Round(100 * time.Millisecond).String()
+	}
+	return d.Round(time.Second).String()
 }

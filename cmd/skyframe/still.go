@@ -111,6 +111,7 @@ type frameSpec struct {
 	tone     render.ToneMode
 	depth    int
 	lookDesc string
+	source   string // command recorded in the PNG "Source" chunk; empty: "skyframe still"
 }
 
 func (f *stillFlags) build(fs *pflag.FlagSet, sc *scene) (*frameSpec, error) {
@@ -403,9 +404,13 @@ func printSummary(w io.Writer, frame *render.Frame, sc *scene, spec *frameSpec, 
 
 // pngMeta records the frame's parameters as PNG text chunks.
 func pngMeta(s render.Sidecar, spec *frameSpec) []render.KV {
+	source := spec.source
+	if source == "" {
+		source = "skyframe still"
+	}
 	m := map[string]string{
 		"Software":    "skyframe " + version,
-		"Source":      "skyframe still",
+		"Source":      source,
 		"Comment":     "Simulated sky: blackbody stars, no extinction; see the JSON sidecar for the full state.",
 		"beta":        fmtFloat(s.Beta),
 		"gamma":       fmtFloat(s.Gamma),

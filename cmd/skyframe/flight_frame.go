@@ -1,0 +1,318 @@
+package main
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"fmt"
+	"image"
+	"io"
+	"os"
+	"path/filepath"
+	"strconv"
+
+	"gonum.org/v1/gonum/spatial/r3"
+
+	"github.com/skyframe/skyframe/flight"
+	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/spectrum"
+)
+
+// flightSidecar is the JSON written next to each flight frame: the still
+// sidecar's physical state plus where the frame sits in the flight.
+type flightSidecar struct {
+	render.Sidecar
+	Flight flightInfo `json:"flight"`
+}
+
+// flightInfo locates a frame in its flight. Times are Julian years, distances
+// parsecs, rates received signals per emitted second (the Doppler factor
+// toward the trajectory's start and end points).
+type flightInfo struct {
+	Title         string       `json:"title,omitempty"`
+	PlanHash      string       `json:"plan_hash"`
+	Frame         int          `json:"frame"`
+	Frames        int          `json:"frames"`
+	Phase         string       `json:"phase"`
+	VideoSeconds  float64      `json:"video_s"`
+	ShipYears     float64      `json:"tau_yr"`
+	CatalogueYrs  float64      `json:"t_yr"`
+	RateHome      float64      `json:"rate_home"`
+	RateDest      float64      `json:"rate_dest"`
+	TravelledPc   float64      `json:"travelled_pc"`
+	RemainingPc   float64      `json:"remaining_pc"`
+	LookKey       string       `json:"look_key"`
+	RollDeg       float64      `json:"roll_deg"`
+	MeanLuminance float64      `json:"mean_luminance"`
+	Files         []fileRecord `json:"files"`
+}
+
+// fileRecord names an image file of the frame (relative to the output
+// directory, slash-separated) with its size and SHA-256.
+type fileRecord struct {
+	Kind   string `json:"kind"` // "png" or "fits"
+	Name   string `json:"name"`
+	Bytes  int64  `json:"bytes"`
+	SHA256 string `json:"sha256"`
+}
+
+// frameFiles are the paths of one frame's files, relative to the output
+// directory; empty when not written.
+type frameFiles struct{ png, fits, sidecar string }
+
+func (j *flightJob) files(i int) frameFiles {
+	var f frameFiles
+	o := j.plan.Output
+	if *o.PNG {
+		f.png = j.plan.FrameName(i, "")
+	}
+	if o.FITS {
+		f.fits = j.plan.FrameName(i, ".fits")
+	}
+	if *o.Sidecar {
+		f.sidecar = j.plan.FrameName(i, ".json")
+	}
+	if f.png == "" && f.fits != "" && f.sidecar == f.fits {
+		f.sidecar = f.fits + ".json"
+	}
+	return f
+}
+
+func (j *flightJob) path(rel string) string { return filepath.Join(j.outDir, filepath.FromSlash(rel)) }
+
+// signalRates are the received rates of once-per-second signals from home
+// (the trajectory's start point) and the destination (its end point), as in
+// flight.WriteDryRunCSV.
+func signalRates(tr *flight.Trajectory, s flight.State) (home, dest float64) {
+	toHome, toDest := r3.Sub(tr.Home(), s.Pos), r3.Sub(tr.Destination(), s.Pos)
+	home, dest = s.DopplerBehind(), s.DopplerAhead()
+	if r3.Norm(toHome) > 0 {
+		home = s.Doppler(toHome)
+	}
+	if r3.Norm(toDest) > 0 {
+		dest = s.Doppler(toDest)
+	}
+	return home, dest
+}
+
+// srgbToLinear decodes 8-bit sRGB code values (IEC 61966-2-1).
+var srgbToLinear = func() (t [256]float64) {
+	for i := range t {
+		t[i] = spectrum.DecodeSRGB(float64(i) / 255)
+	}
+	return t
+}()
+
+// meanLuminance is the mean relative luminance of an 8-bit sRGB image:
+// each pixel decoded to linear sRGB and weighted Y = 0.2126 R + 0.7152 G +
+// 0.0722 B (IEC 61966-2-1), 0 black, 1 white.
+func meanLuminance(img *image.NRGBA) float64 {
+	b := img.Bounds()
+	n := b.Dx() * b.Dy()
+	if n == 0 {
+		return 0
+	}
+	var sum float64
+	for y := 0; y < b.Dy(); y++ {
+		row := img.Pix[y*img.Stride : y*img.Stride+4*b.Dx()]
+		for x := 0; x < len(row); x += 4 {
+			sum += 0.2126*srgbToLinear[row[x]] + 0.7152*srgbToLinear[row[x+1]] + 0.0722*srgbToLinear[row[x+2]]
+		}
+	}
+	return sum / float64(n)
+}
+
+func sha256Hex(b []byte) string {
+	h := sha256.Sum256(b)
+	return hex.EncodeToString(h[:])
+}
+
+// renderFrame renders frame i and writes its files, each atomically, the
+// sidecar last so that its presence marks a complete frame. It returns the
+// frame's mean luminance.
+func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i int) (float64, error) {
+	fs, err := j.plan.FrameState(i)
+	if err != nil {
+		return 0, err
+	}
+	obs, _, err := view(fs)
+	if err != nil {
+		return 0, err
+	}
+	proj, err := j.projection(fs)
+	if err != nil {
+		return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+	}
+	opt := render.Options{Projection: proj, Observer: obs, Exposure: j.expo, Workers: j.workers}
+	frame, err := prep.Render(opt)
+	if err != nil {
+		return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+	}
+	side := frame.Sidecar("skyframe", version, j.stars, j.tone)
+	img := frame.ToNRGBA(j.tone)
+	lum := meanLuminance(img)
+	home, dest := signalRates(j.plan.Trajectory(), fs.State)
+	info := flightInfo{
+		Title: j.plan.Title, PlanHash: j.hash, Frame: i, Frames: j.plan.Frames(), Phase: fs.Phase.String(),
+		VideoSeconds: fs.Seconds, ShipYears: fs.State.Tau, CatalogueYrs: fs.State.T,
+		RateHome: home, RateDest: dest, TravelledPc: fs.State.Travelled, RemainingPc: fs.State.Remaining,
+		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum,
+	}
+	spec := &frameSpec{proj: proj, opt: frame.Options, tone: j.tone, depth: 8, lookDesc: fs.Look.Look, source: "skyframe flight"}
+	sc := &scene{stars: j.stars, observer: obs, heading: fs.State.Dir}
+	ff := j.files(i)
+	if ff.png != "" {
+		meta := append(pngMeta(side, spec),
+			render.KV{Key: "frame", Value: strconv.Itoa(i)},
+			render.KV{Key: "plan_hash", Value: j.hash})
+		var buf bytes.Buffer
+		if err := enc.Encode(&buf, img, meta); err != nil {
+			return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+		}
+		if err := j.writeFile(ff.png, buf.Bytes()); err != nil {
+			return 0, err
+		}
+		info.Files = append(info.Files, fileRecord{Kind: "png", Name: ff.png, Bytes: int64(buf.Len()), SHA256: sha256Hex(buf.Bytes())})
+	}
+	if ff.fits != "" {
+		cards, err := fitsCards(frame, sc, spec)
+		if err != nil {
+			return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+		}
+		cards = append(cards, render.Card{Key: "FRAME", Value: i, Comment: "frame index in the flight"})
+		var buf bytes.Buffer
+		if err := render.WriteFITS(&buf, frame.W, frame.H, frame.Pix, cards); err != nil {
+			return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+		}
+		if err := j.writeFile(ff.fits, buf.Bytes()); err != nil {
+			return 0, err
+		}
+		info.Files = append(info.Files, fileRecord{Kind: "fits", Name: ff.fits, Bytes: int64(buf.Len()), SHA256: sha256Hex(buf.Bytes())})
+	}
+	if ff.sidecar != "" {
+		data, err := json.MarshalIndent(flightSidecar{Sidecar: side, Flight: info}, "", "  ")
+		if err != nil {
+			return 0, fmt.Errorf("flight: frame %d: sidecar: %w", i, err)
+		}
+		if err := j.writeFile(ff.sidecar, append(data, '\n')); err != nil {
+			return 0, err
+		}
+	}
+	return lum, nil
+}
+
+// writeFile writes data to the output-relative path rel atomically,
+// creating its directory.
+func (j *flightJob) writeFile(rel string, data []byte) error {
+	p := j.path(rel)
+	if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
+		return err
+	}
+	return render.WriteFileAtomic(p, func(w io.Writer) error {
+		_, err := w.Write(data)
+		return err
+	})
+}
+
+// frameStatus is what checkFrame found for one frame.
+type frameStatus int
+
+const (
+	frameIntact frameStatus = iota
+	frameMissing
+	frameCorrupt
+)
+
+// checkFrame reports whether frame i is complete and intact: its sidecar
+// parses, records this plan's hash and frame index, and every image file it
+// lists exists with the recorded size and SHA-256. It returns the recorded
+// mean luminance and, when not intact, the reason.
+func (j *flightJob) checkFrame(i int) (frameStatus, float64, string) {
+	ff := j.files(i)
+	data, err := os.ReadFile(j.path(ff.sidecar))
+	if os.IsNotExist(err) {
+		return frameMissing, 0, "no sidecar " + ff.sidecar
+	}
+	if err != nil {
+		return frameCorrupt, 0, err.Error()
+	}
+	var side flightSidecar
+	if err := json.Unmarshal(data, &side); err != nil {
+		return frameCorrupt, 0, ff.sidecar + ": " + err.Error()
+	}
+	fl := side.Flight
+	if fl.PlanHash != j.hash {
+		return frameCorrupt, 0, fmt.Sprintf("%s: rendered for another plan (hash %.12s…, this plan %.12s…)", ff.sidecar, fl.PlanHash, j.hash)
+	}
+	if fl.Frame != i {
+		return frameCorrupt, 0, fmt.Sprintf("%s: records frame %d", ff.sidecar, fl.Frame)
+	}
+	want := map[string]string{"png": ff.png, "fits": ff.fits}
+	seen := 0
+	for _, rec := range fl.Files {
+		name, ok := want[rec.Kind]
+		if !ok || name == "" || rec.Name != name {
+			return frameCorrupt, 0, fmt.Sprintf("%s: unexpected file record %s %q", ff.sidecar, rec.Kind, rec.Name)
+		}
+		seen++
+		b, err := os.ReadFile(j.path(name))
+		if os.IsNotExist(err) {
+			return frameMissing, 0, "no " + name
+		}
+		if err != nil {
+			return frameCorrupt, 0, err.Error()
+		}
+		if int64(len(b)) != rec.Bytes || sha256Hex(b) != rec.SHA256 {
+			return frameCorrupt, 0, fmt.Sprintf("%s: %d bytes, SHA-256 does not match the sidecar", name, len(b))
+		}
+	}
+	if n := btoi(ff.png != "") + btoi(ff.fits != ""); seen != n {
+		return frameCorrupt, 0, fmt.Sprintf("%s: lists %d image files, the plan writes %d", ff.sidecar, seen, n)
+	}
+	return frameIntact, fl.MeanLuminance, ""
+}
+
+func btoi(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
+}
+
+// removeStaleTemps deletes temporary files that an interrupted writer of
+// frame i left behind (".<base>.tmp-*", render.WriteFileAtomic's names).
+// Only this frame's names are touched, so shards sharing a directory never
+// remove each other's files in flight.
+func (j *flightJob) removeStaleTemps(i int) error {
+	ff := j.files(i)
+	for _, rel := range []string{ff.png, ff.fits, ff.sidecar} {
+		if rel == "" {
+			continue
+		}
+		p := j.path(rel)
+		matches, err := filepath.Glob(filepath.Join(filepath.Dir(p), "."+globEscape(filepath.Base(p))+".tmp-*"))
+		if err != nil {
+			return err
+		}
+		for _, m := range matches {
+			if err := os.Remove(m); err != nil && !os.IsNotExist(err) {
+				return err
+			}
+		}
+	}
+	return nil
+}
+
+// globEscape quotes the metacharacters of filepath.Match.
+func globEscape(s string) string {
+	var b bytes.Buffer
+	for _, r := range s {
+		switch r {
+		case '*', '?', '[', ']', '\\':
+			b.WriteByte('\\')
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}

@@ -1,0 +1,302 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"syscall"
+	"time"
+
+	"github.com/schollz/progressbar/v3"
+	"golang.org/x/term"
+
+	"github.com/skyframe/skyframe/flight"
+	"github.com/skyframe/skyframe/render"
+)
+
+// errInterrupted is wrapped by the error of a render stopped by a signal.
+var errInterrupted = errors.New("interrupted")
+
+// flightPace, when positive, is a pause after each frame. Tests set it
+// through SKYFRAME_TEST_PACE to interrupt a run of tiny frames reliably; it
+// does not change any output.
+const envTestPace = "SKYFRAME_TEST_PACE"
+
+// render renders the job's frames, skipping intact ones with resume.
+func (j *flightJob) render(e *env, resume bool) error {
+	todo := j.frames
+	lum := make(map[int]float64, len(j.frames))
+	if resume {
+		todo = todo[:0:0]
+		for _, i := range j.frames {
+			if st, l, _ := j.checkFrame(i); st == frameIntact {
+				lum[i] = l
+				continue
+			}
+			todo = append(todo, i)
+		}
+		fmt.Fprintf(e.stderr, "resume: %d of %d frames already done\n", len(j.frames)-len(todo), len(j.frames))
+	}
+	if err := j.checkSpace(len(todo)); err != nil {
+		return err
+	}
+	var pace time.Duration
+	if s := e.getenv(envTestPace); s != "" {
+		d, err := time.ParseDuration(s)
+		if err != nil {
+			return usagef("%s=%q: %v", envTestPace, s, err)
+		}
+		pace = d
+	}
+	if err := os.MkdirAll(j.outDir, 0o755); err != nil {
+		return err
+	}
+	start := time.Now()
+	var prep *render.Prepared
+	if len(todo) > 0 {
+		var err error
+		if prep, err = render.Prepare(j.stars); err != nil {
+			return err
+		}
+	}
+	enc := &render.PNGEncoder{Workers: j.workers}
+	prog := newFrameProgress(e.stderr, "flight", len(todo))
+	last := -1
+	for _, i := range todo {
+		if err := e.ctx.Err(); err != nil {
+			prog.finish()
+			if last < 0 {
+				return fmt.Errorf("%w before frame %d", errInterrupted, i)
+			}
+			return fmt.Errorf("%w after frame %d", errInterrupted, last)
+		}
+		if err := j.removeStaleTemps(i); err != nil {
+			prog.finish()
+			return err
+		}
+		l, err := j.renderFrame(prep, enc, i)
+		if err != nil {
+			prog.finish()
+			return err
+		}
+		lum[i] = l
+		last = i
+		prog.add()
+		if pace > 0 {
+			select {
+			case <-time.After(pace):
+			case <-e.ctx.Done():
+			}
+		}
+	}
+	prog.finish()
+	took := time.Since(start)
+	j.flashWarning(e.stderr, lum)
+	rate := 0.0
+	if took > 0 {
+		rate = float64(len(todo)) / took.Seconds()
+	}
+	fmt.Fprintf(e.stdout, "skyframe %s: %s, shard %s: rendered %d frames (%d already done) into %s in %v (%.2f frames/s)\n",
+		version, j.plan.Name, j.shard, len(todo), len(j.frames)-len(todo), j.outDir, took.Round(time.Millisecond), rate)
+	return nil
+}
+
+// flashWarning runs the general flash check over the frames in lum (the
+// contiguous block this run handled) and warns on w when it fails.
+func (j *flightJob) flashWarning(w io.Writer, lum map[int]float64) {
+	seq, first := contiguous(j.frames, lum)
+	if len(seq) < 2 {
+		return
+	}
+	rep := flight.FlashCheck(seq, j.plan.Show.FPS)
+	if rep.Err != nil {
+		fmt.Fprintf(w, "skyframe: flash check: %v\n", rep.Err)
+		return
+	}
+	if !rep.Pass {
+		fmt.Fprintf(w, "skyframe: warning: photosensitivity: frames %d-%d exceed the WCAG 2.3.1 / ITU-R BT.1702 general flash threshold: %d flashes in one second from frame %d (limit %d); %d flashes in all\n",
+			first, first+len(seq)-1, rep.MaxPerSecond, first+rep.WorstFrame, flight.FlashMaxPerSecond, rep.Flashes)
+	}
+}
+
+// contiguous returns the luminances of frames in order, stopping at the
+// first frame without one, and the index of the first frame.
+func contiguous(frames []int, lum map[int]float64) ([]float64, int) {
+	if len(frames) == 0 {
+		return nil, 0
+	}
+	seq := make([]float64, 0, len(frames))
+	for _, i := range frames {
+		l, ok := lum[i]
+		if !ok {
+			break
+		}
+		seq = append(seq, l)
+	}
+	return seq, frames[0]
+}
+
+// freeSpace reports the bytes available to an unprivileged user on the file
+// system holding dir (or its nearest existing ancestor). Tests replace it.
+var freeSpace = func(dir string) (uint64, error) {
+	for {
+		var st syscall.Statfs_t
+		err := syscall.Statfs(dir, &st)
+		if err == nil {
+			return st.Bavail * uint64(st.Bsize), nil
+		}
+		parent := filepath.Dir(dir)
+		if !errors.Is(err, syscall.ENOENT) || parent == dir {
+			return 0, err
+		}
+		dir = parent
+	}
+}
+
+// Per-frame size estimates. A PNG of a star field (black sky, small blobs)
+// deflates far below its raw size: 1920×1080 frames of the built-in sky
+// measured 0.3–1.5 % of raw at the fast level, so a tenth of raw is a
+// generous allowance; FITS is exact (2880-byte blocks); a sidecar with its
+// ten brightest stars is about 5 KB.
+const (
+	pngRawFraction = 0.10
+	pngOverhead    = 2048
+	sidecarBytes   = 8192
+	fitsHeaderMax  = 4 * 2880
+)
+
+// frameBytes estimates the bytes one frame writes.
+func (j *flightJob) frameBytes() uint64 {
+	w, h := uint64(j.plan.Camera.Width), uint64(j.plan.Camera.Height)
+	var n uint64
+	o := j.plan.Output
+	if *o.PNG {
+		n += uint64(float64(w*h*3)*pngRawFraction) + pngOverhead
+	}
+	if o.FITS {
+		data := (w*h*3*4 + 2879) / 2880 * 2880
+		n += data + fitsHeaderMax
+	}
+	if *o.Sidecar {
+		n += sidecarBytes
+	}
+	return n
+}
+
+// checkSpace refuses a render whose estimated output exceeds the free space.
+func (j *flightJob) checkSpace(frames int) error {
+	if frames == 0 {
+		return nil
+	}
+	need := uint64(frames) * j.frameBytes()
+	free, err := freeSpace(j.outDir)
+	if err != nil {
+		return usagef("output directory %s: %v", j.outDir, err)
+	}
+	if need > free {
+		return usagef("output directory %s: %d frames need about %s (%s each), only %s free",
+			j.outDir, frames, humanBytes(need), humanBytes(j.frameBytes()), humanBytes(free))
+	}
+	return nil
+}
+
+func humanBytes(n uint64) string {
+	const unit = 1024
+	if n < unit {
+		return fmt.Sprintf("%d B", n)
+	}
+	v, exp := float64(n), 0
+	for v >= unit && exp < 5 {
+		v /= unit
+		exp++
+	}
+	return fmt.Sprintf("%.1f %ciB", v, "KMGTP"[exp-1])
+}
+
+// verify checks every selected frame and lists the missing and corrupt ones.
+func (j *flightJob) verify(e *env) error {
+	var missing, corrupt int
+	lum := make(map[int]float64, len(j.frames))
+	for _, i := range j.frames {
+		st, l, why := j.checkFrame(i)
+		switch st {
+		case frameIntact:
+			lum[i] = l
+		case frameMissing:
+			missing++
+			fmt.Fprintf(e.stdout, "missing frame %d: %s\n", i, why)
+		case frameCorrupt:
+			corrupt++
+			fmt.Fprintf(e.stdout, "corrupt frame %d: %s\n", i, why)
+		}
+	}
+	fmt.Fprintf(e.stdout, "verify %s: %d frames, %d intact, %d missing, %d corrupt\n",
+		j.outDir, len(j.frames), len(j.frames)-missing-corrupt, missing, corrupt)
+	if missing+corrupt > 0 {
+		return fmt.Errorf("verify: %d missing and %d corrupt frames in %s", missing, corrupt, j.outDir)
+	}
+	j.flashWarning(e.stderr, lum)
+	return nil
+}
+
+// frameProgress shows render progress: a bar with ETA and frames/s on a
+// terminal, plain periodic lines otherwise.
+type frameProgress struct {
+	w           io.Writer
+	label       string
+	bar         *progressbar.ProgressBar
+	total, done int
+	start, last time.Time
+}
+
+// progressEvery is the interval between plain progress lines.
+const progressEvery = 5 * time.Second
+
+func newFrameProgress(w io.Writer, label string, total int) *frameProgress {
+	p := &frameProgress{w: w, label: label, total: total, start: time.Now()}
+	p.last = p.start
+	if f, ok := w.(*os.File); ok && term.IsTerminal(int(f.Fd())) && total > 0 {
+		p.bar = progressbar.NewOptions(total, progressbar.OptionSetWriter(w),
+			progressbar.OptionSetDescription(label), progressbar.OptionShowCount(),
+			progressbar.OptionShowIts(), progressbar.OptionSetItsString("frames"),
+			progressbar.OptionSetPredictTime(true), progressbar.OptionThrottle(100*time.Millisecond))
+	}
+	return p
+}
+
+func (p *frameProgress) add() {
+	p.done++
+	if p.bar != nil {
+		_ = p.bar.Add(1)
+		return
+	}
+	now := time.Now()
+	if now.Sub(p.last) >= progressEvery || p.done == p.total {
+		p.last = now
+		fmt.Fprintln(p.w, p.line(now))
+	}
+}
+
+// line formats "frame 120/600 (20%), 3.1 frames/s, ETA 2m35s".
+func (p *frameProgress) line(now time.Time) string {
+	el := now.Sub(p.start).Seconds()
+	rate := 0.0
+	if el > 0 {
+		rate = float64(p.done) / el
+	}
+	s := fmt.Sprintf("%s: frame %d/%d (%.0f%%), %.1f frames/s", p.label, p.done, p.total, 100*float64(p.done)/float64(max(p.total, 1)), rate)
+	if rate > 0 && p.done < p.total {
+		s += ", ETA " + fmtDuration(time.Duration(float64(p.total-p.done)/rate*float64(time.Second)))
+	}
+	return s
+}
+
+func (p *frameProgress) finish() {
+	if p.bar != nil {
+		_ = p.bar.Finish()
+		fmt.Fprintln(p.w)
+		p.bar = nil
+	}
+}
