@@ -10,10 +10,10 @@ import (
 
 func TestConstants(t *testing.T) {
 	for _, c := range []struct {
-		name      string
+		name       string
 		have, want float64
-		tol       float64
-		src       string
+		tol        float64
+		src        string
 	}{
 		{"c2 = hc/k", C2, 1.438776877e-2, 1e-9, "[pub] CODATA 2018 second radiation constant"},
 		{"σ = 2π⁵k⁴/15h³c²", 2 * math.Pow(math.Pi, 5) * math.Pow(KB, 4) / (15 * H * H * H * C * C), SigmaSB, 1e-9, "[pub] CODATA 2018 Stefan–Boltzmann constant"},
