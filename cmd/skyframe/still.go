@@ -63,7 +63,7 @@ func (f *stillFlags) register(fs *pflag.FlagSet) {
 	fs.Float64Var(&f.fov, "fov", 0, "field of view in degrees: pinhole horizontal (default 60), fisheye circle (default 180)")
 	fs.Float64Var(&f.tilt, "tilt", 0, "fisheye only: tilt the dome axis from the view direction toward up, degrees")
 	fs.StringVar(&f.size, "size", "", "image size WIDTHxHEIGHT (default 1920x1080; fisheye 2048x2048, equirect 4096x2048, cube 3072x512)")
-	fs.Float64Var(&f.exposure, "exposure", math.NaN(), "exposure in V magnitudes: a white star this bright just reaches full scale (default: the naked-eye preset)")
+	fs.Float64Var(&f.exposure, "exposure", math.Round(render.NakedEyeExposure()*1000)/1000, "exposure in V magnitudes: a white star this bright just reaches full scale; fixed for every frame (default: the naked-eye preset)")
 	fs.StringVar(&f.preset, "preset", "naked-eye", "exposure preset when --exposure is not given: naked-eye (V = 6.5 just visible)")
 	fs.Float64Var(&f.limit, "limit", 0, "skip stars whose observed V is fainter than this (default exposure + 10)")
 	fs.StringVar(&f.tone, "tone", "shoulder", "tone curve: shoulder (smooth roll-off that keeps hue, for outreach) or linear (clip, for science)")
