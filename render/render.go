@@ -350,8 +350,14 @@ func parallel(workers, n int, fn func(int)) {
 }
 
 func newTransformer(p *Prepared, opt *Options, psf *PSF, scale float64) *transformer {
-	return &transformer{p: p, opt: opt, proj: opt.Projection, psf: psf, lnScale: math.Log(scale),
-		beamExp: float64(opt.Beaming.FluxExponent() - 4)}
+	t := &transformer{p: p, opt: opt, proj: opt.Projection, psf: psf, lnScale: math.Log(scale),
+		beamExp: float64(opt.Beaming.FluxExponent() - 4),
+		w:       float64(opt.Projection.Width), h: float64(opt.Projection.Height)}
+	t.rFish = math.Min(t.w, t.h) / 2
+	if psf != nil {
+		t.margin = psf.Radius() + 1
+	}
+	return t
 }
 
 // chunkResult is what one chunk of stars produced.
@@ -368,6 +374,10 @@ type transformer struct {
 	psf     *PSF
 	lnScale float64
 	beamExp float64 // FluxExponent − 4: ln WScale(D) = beamExp·ln D
+	w, h    float64 // image size, px
+	margin  float64 // PSF radius + 1 px: how far outside the image a star may still light it
+	rFish   float64 // fisheye circle radius, px
+	geom    geomBlock
 }
 
 // Per-star outcomes of transformer.see.
@@ -377,94 +387,145 @@ const (
 	seeInvalid
 )
 
-// see applies the boost and the photometry to star i: apparent direction
-// n′, Doppler factor, observed V′ and ln W′, and the table sample at T′.
-func (t *transformer) see(i int) (n r3.Vec, d, vObs, lnW float64, sm spectrum.Sample, status int) {
+// blockSize is the number of stars whose geometry and boost are computed
+// together, in struct-of-arrays form, before their photometry.
+const blockSize = 256
+
+// geomBlock holds one block's pre-boost directions (boosted in place),
+// Doppler factors and dilutions.
+type geomBlock struct {
+	x, y, z, d, dil [blockSize]float64
+	bad             [blockSize]bool
+}
+
+// geometry fills g for stars lo..lo+m−1 with what Observer.See returns —
+// the direction from the observer and the dilution (d⊙/r)², boosted by
+// ApplyBatch — computed in the same floating-point steps as See, so the
+// results are identical (TestGeometryMatchesSee).
+func (t *transformer) geometry(lo, m int, g *geomBlock) {
 	s := t.p.Stars
-	n, d, dil, r := t.opt.Observer.See(t.p.u[i], float64(s.Dist[i]))
-	if r == 0 || !(d > 0) {
-		return n, d, 0, 0, sm, seeInvalid
+	u := t.p.u[lo : lo+m]
+	p := t.opt.Observer.Position
+	atSun := p == (r3.Vec{})
+	for k := range u {
+		g.bad[k] = false
+		g.dil[k] = 1
+		dist := float64(s.Dist[lo+k])
+		if atSun || !(dist > 0) || math.IsInf(dist, 1) {
+			g.x[k], g.y[k], g.z[k] = u[k].X, u[k].Y, u[k].Z
+			continue
+		}
+		v := r3.Vec{X: dist*u[k].X - p.X, Y: dist*u[k].Y - p.Y, Z: dist*u[k].Z - p.Z}
+		r := math.Sqrt(v.X*v.X + v.Y*v.Y + v.Z*v.Z)
+		if r == 0 {
+			g.bad[k] = true
+			g.x[k], g.y[k], g.z[k] = u[k].X, u[k].Y, u[k].Z
+			continue
+		}
+		if math.IsInf(r, 1) {
+			r = r3.Norm(v)
+		}
+		g.x[k], g.y[k], g.z[k] = v.X/r, v.Y/r, v.Z/r
+		q := dist / r
+		g.dil[k] = q * q
+	}
+	t.opt.Observer.Boost.ApplyBatch(g.x[:m], g.y[:m], g.z[:m], g.x[:m], g.y[:m], g.z[:m], g.d[:m])
+}
+
+// see applies the photometry to star i, whose boosted direction, Doppler
+// factor and dilution are in g at index k: it returns the observed V′,
+// ln W′ and the table sample at T′ = D·T.
+func (t *transformer) see(i, k int, g *geomBlock) (vObs, lnW float64, sm spectrum.Sample, status int) {
+	d := g.d[k]
+	if g.bad[k] || !(d > 0) {
+		return 0, 0, sm, seeInvalid
 	}
 	lnD := math.Log(d)
 	// ln W′ − ln W₀ = ln dilution + ln WScale(D), WScale(D) = D^(k−4).
 	dlnW := t.beamExp * lnD
-	if dil != 1 {
+	if dil := g.dil[k]; dil != 1 {
 		dlnW += math.Log(dil)
 	}
 	sm = spectrum.Lookup(t.p.lnT0[i] + lnD)
 	// V′ = V − 2.5 log10(F′_V/F_V), F_V ∝ W·exp(LnV).
-	vObs = float64(s.Vmag[i]) - lnToMag*(dlnW+sm.LnV-t.p.lnV0[i])
+	vObs = float64(t.p.Stars.Vmag[i]) - lnToMag*(dlnW+sm.LnV-t.p.lnV0[i])
 	if !(vObs <= t.opt.Limit) {
 		if math.IsNaN(vObs) {
-			return n, d, vObs, 0, sm, seeInvalid
+			return vObs, 0, sm, seeInvalid
 		}
-		return n, d, vObs, 0, sm, seeCulled
+		return vObs, 0, sm, seeCulled
 	}
-	return n, d, vObs, t.p.lnW0[i] + dlnW, sm, seeOK
+	return vObs, t.p.lnW0[i] + dlnW, sm, seeOK
 }
 
 // lnToMag converts a ln flux ratio to magnitudes: 2.5/ln 10.
 const lnToMag = 1 / magToLn
 
 func (t *transformer) run(lo, hi int, out []splatRec, res *chunkResult) {
-	nBest := t.opt.Brightest
-	w, h := float64(t.proj.Width), float64(t.proj.Height)
-	margin := t.psf.Radius() + 1
-	kind := t.proj.Kind
-	cx, cy := w/2, h/2
-	rFish := math.Min(w, h) / 2
 	k := 0
-	for i := lo; i < hi; i++ {
-		n, d, vObs, lnW, sm, st := t.see(i)
-		switch st {
-		case seeCulled:
-			res.culled++
-			continue
-		case seeInvalid:
-			res.invalid++
-			continue
-		}
-		x, y, ok := t.proj.Forward(n)
-		if !ok || !(x > -margin && x < w+margin && y > -margin && y < h+margin) {
-			res.off++
-			continue
-		}
-		if kind == camera.Fisheye && (x-cx)*(x-cx)+(y-cy)*(y-cy) > rFish*rFish {
-			res.off++
-			continue
-		}
-		yl := math.Exp(lnW + sm.LnY + t.lnScale)
-		xl := sm.X / sm.Y * yl
-		zl := (1 - sm.X - sm.Y) / sm.Y * yl
-		r, g, b := spectrum.XYZToLinearSRGB(xl, yl, zl, t.opt.Color)
-		r, g, b = spectrum.GamutMap(r, g, b, yl)
-		if !(finite(r) && finite(g) && finite(b)) {
-			res.invalid++
-			continue
-		}
-		rec := &out[k]
-		*rec = splatRec{x: x, y: y, rgb: [3]float32{float32(r), float32(g), float32(b)}, d: float32(d),
-			clip0: 0, clip1: int32(t.proj.Width)}
-		switch kind {
-		case camera.Equirect:
-			if x < margin {
-				rec.wrap = 1
-			} else if x > w-margin {
-				rec.wrap = -1
-			}
-		case camera.Cube:
-			face := int32(math.Floor(x / h))
-			face = max(0, min(5, face))
-			rec.clip0 = face * int32(t.proj.Height)
-			rec.clip1 = rec.clip0 + int32(t.proj.Height)
-		}
-		k++
-		if nBest > 0 && (len(res.best) < nBest || vObs < res.best[len(res.best)-1].V) {
-			ra, dec := camera.RADec(n)
-			res.best = insertBest(res.best, StarInfo{Row: i, RA: ra, Dec: dec, V: vObs, D: d, T: d * float64(t.p.Stars.Teff[i]), X: x, Y: y}, nBest)
+	gb := &t.geom
+	for b0 := lo; b0 < hi; b0 += blockSize {
+		m := min(blockSize, hi-b0)
+		t.geometry(b0, m, gb)
+		for j := 0; j < m; j++ {
+			k += t.star(b0+j, j, gb, &out[k], res)
 		}
 	}
 	res.n = k
+}
+
+// star finishes star i (index j of block gb): when the star is drawn it
+// fills rec and returns 1, otherwise it counts why not and returns 0.
+func (t *transformer) star(i, j int, gb *geomBlock, rec *splatRec, res *chunkResult) int {
+	vObs, lnW, sm, st := t.see(i, j, gb)
+	switch st {
+	case seeCulled:
+		res.culled++
+		return 0
+	case seeInvalid:
+		res.invalid++
+		return 0
+	}
+	n := r3.Vec{X: gb.x[j], Y: gb.y[j], Z: gb.z[j]}
+	x, y, ok := t.proj.Forward(n)
+	if !ok || !(x > -t.margin && x < t.w+t.margin && y > -t.margin && y < t.h+t.margin) {
+		res.off++
+		return 0
+	}
+	if t.proj.Kind == camera.Fisheye && (x-t.w/2)*(x-t.w/2)+(y-t.h/2)*(y-t.h/2) > t.rFish*t.rFish {
+		res.off++
+		return 0
+	}
+	yl := math.Exp(lnW + sm.LnY + t.lnScale)
+	xl := sm.X / sm.Y * yl
+	zl := (1 - sm.X - sm.Y) / sm.Y * yl
+	r, g, b := spectrum.XYZToLinearSRGB(xl, yl, zl, t.opt.Color)
+	r, g, b = spectrum.GamutMap(r, g, b, yl)
+	if !(finite(r) && finite(g) && finite(b)) {
+		res.invalid++
+		return 0
+	}
+	d := gb.d[j]
+	*rec = splatRec{x: x, y: y, rgb: [3]float32{float32(r), float32(g), float32(b)}, d: float32(d),
+		clip0: 0, clip1: int32(t.proj.Width)}
+	switch t.proj.Kind {
+	case camera.Equirect:
+		if x < t.margin {
+			rec.wrap = 1
+		} else if x > t.w-t.margin {
+			rec.wrap = -1
+		}
+	case camera.Cube:
+		face := max(0, min(5, int32(math.Floor(x/t.h))))
+		rec.clip0 = face * int32(t.proj.Height)
+		rec.clip1 = rec.clip0 + int32(t.proj.Height)
+	}
+	if nb := t.opt.Brightest; nb > 0 && (len(res.best) < nb || vObs < res.best[len(res.best)-1].V) {
+		ra, dec := camera.RADec(n)
+		res.best = insertBest(res.best, StarInfo{Row: i, RA: ra, Dec: dec, V: vObs, D: d,
+			T: d * float64(t.p.Stars.Teff[i]), X: x, Y: y}, nb)
+	}
+	return 1
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }

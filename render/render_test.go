@@ -439,3 +439,43 @@ func TestCubeFaceClip(t *testing.T) {
 		t.Errorf("no light at the face edge next to the star")
 	}
 }
+
+// The batched geometry (SoA, Boost.ApplyBatch) gives exactly what
+// camera.Observer.See gives star by star, including unknown distances and
+// a star at the observer's position.
+func TestGeometryMatchesSee(t *testing.T) {
+	stars := randomStars(3*blockSize+17, 0, 5, 31)
+	p, err := Prepare(stars)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pos := r3.Scale(float64(stars.Dist[5]), p.u[5]) // the observer sits exactly at star 5
+	for _, o := range []camera.Observer{
+		observer(t, axisY, 0.8),
+		{Position: pos, Boost: observer(t, r3.Unit(r3.Vec{X: 1, Y: -2, Z: 0.5}), 0.999).Boost},
+		{Position: r3.Vec{X: 3, Y: -40, Z: 7}},
+	} {
+		opt := Options{Observer: o, Limit: math.Inf(1)}
+		tr := newTransformer(p, &opt, nil, 1)
+		n := stars.Len()
+		for lo := 0; lo < n; lo += blockSize {
+			m := min(blockSize, n-lo)
+			tr.geometry(lo, m, &tr.geom)
+			for j := 0; j < m; j++ {
+				i := lo + j
+				wn, wd, wdil, wr := o.See(p.u[i], float64(stars.Dist[i]))
+				g := &tr.geom
+				if (wr == 0) != g.bad[j] {
+					t.Fatalf("star %d: r == 0 is %v, bad flag %v", i, wr == 0, g.bad[j])
+				}
+				if wr == 0 {
+					continue
+				}
+				if g.x[j] != wn.X || g.y[j] != wn.Y || g.z[j] != wn.Z || g.d[j] != wd || g.dil[j] != wdil {
+					t.Fatalf("star %d: have (%v,%v,%v) D %v dil %v, want %v D %v dil %v",
+						i, g.x[j], g.y[j], g.z[j], g.d[j], g.dil[j], wn, wd, wdil)
+				}
+			}
+		}
+	}
+}
