@@ -20,7 +20,7 @@ func BenchmarkTransform(b *testing.B) {
 	}
 	opt := Options{Projection: proj(b, camera.Fisheye, 4096, 4096), Observer: observer(b, r3.Unit(r3.Vec{X: 1, Y: 1}), 0.9),
 		Limit: math.Inf(1), Brightest: DefaultBrightest, FWHM: DefaultFWHM}
-	if err := opt.Projection.Validate(); err != nil {
+	if err := opt.Projection.Prepare(); err != nil {
 		b.Fatal(err)
 	}
 	psf, _ := NewPSF(DefaultFWHM)
