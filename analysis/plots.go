@@ -386,7 +386,7 @@ func (t *CensusTable) Figure() (*Figure, error) {
 	if err != nil {
 		return nil, err
 	}
-	p1.Legend.Top, p1.Legend.Left = true, true
+	p1.Legend.YOffs = 0.3 * vg.Inch // above the rear count, below the forward one
 	p1.Y.Min = 0
 	p2, err := mk("illuminance from starlight", "illuminance (lux, log scale)", axisLog, []Column{
 		{Label: "all stars", Y: lux}, {Label: "stars with V′ ≤ " + lim, Y: vlux}})

@@ -56,7 +56,7 @@ func max0(v int) int {
 // labels powers of ten (every few when the range spans many
 // decades), 1e-12 style beyond 1e-4 .. 1e5, with unlabelled minor ticks at
 // 2..9 × 10^k for ranges up to six decades; ranges under two decades also
-// label 2 and 5 × 10^k.
+// label 2 and 5 × 10^k, ranges under one decade every m × 10^k.
 func logTicks() plot.Ticker {
 	return plot.TickerFunc(func(lmin, lmax float64) []plot.Tick {
 		if !(lmax > lmin) {
@@ -89,7 +89,7 @@ func logTicks() plot.Ticker {
 					continue
 				}
 				t := plot.Tick{Value: math.Log10(v)}
-				if nd < 2 && (m == 2 || m == 5) {
+				if span := math.Log10(max / min); span < 1 || (span < 2 && (m == 2 || m == 5)) {
 					t.Label = strconv.FormatFloat(v, 'g', 3, 64)
 				}
 				ts = append(ts, t)
