@@ -155,16 +155,20 @@ var freeSpace = func(dir string) (uint64, error) {
 	}
 }
 
-// Per-frame size estimates. A PNG of a star field (black sky, small blobs)
-// deflates far below its raw size: 1920×1080 and 480×270 frames of the
-// built-in sky measured 1–4 % of raw at the fast level (up to 3.3 % while
-// cruising at 0.97 c), so a tenth of raw is a generous allowance; FITS is exact (2880-byte blocks); a sidecar with its
-// ten brightest stars is about 5 KB.
+// Per-frame size estimates. A PNG of a star field is black sky, which
+// deflates to almost nothing, plus the stars' blobs, which hardly compress.
+// Frames of the built-in sky (41 713 stars) measured up to 29 bytes per
+// drawn star (647 KB for a dense 1920×1080 frame with 22 070 stars drawn,
+// 10 % of raw) and, at 480×270, up to 58 % of raw where blobs overlap. The
+// estimate allows raw/50 for the background plus 48 bytes per catalogue
+// star, capped at the raw size plus deflate's stored-block overhead; FITS is
+// exact (2880-byte blocks); a sidecar with its ten brightest stars is about
+// 5 KB.
 const (
-	pngRawFraction = 0.10
-	pngOverhead    = 2048
-	sidecarBytes   = 8192
-	fitsHeaderMax  = 4 * 2880
+	pngBytesPerStar = 48
+	pngOverhead     = 2048
+	sidecarBytes    = 8192
+	fitsHeaderMax   = 4 * 2880
 )
 
 // frameBytes estimates the bytes one frame writes.
@@ -173,7 +177,9 @@ func (j *flightJob) frameBytes() uint64 {
 	var n uint64
 	o := j.plan.Output
 	if *o.PNG {
-		n += uint64(float64(w*h*3)*pngRawFraction) + pngOverhead
+		raw := w * h * 3
+		est := min(raw/50+uint64(j.stars.Len())*pngBytesPerStar, raw+raw/1000)
+		n += est + pngOverhead
 	}
 	if o.FITS {
 		data := (w*h*3*4 + 2879) / 2880 * 2880

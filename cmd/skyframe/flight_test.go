@@ -470,7 +470,7 @@ lok = "ahead"
 		if code != exitUsage {
 			t.Fatalf("status %d, want %d\n%s", code, exitUsage, errs)
 		}
-		// 20 frames × (64·36·3/10 + 2048 + 8192 bytes) = 218 KB > 100 KiB.
+		// 20 frames × (64·36·3 raw + 6 + 2048 + 8192 bytes) = 343 KB > 100 KiB.
 		if !strings.Contains(errs, "20 frames need about") || !strings.Contains(errs, "100.0 KiB free") {
 			t.Errorf("message %q does not give the need and the free space", errs)
 		}
