@@ -1,0 +1,303 @@
+package catalog
+
+import (
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"hash/crc32"
+	"io"
+	"math"
+	"os"
+)
+
+// Slice returns rows lo..hi−1 of s as a Stars that shares the column
+// storage of s (capacity-limited, so appending to the result never writes
+// into s). Names are re-indexed to the slice's rows, and Epoch, Source and
+// Format are copied. It panics if the range is out of bounds, like a slice
+// expression.
+func (s *Stars) Slice(lo, hi int) *Stars {
+	t := &Stars{
+		ID: s.ID[lo:hi:hi], X: s.X[lo:hi:hi], Y: s.Y[lo:hi:hi], Z: s.Z[lo:hi:hi],
+		Dist: s.Dist[lo:hi:hi], Vmag: s.Vmag[lo:hi:hi], Teff: s.Teff[lo:hi:hi], BV: s.BV[lo:hi:hi],
+		Flags: s.Flags[lo:hi:hi], Epoch: s.Epoch, Source: s.Source, Format: s.Format,
+	}
+	if s.PMRA != nil {
+		t.PMRA, t.PMDec = s.PMRA[lo:hi:hi], s.PMDec[lo:hi:hi]
+	}
+	if s.RV != nil {
+		t.RV = s.RV[lo:hi:hi]
+	}
+	if s.Names != nil {
+		t.Names = map[int]string{}
+		for i, nm := range s.Names {
+			if i >= lo && i < hi {
+				t.Names[i-lo] = nm
+			}
+		}
+	}
+	return t
+}
+
+// DefaultChunkRows is the chunk length OpenChunks uses when asked for 0
+// rows: 2²⁰ stars, about 37 MB of columns.
+const DefaultChunkRows = 1 << 20
+
+// ChunkReader reads a binary cache file (see WriteCache) in successive
+// chunks of rows, so a catalogue larger than memory can be processed with a
+// bounded working set. The cache is column-major; each chunk is assembled
+// with one positioned read (ReadAt) per column, so only the chunk is ever
+// held. Not safe for concurrent use.
+type ChunkReader struct {
+	f        *os.File
+	path     string
+	n        int // rows in the file
+	rows     int // rows per chunk
+	pos      int // first row of the next chunk
+	bits     uint32
+	offID    int64 // file offset of the ID column
+	epoch    float64
+	source   string
+	format   string
+	names    map[int]string // all names, by file row
+	buf      []byte
+	nameRows []int // rows of names, ascending
+}
+
+// OpenChunks opens the cache file at path for reading in chunks of at most
+// chunkRows rows (0 means DefaultChunkRows). It checks the header, the file
+// size implied by the row count and the CRC-32C trailer before returning,
+// the last with one sequential pass over the file that holds no more than
+// 1 MiB at a time; a file failing a check is refused with an error wrapping
+// ErrBadCache, ErrTruncated, ErrCorrupt or ErrTooManyRows. Names are read
+// at open (they are few). Close the reader when done.
+func OpenChunks(path string, chunkRows int) (*ChunkReader, error) {
+	if chunkRows < 0 {
+		return nil, fmt.Errorf("catalog: chunks: negative chunk length %d", chunkRows)
+	}
+	if chunkRows == 0 {
+		chunkRows = DefaultChunkRows
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("catalog: %w", err)
+	}
+	c, err := openChunks(f, path, chunkRows)
+	if err != nil {
+		f.Close()
+		return nil, &ParseError{File: path, Err: fmt.Errorf("cache: %w", err)}
+	}
+	return c, nil
+}
+
+func openChunks(f *os.File, path string, chunkRows int) (*ChunkReader, error) {
+	fi, err := f.Stat()
+	if err != nil {
+		return nil, err
+	}
+	size := fi.Size()
+	if size < 4 {
+		return nil, fmt.Errorf("%w: %d bytes", ErrTruncated, size)
+	}
+	// Checksum first, in one sequential pass, so that nothing below reads
+	// a corrupt file.
+	h := crc32.New(castagnoli)
+	if _, err := io.CopyBuffer(h, io.NewSectionReader(f, 0, size-4), make([]byte, cacheChunk)); err != nil {
+		return nil, err
+	}
+	var tr [4]byte
+	if _, err := f.ReadAt(tr[:], size-4); err != nil {
+		return nil, fmt.Errorf("%w: checksum missing", ErrTruncated)
+	}
+	if got, sum := binary.LittleEndian.Uint32(tr[:]), h.Sum32(); got != sum {
+		return nil, fmt.Errorf("%w: checksum %08x, computed %08x", ErrCorrupt, got, sum)
+	}
+	sr := io.NewSectionReader(f, 0, size-4)
+	cr := &cacheReader{r: sr}
+	hd, err := cr.next(8 + 4 + 8 + 8)
+	if err != nil {
+		return nil, err
+	}
+	if string(hd[:7]) != string(cacheMagic) {
+		return nil, fmt.Errorf("%w: bad magic %q", ErrBadCache, hd[:7])
+	}
+	if hd[7] != CacheVersion {
+		return nil, fmt.Errorf("%w: version %d, this reader knows %d", ErrBadCache, hd[7], CacheVersion)
+	}
+	c := &ChunkReader{f: f, path: path, rows: chunkRows}
+	c.bits = binary.LittleEndian.Uint32(hd[8:])
+	if c.bits&^cacheKnown != 0 {
+		return nil, fmt.Errorf("%w: unknown column bits %#x", ErrBadCache, c.bits)
+	}
+	n64 := binary.LittleEndian.Uint64(hd[12:])
+	if n64 > DefaultMaxRows {
+		return nil, fmt.Errorf("%w: header declares %d rows, limit %d", ErrTooManyRows, n64, int64(DefaultMaxRows))
+	}
+	c.n = int(n64)
+	c.epoch = math.Float64frombits(binary.LittleEndian.Uint64(hd[20:]))
+	if math.IsNaN(c.epoch) || math.IsInf(c.epoch, 0) {
+		return nil, fmt.Errorf("%w: epoch %v", ErrBadCache, c.epoch)
+	}
+	if c.source, err = cr.str(); err != nil {
+		return nil, err
+	}
+	if c.format, err = cr.str(); err != nil {
+		return nil, err
+	}
+	c.offID, _ = sr.Seek(0, io.SeekCurrent)
+	end := c.colOffset(c.ncols(), 0) // end of the last column
+	if end > size-4 {
+		return nil, fmt.Errorf("%w: %d rows need %d bytes, file has %d", ErrTruncated, c.n, end+4, size)
+	}
+	if c.bits&cacheHasName == 0 {
+		if end != size-4 {
+			return nil, fmt.Errorf("%w: %d bytes after the columns", ErrCorrupt, size-4-end)
+		}
+		return c, nil
+	}
+	nr := &cacheReader{r: io.NewSectionReader(f, end, size-4-end)}
+	cnt, err := nr.u64()
+	if err != nil {
+		return nil, err
+	}
+	if cnt > uint64(c.n) {
+		return nil, fmt.Errorf("%w: %d names for %d rows", ErrBadCache, cnt, c.n)
+	}
+	c.names = make(map[int]string, min(int(cnt), 1<<16))
+	prev := -1
+	for j := uint64(0); j < cnt; j++ {
+		row, err := nr.u64()
+		if err != nil {
+			return nil, err
+		}
+		if row >= uint64(c.n) || int(row) <= prev {
+			return nil, fmt.Errorf("%w: name row %d out of order or range", ErrBadCache, row)
+		}
+		prev = int(row)
+		nm, err := nr.str()
+		if err != nil {
+			return nil, err
+		}
+		c.names[prev] = nm
+		c.nameRows = append(c.nameRows, prev)
+	}
+	var one [1]byte
+	if k, _ := nr.r.Read(one[:]); k > 0 {
+		return nil, fmt.Errorf("%w: data after the names", ErrCorrupt)
+	}
+	return c, nil
+}
+
+// ncols is the number of float32 columns after ID (X…BV, then optional).
+func (c *ChunkReader) ncols() int {
+	k := 7
+	if c.bits&cacheHasPM != 0 {
+		k += 2
+	}
+	if c.bits&cacheHasRV != 0 {
+		k++
+	}
+	return k
+}
+
+// colOffset returns the file offset of row `row` of float32 column j
+// (0 = X … 6 = BV, 7… optional); Flags sit between BV and the optional
+// columns. j = ncols gives the end of the columns.
+func (c *ChunkReader) colOffset(j, row int) int64 {
+	n := int64(c.n)
+	off := c.offID + 8*n + 4*n*int64(j)
+	if j >= 7 {
+		off += n // the Flags column
+	}
+	return off + 4*int64(row)
+}
+
+// Len returns the number of rows in the file.
+func (c *ChunkReader) Len() int { return c.n }
+
+// Next returns the next chunk: rows pos..pos+k−1 of the file with k ≤ the
+// chunk length, as a fresh Stars whose Names are indexed by chunk row.
+// After the last chunk it returns nil, io.EOF. A chunk with a non-finite
+// value where Validate forbids one is refused with ErrCorrupt.
+func (c *ChunkReader) Next() (*Stars, error) {
+	if c.f == nil {
+		return nil, errors.New("catalog: chunks: reader is closed")
+	}
+	if c.pos >= c.n {
+		return nil, io.EOF
+	}
+	lo := c.pos
+	k := min(c.rows, c.n-lo)
+	s := &Stars{Epoch: c.epoch, Source: c.source, Format: c.format}
+	b, err := c.read(c.offID+8*int64(lo), 8*k)
+	if err != nil {
+		return nil, err
+	}
+	s.ID = make([]int64, k)
+	for i := range s.ID {
+		s.ID[i] = int64(binary.LittleEndian.Uint64(b[8*i:]))
+	}
+	cols := []*[]float32{&s.X, &s.Y, &s.Z, &s.Dist, &s.Vmag, &s.Teff, &s.BV}
+	if c.bits&cacheHasPM != 0 {
+		cols = append(cols, &s.PMRA, &s.PMDec)
+	}
+	if c.bits&cacheHasRV != 0 {
+		cols = append(cols, &s.RV)
+	}
+	for j, p := range cols {
+		b, err := c.read(c.colOffset(j, lo), 4*k)
+		if err != nil {
+			return nil, err
+		}
+		col := make([]float32, k)
+		for i := range col {
+			col[i] = math.Float32frombits(binary.LittleEndian.Uint32(b[4*i:]))
+		}
+		*p = col
+	}
+	b, err = c.read(c.colOffset(7, 0)-int64(c.n)+int64(lo), k)
+	if err != nil {
+		return nil, err
+	}
+	s.Flags = make([]Flag, k)
+	for i, v := range b {
+		s.Flags[i] = Flag(v)
+	}
+	if c.names != nil {
+		s.Names = map[int]string{}
+		for _, r := range c.nameRows {
+			if r >= lo && r < lo+k {
+				s.Names[r-lo] = c.names[r]
+			}
+		}
+	}
+	if err := s.Validate(); err != nil {
+		return nil, &ParseError{File: c.path, Err: fmt.Errorf("cache: %w: rows %d…: %v", ErrCorrupt, lo, err)}
+	}
+	c.pos += k
+	return s, nil
+}
+
+// read returns k bytes at off in a reused buffer.
+func (c *ChunkReader) read(off int64, k int) ([]byte, error) {
+	if cap(c.buf) < k {
+		c.buf = make([]byte, k)
+	}
+	b := c.buf[:k]
+	if _, err := c.f.ReadAt(b, off); err != nil {
+		if err == io.EOF {
+			err = fmt.Errorf("%w: cache ends early", ErrTruncated)
+		}
+		return nil, &ParseError{File: c.path, Err: fmt.Errorf("cache: %w", err)}
+	}
+	return b, nil
+}
+
+// Close closes the file.
+func (c *ChunkReader) Close() error {
+	if c.f == nil {
+		return nil
+	}
+	err := c.f.Close()
+	c.f = nil
+	return err
+}

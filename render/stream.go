@@ -1,0 +1,322 @@
+package render
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"runtime"
+
+	"github.com/skyframe/skyframe/catalog"
+)
+
+// DefaultMemoryBudget is the memory budget of ChunkRows and RenderCacheFile
+// when none is given: 1 GiB.
+const DefaultMemoryBudget = 1 << 30
+
+// Memory model of the streaming renderer, in bytes. A chunk row costs its
+// catalogue columns (37), the Prepared per-star values (48), its splat
+// record (48) and that record's tile copies (48 and a little more for
+// stars whose kernel crosses tiles): about 190. A frame pixel costs the
+// float32 buffer (12, +4 with Doppler) and the float64 accumulator the
+// stream sums into (24, +8 with Doppler).
+const (
+	streamBytesPerRow   = 190
+	streamMinChunkRows  = 1 << 16
+	streamBytesPerPixel = 12 + 24
+	streamDopplerPixel  = 4 + 8
+)
+
+// ChunkRows returns how many stars per chunk RenderStream can take for the
+// frame of opt within memoryBudget bytes (0 means DefaultMemoryBudget):
+// the budget left after the frame buffers, divided by about 190 bytes per
+// row, and at least 65 536 rows (a budget smaller than the frame buffers
+// cannot be met; the minimum keeps the per-chunk overhead small).
+func ChunkRows(opt Options, memoryBudget int64) int {
+	if memoryBudget <= 0 {
+		memoryBudget = DefaultMemoryBudget
+	}
+	px := int64(opt.Projection.Width) * int64(opt.Projection.Height)
+	frame := px * streamBytesPerPixel
+	if opt.Doppler {
+		frame += px * streamDopplerPixel
+	}
+	rows := (memoryBudget - frame) / streamBytesPerRow
+	return int(max(rows, streamMinChunkRows))
+}
+
+// Chunks returns a chunk source for RenderStream over an in-memory
+// catalogue: successive Slices of at most rows stars (rows ≤ 0 means
+// catalog.DefaultChunkRows), then io.EOF.
+func Chunks(s *catalog.Stars, rows int) func() (*catalog.Stars, error) {
+	if rows <= 0 {
+		rows = catalog.DefaultChunkRows
+	}
+	pos := 0
+	return func() (*catalog.Stars, error) {
+		if s == nil || pos >= s.Len() {
+			return nil, io.EOF
+		}
+		hi := min(pos+rows, s.Len())
+		c := s.Slice(pos, hi)
+		pos = hi
+		return c, nil
+	}
+}
+
+// RenderCacheFile renders the binary catalogue cache at path (see
+// catalog.WriteCache) chunk by chunk within about memoryBudget bytes
+// (0 means DefaultMemoryBudget); see RenderStream.
+func RenderCacheFile(path string, opt Options, memoryBudget int64) (*Frame, error) {
+	cr, err := catalog.OpenChunks(path, ChunkRows(opt, memoryBudget))
+	if err != nil {
+		return nil, fmt.Errorf("render: %w", err)
+	}
+	defer cr.Close()
+	return RenderStream(cr.Next, opt)
+}
+
+// RenderStream renders a catalogue delivered in chunks: next returns the
+// successive chunks, in catalogue order, and io.EOF after the last one
+// (any other error stops the render and is returned). Only one chunk's
+// working set is held at a time, plus the frame buffers and a float64
+// accumulator of the frame (24 bytes per pixel, 32 with Doppler).
+//
+// The result is bit-identical to Render on the concatenated catalogue,
+// whatever the chunk lengths: every star is transformed by the same
+// per-star steps, each pixel sums its stars in catalogue order in float64
+// (chunk after chunk, and within a chunk tile by tile in catalogue order)
+// and is rounded to float32 once at the end. Stats are summed over chunks;
+// Brightest rows are catalogue rows (counted over all chunks) and the list
+// is merged by (V′, row) as Render orders it. The Frame's Stats.Total is
+// the total number of stars seen.
+func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, error) {
+	if next == nil {
+		return nil, ErrStars
+	}
+	opt, psf, workers, err := resolveOptions(opt)
+	if err != nil {
+		return nil, err
+	}
+	buf, err := NewBuffer(opt.Projection.Width, opt.Projection.Height, opt.Doppler)
+	if err != nil {
+		return nil, err
+	}
+	f := &Frame{Buffer: *buf, Options: opt, Scale: ExposureScale(opt.Exposure)}
+	sa := &streamAcc{w: f.W, h: f.H, rgb: make([]float64, 3*f.W*f.H)}
+	if opt.Doppler {
+		sa.dsum = make([]float64, f.W*f.H)
+	}
+	var recs []splatRec
+	var chunks []chunkResult
+	g := newGrid(f.W, f.H, psf.Radius())
+	var best []StarInfo
+	base := 0
+	got := false
+	for {
+		stars, err := next()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			return nil, err
+		}
+		if stars == nil {
+			return nil, ErrStars
+		}
+		got = true
+		p, err := Prepare(stars)
+		if err != nil {
+			return nil, err
+		}
+		n := stars.Len()
+		f.Stats.Total += n
+		if cap(recs) < n {
+			recs = make([]splatRec, n)
+		}
+		recs = recs[:n]
+		nChunks := (n + chunkSize - 1) / chunkSize
+		if cap(chunks) < nChunks {
+			chunks = make([]chunkResult, nChunks)
+		}
+		chunks = chunks[:nChunks]
+		for c := range chunks {
+			chunks[c] = chunkResult{best: chunks[c].best[:0]}
+		}
+		parallel(workers, nChunks, func(c int) {
+			lo := c * chunkSize
+			hi := min(lo+chunkSize, n)
+			t := newTransformer(p, &f.Options, &psf, f.Scale)
+			t.run(lo, hi, recs[lo:hi], &chunks[c])
+		})
+		for c := range chunks {
+			r := &chunks[c]
+			f.Stats.Drawn += r.n
+			f.Stats.Culled += r.culled
+			f.Stats.OffFrame += r.off
+			f.Stats.Invalid += r.invalid
+			for _, s := range r.best {
+				s.ID = stars.ID[s.Row]
+				s.Name = stars.Names[s.Row]
+				s.Row += base
+				best = append(best, s)
+			}
+		}
+		if opt.Brightest > 0 {
+			sortInfos(best)
+			if len(best) > opt.Brightest {
+				best = best[:opt.Brightest]
+			}
+		}
+		// Bin this chunk's records (catalogue order) into tiles, then sum
+		// each tile into the frame accumulator; tiles are disjoint, so they
+		// run in parallel without changing any pixel's order of addition.
+		g.reset()
+		for pass := 0; pass < 2; pass++ {
+			for c := range chunks {
+				lo := c * chunkSize
+				for k := lo; k < lo+chunks[c].n; k++ {
+					g.bin(&recs[k], pass)
+				}
+			}
+			g.finishPass(pass)
+		}
+		parallel(workers, len(g.start)-1, func(ti int) {
+			sa.tile(g, ti, &psf)
+		})
+		base += n
+	}
+	if !got {
+		return nil, fmt.Errorf("%w: the stream holds no chunk", ErrStars)
+	}
+	if opt.Brightest < 0 {
+		best = nil
+	}
+	f.Stats.Brightest = best
+	sa.store(&f.Buffer, workers)
+	return f, nil
+}
+
+// resolveOptions checks opt and fills in the defaults the way Render does.
+func resolveOptions(opt Options) (Options, PSF, int, error) {
+	var psf PSF
+	if opt.Workers < 0 {
+		return opt, psf, 0, fmt.Errorf("%w: %d", ErrWorkers, opt.Workers)
+	}
+	if math.IsNaN(opt.Exposure) || math.IsInf(opt.Exposure, 0) {
+		return opt, psf, 0, fmt.Errorf("%w: %v", ErrExposure, opt.Exposure)
+	}
+	if math.IsNaN(opt.Limit) {
+		return opt, psf, 0, ErrLimit
+	}
+	if err := opt.Projection.Prepare(); err != nil {
+		return opt, psf, 0, fmt.Errorf("render: %w", err)
+	}
+	if opt.Beaming.FluxExponent() == 0 {
+		return opt, psf, 0, fmt.Errorf("%w: %d", ErrBeaming, int(opt.Beaming))
+	}
+	psf, err := NewPSF(opt.FWHM)
+	if err != nil {
+		return opt, psf, 0, err
+	}
+	opt.FWHM = psf.FWHM()
+	if opt.Limit == 0 {
+		opt.Limit = opt.Exposure + DefaultLimitOffset
+	}
+	if opt.Brightest == 0 {
+		opt.Brightest = DefaultBrightest
+	}
+	workers := opt.Workers
+	if workers == 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	return opt, psf, workers, nil
+}
+
+// reset empties the grid for the next chunk, keeping its storage.
+func (g *grid) reset() {
+	clear(g.start)
+	g.recs = g.recs[:0]
+}
+
+// streamAcc is the frame-sized float64 accumulator of RenderStream.
+type streamAcc struct {
+	w, h int
+	rgb  []float64 // 3 per pixel, row-major
+	dsum []float64 // Σ luminance·D per pixel, when Doppler
+}
+
+// tile adds tile ti's records to the accumulator with the same operations,
+// in the same order, as tileAcc.render, so each pixel's float64 sum is the
+// one Render forms.
+func (sa *streamAcc) tile(g *grid, ti int, psf *PSF) {
+	list := g.recs[g.start[ti]:g.start[ti+1]]
+	if len(list) == 0 {
+		return
+	}
+	var wx, wy [maxTaps]float64
+	ox, oy := (ti%g.tw)*tileSize, (ti/g.tw)*tileSize
+	tw, th := min(tileSize, sa.w-ox), min(tileSize, sa.h-oy)
+	doppler := sa.dsum != nil
+	for k := range list {
+		r := &list[k]
+		y0, ny := psf.Weights(r.y, wy[:])
+		j0, j1 := max(y0, oy), min(y0+ny, oy+th)
+		rgb := [3]float64{float64(r.rgb[0]), float64(r.rgb[1]), float64(r.rgb[2])}
+		lumD := (lumR*rgb[0] + lumG*rgb[1] + lumB*rgb[2]) * float64(r.d)
+		for rep := 0; rep < 2; rep++ {
+			x := r.x
+			if rep == 1 {
+				if r.wrap == 0 {
+					break
+				}
+				x += float64(r.wrap) * float64(sa.w)
+			}
+			x0, nx := psf.Weights(x, wx[:])
+			i0 := max(x0, ox, int(r.clip0))
+			i1 := min(x0+nx, ox+tw, int(r.clip1))
+			if i0 >= i1 {
+				continue
+			}
+			wxs := wx[i0-x0 : i1-x0]
+			for j := j0; j < j1; j++ {
+				wyj := wy[j-y0]
+				q0 := j*sa.w + i0
+				row := sa.rgb[3*q0 : 3*(q0+len(wxs))]
+				for ii, wxi := range wxs {
+					w := wxi * wyj
+					px := row[3*ii : 3*ii+3 : 3*ii+3]
+					px[0] += w * rgb[0]
+					px[1] += w * rgb[1]
+					px[2] += w * rgb[2]
+				}
+				if doppler {
+					ds := sa.dsum[q0 : q0+len(wxs)]
+					for ii, wxi := range wxs {
+						ds[ii] += wxi * wyj * lumD
+					}
+				}
+			}
+		}
+	}
+}
+
+// store rounds the accumulator into b once, by rows in parallel, the way
+// tileAcc.render stores a tile.
+func (sa *streamAcc) store(b *Buffer, workers int) {
+	const rowsPer = 64
+	parallel(workers, (sa.h+rowsPer-1)/rowsPer, func(c int) {
+		for y := c * rowsPer; y < min((c+1)*rowsPer, sa.h); y++ {
+			for x := 0; x < sa.w; x++ {
+				p := y*sa.w + x
+				r, gg, bl := sa.rgb[3*p], sa.rgb[3*p+1], sa.rgb[3*p+2]
+				b.Pix[3*p], b.Pix[3*p+1], b.Pix[3*p+2] = float32(r), float32(gg), float32(bl)
+				if b.Doppler != nil {
+					if l := lumR*r + lumG*gg + lumB*bl; l > 0 {
+						b.Doppler[p] = float32(sa.dsum[p] / l)
+					}
+				}
+			}
+		}
+	})
+}

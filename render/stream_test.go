@@ -1,0 +1,160 @@
+package render
+
+import (
+	"errors"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"reflect"
+	"testing"
+
+	"gonum.org/v1/gonum/spatial/r3"
+
+	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
+)
+
+// sameFrame fails unless two frames have bit-identical pixels, Doppler
+// channels and Stats.
+func sameFrame(t *testing.T, have, want *Frame) {
+	t.Helper()
+	if len(have.Pix) != len(want.Pix) {
+		t.Fatalf("Pix length: have %d, want %d", len(have.Pix), len(want.Pix))
+	}
+	for i := range want.Pix {
+		if math.Float32bits(have.Pix[i]) != math.Float32bits(want.Pix[i]) {
+			t.Fatalf("Pix[%d]: have %v, want %v (bits differ)", i, have.Pix[i], want.Pix[i])
+		}
+	}
+	if len(have.Doppler) != len(want.Doppler) {
+		t.Fatalf("Doppler length: have %d, want %d", len(have.Doppler), len(want.Doppler))
+	}
+	for i := range want.Doppler {
+		if math.Float32bits(have.Doppler[i]) != math.Float32bits(want.Doppler[i]) {
+			t.Fatalf("Doppler[%d]: have %v, want %v", i, have.Doppler[i], want.Doppler[i])
+		}
+	}
+	if !reflect.DeepEqual(have.Stats, want.Stats) {
+		t.Fatalf("Stats:\nhave %+v\nwant %+v", have.Stats, want.Stats)
+	}
+	if have.Scale != want.Scale || !reflect.DeepEqual(have.Options, want.Options) {
+		t.Fatalf("Scale/Options differ: have %v %+v, want %v %+v", have.Scale, have.Options, want.Scale, want.Options)
+	}
+}
+
+// TestRenderStreamMatchesRender: a catalogue streamed in 3 chunks (of
+// lengths that are not multiples of the 8192-star transform chunk or of
+// each other) renders bit-identically to Render on the whole, for every
+// projection (equirect wrap and cube clipping included), with parallax,
+// Doppler channel and a brightest list that spans chunks. Exact equality
+// is the contract [cp: determinism of IEEE 754 arithmetic in fixed order].
+func TestRenderStreamMatchesRender(t *testing.T) {
+	n := 30_000
+	if testing.Short() {
+		n = 12_000
+	}
+	stars := randomStars(n, -1, 9, 21)
+	stars.Names = map[int]string{3: "three", n/2 + 1: "middle", n - 2: "late"}
+	obs := observer(t, r3.Unit(r3.Vec{X: 1, Y: 0.3, Z: 0.2}), 0.6)
+	obs.Position = r3.Vec{X: 2, Y: -1, Z: 0.5}
+	cases := []struct {
+		kind camera.Kind
+		w, h int
+	}{{camera.Fisheye, 300, 300}, {camera.Pinhole, 320, 180}, {camera.Equirect, 400, 200}, {camera.Cube, 600, 100}}
+	for _, c := range cases {
+		opt := Options{Projection: proj(t, c.kind, c.w, c.h), Observer: obs, Exposure: 3, Doppler: true, Brightest: 25, Workers: 2}
+		want, err := Render(stars, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if want.Stats.Drawn == 0 {
+			t.Fatalf("%v: nothing drawn; the test would prove nothing", c.kind)
+		}
+		// Three chunks of unequal length: 9001, 9001, rest.
+		have, err := RenderStream(Chunks(stars, 9001+(n-3*9001)/2), opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sameFrame(t, have, want)
+		// One star per chunk boundary the other way round: many small chunks.
+		if !testing.Short() {
+			have, err = RenderStream(Chunks(stars, 4097), opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			sameFrame(t, have, want)
+		}
+	}
+}
+
+// TestRenderCacheFileMatchesRender: streaming from a cache file through
+// catalog.OpenChunks with a budget that forces several chunks gives the
+// frame Render gives.
+func TestRenderCacheFileMatchesRender(t *testing.T) {
+	stars := randomStars(150_000, -1, 10, 5)
+	path := filepath.Join(t.TempDir(), "stars.skyc")
+	fh, err := os.Create(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := catalog.WriteCache(fh, stars); err != nil {
+		t.Fatal(err)
+	}
+	if err := fh.Close(); err != nil {
+		t.Fatal(err)
+	}
+	opt := Options{Projection: proj(t, camera.Fisheye, 256, 256), Observer: observer(t, r3.Vec{X: 1}, 0.9), Exposure: 5}
+	want, err := Render(stars, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	budget := int64(256*256*streamBytesPerPixel + 65536*streamBytesPerRow) // → 65 536-row chunks, 3 of them
+	if r := ChunkRows(opt, budget); r != 65536 {
+		t.Fatalf("ChunkRows: have %d, want 65536", r)
+	}
+	have, err := RenderCacheFile(path, opt, budget)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sameFrame(t, have, want)
+}
+
+func TestRenderStreamErrors(t *testing.T) {
+	opt := Options{Projection: proj(t, camera.Fisheye, 64, 64)}
+	if _, err := RenderStream(nil, opt); !errors.Is(err, ErrStars) {
+		t.Errorf("nil source: have %v, want ErrStars", err)
+	}
+	empty := func() (*catalog.Stars, error) { return nil, io.EOF }
+	if _, err := RenderStream(empty, opt); !errors.Is(err, ErrStars) {
+		t.Errorf("empty stream: have %v, want ErrStars", err)
+	}
+	boom := errors.New("disk on fire")
+	failing := func() (*catalog.Stars, error) { return nil, boom }
+	if _, err := RenderStream(failing, opt); !errors.Is(err, boom) {
+		t.Errorf("failing source: have %v, want %v", err, boom)
+	}
+	bad := opt
+	bad.Workers = -1
+	if _, err := RenderStream(Chunks(randomStars(10, 0, 5, 1), 4), bad); !errors.Is(err, ErrWorkers) {
+		t.Errorf("Workers −1: have %v, want ErrWorkers", err)
+	}
+}
+
+func TestChunkRows(t *testing.T) {
+	opt := Options{Projection: camera.Projection{Width: 4096, Height: 4096}}
+	frame := int64(4096 * 4096 * streamBytesPerPixel)
+	tests := []struct {
+		budget int64
+		want   int
+	}{
+		{frame + 1000*streamBytesPerRow, streamMinChunkRows}, // below the floor
+		{frame + 3_000_000*streamBytesPerRow, 3_000_000},
+		{0, int((DefaultMemoryBudget - frame) / streamBytesPerRow)},
+	}
+	for _, tc := range tests {
+		if have := ChunkRows(opt, tc.budget); have != tc.want {
+			t.Errorf("ChunkRows(budget %d): have %d, want %d", tc.budget, have, tc.want)
+		}
+	}
+}
