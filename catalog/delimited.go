@@ -99,74 +99,16 @@ func readDelimited(lr *lineReader, b *builder, f Format) error {
 	if err != nil {
 		return &ParseError{File: b.file, Line: hline, Err: err}
 	}
-	index := map[string]int{}
+	labels := make([]string, len(names))
 	for i, nm := range names {
-		key := strings.ToLower(strings.TrimSpace(string(nm)))
-		if _, dup := index[key]; !dup {
-			index[key] = i
-		}
+		labels[i] = string(bytes.TrimSpace(nm))
 	}
-	var cols [nRoles]int
-	for i := range cols {
-		cols[i] = -1
-	}
-	missing := func(name string) error {
-		return &ParseError{File: b.file, Line: hline, Field: name, Err: fmt.Errorf("%w: header has %d columns, none named %q", ErrMissingColumn, len(names), name)}
-	}
-	gaia := f == FormatGaiaCSV
-	guessedID := false // the id column was found by its usual name, not mapped
-	if gaia {
-		for role, name := range map[int]string{roleID: "source_id", roleRA: "ra", roleDec: "dec", rolePlx: "parallax", roleG: "phot_g_mean_mag", roleBPRP: "bp_rp"} {
-			i, ok := index[name]
-			if !ok {
-				return missing(name)
-			}
-			cols[role] = i
-		}
-		for role, name := range map[int]string{roleTeff: "teff_gspphot", rolePMRA: "pmra", rolePMDec: "pmdec", roleRV: "radial_velocity", roleEpoch: "ref_epoch"} {
-			if i, ok := index[name]; ok {
-				cols[role] = i
-			}
-		}
-	} else {
-		cm := b.opt.Columns
-		given := [nRoles]string{roleID: cm.ID, roleRA: cm.RA, roleDec: cm.Dec, roleVmag: cm.Vmag, roleBV: cm.BV, roleTeff: cm.Teff,
-			rolePlx: cm.Parallax, roleDist: cm.Dist, roleName: cm.Name, rolePMRA: cm.PMRA, rolePMDec: cm.PMDec, roleRV: cm.RV}
-		for role := 0; role < roleG; role++ {
-			if g := strings.ToLower(strings.TrimSpace(given[role])); g != "" {
-				i, ok := index[g]
-				if !ok {
-					return missing(given[role])
-				}
-				cols[role] = i
-				continue
-			}
-			if role == roleID {
-				guessedID = true
-			}
-			for _, d := range roleDefaults[role] {
-				if i, ok := index[d]; ok {
-					cols[role] = i
-					break
-				}
-			}
-		}
-		for _, role := range [...]int{roleRA, roleDec, roleVmag} {
-			if cols[role] < 0 {
-				name := given[role]
-				if name == "" {
-					name = roleLabels[role]
-				}
-				return missing(name)
-			}
-		}
-		if (cols[rolePMRA] < 0) != (cols[rolePMDec] < 0) {
-			cols[rolePMRA], cols[rolePMDec] = -1, -1
-		}
+	pl, err := planColumns(b, labels, f == FormatGaiaCSV, hline)
+	if err != nil {
+		return err
 	}
 	var fields [][]byte
 	row := 0
-	epochSet := false
 	for {
 		line, err := lr.next()
 		if err == io.EOF {
@@ -187,155 +129,264 @@ func readDelimited(lr *lineReader, b *builder, f Format) error {
 		if len(fields) != len(names) {
 			return &ParseError{File: b.file, Line: n, Err: fmt.Errorf("%w: %d fields, header has %d", ErrFieldCount, len(fields), len(names))}
 		}
-		get := func(role int) []byte {
-			if cols[role] < 0 {
-				return nil
-			}
-			return fields[cols[role]]
-		}
-		label := func(role int) string { return string(bytes.TrimSpace(names[cols[role]])) }
-		num := func(role int, lo, hi float64) (float64, bool, error) {
-			if cols[role] < 0 {
-				return math.NaN(), false, nil
-			}
-			return b.ranged(get(role), label(role), n, lo, hi)
-		}
-		st := Star{RV: math.NaN(), ID: int64(row)}
-		if cols[roleID] >= 0 {
-			id, err := b.integer(get(roleID), label(roleID), n)
-			switch {
-			case err == nil:
-				st.ID = id
-			case guessedID && row == 1:
-				// A column that merely has a usual id name but does not
-				// hold integers (e.g. "HD 48915") is not used as the id;
-				// rows are numbered instead. Decided on the first row only.
-				cols[roleID] = -1
-			default:
-				return err
-			}
-			guessedID = false
-		}
-		raHi := 360.0
-		if !gaia && b.opt.Columns.RAHours {
-			raHi = 24
-		}
-		ra, okRA, err := num(roleRA, 0, raHi)
-		if err != nil {
-			return err
-		}
-		dec, okDE, err := num(roleDec, -90, 90)
-		if err != nil {
-			return err
-		}
-		if gaia && !epochSet {
-			if e, ok, err := num(roleEpoch, -1e4, 1e4); err != nil {
-				return err
-			} else if ok {
-				b.setEpoch(e)
-			}
-			epochSet = true
-		}
-		// Validate every numeric field before deciding to skip, so a
-		// malformed value is never hidden by a blank required one.
-		teff, _, err := num(roleTeff, teffLo, teffHi)
-		if err != nil {
-			return err
-		}
-		plx, okPlx, err := num(rolePlx, -1e6, 1e6)
-		if err != nil {
-			return err
-		}
-		pmra, _, err := num(rolePMRA, -pmLim, pmLim)
-		if err != nil {
-			return err
-		}
-		pmde, _, err := num(rolePMDec, -pmLim, pmLim)
-		if err != nil {
-			return err
-		}
-		rv, _, err := num(roleRV, -rvLim, rvLim)
-		if err != nil {
-			return err
-		}
-		var mag, bv, bprp, dist float64
-		var okMag, okDist bool
-		if gaia {
-			mag, okMag, err = num(roleG, vmagLo, vmagHi)
-			if err != nil {
-				return err
-			}
-			bprp, _, err = num(roleBPRP, bvLo, bvHi)
-			if err != nil {
-				return err
-			}
-			bv = math.NaN()
-		} else {
-			mag, okMag, err = num(roleVmag, vmagLo, vmagHi)
-			if err != nil {
-				return err
-			}
-			bv, _, err = num(roleBV, bvLo, bvHi)
-			if err != nil {
-				return err
-			}
-			bprp = math.NaN()
-			dist, okDist, err = num(roleDist, 0, 1e12)
-			if err != nil {
-				return err
-			}
-		}
-		if !okRA || !okDE {
-			b.skip("no position", n)
-			continue
-		}
-		if !okMag {
-			if gaia {
-				b.skip("no G magnitude", n)
-			} else {
-				b.skip("no V magnitude", n)
-			}
-			continue
-		}
-		if !gaia && b.opt.Columns.RAHours {
-			ra *= 15
-		}
-		if ra >= 360 {
-			ra -= 360
-		}
-		st.RA, st.Dec, st.BV, st.RV = ra, dec, bv, rv
-		if gaia {
-			c := bprp
-			if math.IsNaN(c) {
-				c = SolarBPRP
-			}
-			st.Vmag = VFromGaia(mag, c)
-		} else {
-			st.Vmag = mag
-		}
-		if !math.IsNaN(pmra) && !math.IsNaN(pmde) {
-			st.PMRA, st.PMDec = pmra, pmde
-		}
-		var fd, fc Flag
-		switch {
-		case cols[rolePlx] >= 0:
-			st.Dist, fd = distFromParallax(plx, okPlx)
-		case okDist && dist > 0:
-			st.Dist = dist
-		default:
-			st.Dist, fd = math.Inf(1), FlagNoDistance
-		}
-		st.Teff, fc = starColour(teff, bv, bprp)
-		st.Flags = fd | fc
-		if cols[roleName] >= 0 {
-			if nm := bytes.TrimSpace(get(roleName)); len(nm) > 0 {
-				st.Name = string(nm)
-			}
-		}
-		if err := b.add(st, n); err != nil {
+		if err := pl.addRow(b, textFields(fields), row, n); err != nil {
 			return err
 		}
 	}
+}
+
+// rowPlan says which column of a table holds each role, for the row
+// builder shared by the text (CSV/TSV) and Parquet readers.
+type rowPlan struct {
+	gaia      bool
+	cols      [nRoles]int
+	labels    []string // column names as the file gives them
+	guessedID bool     // the id column was found by its usual name, not mapped
+	epochSet  bool
+}
+
+// planColumns maps column names to roles: the fixed Gaia names when gaia,
+// else b.opt.Columns and the usual names. line is where the names are
+// (the header line; 0 for Parquet) for error messages.
+func planColumns(b *builder, labels []string, gaia bool, line int) (*rowPlan, error) {
+	index := map[string]int{}
+	for i, nm := range labels {
+		key := strings.ToLower(strings.TrimSpace(nm))
+		if _, dup := index[key]; !dup {
+			index[key] = i
+		}
+	}
+	pl := &rowPlan{gaia: gaia, labels: labels}
+	cols := &pl.cols
+	for i := range cols {
+		cols[i] = -1
+	}
+	missing := func(name string) error {
+		return &ParseError{File: b.file, Line: line, Field: name, Err: fmt.Errorf("%w: header has %d columns, none named %q", ErrMissingColumn, len(labels), name)}
+	}
+	if gaia {
+		for role, name := range map[int]string{roleID: "source_id", roleRA: "ra", roleDec: "dec", rolePlx: "parallax", roleG: "phot_g_mean_mag", roleBPRP: "bp_rp"} {
+			i, ok := index[name]
+			if !ok {
+				return nil, missing(name)
+			}
+			cols[role] = i
+		}
+		for role, name := range map[int]string{roleTeff: "teff_gspphot", rolePMRA: "pmra", rolePMDec: "pmdec", roleRV: "radial_velocity", roleEpoch: "ref_epoch"} {
+			if i, ok := index[name]; ok {
+				cols[role] = i
+			}
+		}
+		return pl, nil
+	}
+	cm := b.opt.Columns
+	given := [nRoles]string{roleID: cm.ID, roleRA: cm.RA, roleDec: cm.Dec, roleVmag: cm.Vmag, roleBV: cm.BV, roleTeff: cm.Teff,
+		rolePlx: cm.Parallax, roleDist: cm.Dist, roleName: cm.Name, rolePMRA: cm.PMRA, rolePMDec: cm.PMDec, roleRV: cm.RV}
+	for role := 0; role < roleG; role++ {
+		if g := strings.ToLower(strings.TrimSpace(given[role])); g != "" {
+			i, ok := index[g]
+			if !ok {
+				return nil, missing(given[role])
+			}
+			cols[role] = i
+			continue
+		}
+		if role == roleID {
+			pl.guessedID = true
+		}
+		for _, d := range roleDefaults[role] {
+			if i, ok := index[d]; ok {
+				cols[role] = i
+				break
+			}
+		}
+	}
+	for _, role := range [...]int{roleRA, roleDec, roleVmag} {
+		if cols[role] < 0 {
+			name := given[role]
+			if name == "" {
+				name = roleLabels[role]
+			}
+			return nil, missing(name)
+		}
+	}
+	if (cols[rolePMRA] < 0) != (cols[rolePMDec] < 0) {
+		cols[rolePMRA], cols[rolePMDec] = -1, -1
+	}
+	return pl, nil
+}
+
+// rowFields gives access to one row's values by column index.
+type rowFields interface {
+	// num returns a numeric value checked against [lo, hi]; a missing
+	// value gives (NaN, false, nil).
+	num(b *builder, col int, label string, line int, lo, hi float64) (float64, bool, error)
+	// integer returns an identifier.
+	integer(b *builder, col int, label string, line int) (int64, error)
+	// text returns a value as text (the designation).
+	text(col int) []byte
+}
+
+// textFields are the fields of a delimited line.
+type textFields [][]byte
+
+func (f textFields) num(b *builder, col int, label string, line int, lo, hi float64) (float64, bool, error) {
+	return b.ranged(f[col], label, line, lo, hi)
+}
+func (f textFields) integer(b *builder, col int, label string, line int) (int64, error) {
+	return b.integer(f[col], label, line)
+}
+func (f textFields) text(col int) []byte { return f[col] }
+
+// addRow turns data row number row (1-based; line is where it is, for
+// messages) into a star, or counts why it is skipped.
+//
+// Gaia rows get V from G and BP−RP by VFromGaia; without BP−RP, SolarBPRP
+// is used for G → V and the star gets DefaultTeff with FlagNoColour unless
+// teff_gspphot is given.
+func (pl *rowPlan) addRow(b *builder, fr rowFields, row, n int) error {
+	cols := &pl.cols
+	gaia := pl.gaia
+	label := func(role int) string { return pl.labels[cols[role]] }
+	num := func(role int, lo, hi float64) (float64, bool, error) {
+		if cols[role] < 0 {
+			return math.NaN(), false, nil
+		}
+		return fr.num(b, cols[role], label(role), n, lo, hi)
+	}
+	st := Star{RV: math.NaN(), ID: int64(row)}
+	if cols[roleID] >= 0 {
+		id, err := fr.integer(b, cols[roleID], label(roleID), n)
+		switch {
+		case err == nil:
+			st.ID = id
+		case pl.guessedID && row == 1:
+			// A column that merely has a usual id name but does not
+			// hold integers (e.g. "HD 48915") is not used as the id;
+			// rows are numbered instead. Decided on the first row only.
+			cols[roleID] = -1
+		default:
+			return err
+		}
+		pl.guessedID = false
+	}
+	raHi := 360.0
+	if !gaia && b.opt.Columns.RAHours {
+		raHi = 24
+	}
+	ra, okRA, err := num(roleRA, 0, raHi)
+	if err != nil {
+		return err
+	}
+	dec, okDE, err := num(roleDec, -90, 90)
+	if err != nil {
+		return err
+	}
+	if gaia && !pl.epochSet {
+		if e, ok, err := num(roleEpoch, -1e4, 1e4); err != nil {
+			return err
+		} else if ok {
+			b.setEpoch(e)
+		}
+		pl.epochSet = true
+	}
+	// Validate every numeric field before deciding to skip, so a
+	// malformed value is never hidden by a blank required one.
+	teff, _, err := num(roleTeff, teffLo, teffHi)
+	if err != nil {
+		return err
+	}
+	plx, okPlx, err := num(rolePlx, -1e6, 1e6)
+	if err != nil {
+		return err
+	}
+	pmra, _, err := num(rolePMRA, -pmLim, pmLim)
+	if err != nil {
+		return err
+	}
+	pmde, _, err := num(rolePMDec, -pmLim, pmLim)
+	if err != nil {
+		return err
+	}
+	rv, _, err := num(roleRV, -rvLim, rvLim)
+	if err != nil {
+		return err
+	}
+	var mag, bv, bprp, dist float64
+	var okMag, okDist bool
+	if gaia {
+		mag, okMag, err = num(roleG, vmagLo, vmagHi)
+		if err != nil {
+			return err
+		}
+		bprp, _, err = num(roleBPRP, bvLo, bvHi)
+		if err != nil {
+			return err
+		}
+		bv = math.NaN()
+	} else {
+		mag, okMag, err = num(roleVmag, vmagLo, vmagHi)
+		if err != nil {
+			return err
+		}
+		bv, _, err = num(roleBV, bvLo, bvHi)
+		if err != nil {
+			return err
+		}
+		bprp = math.NaN()
+		dist, okDist, err = num(roleDist, 0, 1e12)
+		if err != nil {
+			return err
+		}
+	}
+	if !okRA || !okDE {
+		b.skip("no position", n)
+		return nil
+	}
+	if !okMag {
+		if gaia {
+			b.skip("no G magnitude", n)
+		} else {
+			b.skip("no V magnitude", n)
+		}
+		return nil
+	}
+	if !gaia && b.opt.Columns.RAHours {
+		ra *= 15
+	}
+	if ra >= 360 {
+		ra -= 360
+	}
+	st.RA, st.Dec, st.BV, st.RV = ra, dec, bv, rv
+	if gaia {
+		c := bprp
+		if math.IsNaN(c) {
+			c = SolarBPRP
+		}
+		st.Vmag = VFromGaia(mag, c)
+	} else {
+		st.Vmag = mag
+	}
+	if !math.IsNaN(pmra) && !math.IsNaN(pmde) {
+		st.PMRA, st.PMDec = pmra, pmde
+	}
+	var fd, fc Flag
+	switch {
+	case cols[rolePlx] >= 0:
+		st.Dist, fd = distFromParallax(plx, okPlx)
+	case okDist && dist > 0:
+		st.Dist = dist
+	default:
+		st.Dist, fd = math.Inf(1), FlagNoDistance
+	}
+	st.Teff, fc = starColour(teff, bv, bprp)
+	st.Flags = fd | fc
+	if cols[roleName] >= 0 {
+		if nm := bytes.TrimSpace(fr.text(cols[roleName])); len(nm) > 0 {
+			st.Name = string(nm)
+		}
+	}
+	return b.add(st, n)
 }
 
 // declaredRows recognises "# rows: N", "# nrows = N" (any case).
