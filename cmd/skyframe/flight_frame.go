@@ -149,9 +149,16 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 	if err != nil {
 		return 0, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
+	lay := j.frameLayers(fs, obs)
+	if err := lay.AddLinear(frame); err != nil {
+		return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+	}
 	side := frame.Sidecar("skyframe", version, j.stars, j.tone)
 	img := frame.ToNRGBA(j.tone)
 	lum := meanLuminance(img)
+	if err := render.DrawOverlays(img, frame, j.stars, lay); err != nil {
+		return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+	}
 	home, dest := signalRates(j.plan.Trajectory(), fs.State)
 	info := flightInfo{
 		Title: j.plan.Title, PlanHash: j.hash, Frame: i, Frames: j.plan.Frames(), Phase: fs.Phase.String(),

@@ -104,6 +104,9 @@ type flightJob struct {
 	tone    render.ToneMode
 	expo    float64
 	workers int
+	// layers are the plan's overlays (frameLayers specialises them).
+	layers     render.Layers
+	layerFlags *layerFlags
 }
 
 func runFlight(e *env, args []string) error {
@@ -199,6 +202,9 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 	}
 	job.frames = job.shard.Frames(total, rng)
 	if err := job.checkCamera(); err != nil {
+		return nil, err
+	}
+	if job.layers, job.layerFlags, err = planLayers(plan, &scene{stars: stars, observer: camera.Observer{Position: plan.Trajectory().Start().Pos}}); err != nil {
 		return nil, err
 	}
 	if !*plan.Output.PNG && !plan.Output.FITS {

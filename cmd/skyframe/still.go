@@ -3,7 +3,7 @@ package main
 import (
 	"errors"
 	"fmt"
-	"image"
+	"image/draw"
 	"io"
 	"math"
 	"path/filepath"
@@ -112,6 +112,7 @@ type frameSpec struct {
 	depth    int
 	lookDesc string
 	source   string // command recorded in the PNG "Source" chunk; empty: "skyframe still"
+	layers   render.Layers
 }
 
 func (f *stillFlags) build(fs *pflag.FlagSet, sc *scene) (*frameSpec, error) {
@@ -247,6 +248,8 @@ func runStill(e *env, args []string) error {
 	p.register(fs, 0.9)
 	var f stillFlags
 	f.register(fs)
+	var lf layerFlags
+	lf.register(fs)
 	fs.Usage = func() {
 		fmt.Fprint(e.stdout, stillHelp)
 		fs.SetOutput(e.stdout)
@@ -274,9 +277,15 @@ func runStill(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
+	if spec.layers, err = lf.layers(sc, &spec.opt); err != nil {
+		return err
+	}
 	start := time.Now()
 	frame, err := render.Render(sc.stars, spec.opt)
 	if err != nil {
+		return err
+	}
+	if err := spec.layers.AddLinear(frame); err != nil {
 		return err
 	}
 	took := time.Since(start)
@@ -315,11 +324,14 @@ func (o outputPaths) check() error {
 func writeFrame(frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths) error {
 	side := frame.Sidecar("skyframe", version, sc.stars, spec.tone)
 	meta := pngMeta(side, spec)
-	var img image.Image
+	var img draw.Image
 	if spec.depth == 16 {
 		img = frame.ToNRGBA64(spec.tone)
 	} else {
 		img = frame.ToNRGBA(spec.tone)
+	}
+	if err := render.DrawOverlays(img, frame, sc.stars, spec.layers); err != nil {
+		return err
 	}
 	err := render.WriteFileAtomic(out.png, func(w io.Writer) error {
 		return render.WritePNG(w, img, meta)
