@@ -22,7 +22,10 @@
 // only when the content decides nothing. ReadOptions.Format overrides.
 // Supported: BSC5 (CDS V/50), Hipparcos (CDS I/239 hip_main.dat), Hipparcos
 // new reduction (CDS I/311 hip2.dat), Gaia archive CSV, any CSV/TSV with a
-// header through a ColumnMap, and the package's binary cache.
+// header through a ColumnMap, the package's binary cache, and Apache
+// Parquet (magic "PAR1": Gaia or ColumnMap tables through the same per-row
+// rules as CSV, or the exact Stars layout of WriteParquet; see parquet.go).
+// OpenChunks reads a cache in row chunks for catalogues larger than memory.
 //
 // Each read returns a Report: format, lines, rows kept, rows skipped by
 // reason with the line of the first one, declared row count, V, B−V and

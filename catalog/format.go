@@ -38,6 +38,10 @@ const (
 	FormatTSV
 	// FormatCache: skyframe's binary catalogue cache (see WriteCache).
 	FormatCache
+	// FormatParquet: an Apache Parquet file (magic "PAR1"): a Gaia table
+	// (columns as FormatGaiaCSV), a generic table through a ColumnMap, or
+	// the Stars layout of WriteParquet; see parquet.go.
+	FormatParquet
 )
 
 var formatNames = [...]string{
@@ -49,6 +53,7 @@ var formatNames = [...]string{
 	FormatCSV:           "csv",
 	FormatTSV:           "tsv",
 	FormatCache:         "cache",
+	FormatParquet:       "parquet",
 }
 
 // String returns the format's short name, as accepted by ParseFormat.
@@ -60,8 +65,9 @@ func (f Format) String() string {
 }
 
 // ParseFormat converts a short name ("bsc5", "hipparcos", "hipparcos2007",
-// "gaia", "csv", "tsv", "cache", "auto" or "") into a Format. A few aliases
-// are accepted: "v50", "i239", "hip", "i311", "hip2", "gaia-csv".
+// "gaia", "csv", "tsv", "cache", "parquet", "auto" or "") into a Format. A
+// few aliases are accepted: "v50", "i239", "hip", "i311", "hip2",
+// "gaia-csv", "pq".
 func ParseFormat(s string) (Format, error) {
 	switch strings.ToLower(strings.TrimSpace(s)) {
 	case "", "auto":
@@ -80,8 +86,10 @@ func ParseFormat(s string) (Format, error) {
 		return FormatTSV, nil
 	case "cache", "skyfcat":
 		return FormatCache, nil
+	case "parquet", "pq":
+		return FormatParquet, nil
 	}
-	return FormatAuto, fmt.Errorf("catalog: unknown format name %q (want bsc5, hipparcos, hipparcos2007, gaia, csv, tsv or cache)", s)
+	return FormatAuto, fmt.Errorf("catalog: unknown format name %q (want bsc5, hipparcos, hipparcos2007, gaia, csv, tsv, cache or parquet)", s)
 }
 
 // --- format detection ---
@@ -97,6 +105,9 @@ func detectFormat(br *bufio.Reader, name string, gz bool) (Format, error) {
 	head = bytes.TrimPrefix(head, utf8BOM)
 	if bytes.HasPrefix(head, cacheMagic) {
 		return FormatCache, nil
+	}
+	if bytes.HasPrefix(head, parquetMagic) {
+		return FormatParquet, nil
 	}
 	var first []byte
 	rest := head

@@ -148,6 +148,15 @@ func Open(path string, opt ReadOptions) (*Stars, *Report, error) {
 		return nil, nil, fmt.Errorf("catalog: %w", err)
 	}
 	defer f.Close()
+	// Parquet is read through io.ReaderAt: straight from the file, not
+	// buffered into memory as Read must.
+	var head [4]byte
+	if k, _ := f.ReadAt(head[:], 0); !math.IsNaN(opt.Epoch) && math.Abs(opt.Epoch) <= 1e5 && (opt.Format == FormatAuto || opt.Format == FormatParquet) && k == 4 && bytes.Equal(head[:], parquetMagic) {
+		if fi, err := f.Stat(); err == nil && fi.Mode().IsRegular() {
+			o := opt.withDefaults()
+			return readParquet(f, fi.Size(), path, o, &Report{Source: path, DeclaredRows: -1})
+		}
+	}
 	return Read(f, path, opt)
 }
 
@@ -217,6 +226,15 @@ func Read(r io.Reader, name string, opt ReadOptions) (*Stars, *Report, error) {
 		}
 		summarise(s, rep)
 		return s, rep, nil
+	}
+	if format == FormatParquet {
+		// Parquet needs random access: hold the (inflated) input in memory,
+		// within the inflation limits. Open reads files in place.
+		data, err := io.ReadAll(br)
+		if err != nil {
+			return nil, rep, &ParseError{File: name, Err: mapReadErr(err, rep.Compressed)}
+		}
+		return readParquet(bytes.NewReader(data), int64(len(data)), name, opt, rep)
 	}
 	b := newBuilder(name, format, opt, rep)
 	var err error
