@@ -26,7 +26,8 @@ const catalogHelp = `Usage: skyframe catalog <inspect|pack|fetch> [options] ...
                         first line numbers), and the magnitude, colour and
                         distance ranges
   pack FILE -o OUT      convert any catalogue into skyframe's compact, versioned,
-                        checksummed binary cache (loads fast; use it with --catalog)
+                        checksummed binary cache (loads fast; use it with --catalog);
+                        --to parquet writes Apache Parquet instead
   fetch NAME            download a catalogue from the CDS archive into the user
                         cache directory, verify its structure, print its path.
                         NAME: ` + "%s" + `
@@ -156,6 +157,7 @@ func catalogPack(e *env, args []string) error {
 	format := fs.String("catalog-format", "", "input format, overriding detection")
 	cols := fs.StringSlice("column", nil, "generic CSV/TSV column map, FIELD=NAME")
 	out := fs.StringP("output", "o", "", "cache file to write (required)")
+	to := fs.String("to", "cache", "output format: cache (skyframe's binary cache) or parquet (Apache Parquet, exact Stars columns)")
 	if err := fs.Parse(args); err != nil {
 		if err == pflag.ErrHelp {
 			return errHelp
@@ -168,6 +170,14 @@ func catalogPack(e *env, args []string) error {
 	if *out == "" {
 		return usagef("catalog pack: --output/-o is required")
 	}
+	write := catalog.WriteCache
+	switch *to {
+	case "cache":
+	case "parquet":
+		write = catalog.WriteParquet
+	default:
+		return usagef("catalog pack: --to %q (want cache or parquet)", *to)
+	}
 	if err := checkWritable("output", *out); err != nil {
 		return err
 	}
@@ -179,7 +189,7 @@ func catalogPack(e *env, args []string) error {
 	if err != nil {
 		return usageError{err}
 	}
-	err = render.WriteFileAtomic(*out, func(w io.Writer) error { return catalog.WriteCache(w, stars) })
+	err = render.WriteFileAtomic(*out, func(w io.Writer) error { return write(w, stars) })
 	if err != nil {
 		return err
 	}
