@@ -496,14 +496,22 @@ func ReadFITS(r io.Reader) (*FITSImage, error) {
 	if w < 1 || ht < 1 || ch < 1 || w > MaxSize || ht > MaxSize || ch > 16 {
 		return nil, fmt.Errorf("%w: array %d×%d×%d out of range", ErrFITSFormat, w, ht, ch)
 	}
+	// Read the data before allocating for it, so a header that declares a
+	// large array over a short input costs no more memory than the input.
+	need := int64(4 * w * ht * ch)
+	data, err := io.ReadAll(io.LimitReader(bufio.NewReaderSize(r, 1<<16), need))
+	if err != nil {
+		return nil, fmt.Errorf("%w: data: %v", ErrFITSFormat, err)
+	}
+	if int64(len(data)) < need {
+		n := len(data) / (4 * w)
+		return nil, fmt.Errorf("%w: data plane %d row %d: %v", ErrFITSFormat, n/ht+1, n%ht+1, io.ErrUnexpectedEOF)
+	}
 	img.Pix = make([]float32, w*ht*ch)
-	row := make([]byte, 4*w)
-	br := bufio.NewReaderSize(r, 1<<16)
 	for c := range ch {
 		for j := ht - 1; j >= 0; j-- {
-			if _, err := io.ReadFull(br, row); err != nil {
-				return nil, fmt.Errorf("%w: data plane %d row %d: %v", ErrFITSFormat, c+1, ht-j, err)
-			}
+			row := data[:4*w]
+			data = data[4*w:]
 			dst := img.Pix[ch*j*w:]
 			for i := range w {
 				dst[ch*i+c] = math.Float32frombits(binary.BigEndian.Uint32(row[4*i:]))
