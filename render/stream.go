@@ -171,16 +171,7 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 		// Bin this chunk's records (catalogue order) into tiles, then sum
 		// each tile into the frame accumulator; tiles are disjoint, so they
 		// run in parallel without changing any pixel's order of addition.
-		g.reset()
-		for pass := 0; pass < 2; pass++ {
-			for c := range chunks {
-				lo := c * chunkSize
-				for k := lo; k < lo+chunks[c].n; k++ {
-					g.bin(&recs[k], pass)
-				}
-			}
-			g.finishPass(pass)
-		}
+		g.binAll(recs, chunks, workers)
 		parallel(workers, len(g.start)-1, func(ti int) {
 			sa.tile(g, ti, &psf)
 		})
@@ -233,10 +224,90 @@ func resolveOptions(opt Options) (Options, PSF, int, error) {
 	return opt, psf, workers, nil
 }
 
-// reset empties the grid for the next chunk, keeping its storage.
-func (g *grid) reset() {
-	clear(g.start)
-	g.recs = g.recs[:0]
+// maxTiles bounds the tiles one record can touch: a kernel of radius
+// ≤ 4σ of MaxFWHM (55 px) spans at most 3 tiles per axis, twice with the
+// equirect wrap.
+const maxTiles = 2 * 3 * 3
+
+// tilesOf lists the tiles record r touches, in the order grid.bin visits
+// them, and returns how many.
+func (g *grid) tilesOf(r *splatRec, out *[maxTiles]int32) int {
+	k := 0
+	ty0, ty1 := g.tileRange(r.y, 0, g.h)
+	for rep := 0; rep < 2; rep++ {
+		x := r.x
+		if rep == 1 {
+			if r.wrap == 0 {
+				break
+			}
+			x += float64(r.wrap) * float64(g.w)
+		}
+		tx0, tx1 := g.tileRange(x, int(r.clip0), int(r.clip1))
+		for ty := ty0; ty <= ty1; ty++ {
+			for tx := tx0; tx <= tx1; tx++ {
+				if k < maxTiles {
+					out[k] = int32(ty*g.tw + tx)
+				}
+				k++
+			}
+		}
+	}
+	return min(k, maxTiles)
+}
+
+// binAll bins the drawn records of every transform chunk into tiles, like
+// grid.bin's two serial passes but in parallel over chunks: each chunk
+// counts its records per tile, a prefix sum in (tile, chunk) order gives
+// every chunk its own offsets inside each tile, and each chunk then copies
+// its records there. A tile's list thus holds chunk 0's records, then
+// chunk 1's, …, each in catalogue order: the same lists as the serial
+// passes, whatever the worker count. Storage is kept for the next call.
+func (g *grid) binAll(recs []splatRec, chunks []chunkResult, workers int) {
+	nt := len(g.start) - 1
+	nc := len(chunks)
+	if cap(g.fill) < nt*nc {
+		g.fill = make([]int32, nt*nc)
+	}
+	off := g.fill[:nt*nc] // off[c*nt+t]: chunk c's count, then its next slot, in tile t
+	clear(off)
+	parallel(workers, nc, func(c int) {
+		var ts [maxTiles]int32
+		cnt := off[c*nt : (c+1)*nt]
+		lo := c * chunkSize
+		for k := lo; k < lo+chunks[c].n; k++ {
+			m := g.tilesOf(&recs[k], &ts)
+			for _, t := range ts[:m] {
+				cnt[t]++
+			}
+		}
+	})
+	var run int32
+	for t := 0; t < nt; t++ {
+		g.start[t] = run
+		for c := 0; c < nc; c++ {
+			n := off[c*nt+t]
+			off[c*nt+t] = run
+			run += n
+		}
+	}
+	g.start[nt] = run
+	if cap(g.recs) < int(run) {
+		g.recs = make([]splatRec, run)
+	}
+	g.recs = g.recs[:run]
+	parallel(workers, nc, func(c int) {
+		var ts [maxTiles]int32
+		next := off[c*nt : (c+1)*nt]
+		lo := c * chunkSize
+		for k := lo; k < lo+chunks[c].n; k++ {
+			r := &recs[k]
+			m := g.tilesOf(r, &ts)
+			for _, t := range ts[:m] {
+				g.recs[next[t]] = *r
+				next[t]++
+			}
+		}
+	})
 }
 
 // streamAcc is the frame-sized float64 accumulator of RenderStream.
