@@ -149,8 +149,14 @@ func TestChunkRows(t *testing.T) {
 		want   int
 	}{
 		{frame + 1000*streamBytesPerRow, streamMinChunkRows}, // below the floor
-		{frame + 3_000_000*streamBytesPerRow, 3_000_000},
-		{0, int((DefaultMemoryBudget - frame) / streamBytesPerRow)},
+		{frame + 100_000*streamBytesPerRow, 100_000},
+		{frame + 3_000_000*streamBytesPerRow, streamMaxChunkRows}, // above the cap
+		{0, streamMaxChunkRows},
+		{frame / 2, streamMinChunkRows}, // budget below the frame itself
+	}
+	small := Options{Projection: camera.Projection{Width: 100, Height: 100}}
+	if have, want := ChunkRows(small, 100*100*streamBytesPerPixel+70_000*streamBytesPerRow), 70_000; have != want {
+		t.Errorf("ChunkRows 100²: have %d, want %d", have, want)
 	}
 	for _, tc := range tests {
 		if have := ChunkRows(opt, tc.budget); have != tc.want {
