@@ -281,3 +281,61 @@ func TestParquetBadInput(t *testing.T) {
 		t.Errorf("ParseFormat(parquet): have %v, %v", f, err)
 	}
 }
+
+// BenchmarkOpenParquet1M: Open on a WriteParquet file of 10⁶ stars.
+func BenchmarkOpenParquet1M(b *testing.B) {
+	p := filepath.Join(b.TempDir(), "s.parquet")
+	f, err := os.Create(p)
+	if err != nil {
+		b.Fatal(err)
+	}
+	if err := WriteParquet(f, bigStars(1_000_000)); err != nil {
+		b.Fatal(err)
+	}
+	if err := f.Close(); err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		s, _, err := Open(p, ReadOptions{})
+		if err != nil || s.Len() != 1_000_000 {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkOpenChunks1M reads a 10⁶-star cache file in 2¹⁸-row chunks.
+func BenchmarkOpenChunks1M(b *testing.B) {
+	p := filepath.Join(b.TempDir(), "c.skyfcat")
+	f, err := os.Create(p)
+	if err != nil {
+		b.Fatal(err)
+	}
+	if err := WriteCache(f, bigStars(1_000_000)); err != nil {
+		b.Fatal(err)
+	}
+	if err := f.Close(); err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		c, err := OpenChunks(p, 1<<18)
+		if err != nil {
+			b.Fatal(err)
+		}
+		rows := 0
+		for {
+			s, err := c.Next()
+			if err != nil {
+				break
+			}
+			rows += s.Len()
+		}
+		c.Close()
+		if rows != 1_000_000 {
+			b.Fatalf("%d rows", rows)
+		}
+	}
+}
