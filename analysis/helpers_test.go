@@ -1,10 +1,9 @@
 package analysis
 
 import (
+	"github.com/skyframe/skyframe/internal/sharedcat"
 	"math"
 	"math/rand/v2"
-	"os"
-	"path/filepath"
 	"testing"
 
 	"gonum.org/v1/gonum/spatial/r3"
@@ -57,20 +56,5 @@ func randomSky(n int, seed uint64) *catalog.Stars {
 // bsc5Path walks up from the package directory looking for
 // shared/catalogs/bsc5.dat; it skips the test when absent.
 func bsc5Path(t testing.TB) string {
-	t.Helper()
-	dir, err := os.Getwd()
-	if err != nil {
-		t.Skip(err)
-	}
-	for {
-		p := filepath.Join(dir, "shared", "catalogs", "bsc5.dat")
-		if _, err := os.Stat(p); err == nil {
-			return p
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			t.Skip("shared/catalogs/bsc5.dat not found above the package directory; skipping the real-catalogue check")
-		}
-		dir = parent
-	}
+	return sharedcat.BSC5(t)
 }

@@ -4,9 +4,9 @@ import (
 	"bufio"
 	"bytes"
 	"compress/gzip"
+	"github.com/skyframe/skyframe/internal/sharedcat"
 	"math"
 	"os"
-	"path/filepath"
 	"strconv"
 	"testing"
 )
@@ -14,22 +14,7 @@ import (
 // sharedBSC5 finds ../shared/catalogs/bsc5.dat by walking up from the
 // package directory, or skips the test.
 func sharedBSC5(t testing.TB) string {
-	t.Helper()
-	dir, err := os.Getwd()
-	if err != nil {
-		t.Fatal(err)
-	}
-	for {
-		p := filepath.Join(dir, "shared", "catalogs", "bsc5.dat")
-		if _, err := os.Stat(p); err == nil {
-			return p
-		}
-		up := filepath.Dir(dir)
-		if up == dir {
-			t.Skip("shared/catalogs/bsc5.dat not found in any parent directory; skipping the real-catalogue check")
-		}
-		dir = up
-	}
+	return sharedcat.BSC5(t)
 }
 
 // countBSC5 counts records and V limits by its own simple byte slicing of

@@ -2,10 +2,10 @@ package catalog
 
 import (
 	"bufio"
+	"github.com/skyframe/skyframe/internal/sharedcat"
 	"math"
 	"math/rand/v2"
 	"os"
-	"path/filepath"
 	"sort"
 	"strconv"
 	"strings"
@@ -20,22 +20,7 @@ type synthBSCRow struct {
 // synthFindBSC walks up from the package directory to a directory holding
 // shared/catalogs/bsc5.dat.
 func synthFindBSC(t testing.TB) string {
-	t.Helper()
-	dir, err := os.Getwd()
-	if err != nil {
-		t.Fatal(err)
-	}
-	for {
-		p := filepath.Join(dir, "shared", "catalogs", "bsc5.dat")
-		if _, err := os.Stat(p); err == nil {
-			return p
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			t.Skip("shared/catalogs/bsc5.dat not found in any parent directory; skipping comparison with the Bright Star Catalogue")
-		}
-		dir = parent
-	}
+	return sharedcat.BSC5(t)
 }
 
 // synthReadBSC parses Vmag (bytes 103–107), B−V (110–114) and GLAT (97–102),
