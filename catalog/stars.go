@@ -88,7 +88,9 @@ func (s *Stars) At(i int) Star {
 	if ra < 0 {
 		ra += 360
 	}
-	dec := math.Asin(math.Max(-1, math.Min(1, z))) * 180 / math.Pi
+	// atan2 rather than asin(z): the float32 vector need not be exactly unit,
+	// and asin amplifies that error near the poles.
+	dec := math.Atan2(z, math.Hypot(x, y)) * 180 / math.Pi
 	st := Star{
 		ID: s.ID[i], RA: ra, Dec: dec, Dist: float64(s.Dist[i]),
 		Vmag: float64(s.Vmag[i]), Teff: float64(s.Teff[i]), BV: float64(s.BV[i]),
