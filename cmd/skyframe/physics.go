@@ -70,6 +70,9 @@ type scene struct {
 }
 
 func (p *physicsFlags) resolve(fs *pflag.FlagSet) (*scene, error) {
+	if err := checkFinite("epoch", p.epoch); err != nil {
+		return nil, err
+	}
 	stars, err := loadStars(p.catalog, p.catalogFormat, p.columns, p.epoch)
 	if err != nil {
 		return nil, err
