@@ -215,7 +215,11 @@ func prepareInto(p *Prepared, stars *catalog.Stars, workers int) error {
 	// Validate in parallel; on failure let the serial Validate name the
 	// first bad row.
 	var bad atomic.Bool
+	bad.Store(!sameLengths(stars))
 	parallel(workers, nb, func(c int) {
+		if bad.Load() {
+			return
+		}
 		if stars.Slice(c*prepareBlock, min((c+1)*prepareBlock, n)).Validate() != nil {
 			bad.Store(true)
 		}
@@ -240,6 +244,21 @@ func prepareInto(p *Prepared, stars *catalog.Stars, workers int) error {
 		}
 	})
 	return nil
+}
+
+// sameLengths reports whether every column of s present has Len rows, so
+// that Slice is safe.
+func sameLengths(s *catalog.Stars) bool {
+	n := s.Len()
+	ok := len(s.ID) == n && len(s.X) == n && len(s.Y) == n && len(s.Z) == n && len(s.Dist) == n &&
+		len(s.Vmag) == n && len(s.Teff) == n && len(s.BV) == n && len(s.Flags) == n
+	if s.PMRA != nil || s.PMDec != nil {
+		ok = ok && len(s.PMRA) == n && len(s.PMDec) == n
+	}
+	if s.RV != nil {
+		ok = ok && len(s.RV) == n
+	}
+	return ok
 }
 
 // resize returns s with length n, reusing its storage when it can.
