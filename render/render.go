@@ -128,22 +128,11 @@ type Prepared struct {
 // table the observed magnitudes use (spectrum.Lookup), so that at β = 0
 // from the Sun the observed V′ equals the catalogue V.
 func Prepare(stars *catalog.Stars) (*Prepared, error) {
-	if stars == nil {
-		return nil, ErrStars
-	}
-	if err := stars.Validate(); err != nil {
-		return nil, fmt.Errorf("render: %w", err)
-	}
-	n := stars.Len()
-	p := &Prepared{Stars: stars, lnW0: make([]float64, n), lnV0: make([]float64, n), lnT0: make([]float64, n), u: make([]r3.Vec, n)}
-	lnV0Flux := math.Log(spectrum.V0FluxLambda)
-	for i := 0; i < n; i++ {
-		lnT := math.Log(float64(stars.Teff[i]))
-		s := spectrum.Lookup(lnT)
-		p.lnW0[i] = lnV0Flux - magToLn*float64(stars.Vmag[i]) - s.LnV
-		p.lnV0[i] = s.LnV
-		p.lnT0[i] = lnT
-		p.u[i] = r3.Unit(r3.Vec{X: float64(stars.X[i]), Y: float64(stars.Y[i]), Z: float64(stars.Z[i])})
+	// Every star's values depend on that star alone; prepareInto (stream.go)
+	// computes them on all CPUs, so the result does not depend on the split.
+	p := &Prepared{}
+	if err := prepareInto(p, stars, runtime.GOMAXPROCS(0)); err != nil {
+		return nil, err
 	}
 	return p, nil
 }
@@ -258,15 +247,7 @@ func (p *Prepared) Render(opt Options) (*Frame, error) {
 
 	// Phase 2: bin into tiles.
 	g := newGrid(f.W, f.H, psf.Radius())
-	for pass := 0; pass < 2; pass++ {
-		for c := range chunks {
-			lo := c * chunkSize
-			for k := lo; k < lo+chunks[c].n; k++ {
-				g.bin(&recs[k], pass)
-			}
-		}
-		g.finishPass(pass)
-	}
+	g.binAll(recs, chunks, workers)
 
 	// Phase 3: accumulate tiles.
 	var pool sync.Pool
@@ -500,9 +481,9 @@ func (t *transformer) star(i, j int, gb *geomBlock, rec *splatRec, res *chunkRes
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
-// grid bins splat records into tiles with a two-pass counting sort; each
-// tile gets its own copy of its records, in catalogue order, so phase 3
-// reads them sequentially.
+// grid bins splat records into tiles with a counting sort (grid.binAll,
+// in stream.go); each tile gets its own copy of its records, in catalogue
+// order, so phase 3 reads them sequentially.
 type grid struct {
 	w, h, tw, th int
 	radius       float64
@@ -525,43 +506,6 @@ func (g *grid) tileRange(x float64, clip0, clip1 int) (int, int) {
 		return 1, 0
 	}
 	return p0 / tileSize, p1 / tileSize
-}
-
-func (g *grid) bin(r *splatRec, pass int) {
-	ty0, ty1 := g.tileRange(r.y, 0, g.h)
-	for rep := 0; rep < 2; rep++ {
-		x := r.x
-		if rep == 1 {
-			if r.wrap == 0 {
-				break
-			}
-			x += float64(r.wrap) * float64(g.w)
-		}
-		tx0, tx1 := g.tileRange(x, int(r.clip0), int(r.clip1))
-		for ty := ty0; ty <= ty1; ty++ {
-			for tx := tx0; tx <= tx1; tx++ {
-				t := ty*g.tw + tx
-				if pass == 0 {
-					g.start[t+1]++
-				} else {
-					g.recs[g.fill[t]] = *r
-					g.fill[t]++
-				}
-			}
-		}
-	}
-}
-
-func (g *grid) finishPass(pass int) {
-	if pass != 0 {
-		return
-	}
-	for t := 1; t < len(g.start); t++ {
-		g.start[t] += g.start[t-1]
-	}
-	g.recs = make([]splatRec, g.start[len(g.start)-1])
-	g.fill = make([]int32, len(g.start)-1)
-	copy(g.fill, g.start)
 }
 
 // tileAcc is one worker's float64 accumulator for a tile.
