@@ -131,8 +131,12 @@ func benchScale(b *testing.B, kind camera.Kind, w, h int, stream bool) {
 			opt := scaleOptions(b, kind, w, h)
 			frame := float64(w * h * 12)
 			run := func() (*Frame, error) { return Render(stars, opt) }
-			if stream {
+			if stream || n > ChunkRows(opt, DefaultMemoryBudget) {
+				// Render streams such catalogues too: the float64
+				// accumulator is a frame buffer.
 				frame += float64(w * h * 24)
+			}
+			if stream {
 				rows := ChunkRows(opt, 0)
 				run = func() (*Frame, error) { return RenderStream(Chunks(stars, rows), opt) }
 			}
