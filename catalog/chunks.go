@@ -60,7 +60,8 @@ type ChunkReader struct {
 	format   string
 	names    map[int]string // all names, by file row
 	buf      []byte
-	nameRows []int // rows of names, ascending
+	nameRows []int  // rows of names, ascending
+	cur      *Stars // the chunk last returned, whose storage Next reuses
 }
 
 // OpenChunks opens the cache file at path for reading in chunks of at most
@@ -215,9 +216,12 @@ func (c *ChunkReader) colOffset(j, row int) int64 {
 func (c *ChunkReader) Len() int { return c.n }
 
 // Next returns the next chunk: rows pos..pos+k−1 of the file with k ≤ the
-// chunk length, as a fresh Stars whose Names are indexed by chunk row.
-// After the last chunk it returns nil, io.EOF. A chunk with a non-finite
-// value where Validate forbids one is refused with ErrCorrupt.
+// chunk length, as a Stars whose Names are indexed by chunk row. The
+// chunk's storage is reused by the following call of Next (as
+// bufio.Scanner reuses its buffer), so that reading a file allocates one
+// chunk, not one per chunk: copy what must outlive it. After the last
+// chunk Next returns nil, io.EOF. A chunk with a non-finite value where
+// Validate forbids one is refused with ErrCorrupt.
 func (c *ChunkReader) Next() (*Stars, error) {
 	if c.f == nil {
 		return nil, errors.New("catalog: chunks: reader is closed")
@@ -227,12 +231,17 @@ func (c *ChunkReader) Next() (*Stars, error) {
 	}
 	lo := c.pos
 	k := min(c.rows, c.n-lo)
-	s := &Stars{Epoch: c.epoch, Source: c.source, Format: c.format}
+	if c.cur == nil {
+		c.cur = &Stars{}
+	}
+	s := c.cur
+	*s = Stars{Epoch: c.epoch, Source: c.source, Format: c.format, ID: s.ID, X: s.X, Y: s.Y, Z: s.Z,
+		Dist: s.Dist, Vmag: s.Vmag, Teff: s.Teff, BV: s.BV, Flags: s.Flags, PMRA: s.PMRA, PMDec: s.PMDec, RV: s.RV, Names: s.Names}
 	b, err := c.read(c.offID+8*int64(lo), 8*k)
 	if err != nil {
 		return nil, err
 	}
-	s.ID = make([]int64, k)
+	s.ID = reuse(s.ID, k)
 	for i := range s.ID {
 		s.ID[i] = int64(binary.LittleEndian.Uint64(b[8*i:]))
 	}
@@ -248,7 +257,7 @@ func (c *ChunkReader) Next() (*Stars, error) {
 		if err != nil {
 			return nil, err
 		}
-		col := make([]float32, k)
+		col := reuse(*p, k)
 		for i := range col {
 			col[i] = math.Float32frombits(binary.LittleEndian.Uint32(b[4*i:]))
 		}
@@ -258,10 +267,17 @@ func (c *ChunkReader) Next() (*Stars, error) {
 	if err != nil {
 		return nil, err
 	}
-	s.Flags = make([]Flag, k)
+	s.Flags = reuse(s.Flags, k)
 	for i, v := range b {
 		s.Flags[i] = Flag(v)
 	}
+	if c.bits&cacheHasPM == 0 {
+		s.PMRA, s.PMDec = nil, nil
+	}
+	if c.bits&cacheHasRV == 0 {
+		s.RV = nil
+	}
+	s.Names = nil
 	if c.names != nil {
 		s.Names = map[int]string{}
 		for _, r := range c.nameRows {
@@ -275,6 +291,14 @@ func (c *ChunkReader) Next() (*Stars, error) {
 	}
 	c.pos += k
 	return s, nil
+}
+
+// reuse returns v with length k, keeping its storage when large enough.
+func reuse[T any](v []T, k int) []T {
+	if cap(v) >= k {
+		return v[:k]
+	}
+	return make([]T, k)
 }
 
 // read returns k bytes at off in a reused buffer.
