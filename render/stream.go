@@ -22,11 +22,13 @@ const DefaultMemoryBudget = 1 << 30
 // Memory model of the streaming renderer, in bytes. A chunk row costs its
 // catalogue columns (37), the Prepared per-star values (48), its splat
 // record (48) and that record's tile copies (48 and a little more for
-// stars whose kernel crosses tiles): about 190. A frame pixel costs the
+// stars whose kernel crosses tiles), about 190, and the peak Go heap was
+// measured at about 220 per row (BenchmarkScaleStreamFile1e7). A frame
+// pixel costs the
 // float32 buffer (12, +4 with Doppler) and the float64 accumulator the
 // stream sums into (24, +8 with Doppler).
 const (
-	streamBytesPerRow   = 190
+	streamBytesPerRow   = 220
 	streamMinChunkRows  = 1 << 16
 	streamBytesPerPixel = 12 + 24
 	streamDopplerPixel  = 4 + 8
@@ -34,7 +36,7 @@ const (
 
 // ChunkRows returns how many stars per chunk RenderStream can take for the
 // frame of opt within memoryBudget bytes (0 means DefaultMemoryBudget):
-// the budget left after the frame buffers, divided by about 190 bytes per
+// the budget left after the frame buffers, divided by about 220 bytes per
 // row, and at least 65 536 rows (a budget smaller than the frame buffers
 // cannot be met; the minimum keeps the per-chunk overhead small).
 //
