@@ -162,8 +162,8 @@ type splatRec struct {
 //
 // A catalogue longer than ChunkRows(opt, DefaultMemoryBudget) is drawn by
 // RenderStream in chunks of that length, which bounds the working memory
-// (about 190 bytes per star in memory at once, against about 170 per
-// catalogue star for the one-pass path) and gives a bit-identical frame.
+// (about 220 bytes per star of a chunk, against about 170 per catalogue
+// star for the one-pass path) and gives a bit-identical frame.
 func Render(stars *catalog.Stars, opt Options) (*Frame, error) {
 	if rows := ChunkRows(opt, DefaultMemoryBudget); stars != nil && stars.Len() > rows {
 		return RenderStream(Chunks(stars, rows), opt)
