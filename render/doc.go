@@ -78,5 +78,30 @@
 // 0.5 unchanged, rolls it smoothly toward 1 above, scaling R, G, B
 // together, and desaturates toward equal-luminance grey whatever channel
 // still exceeds 1, so hues hold. The IEC 61966-2-1 sRGB transfer curve is
-// applied once, at output, to 8- or 16-bit NRGBA images.
+// applied once, at output, to 8- or 16-bit NRGBA images.//
+// # Layers
+//
+// A frame is built in two stages. The linear stage writes into the buffer,
+// so it is also in the FITS data: the stars, then (Layers.CMB) the cosmic
+// microwave background, each pixel at the surface brightness of a blackbody
+// at T′ = T₀·D_sun·D_ship for its direction times the pixel's solid angle,
+// on the stars' photometric scale. Tone mapping and sRGB encoding follow.
+// DrawOverlays then draws, anti-aliased, on the encoded image only, in this
+// order: the aberrated coordinate grid, the D = 1 circle, the lattice of
+// beacons, the motion and destination markers, star labels and the
+// heads-up display. Overlays never reach the FITS data.
+//
+// # Output
+//
+// WritePNG writes 8- or 16-bit sRGB PNG with sRGB, gAMA and cHRM chunks and
+// the frame's parameters as tEXt (or iTXt) chunks; its own encoder deflates
+// strips of rows in parallel into one zlib stream (image/png spends over a
+// second on a 16-bit 4096² frame), byte-identical for any worker count.
+// WriteFITS writes the linear buffer as a BITPIX −32 cube (NAXIS3 = 3: R, G,
+// B); FITS rows run bottom-up, so buffer pixel (x, y) is FITS pixel
+// (x+1, H−y). WCSCards describes the projection in FITS WCS (TAN pinhole,
+// ARC fisheye, CAR equirectangular; none for the cube strip): it maps
+// pixels to the apparent ICRS directions seen from the ship, after
+// aberration. WriteFileAtomic writes any file through a temporary file in
+// the same directory, fsync and rename, so no partial file is ever left.
 package render
