@@ -400,13 +400,14 @@ type streamAcc struct {
 	w, h, tw int
 	rgb      []float64 // 3 per pixel, tile-major
 	dsum     []float64 // Σ luminance·D per pixel, when Doppler
+	used     []bool    // tile has received a record (its block was written)
 }
 
 const tilePix = tileSize * tileSize
 
 func newStreamAcc(w, h int, doppler bool) *streamAcc {
 	tw, th := (w+tileSize-1)/tileSize, (h+tileSize-1)/tileSize
-	sa := &streamAcc{w: w, h: h, tw: tw, rgb: make([]float64, 3*tilePix*tw*th)}
+	sa := &streamAcc{w: w, h: h, tw: tw, rgb: make([]float64, 3*tilePix*tw*th), used: make([]bool, tw*th)}
 	if doppler {
 		sa.dsum = make([]float64, tilePix*tw*th)
 	}
@@ -429,15 +430,27 @@ func (sa *streamAcc) tile(g *grid, ti int, psf *PSF, a *tileAcc) {
 	wx, wy := &a.wx, &a.wy
 	ox, oy := (ti%g.tw)*tileSize, (ti/g.tw)*tileSize
 	tw, th := min(tileSize, sa.w-ox), min(tileSize, sa.h-oy)
+	// A tile no earlier chunk touched is all zeros: clear the scratch
+	// instead of reading the (still unmapped) block.
+	first := !sa.used[ti]
+	sa.used[ti] = true
 	block := sa.rgb[3*tilePix*ti : 3*tilePix*(ti+1)]
 	acc := &a.rgb
-	copy(acc[:], block)
+	if first {
+		clear(acc[:])
+	} else {
+		copy(acc[:], block)
+	}
 	defer copy(block, acc[:])
 	dacc := &a.dsum
 	doppler := sa.dsum != nil
 	if doppler {
 		dblock := sa.dsum[tilePix*ti : tilePix*(ti+1)]
-		copy(dacc[:], dblock)
+		if first {
+			clear(dacc[:])
+		} else {
+			copy(dacc[:], dblock)
+		}
 		defer copy(dblock, dacc[:])
 	}
 	for k := range list {
@@ -488,6 +501,9 @@ func (sa *streamAcc) tile(g *grid, ti int, psf *PSF, a *tileAcc) {
 func (sa *streamAcc) store(b *Buffer, workers int) {
 	nt := len(sa.rgb) / (3 * tilePix)
 	parallel(workers, nt, func(ti int) {
+		if !sa.used[ti] {
+			return // the buffer is already black there
+		}
 		ox, oy := (ti%sa.tw)*tileSize, (ti/sa.tw)*tileSize
 		tw, th := min(tileSize, sa.w-ox), min(tileSize, sa.h-oy)
 		acc := sa.rgb[3*tilePix*ti : 3*tilePix*(ti+1)]
