@@ -375,7 +375,9 @@ func (g *grid) binAll(recs []splatRec, chunks []chunkResult, workers int) {
 	}
 	g.start[nt] = run
 	if cap(g.recs) < int(run) {
-		g.recs = make([]splatRec, run)
+		// Headroom, so that a later stream chunk with a few more tile
+		// copies reuses this storage instead of leaving it as garbage.
+		g.recs = make([]splatRec, run, int(run)+int(run)/8)
 	}
 	g.recs = g.recs[:run]
 	parallel(workers, nc, func(c int) {
