@@ -2,6 +2,7 @@ package catalog
 
 import (
 	"bytes"
+	"encoding/binary"
 	"errors"
 	"fmt"
 	"io"
@@ -128,6 +129,34 @@ func WriteParquet(w io.Writer, s *Stars) (err error) {
 	return nil
 }
 
+// MaxParquetFooterBytes bounds the metadata footer of a Parquet file. The
+// footer of a star table is a few kilobytes; parquet-go allocates whatever
+// length the file claims before checking it, so a hostile 8-byte trailer
+// could otherwise ask for gigabytes.
+const MaxParquetFooterBytes = 64 << 20
+
+// checkParquetFooter validates the file's trailer — the 4-byte little-endian
+// footer length and the "PAR1" magic (Apache Parquet format specification,
+// "File format") — before the library trusts it.
+func checkParquetFooter(ra io.ReaderAt, size int64, name string) error {
+	if size < 12 {
+		return &ParseError{File: name, Err: fmt.Errorf("%w: parquet: %d bytes is too short for a Parquet file", ErrCorrupt, size)}
+	}
+	var tail [8]byte
+	if _, err := ra.ReadAt(tail[:], size-8); err != nil {
+		return &ParseError{File: name, Err: fmt.Errorf("%w: parquet: reading the trailer: %v", ErrCorrupt, err)}
+	}
+	if string(tail[4:]) != "PAR1" {
+		return &ParseError{File: name, Err: fmt.Errorf("%w: parquet: no PAR1 magic at the end of the file", ErrCorrupt)}
+	}
+	n := int64(binary.LittleEndian.Uint32(tail[:4]))
+	if n > size-12 || n > MaxParquetFooterBytes {
+		return &ParseError{File: name,
+			Err: fmt.Errorf("%w: parquet: footer of %d bytes in a %d-byte file (limit %d)", ErrCorrupt, n, size, int64(MaxParquetFooterBytes))}
+	}
+	return nil
+}
+
 // readParquet reads a Parquet file of size bytes from ra.
 func readParquet(ra io.ReaderAt, size int64, name string, opt ReadOptions, rep *Report) (s *Stars, _ *Report, err error) {
 	rep.Format = FormatParquet
@@ -138,6 +167,9 @@ func readParquet(ra io.ReaderAt, size int64, name string, opt ReadOptions, rep *
 			s, err = nil, &ParseError{File: name, Err: fmt.Errorf("%w: parquet: %v", ErrCorrupt, r)}
 		}
 	}()
+	if err := checkParquetFooter(ra, size, name); err != nil {
+		return nil, rep, err
+	}
 	f, err := parquet.OpenFile(ra, size)
 	if err != nil {
 		return nil, rep, &ParseError{File: name, Err: fmt.Errorf("%w: parquet: %v", ErrCorrupt, err)}
