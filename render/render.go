@@ -354,6 +354,7 @@ const blockSize = 256
 // Doppler factors and dilutions.
 type geomBlock struct {
 	x, y, z, d, dil [blockSize]float64
+	lnD             [blockSize]float64 // ln d, filled by geometry
 	bad             [blockSize]bool
 }
 
@@ -389,6 +390,41 @@ func (t *transformer) geometry(lo, m int, g *geomBlock) {
 		g.dil[k] = q * q
 	}
 	t.opt.Observer.Boost.ApplyBatch(g.x[:m], g.y[:m], g.z[:m], g.x[:m], g.y[:m], g.z[:m], g.d[:m])
+	for k, d := range g.d[:m] {
+		g.lnD[k] = lnFast(d)
+	}
+}
+
+// lnTab holds, for the 256 mantissa intervals [1 + j/256, 1 + (j+1)/256),
+// c = 1/(1 + j/256) rounded and −ln c, for lnFast (c = 1 exactly at j = 0,
+// so lnFast(1) = 0).
+var lnTab = func() (t [256][2]float64) {
+	for j := range t {
+		c := 1 / (1 + float64(j)/256)
+		t[j] = [2]float64{c, -math.Log(c)}
+	}
+	return t
+}()
+
+// lnFast returns ln d within about 1 ulp of math.Log(d) (the two may
+// differ in the last bit), without a division: d = 2^e·m, ln d =
+// e·ln 2 − ln c + ln(1 + r), r = m·c − 1 (one fused multiply-add, exact),
+// 0 ≤ r < 1/256, by a degree-7 series (truncation < 1e-20). Zero,
+// negative, subnormal, infinite and NaN d go to math.Log.
+func lnFast(d float64) float64 {
+	if !(d >= 0x1p-1022 && d <= math.MaxFloat64) {
+		return math.Log(d)
+	}
+	b := math.Float64bits(d)
+	e := float64(int(b>>52) - 1023)
+	m := math.Float64frombits(b&(1<<52-1) | 1023<<52)
+	c := &lnTab[b>>44&255]
+	r := math.FMA(m, c[0], -1)
+	r2 := r * r
+	// ln(1+r) = r − r²/2 + r³/3 − r⁴/4 + r⁵/5 − r⁶/6 + r⁷/7.
+	p := (r - r2*(1.0/2-r*(1.0/3))) - r2*r2*((1.0/4-r*(1.0/5))+r2*(1.0/6-r*(1.0/7)))
+	const ln2Hi, ln2Lo = 6.93147180369123816490e-01, 1.90821492927058770002e-10
+	return e*ln2Hi + (c[1] + (e*ln2Lo + p))
 }
 
 // see applies the photometry to star i, whose boosted direction, Doppler
@@ -399,7 +435,7 @@ func (t *transformer) see(i, k int, g *geomBlock) (vObs, lnW float64, sm spectru
 	if g.bad[k] || !(d > 0) {
 		return 0, 0, sm, seeInvalid
 	}
-	lnD := math.Log(d)
+	lnD := g.lnD[k]
 	// ln W′ − ln W₀ = ln dilution + ln WScale(D), WScale(D) = D^(k−4).
 	dlnW := t.beamExp * lnD
 	if dil := g.dil[k]; dil != 1 {
