@@ -148,6 +148,12 @@ func horner(c *[4]float64, t float64) float64 {
 	return c[0] + t*(c[1]+t*(c[2]+t*c[3]))
 }
 
+// estrin evaluates the same cubic as horner with a shorter dependency
+// chain (the two halves in parallel), for Lookup's hot path; t2 = t².
+func estrin(c *[4]float64, t, t2 float64) float64 {
+	return (c[0] + t*c[1]) + t2*(c[2]+t*c[3])
+}
+
 // Lookup returns the photometry per unit W of a blackbody at temperature
 // T = exp(lnT) kelvin. It is allocation-free and needs no math library call
 // inside the tabulated range 1 K ≤ T ≤ 10¹² K (the table is built on the
@@ -169,14 +175,18 @@ func Lookup(lnT float64) Sample {
 	i := int(s)
 	t := s - float64(i)
 	c := &p.tab[i]
-	// e^{−t·h} for t·h < 0.036: degree-7 Taylor, relative error < 1e-16.
+	// e^{−t·h} for t·h < 0.036: degree-7 Taylor, relative error < 1e-16,
+	// in Estrin form (four short chains instead of one of seven steps).
 	z := t * tabH
-	e := 1 - z*(1-z*(1.0/2-z*(1.0/6-z*(1.0/24-z*(1.0/120-z*(1.0/720-z*(1.0/5040)))))))
+	z2 := z * z
+	z4 := z2 * z2
+	e := ((1 - z) + z2*(1.0/2-z*(1.0/6))) + z4*((1.0/24-z*(1.0/120))+z2*(1.0/720-z*(1.0/5040)))
+	t2 := t * t
 	return Sample{
-		LnY: horner(&c.gy, t) - c.wy*e,
-		LnV: horner(&c.gv, t) - c.wv*e,
-		X:   horner(&c.cx, t),
-		Y:   horner(&c.cy, t),
+		LnY: estrin(&c.gy, t, t2) - c.wy*e,
+		LnV: estrin(&c.gv, t, t2) - c.wv*e,
+		X:   estrin(&c.cx, t, t2),
+		Y:   estrin(&c.cy, t, t2),
 	}
 }
 
