@@ -130,13 +130,13 @@ func observeStars(sc *scene) []starRow {
 		raObs, decObs := camera.RADec(n)
 		cx, cy := spectrum.Chromaticity(obs.T)
 		row := starRow{
-			ID: st.ID, RA: st.RA, Dec: st.Dec, Temp: st.Teff, Vmag: st.Vmag,
+			ID: st.ID, RA: st.RA, Dec: st.Dec, Temp: short32(st.Teff), Vmag: short32(st.Vmag),
 			RAObs: raObs, DecObs: decObs, Doppler: d, TempObs: obs.T,
 			VmagObs: obs.Vmag(), FluxRatio: obs.Bolometric() / bb.Bolometric(),
 			CIEx: cx, CIEy: cy,
 		}
 		if !math.IsInf(st.Dist, 0) {
-			dist := st.Dist
+			dist := short32(st.Dist)
 			row.Dist = &dist
 		}
 		rows = append(rows, row)
@@ -180,3 +180,14 @@ func writeStarRows(w io.Writer, rows []starRow, format string) error {
 }
 
 var _ = catalog.FlagNoDistance
+
+// short32 returns the float64 nearest to the shortest decimal that reads
+// back as the float32 v: catalogue columns are stored as float32, and
+// -1.46 should print as -1.46, not -1.4600000381469727.
+func short32(v float64) float64 {
+	f, err := strconv.ParseFloat(strconv.FormatFloat(v, 'g', -1, 32), 64)
+	if err != nil {
+		return v
+	}
+	return f
+}
