@@ -242,10 +242,24 @@ func prepareInto(p *Prepared, stars *catalog.Stars, workers int) error {
 			p.lnW0[i] = lnV0Flux - magToLn*float64(stars.Vmag[i]) - s.LnV
 			p.lnV0[i] = s.LnV
 			p.lnT0[i] = lnT
-			p.u[i] = r3.Unit(r3.Vec{X: float64(stars.X[i]), Y: float64(stars.Y[i]), Z: float64(stars.Z[i])})
+			p.u[i] = unit32(stars.X[i], stars.Y[i], stars.Z[i])
 		}
 	})
 	return nil
+}
+
+// unit32 returns the unit vector along float32 components. Their float64
+// squares are exact (24-bit mantissas) and cannot overflow or underflow, so
+// √(x²+y²+z²) is as accurate as r3.Norm's nested hypot at a fraction of
+// its cost; the zero vector and non-finite input go to r3.Unit.
+func unit32(x32, y32, z32 float32) r3.Vec {
+	x, y, z := float64(x32), float64(y32), float64(z32)
+	s := x*x + y*y + z*z
+	if !(s > 0 && s <= math.MaxFloat64) {
+		return r3.Unit(r3.Vec{X: x, Y: y, Z: z})
+	}
+	inv := 1 / math.Sqrt(s)
+	return r3.Vec{X: x * inv, Y: y * inv, Z: z * inv}
 }
 
 // sameLengths reports whether every column of s present has Len rows, so
