@@ -5,8 +5,6 @@ import (
 	"fmt"
 	"math"
 	"runtime"
-	"sync"
-	"sync/atomic"
 
 	"gonum.org/v1/gonum/spatial/r3"
 
@@ -241,7 +239,7 @@ func AddCMB(f *Frame, opt CMBOptions) error {
 	// (e^−87.3) even at the largest pixel solid angle skip the exponential.
 	lnMin := -87.3 - math.Log(k*sa.max())
 	color := f.Options.Color
-	rowsInParallel(workers, f.H, func(j int) {
+	parallel(workers, f.H, func(j int) {
 		row := f.Pix[3*j*f.W : 3*(j+1)*f.W]
 		y := float64(j) + 0.5
 		for i := 0; i < f.W; i++ {
@@ -272,30 +270,4 @@ func AddCMB(f *Frame, opt CMBOptions) error {
 		}
 	})
 	return nil
-}
-
-// rowsInParallel calls fn(0..n−1) on up to workers goroutines, handing out
-// rows in order from a shared counter.
-func rowsInParallel(workers, n int, fn func(int)) {
-	workers = min(workers, n)
-	if workers <= 1 {
-		for i := 0; i < n; i++ {
-			fn(i)
-		}
-		return
-	}
-	var next atomic.Int64
-	var wg sync.WaitGroup
-	for w := 0; w < workers; w++ {
-		wg.Go(func() {
-			for {
-				i := int(next.Add(1)) - 1
-				if i >= n {
-					return
-				}
-				fn(i)
-			}
-		})
-	}
-	wg.Wait()
 }

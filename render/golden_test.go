@@ -99,33 +99,40 @@ func TestGolden(t *testing.T) {
 	for _, c := range goldenCases {
 		t.Run(c.name, func(t *testing.T) {
 			img := c.render(t)
-			path := filepath.Join(goldenDir, c.name+"_golden.png")
-			if *regen {
-				var buf bytes.Buffer
-				if err := png.Encode(&buf, img); err != nil {
-					t.Fatal(err)
-				}
-				if err := os.MkdirAll(goldenDir, 0o755); err != nil {
-					t.Fatal(err)
-				}
-				if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
-					t.Fatal(err)
-				}
-				return
-			}
-			fh, err := os.Open(path)
-			if err != nil {
-				t.Fatalf("%v (run with -regen to create)", err)
-			}
-			defer fh.Close()
-			want, err := png.Decode(fh)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if msg := compareImages(img, want, 2, 0.1); msg != "" {
-				t.Errorf("%s differs from %s: %s", c.name, path, msg)
-			}
+			checkGoldenIn(t, goldenDir, c.name, img)
 		})
+	}
+}
+
+// checkGoldenIn compares img with dir/<name>_golden.png within the package
+// tolerance (2/255 per channel, mean 0.1/255), or rewrites it under -regen.
+func checkGoldenIn(t *testing.T, dir, name string, img *image.NRGBA) {
+	t.Helper()
+	path := filepath.Join(dir, name+"_golden.png")
+	if *regen {
+		var buf bytes.Buffer
+		if err := png.Encode(&buf, img); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return
+	}
+	fh, err := os.Open(path)
+	if err != nil {
+		t.Fatalf("%v (run with -regen to create)", err)
+	}
+	defer fh.Close()
+	want, err := png.Decode(fh)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if msg := compareImages(img, want, 2, 0.1); msg != "" {
+		t.Errorf("%s differs from %s: %s", name, path, msg)
 	}
 }
 

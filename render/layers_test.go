@@ -4,10 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"image"
-	"image/png"
 	"math"
-	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 
@@ -18,37 +15,10 @@ import (
 
 const layersGoldenDir = "../testdata/layers"
 
-// checkGolden compares img with testdata/layers/<name>_golden.png using the
-// package's compareImages tolerance (2/255 per channel, mean 0.1/255), or
-// rewrites it under -regen.
+// checkGolden compares img with testdata/layers/<name>_golden.png.
 func checkGolden(t *testing.T, name string, img *image.NRGBA) {
 	t.Helper()
-	path := filepath.Join(layersGoldenDir, name+"_golden.png")
-	if *regen {
-		var buf bytes.Buffer
-		if err := png.Encode(&buf, img); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.MkdirAll(layersGoldenDir, 0o755); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return
-	}
-	fh, err := os.Open(path)
-	if err != nil {
-		t.Fatalf("%v (run with -regen to create)", err)
-	}
-	defer fh.Close()
-	want, err := png.Decode(fh)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if msg := compareImages(img, want, 2, 0.1); msg != "" {
-		t.Errorf("%s differs from %s: %s", name, path, msg)
-	}
+	checkGoldenIn(t, layersGoldenDir, name, img)
 }
 
 type layerCase struct {

@@ -8,7 +8,7 @@ import (
 
 // The embedded table's column sums equal those recorded with an independent
 // copy of the same CVRL ciexyz31 5 nm file (CIE 015:2004) [pub]: a guard
-// against transcription errors.
+// against errors in copying the table.
 func TestCMFTableSums(t *testing.T) {
 	want := [3]float64{21.373139988621006, 21.371407850470007, 21.378664308989997}
 	var have [3]float64
