@@ -2,7 +2,6 @@ package render
 
 import (
 	"errors"
-	"fmt"
 	"math"
 	"runtime"
 	"sync"
@@ -183,35 +182,9 @@ func Render(stars *catalog.Stars, opt Options) (*Frame, error) {
 // tiles (a star whose kernel crosses tiles goes into each); each tile then
 // accumulates its stars in catalogue order in float64 and is stored once.
 func (p *Prepared) Render(opt Options) (*Frame, error) {
-	if opt.Workers < 0 {
-		return nil, fmt.Errorf("%w: %d", ErrWorkers, opt.Workers)
-	}
-	if math.IsNaN(opt.Exposure) || math.IsInf(opt.Exposure, 0) {
-		return nil, fmt.Errorf("%w: %v", ErrExposure, opt.Exposure)
-	}
-	if math.IsNaN(opt.Limit) {
-		return nil, ErrLimit
-	}
-	if err := opt.Projection.Prepare(); err != nil {
-		return nil, fmt.Errorf("render: %w", err)
-	}
-	if opt.Beaming.FluxExponent() == 0 {
-		return nil, fmt.Errorf("%w: %d", ErrBeaming, int(opt.Beaming))
-	}
-	psf, err := NewPSF(opt.FWHM)
+	opt, psf, workers, err := resolveOptions(opt)
 	if err != nil {
 		return nil, err
-	}
-	opt.FWHM = psf.FWHM()
-	if opt.Limit == 0 {
-		opt.Limit = opt.Exposure + DefaultLimitOffset
-	}
-	if opt.Brightest == 0 {
-		opt.Brightest = DefaultBrightest
-	}
-	workers := opt.Workers
-	if workers == 0 {
-		workers = runtime.GOMAXPROCS(0)
 	}
 	buf, err := NewBuffer(opt.Projection.Width, opt.Projection.Height, opt.Doppler)
 	if err != nil {

@@ -285,7 +285,8 @@ func resize[T any](s []T, n int) []T {
 	return make([]T, n)
 }
 
-// resolveOptions checks opt and fills in the defaults the way Render does.
+// resolveOptions checks opt and fills in its defaults; Render and
+// RenderStream both start with it.
 func resolveOptions(opt Options) (Options, PSF, int, error) {
 	var psf PSF
 	if opt.Workers < 0 {
