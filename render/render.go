@@ -412,7 +412,7 @@ func (t *transformer) see(i, k int, g *geomBlock) (vObs, lnW float64, sm spectru
 	// ln W′ − ln W₀ = ln dilution + ln WScale(D), WScale(D) = D^(k−4).
 	dlnW := t.beamExp * lnD
 	if dil := g.dil[k]; dil != 1 {
-		dlnW += math.Log(dil)
+		dlnW += lnFast(dil)
 	}
 	sm = spectrum.Lookup(t.p.lnT0[i] + lnD)
 	// V′ = V − 2.5 log10(F′_V/F_V), F_V ∝ W·exp(LnV).

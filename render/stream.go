@@ -237,7 +237,7 @@ func prepareInto(p *Prepared, stars *catalog.Stars, workers int) error {
 	lnV0Flux := math.Log(spectrum.V0FluxLambda)
 	parallel(workers, nb, func(c int) {
 		for i := c * prepareBlock; i < min((c+1)*prepareBlock, n); i++ {
-			lnT := math.Log(float64(stars.Teff[i]))
+			lnT := lnFast(float64(stars.Teff[i]))
 			s := spectrum.Lookup(lnT)
 			p.lnW0[i] = lnV0Flux - magToLn*float64(stars.Vmag[i]) - s.LnV
 			p.lnV0[i] = s.LnV
