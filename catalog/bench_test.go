@@ -3,12 +3,32 @@ package catalog
 import (
 	"bytes"
 	"fmt"
+	"io"
 	"math"
 	"math/rand/v2"
 	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
+
+// writeStarsFile writes s with write (WriteCache, WriteParquet) to a new
+// file name in a temporary directory and returns its path.
+func writeStarsFile(tb testing.TB, name string, write func(io.Writer, *Stars) error, s *Stars) string {
+	tb.Helper()
+	p := filepath.Join(tb.TempDir(), name)
+	f, err := os.Create(p)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	if err := write(f, s); err != nil {
+		tb.Fatal(err)
+	}
+	if err := f.Close(); err != nil {
+		tb.Fatal(err)
+	}
+	return p
+}
 
 // hipMainText generates n rows in the hip_main.dat layout (fields H0…H77,
 // widths as in hip_main_good.dat), invented values from a seeded generator.
@@ -143,17 +163,7 @@ func BenchmarkCacheWrite100k(b *testing.B) {
 
 // BenchmarkOpenCache1M: Open on a cache file of 10⁶ stars (the CLI path).
 func BenchmarkOpenCache1M(b *testing.B) {
-	p := b.TempDir() + "/c.skyfcat"
-	f, err := os.Create(p)
-	if err != nil {
-		b.Fatal(err)
-	}
-	if err := WriteCache(f, bigStars(1_000_000)); err != nil {
-		b.Fatal(err)
-	}
-	if err := f.Close(); err != nil {
-		b.Fatal(err)
-	}
+	p := writeStarsFile(b, "c.skyfcat", WriteCache, bigStars(1_000_000))
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {

@@ -284,17 +284,7 @@ func TestParquetBadInput(t *testing.T) {
 
 // BenchmarkOpenParquet1M: Open on a WriteParquet file of 10⁶ stars.
 func BenchmarkOpenParquet1M(b *testing.B) {
-	p := filepath.Join(b.TempDir(), "s.parquet")
-	f, err := os.Create(p)
-	if err != nil {
-		b.Fatal(err)
-	}
-	if err := WriteParquet(f, bigStars(1_000_000)); err != nil {
-		b.Fatal(err)
-	}
-	if err := f.Close(); err != nil {
-		b.Fatal(err)
-	}
+	p := writeStarsFile(b, "s.parquet", WriteParquet, bigStars(1_000_000))
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
@@ -307,17 +297,7 @@ func BenchmarkOpenParquet1M(b *testing.B) {
 
 // BenchmarkOpenChunks1M reads a 10⁶-star cache file in 2¹⁸-row chunks.
 func BenchmarkOpenChunks1M(b *testing.B) {
-	p := filepath.Join(b.TempDir(), "c.skyfcat")
-	f, err := os.Create(p)
-	if err != nil {
-		b.Fatal(err)
-	}
-	if err := WriteCache(f, bigStars(1_000_000)); err != nil {
-		b.Fatal(err)
-	}
-	if err := f.Close(); err != nil {
-		b.Fatal(err)
-	}
+	p := writeStarsFile(b, "c.skyfcat", WriteCache, bigStars(1_000_000))
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
