@@ -55,9 +55,9 @@ func BenchmarkPhotometry(b *testing.B) {
 		for lo := 0; lo < n; lo += blockSize {
 			m := min(blockSize, n-lo)
 			tr.geometry(lo, m, &tr.geom)
+			tr.photometry(lo, m, &tr.geom)
 			for j := 0; j < m; j++ {
-				v, _, sm, _ := tr.see(lo+j, j, &tr.geom)
-				sink += v + sm.X
+				sink += tr.geom.vObs[j] + tr.geom.cx[j]
 			}
 		}
 	}

@@ -329,6 +329,10 @@ type geomBlock struct {
 	x, y, z, d, dil [blockSize]float64
 	lnD             [blockSize]float64 // ln d, filled by geometry
 	bad             [blockSize]bool
+	// Filled by photometry: ln T′ and the table sample there, the
+	// observed V′ and ln W′.
+	lnT, lnY, lnV, cx, cy [blockSize]float64
+	vObs, lnW             [blockSize]float64
 }
 
 // geometry fills g for stars lo..lo+m−1 with what Observer.See returns —
@@ -400,30 +404,43 @@ func lnFast(d float64) float64 {
 	return e*ln2Hi + (c[1] + (e*ln2Lo + p))
 }
 
-// see applies the photometry to star i, whose boosted direction, Doppler
-// factor and dilution are in g at index k: it returns the observed V′,
-// ln W′ and the table sample at T′ = D·T.
-func (t *transformer) see(i, k int, g *geomBlock) (vObs, lnW float64, sm spectrum.Sample, status int) {
-	d := g.d[k]
-	if g.bad[k] || !(d > 0) {
-		return 0, 0, sm, seeInvalid
+// photometry fills g's photometry for stars lo..lo+m−1, whose geometry is
+// already in g: T′ = D·T₀ and its table sample (spectrum.LookupBatch,
+// bit-identical to Lookup), ln W′ = ln W₀ + ln dilution + ln WScale(D) with
+// WScale(D) = D^(k−4), and V′ = V − 2.5 log10(F′_V/F_V), F_V ∝ W·exp(LnV).
+func (t *transformer) photometry(lo, m int, g *geomBlock) {
+	p := t.p
+	lnT0, lnV0, lnW0 := p.lnT0[lo:lo+m], p.lnV0[lo:lo+m], p.lnW0[lo:lo+m]
+	vmag := p.Stars.Vmag[lo : lo+m]
+	lnD, dil := g.lnD[:m], g.dil[:m]
+	for k, l := range lnT0 {
+		g.lnT[k] = l + lnD[k]
 	}
-	lnD := g.lnD[k]
-	// ln W′ − ln W₀ = ln dilution + ln WScale(D), WScale(D) = D^(k−4).
-	dlnW := t.beamExp * lnD
-	if dil := g.dil[k]; dil != 1 {
-		dlnW += lnFast(dil)
-	}
-	sm = spectrum.Lookup(t.p.lnT0[i] + lnD)
-	// V′ = V − 2.5 log10(F′_V/F_V), F_V ∝ W·exp(LnV).
-	vObs = float64(t.p.Stars.Vmag[i]) - lnToMag*(dlnW+sm.LnV-t.p.lnV0[i])
-	if !(vObs <= t.opt.Limit) {
-		if math.IsNaN(vObs) {
-			return vObs, 0, sm, seeInvalid
+	spectrum.LookupBatch(g.lnT[:m], g.lnY[:m], g.lnV[:m], g.cx[:m], g.cy[:m])
+	lnV, vObs, lnW := g.lnV[:m], g.vObs[:m], g.lnW[:m]
+	for k, v := range vmag {
+		dlnW := t.beamExp * lnD[k]
+		if dil[k] != 1 {
+			dlnW += lnFast(dil[k])
 		}
-		return vObs, 0, sm, seeCulled
+		vObs[k] = float64(v) - lnToMag*(dlnW+lnV[k]-lnV0[k])
+		lnW[k] = lnW0[k] + dlnW
 	}
-	return vObs, t.p.lnW0[i] + dlnW, sm, seeOK
+}
+
+// see returns the outcome for the star at index k of block g, after
+// geometry and photometry: seeOK when it is to be drawn.
+func (t *transformer) see(k int, g *geomBlock) int {
+	if g.bad[k] || !(g.d[k] > 0) {
+		return seeInvalid
+	}
+	if v := g.vObs[k]; !(v <= t.opt.Limit) {
+		if math.IsNaN(v) {
+			return seeInvalid
+		}
+		return seeCulled
+	}
+	return seeOK
 }
 
 // lnToMag converts a ln flux ratio to magnitudes: 2.5/ln 10.
@@ -435,6 +452,7 @@ func (t *transformer) run(lo, hi int, out []splatRec, res *chunkResult) {
 	for b0 := lo; b0 < hi; b0 += blockSize {
 		m := min(blockSize, hi-b0)
 		t.geometry(b0, m, gb)
+		t.photometry(b0, m, gb)
 		for j := 0; j < m; j++ {
 			k += t.star(b0+j, j, gb, &out[k], res)
 		}
@@ -445,8 +463,7 @@ func (t *transformer) run(lo, hi int, out []splatRec, res *chunkResult) {
 // star finishes star i (index j of block gb): when the star is drawn it
 // fills rec and returns 1, otherwise it counts why not and returns 0.
 func (t *transformer) star(i, j int, gb *geomBlock, rec *splatRec, res *chunkResult) int {
-	vObs, lnW, sm, st := t.see(i, j, gb)
-	switch st {
+	switch t.see(j, gb) {
 	case seeCulled:
 		res.culled++
 		return 0
@@ -464,9 +481,10 @@ func (t *transformer) star(i, j int, gb *geomBlock, rec *splatRec, res *chunkRes
 		res.off++
 		return 0
 	}
-	yl := math.Exp(lnW + sm.LnY + t.lnScale)
-	xl := sm.X / sm.Y * yl
-	zl := (1 - sm.X - sm.Y) / sm.Y * yl
+	vObs, cx, cy := gb.vObs[j], gb.cx[j], gb.cy[j]
+	yl := math.Exp(gb.lnW[j] + gb.lnY[j] + t.lnScale)
+	xl := cx / cy * yl
+	zl := (1 - cx - cy) / cy * yl
 	r, g, b := spectrum.XYZToLinearSRGB(xl, yl, zl, t.opt.Color)
 	r, g, b = spectrum.GamutMap(r, g, b, yl)
 	if !(finite(r) && finite(g) && finite(b)) {

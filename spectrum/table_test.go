@@ -164,6 +164,33 @@ func TestLookupAllocs(t *testing.T) {
 	_ = s
 }
 
+// TestLookupBatchMatchesLookup checks that the batch form returns exactly
+// Lookup's bits (the render loop relies on it: its frames must not depend on
+// which form produced them). The values cover the table, its two ends, both
+// asymptotes, ±Inf and NaN.
+func TestLookupBatchMatchesLookup(t *testing.T) {
+	lnT := []float64{math.Inf(-1), -50, -1e-300, 0, 1e-12, math.Log(2856), math.Log(1e12) - 1e-12,
+		math.Log(1e12), math.Log(1e12) + 1e-12, 60, 700, math.Inf(1), math.NaN()}
+	for k := 0; k <= 4*tabN; k++ {
+		lnT = append(lnT, -1+float64(k)*(math.Log(1e12)+2)/(4*tabN))
+	}
+	n := len(lnT)
+	lnY, lnV, x, y := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
+	LookupBatch(lnT, lnY, lnV, x, y)
+	same := func(a, b float64) bool {
+		return math.Float64bits(a) == math.Float64bits(b) || (math.IsNaN(a) && math.IsNaN(b))
+	}
+	for k, l := range lnT {
+		s := Lookup(l)
+		if !same(s.LnY, lnY[k]) || !same(s.LnV, lnV[k]) || !same(s.X, x[k]) || !same(s.Y, y[k]) {
+			t.Errorf("lnT=%v: batch (%v %v %v %v), Lookup %+v", l, lnY[k], lnV[k], x[k], y[k], s)
+		}
+	}
+	if a := testing.AllocsPerRun(10, func() { LookupBatch(lnT, lnY, lnV, x, y) }); a != 0 {
+		t.Errorf("LookupBatch allocates %g times", a)
+	}
+}
+
 func BenchmarkLookup(b *testing.B) {
 	getPhot()
 	b.ReportAllocs()
