@@ -38,8 +38,9 @@ func BenchmarkTransform(b *testing.B) {
 	b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mstars/s")
 }
 
-// BenchmarkPhotometry measures boost + photometry alone (Observer.See,
-// the V′ computation and spectrum.Lookup) per star, on one goroutine.
+// BenchmarkPhotometry measures the per-star transform alone, on one
+// goroutine: direction and dilution from the observer, the boost, the
+// table sample at T′ = D·T, V′, and the observed XYZ in lux.
 func BenchmarkPhotometry(b *testing.B) {
 	stars := randomStars(1_000_000, -1, 12, 11)
 	p, err := Prepare(stars)
@@ -56,8 +57,11 @@ func BenchmarkPhotometry(b *testing.B) {
 			m := min(blockSize, n-lo)
 			tr.geometry(lo, m, &tr.geom)
 			tr.photometry(lo, m, &tr.geom)
+			g := &tr.geom
 			for j := 0; j < m; j++ {
-				sink += tr.geom.vObs[j] + tr.geom.cx[j]
+				// Observed XYZ in lux: ln Y′ = ln W′ + LnY(T′).
+				xl, yl, zl := tristimulus(g.lnW[j]+g.lnY[j], g.cx[j], g.cy[j])
+				sink += g.vObs[j] + xl + yl + zl
 			}
 		}
 	}

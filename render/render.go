@@ -372,38 +372,6 @@ func (t *transformer) geometry(lo, m int, g *geomBlock) {
 	}
 }
 
-// lnTab holds, for the 256 mantissa intervals [1 + j/256, 1 + (j+1)/256),
-// c = 1/(1 + j/256) rounded and −ln c, for lnFast (c = 1 exactly at j = 0,
-// so lnFast(1) = 0).
-var lnTab = func() (t [256][2]float64) {
-	for j := range t {
-		c := 1 / (1 + float64(j)/256)
-		t[j] = [2]float64{c, -math.Log(c)}
-	}
-	return t
-}()
-
-// lnFast returns ln d within about 1 ulp of math.Log(d) (the two may
-// differ in the last bit), without a division: d = 2^e·m, ln d =
-// e·ln 2 − ln c + ln(1 + r), r = m·c − 1 (one fused multiply-add, exact),
-// 0 ≤ r < 1/256, by a degree-7 series (truncation < 1e-20). Zero,
-// negative, subnormal, infinite and NaN d go to math.Log.
-func lnFast(d float64) float64 {
-	if !(d >= 0x1p-1022 && d <= math.MaxFloat64) {
-		return math.Log(d)
-	}
-	b := math.Float64bits(d)
-	e := float64(int(b>>52) - 1023)
-	m := math.Float64frombits(b&(1<<52-1) | 1023<<52)
-	c := &lnTab[b>>44&255]
-	r := math.FMA(m, c[0], -1)
-	r2 := r * r
-	// ln(1+r) = r − r²/2 + r³/3 − r⁴/4 + r⁵/5 − r⁶/6 + r⁷/7.
-	p := (r - r2*(1.0/2-r*(1.0/3))) - r2*r2*((1.0/4-r*(1.0/5))+r2*(1.0/6-r*(1.0/7)))
-	const ln2Hi, ln2Lo = 6.93147180369123816490e-01, 1.90821492927058770002e-10
-	return e*ln2Hi + (c[1] + (e*ln2Lo + p))
-}
-
 // photometry fills g's photometry for stars lo..lo+m−1, whose geometry is
 // already in g: T′ = D·T₀ and its table sample (spectrum.LookupBatch,
 // bit-identical to Lookup), ln W′ = ln W₀ + ln dilution + ln WScale(D) with
@@ -482,9 +450,7 @@ func (t *transformer) star(i, j int, gb *geomBlock, rec *splatRec, res *chunkRes
 		return 0
 	}
 	vObs, cx, cy := gb.vObs[j], gb.cx[j], gb.cy[j]
-	yl := math.Exp(gb.lnW[j] + gb.lnY[j] + t.lnScale)
-	xl := cx / cy * yl
-	zl := (1 - cx - cy) / cy * yl
+	xl, yl, zl := tristimulus(gb.lnW[j]+gb.lnY[j]+t.lnScale, cx, cy)
 	r, g, b := spectrum.XYZToLinearSRGB(xl, yl, zl, t.opt.Color)
 	r, g, b = spectrum.GamutMap(r, g, b, yl)
 	if !(finite(r) && finite(g) && finite(b)) {
@@ -512,6 +478,14 @@ func (t *transformer) star(i, j int, gb *geomBlock, rec *splatRec, res *chunkRes
 			T: d * float64(t.p.Stars.Teff[i]), X: x, Y: y}, nb)
 	}
 	return 1
+}
+
+// tristimulus returns X, Y, Z from ln Y and the chromaticity (x, y):
+// Y = e^lnY, X = (x/y)·Y, Z = ((1 − x − y)/y)·Y.
+func tristimulus(lnY, x, y float64) (float64, float64, float64) {
+	yl := expFast(lnY)
+	s := yl / y
+	return x * s, yl, (1 - x - y) * s
 }
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
