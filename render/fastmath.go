@@ -57,6 +57,15 @@ func lnFast(d float64) float64 {
 	return e*ln2Hi + (c[1] + (e*ln2Lo + p))
 }
 
+// lnBatch sets out[k] = lnFast(d[k]) for k < len(d); out must be at
+// least as long as d.
+func lnBatch(d, out []float64) {
+	out = out[:len(d)]
+	for k, v := range d {
+		out[k] = lnFast(v)
+	}
+}
+
 // expTab holds 2^(j/64), j = 0..63, for expFast as a rounded value and
 // the remainder (the exact value minus the rounded one, rounded), found by
 // Newton's method on y⁶⁴ = 2^j in 128-bit arithmetic.

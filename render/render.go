@@ -116,11 +116,20 @@ type Frame struct {
 // sequence of frames can skip recomputing them.
 type Prepared struct {
 	Stars *catalog.Stars
-	lnW0  []float64 // ln W of each star seen from the Sun at rest
 	lnV0  []float64 // LnV at the rest temperature
 	lnT0  []float64 // ln of the rest temperature
-	u     []r3.Vec  // unit direction in float64, normalised once
+	// Unit direction in float64, normalised once, in struct-of-arrays
+	// form so that a frame seen from the Sun boosts it straight from here.
+	ux, uy, uz []float64
 }
+
+// The dilution seen from the Sun at rest, ln W₀ = lnV0Flux − 0.4·ln10·V −
+// lnV0, is recomputed per frame from the catalogue column, by the same
+// expression every time: that costs less than reading 8 more bytes per
+// star from memory.
+
+// lnV0Flux is ln of the V-band flux of a V = 0 star.
+var lnV0Flux = math.Log(spectrum.V0FluxLambda)
 
 // Prepare validates stars and computes each star's dilution W from its
 // catalogue V magnitude and rest temperature, with the same V passband
@@ -340,23 +349,31 @@ type geomBlock struct {
 // ApplyBatch — computed in the same floating-point steps as See, so the
 // results are identical (TestGeometryMatchesSee).
 func (t *transformer) geometry(lo, m int, g *geomBlock) {
-	s := t.p.Stars
-	u := t.p.u[lo : lo+m]
-	p := t.opt.Observer.Position
-	atSun := p == (r3.Vec{})
-	for k := range u {
-		g.bad[k] = false
+	ux, uy, uz := t.p.ux[lo:lo+m], t.p.uy[lo:lo+m], t.p.uz[lo:lo+m]
+	clear(g.bad[:m])
+	for k := range m {
 		g.dil[k] = 1
-		dist := float64(s.Dist[lo+k])
-		if atSun || !(dist > 0) || math.IsInf(dist, 1) {
-			g.x[k], g.y[k], g.z[k] = u[k].X, u[k].Y, u[k].Z
+	}
+	p := t.opt.Observer.Position
+	if p == (r3.Vec{}) {
+		// From the Sun every star is seen along its catalogue direction.
+		t.opt.Observer.Boost.ApplyBatch(ux, uy, uz, g.x[:m], g.y[:m], g.z[:m], g.d[:m])
+		lnBatch(g.d[:m], g.lnD[:m])
+		return
+	}
+	cd := t.p.Stars.Dist[lo : lo+m]
+	for k := range ux {
+		u := r3.Vec{X: ux[k], Y: uy[k], Z: uz[k]}
+		dist := float64(cd[k])
+		if !(dist > 0) || math.IsInf(dist, 1) {
+			g.x[k], g.y[k], g.z[k] = u.X, u.Y, u.Z
 			continue
 		}
-		v := r3.Vec{X: dist*u[k].X - p.X, Y: dist*u[k].Y - p.Y, Z: dist*u[k].Z - p.Z}
+		v := r3.Vec{X: dist*u.X - p.X, Y: dist*u.Y - p.Y, Z: dist*u.Z - p.Z}
 		r := math.Sqrt(v.X*v.X + v.Y*v.Y + v.Z*v.Z)
 		if r == 0 {
 			g.bad[k] = true
-			g.x[k], g.y[k], g.z[k] = u[k].X, u[k].Y, u[k].Z
+			g.x[k], g.y[k], g.z[k] = u.X, u.Y, u.Z
 			continue
 		}
 		if math.IsInf(r, 1) {
@@ -367,9 +384,7 @@ func (t *transformer) geometry(lo, m int, g *geomBlock) {
 		g.dil[k] = q * q
 	}
 	t.opt.Observer.Boost.ApplyBatch(g.x[:m], g.y[:m], g.z[:m], g.x[:m], g.y[:m], g.z[:m], g.d[:m])
-	for k, d := range g.d[:m] {
-		g.lnD[k] = lnFast(d)
-	}
+	lnBatch(g.d[:m], g.lnD[:m])
 }
 
 // photometry fills g's photometry for stars lo..lo+m−1, whose geometry is
@@ -378,7 +393,7 @@ func (t *transformer) geometry(lo, m int, g *geomBlock) {
 // WScale(D) = D^(k−4), and V′ = V − 2.5 log10(F′_V/F_V), F_V ∝ W·exp(LnV).
 func (t *transformer) photometry(lo, m int, g *geomBlock) {
 	p := t.p
-	lnT0, lnV0, lnW0 := p.lnT0[lo:lo+m], p.lnV0[lo:lo+m], p.lnW0[lo:lo+m]
+	lnT0, lnV0 := p.lnT0[lo:lo+m], p.lnV0[lo:lo+m]
 	vmag := p.Stars.Vmag[lo : lo+m]
 	lnD, dil := g.lnD[:m], g.dil[:m]
 	for k, l := range lnT0 {
@@ -392,7 +407,7 @@ func (t *transformer) photometry(lo, m int, g *geomBlock) {
 			dlnW += lnFast(dil[k])
 		}
 		vObs[k] = float64(v) - lnToMag*(dlnW+lnV[k]-lnV0[k])
-		lnW[k] = lnW0[k] + dlnW
+		lnW[k] = (lnV0Flux - magToLn*float64(v) - lnV0[k]) + dlnW
 	}
 }
 

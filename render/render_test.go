@@ -449,7 +449,7 @@ func TestGeometryMatchesSee(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	pos := r3.Scale(float64(stars.Dist[5]), p.u[5]) // the observer sits exactly at star 5
+	pos := r3.Scale(float64(stars.Dist[5]), r3.Vec{X: p.ux[5], Y: p.uy[5], Z: p.uz[5]}) // the observer sits exactly at star 5
 	for _, o := range []camera.Observer{
 		observer(t, axisY, 0.8),
 		{Position: pos, Boost: observer(t, r3.Unit(r3.Vec{X: 1, Y: -2, Z: 0.5}), 0.999).Boost},
@@ -463,7 +463,7 @@ func TestGeometryMatchesSee(t *testing.T) {
 			tr.geometry(lo, m, &tr.geom)
 			for j := 0; j < m; j++ {
 				i := lo + j
-				wn, wd, wdil, wr := o.See(p.u[i], float64(stars.Dist[i]))
+				wn, wd, wdil, wr := o.See(r3.Vec{X: p.ux[i], Y: p.uy[i], Z: p.uz[i]}, float64(stars.Dist[i]))
 				g := &tr.geom
 				if (wr == 0) != g.bad[j] {
 					t.Fatalf("star %d: r == 0 is %v, bad flag %v", i, wr == 0, g.bad[j])

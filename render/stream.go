@@ -232,17 +232,16 @@ func prepareInto(p *Prepared, stars *catalog.Stars, workers int) error {
 		}
 	}
 	p.Stars = stars
-	p.lnW0, p.lnV0, p.lnT0 = resize(p.lnW0, n), resize(p.lnV0, n), resize(p.lnT0, n)
-	p.u = resize(p.u, n)
-	lnV0Flux := math.Log(spectrum.V0FluxLambda)
+	p.lnV0, p.lnT0 = resize(p.lnV0, n), resize(p.lnT0, n)
+	p.ux, p.uy, p.uz = resize(p.ux, n), resize(p.uy, n), resize(p.uz, n)
 	parallel(workers, nb, func(c int) {
 		for i := c * prepareBlock; i < min((c+1)*prepareBlock, n); i++ {
 			lnT := lnFast(float64(stars.Teff[i]))
 			s := spectrum.Lookup(lnT)
-			p.lnW0[i] = lnV0Flux - magToLn*float64(stars.Vmag[i]) - s.LnV
 			p.lnV0[i] = s.LnV
 			p.lnT0[i] = lnT
-			p.u[i] = unit32(stars.X[i], stars.Y[i], stars.Z[i])
+			u := unit32(stars.X[i], stars.Y[i], stars.Z[i])
+			p.ux[i], p.uy[i], p.uz[i] = u.X, u.Y, u.Z
 		}
 	})
 	return nil
