@@ -155,15 +155,13 @@ const chunkSize = 8192
 // tileSize is the side of a square accumulation tile in pixels.
 const tileSize = 64
 
-// splatRec is one star ready to deposit.
+// splatRec is one star ready to deposit: 32 bytes. Where a cube face
+// clips its kernel and whether an equirect kernel wraps are recomputed
+// from x (grid.span), not stored.
 type splatRec struct {
-	x, y  float64
-	rgb   [3]float32
-	d     float32
-	clip0 int32 // first column the star may light (cube faces)
-	clip1 int32 // one past the last column
-	wrap  int32 // equirect: also deposit at x + wrap·W
-	_     int32
+	x, y float64
+	rgb  [3]float32
+	d    float32
 }
 
 // Render draws stars as seen by opt.Observer through opt.Projection.
@@ -236,7 +234,7 @@ func (p *Prepared) Render(opt Options) (*Frame, error) {
 	f.Stats.Brightest = best
 
 	// Phase 2: bin into tiles.
-	g := newGrid(f.W, f.H, psf.Radius())
+	g := newGrid(f.W, f.H, psf.Radius(), opt.Projection.Kind)
 	g.binAll(recs, chunks, workers)
 
 	// Phase 3: accumulate tiles.
@@ -473,20 +471,7 @@ func (t *transformer) star(i, j int, gb *geomBlock, rec *splatRec, res *chunkRes
 		return 0
 	}
 	d := gb.d[j]
-	*rec = splatRec{x: x, y: y, rgb: [3]float32{float32(r), float32(g), float32(b)}, d: float32(d),
-		clip0: 0, clip1: int32(t.proj.Width)}
-	switch t.proj.Kind {
-	case camera.Equirect:
-		if x < t.margin {
-			rec.wrap = 1
-		} else if x > t.w-t.margin {
-			rec.wrap = -1
-		}
-	case camera.Cube:
-		face := max(0, min(5, int32(math.Floor(x/t.h))))
-		rec.clip0 = face * int32(t.proj.Height)
-		rec.clip1 = rec.clip0 + int32(t.proj.Height)
-	}
+	*rec = splatRec{x: x, y: y, rgb: [3]float32{float32(r), float32(g), float32(b)}, d: float32(d)}
 	if nb := t.opt.Brightest; nb > 0 && (len(res.best) < nb || vObs < res.best[len(res.best)-1].V) {
 		ra, dec := camera.RADec(n)
 		res.best = insertBest(res.best, StarInfo{Row: i, RA: ra, Dec: dec, V: vObs, D: d,
@@ -511,14 +496,35 @@ func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 type grid struct {
 	w, h, tw, th int
 	radius       float64
+	kind         camera.Kind
 	start        []int32 // tile t's records are recs[start[t]:start[t+1]]
 	fill         []int32
 	recs         []splatRec
 }
 
-func newGrid(w, h int, radius float64) *grid {
+func newGrid(w, h int, radius float64, kind camera.Kind) *grid {
 	tw, th := (w+tileSize-1)/tileSize, (h+tileSize-1)/tileSize
-	return &grid{w: w, h: h, tw: tw, th: th, radius: radius, start: make([]int32, tw*th+1)}
+	return &grid{w: w, h: h, tw: tw, th: th, radius: radius, kind: kind, start: make([]int32, tw*th+1)}
+}
+
+// span returns the image columns [clip0, clip1) a star at column x may
+// light and, for an equirect frame, wrap = ±1 when its kernel also lights
+// the other edge at x + wrap·W (within the PSF radius + 1 px of an edge;
+// the transform keeps stars up to that margin outside the image). A cube
+// star lights only its own face, of side h.
+func (g *grid) span(x float64) (clip0, clip1, wrap int) {
+	switch g.kind {
+	case camera.Equirect:
+		if m := g.radius + 1; x < m {
+			wrap = 1
+		} else if x > float64(g.w)-m {
+			wrap = -1
+		}
+	case camera.Cube:
+		face := max(0, min(5, int(math.Floor(x/float64(g.h)))))
+		return face * g.h, (face + 1) * g.h, 0
+	}
+	return 0, g.w, wrap
 }
 
 // tileRange returns the tile columns [c0, c1] a kernel centred at x
@@ -539,9 +545,9 @@ type tileAcc struct {
 	wx, wy [maxTaps]float64
 }
 
+// render accumulates tile ti's records from zero and stores the tile
+// into b, rounding each pixel to float32 once.
 func (a *tileAcc) render(b *Buffer, g *grid, ti int, psf *PSF) {
-	ox, oy := (ti%g.tw)*tileSize, (ti/g.tw)*tileSize
-	tw, th := min(tileSize, b.W-ox), min(tileSize, b.H-oy)
 	list := g.recs[g.start[ti]:g.start[ti+1]]
 	if len(list) == 0 {
 		return // the buffer is already black there
@@ -551,56 +557,76 @@ func (a *tileAcc) render(b *Buffer, g *grid, ti int, psf *PSF) {
 	if doppler {
 		clear(a.dsum[:])
 	}
+	a.accumulate(g, ti, list, psf, doppler)
+	ox, oy := (ti%g.tw)*tileSize, (ti/g.tw)*tileSize
+	storeTile(b, &a.rgb, &a.dsum, ox, oy)
+}
+
+// storeTile rounds one tile's float64 sums (tile-local layout, row length
+// tileSize) into b at (ox, oy).
+func storeTile(b *Buffer, rgb *[tileSize * tileSize * 3]float64, dsum *[tileSize * tileSize]float64, ox, oy int) {
+	tw, th := min(tileSize, b.W-ox), min(tileSize, b.H-oy)
+	for j := 0; j < th; j++ {
+		for i := 0; i < tw; i++ {
+			q := j*tileSize + i
+			p := (oy+j)*b.W + ox + i
+			r, gg, bl := rgb[3*q], rgb[3*q+1], rgb[3*q+2]
+			b.Pix[3*p], b.Pix[3*p+1], b.Pix[3*p+2] = float32(r), float32(gg), float32(bl)
+			if b.Doppler != nil {
+				if l := lumR*r + lumG*gg + lumB*bl; l > 0 {
+					b.Doppler[p] = float32(dsum[q] / l)
+				}
+			}
+		}
+	}
+}
+
+// accumulate adds the records of list, in order, to a's sums for tile ti:
+// the one summation both Render and RenderStream use, so each pixel's
+// float64 sum is formed by the same operations in the same order.
+func (a *tileAcc) accumulate(g *grid, ti int, list []splatRec, psf *PSF, doppler bool) {
+	ox, oy := (ti%g.tw)*tileSize, (ti/g.tw)*tileSize
+	tw, th := min(tileSize, g.w-ox), min(tileSize, g.h-oy)
+	acc, dacc := &a.rgb, &a.dsum
+	wx, wy := &a.wx, &a.wy
 	for k := range list {
 		r := &list[k]
-		y0, ny := psf.Weights(r.y, a.wy[:])
+		y0, ny := psf.Weights(r.y, wy[:])
 		j0, j1 := max(y0, oy), min(y0+ny, oy+th)
 		rgb := [3]float64{float64(r.rgb[0]), float64(r.rgb[1]), float64(r.rgb[2])}
 		lumD := (lumR*rgb[0] + lumG*rgb[1] + lumB*rgb[2]) * float64(r.d)
+		clip0, clip1, wrap := g.span(r.x)
 		for rep := 0; rep < 2; rep++ {
 			x := r.x
 			if rep == 1 {
-				if r.wrap == 0 {
+				if wrap == 0 {
 					break
 				}
-				x += float64(r.wrap) * float64(b.W)
+				x += float64(wrap) * float64(g.w)
 			}
-			x0, nx := psf.Weights(x, a.wx[:])
-			i0 := max(x0, ox, int(r.clip0))
-			i1 := min(x0+nx, ox+tw, int(r.clip1))
+			x0, nx := psf.Weights(x, wx[:])
+			i0 := max(x0, ox, clip0)
+			i1 := min(x0+nx, ox+tw, clip1)
 			if i0 >= i1 {
 				continue
 			}
-			wxs := a.wx[i0-x0 : i1-x0]
+			wxs := wx[i0-x0 : i1-x0]
 			for j := j0; j < j1; j++ {
-				wy := a.wy[j-y0]
+				wyj := wy[j-y0]
 				q0 := (j-oy)*tileSize + i0 - ox
-				row := a.rgb[3*q0 : 3*(q0+len(wxs))]
-				for ii, wx := range wxs {
-					w := wx * wy
+				row := acc[3*q0 : 3*(q0+len(wxs))]
+				for ii, wxi := range wxs {
+					w := wxi * wyj
 					px := row[3*ii : 3*ii+3 : 3*ii+3]
 					px[0] += w * rgb[0]
 					px[1] += w * rgb[1]
 					px[2] += w * rgb[2]
 				}
 				if doppler {
-					ds := a.dsum[q0 : q0+len(wxs)]
-					for ii, wx := range wxs {
-						ds[ii] += wx * wy * lumD
+					ds := dacc[q0 : q0+len(wxs)]
+					for ii, wxi := range wxs {
+						ds[ii] += wxi * wyj * lumD
 					}
-				}
-			}
-		}
-	}
-	for j := 0; j < th; j++ {
-		for i := 0; i < tw; i++ {
-			q := j*tileSize + i
-			p := (oy+j)*b.W + ox + i
-			r, gg, bl := a.rgb[3*q], a.rgb[3*q+1], a.rgb[3*q+2]
-			b.Pix[3*p], b.Pix[3*p+1], b.Pix[3*p+2] = float32(r), float32(gg), float32(bl)
-			if b.Doppler != nil {
-				if l := lumR*r + lumG*gg + lumB*bl; l > 0 {
-					b.Doppler[p] = float32(a.dsum[q] / l)
 				}
 			}
 		}

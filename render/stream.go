@@ -119,7 +119,7 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 	var pool sync.Pool // *tileAcc scratch, one per worker in use
 	var recs []splatRec
 	var chunks []chunkResult
-	g := newGrid(f.W, f.H, psf.Radius())
+	g := newGrid(f.W, f.H, psf.Radius(), opt.Projection.Kind)
 	var best []StarInfo
 	base := 0
 	got := false
@@ -331,15 +331,16 @@ const maxTiles = 2 * 3 * 3
 func (g *grid) tilesOf(r *splatRec, out *[maxTiles]int32) int {
 	k := 0
 	ty0, ty1 := g.tileRange(r.y, 0, g.h)
+	clip0, clip1, wrap := g.span(r.x)
 	for rep := 0; rep < 2; rep++ {
 		x := r.x
 		if rep == 1 {
-			if r.wrap == 0 {
+			if wrap == 0 {
 				break
 			}
-			x += float64(r.wrap) * float64(g.w)
+			x += float64(wrap) * float64(g.w)
 		}
-		tx0, tx1 := g.tileRange(x, int(r.clip0), int(r.clip1))
+		tx0, tx1 := g.tileRange(x, clip0, clip1)
 		for ty := ty0; ty <= ty1; ty++ {
 			for tx := tx0; tx <= tx1; tx++ {
 				if k < maxTiles {
@@ -443,9 +444,6 @@ func (sa *streamAcc) tile(g *grid, ti int, psf *PSF, a *tileAcc) {
 	if len(list) == 0 {
 		return
 	}
-	wx, wy := &a.wx, &a.wy
-	ox, oy := (ti%g.tw)*tileSize, (ti/g.tw)*tileSize
-	tw, th := min(tileSize, sa.w-ox), min(tileSize, sa.h-oy)
 	// A tile no earlier chunk touched is all zeros: clear the scratch
 	// instead of reading the (still unmapped) block.
 	first := !sa.used[ti]
@@ -457,58 +455,20 @@ func (sa *streamAcc) tile(g *grid, ti int, psf *PSF, a *tileAcc) {
 	} else {
 		copy(acc[:], block)
 	}
-	defer copy(block, acc[:])
-	dacc := &a.dsum
 	doppler := sa.dsum != nil
+	var dblock []float64
 	if doppler {
-		dblock := sa.dsum[tilePix*ti : tilePix*(ti+1)]
+		dblock = sa.dsum[tilePix*ti : tilePix*(ti+1)]
 		if first {
-			clear(dacc[:])
+			clear(a.dsum[:])
 		} else {
-			copy(dacc[:], dblock)
+			copy(a.dsum[:], dblock)
 		}
-		defer copy(dblock, dacc[:])
 	}
-	for k := range list {
-		r := &list[k]
-		y0, ny := psf.Weights(r.y, wy[:])
-		j0, j1 := max(y0, oy), min(y0+ny, oy+th)
-		rgb := [3]float64{float64(r.rgb[0]), float64(r.rgb[1]), float64(r.rgb[2])}
-		lumD := (lumR*rgb[0] + lumG*rgb[1] + lumB*rgb[2]) * float64(r.d)
-		for rep := 0; rep < 2; rep++ {
-			x := r.x
-			if rep == 1 {
-				if r.wrap == 0 {
-					break
-				}
-				x += float64(r.wrap) * float64(sa.w)
-			}
-			x0, nx := psf.Weights(x, wx[:])
-			i0 := max(x0, ox, int(r.clip0))
-			i1 := min(x0+nx, ox+tw, int(r.clip1))
-			if i0 >= i1 {
-				continue
-			}
-			wxs := wx[i0-x0 : i1-x0]
-			for j := j0; j < j1; j++ {
-				wyj := wy[j-y0]
-				q0 := (j-oy)*tileSize + i0 - ox
-				row := acc[3*q0 : 3*(q0+len(wxs))]
-				for ii, wxi := range wxs {
-					w := wxi * wyj
-					px := row[3*ii : 3*ii+3 : 3*ii+3]
-					px[0] += w * rgb[0]
-					px[1] += w * rgb[1]
-					px[2] += w * rgb[2]
-				}
-				if doppler {
-					ds := dacc[q0 : q0+len(wxs)]
-					for ii, wxi := range wxs {
-						ds[ii] += wxi * wyj * lumD
-					}
-				}
-			}
-		}
+	a.accumulate(g, ti, list, psf, doppler)
+	copy(block, acc[:])
+	if doppler {
+		copy(dblock, a.dsum[:])
 	}
 }
 
@@ -516,25 +476,15 @@ func (sa *streamAcc) tile(g *grid, ti int, psf *PSF, a *tileAcc) {
 // way tileAcc.render stores a tile.
 func (sa *streamAcc) store(b *Buffer, workers int) {
 	nt := len(sa.rgb) / (3 * tilePix)
+	var zero [tilePix]float64
 	parallel(workers, nt, func(ti int) {
 		if !sa.used[ti] {
 			return // the buffer is already black there
 		}
-		ox, oy := (ti%sa.tw)*tileSize, (ti/sa.tw)*tileSize
-		tw, th := min(tileSize, sa.w-ox), min(tileSize, sa.h-oy)
-		acc := sa.rgb[3*tilePix*ti : 3*tilePix*(ti+1)]
-		for j := 0; j < th; j++ {
-			for i := 0; i < tw; i++ {
-				q := j*tileSize + i
-				p := (oy+j)*b.W + ox + i
-				r, gg, bl := acc[3*q], acc[3*q+1], acc[3*q+2]
-				b.Pix[3*p], b.Pix[3*p+1], b.Pix[3*p+2] = float32(r), float32(gg), float32(bl)
-				if b.Doppler != nil {
-					if l := lumR*r + lumG*gg + lumB*bl; l > 0 {
-						b.Doppler[p] = float32(sa.dsum[tilePix*ti+q] / l)
-					}
-				}
-			}
+		ds := &zero
+		if sa.dsum != nil {
+			ds = (*[tilePix]float64)(sa.dsum[tilePix*ti : tilePix*(ti+1)])
 		}
+		storeTile(b, (*[3 * tilePix]float64)(sa.rgb[3*tilePix*ti:3*tilePix*(ti+1)]), ds, (ti%sa.tw)*tileSize, (ti/sa.tw)*tileSize)
 	})
 }
