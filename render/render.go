@@ -121,6 +121,11 @@ type Prepared struct {
 	// Unit direction in float64, normalised once, in struct-of-arrays
 	// form so that a frame seen from the Sun boosts it straight from here.
 	ux, uy, uz []float64
+	// direct marks a Prepared with validated stars but none of the
+	// arrays above: the transform computes the same values block by block
+	// (the same functions, so the same bits). A single frame — Render,
+	// RenderStream — gains nothing from storing them.
+	direct bool
 }
 
 // The dilution seen from the Sun at rest, ln W₀ = lnV0Flux − 0.4·ln10·V −
@@ -139,7 +144,7 @@ func Prepare(stars *catalog.Stars) (*Prepared, error) {
 	// Every star's values depend on that star alone; prepareInto (stream.go)
 	// computes them on all CPUs, so the result does not depend on the split.
 	p := &Prepared{}
-	if err := prepareInto(p, stars, runtime.GOMAXPROCS(0)); err != nil {
+	if err := prepareInto(p, stars, runtime.GOMAXPROCS(0), false); err != nil {
 		return nil, err
 	}
 	return p, nil
@@ -174,8 +179,8 @@ func Render(stars *catalog.Stars, opt Options) (*Frame, error) {
 	if rows := ChunkRows(opt, DefaultMemoryBudget); stars != nil && stars.Len() > rows {
 		return RenderStream(Chunks(stars, rows), opt)
 	}
-	p, err := Prepare(stars)
-	if err != nil {
+	p := &Prepared{}
+	if err := prepareInto(p, stars, runtime.GOMAXPROCS(0), true); err != nil {
 		return nil, err
 	}
 	return p.Render(opt)
@@ -340,6 +345,8 @@ type geomBlock struct {
 	// observed V′ and ln W′.
 	lnT, lnY, lnV, cx, cy [blockSize]float64
 	vObs, lnW             [blockSize]float64
+	// Rest values of a direct Prepared, computed per block.
+	ux, uy, uz, lnT0, lnV0 [blockSize]float64
 }
 
 // geometry fills g for stars lo..lo+m−1 with what Observer.See returns —
@@ -347,7 +354,18 @@ type geomBlock struct {
 // ApplyBatch — computed in the same floating-point steps as See, so the
 // results are identical (TestGeometryMatchesSee).
 func (t *transformer) geometry(lo, m int, g *geomBlock) {
-	ux, uy, uz := t.p.ux[lo:lo+m], t.p.uy[lo:lo+m], t.p.uz[lo:lo+m]
+	var ux, uy, uz []float64
+	if t.p.direct {
+		ux, uy, uz = g.ux[:m], g.uy[:m], g.uz[:m]
+		s := t.p.Stars
+		cx, cy, cz := s.X[lo:lo+m], s.Y[lo:lo+m], s.Z[lo:lo+m]
+		for k := range ux {
+			u := unit32(cx[k], cy[k], cz[k])
+			ux[k], uy[k], uz[k] = u.X, u.Y, u.Z
+		}
+	} else {
+		ux, uy, uz = t.p.ux[lo:lo+m], t.p.uy[lo:lo+m], t.p.uz[lo:lo+m]
+	}
 	clear(g.bad[:m])
 	for k := range m {
 		g.dil[k] = 1
@@ -391,7 +409,16 @@ func (t *transformer) geometry(lo, m int, g *geomBlock) {
 // WScale(D) = D^(k−4), and V′ = V − 2.5 log10(F′_V/F_V), F_V ∝ W·exp(LnV).
 func (t *transformer) photometry(lo, m int, g *geomBlock) {
 	p := t.p
-	lnT0, lnV0 := p.lnT0[lo:lo+m], p.lnV0[lo:lo+m]
+	var lnT0, lnV0 []float64
+	if p.direct {
+		lnT0, lnV0 = g.lnT0[:m], g.lnV0[:m]
+		restLn(p.Stars.Teff[lo:lo+m], lnT0)
+		// lnY, cx and cy are scratch here; the observed sample below
+		// overwrites them.
+		spectrum.LookupBatch(lnT0, g.lnY[:m], lnV0, g.cx[:m], g.cy[:m])
+	} else {
+		lnT0, lnV0 = p.lnT0[lo:lo+m], p.lnV0[lo:lo+m]
+	}
 	vmag := p.Stars.Vmag[lo : lo+m]
 	lnD, dil := g.lnD[:m], g.dil[:m]
 	for k, l := range lnT0 {
@@ -406,6 +433,15 @@ func (t *transformer) photometry(lo, m int, g *geomBlock) {
 		}
 		vObs[k] = float64(v) - lnToMag*(dlnW+lnV[k]-lnV0[k])
 		lnW[k] = (lnV0Flux - magToLn*float64(v) - lnV0[k]) + dlnW
+	}
+}
+
+// restLn sets out[k] to ln of the rest temperature teff[k], as Prepare
+// stores it.
+func restLn(teff []float32, out []float64) {
+	out = out[:len(teff)]
+	for k, T := range teff {
+		out[k] = lnFast(float64(T))
 	}
 }
 

@@ -135,7 +135,7 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 			return nil, ErrStars
 		}
 		got = true
-		if err := prepareInto(p, stars, workers); err != nil {
+		if err := prepareInto(p, stars, workers, true); err != nil {
 			return nil, err
 		}
 		n := stars.Len()
@@ -207,8 +207,9 @@ const prepareBlock = 1 << 16
 
 // prepareInto is Prepare into p, reusing p's slices when they are large
 // enough, on up to workers goroutines. Each star's values depend on that
-// star alone, so the result does not depend on the split.
-func prepareInto(p *Prepared, stars *catalog.Stars, workers int) error {
+// star alone, so the result does not depend on the split. With direct it
+// only validates the stars and leaves the values to the transform.
+func prepareInto(p *Prepared, stars *catalog.Stars, workers int, direct bool) error {
 	if stars == nil {
 		return ErrStars
 	}
@@ -232,6 +233,11 @@ func prepareInto(p *Prepared, stars *catalog.Stars, workers int) error {
 		}
 	}
 	p.Stars = stars
+	p.direct = direct
+	if direct {
+		p.lnV0, p.lnT0, p.ux, p.uy, p.uz = nil, nil, nil, nil, nil
+		return nil
+	}
 	p.lnV0, p.lnT0 = resize(p.lnV0, n), resize(p.lnT0, n)
 	p.ux, p.uy, p.uz = resize(p.ux, n), resize(p.uy, n), resize(p.uz, n)
 	parallel(workers, nb, func(c int) {

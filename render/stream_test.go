@@ -71,6 +71,17 @@ func TestRenderStreamMatchesRender(t *testing.T) {
 		if want.Stats.Drawn == 0 {
 			t.Fatalf("%v: nothing drawn; the test would prove nothing", c.kind)
 		}
+		// Render computes the rest values per block; Prepare stores them
+		// for a sequence of frames. Both must give the same bits.
+		p, err := Prepare(stars)
+		if err != nil {
+			t.Fatal(err)
+		}
+		stored, err := p.Render(opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sameFrame(t, stored, want)
 		// Three chunks of unequal length: 9001, 9001, rest.
 		have, err := RenderStream(Chunks(stars, 9001+(n-3*9001)/2), opt)
 		if err != nil {
@@ -86,6 +97,31 @@ func TestRenderStreamMatchesRender(t *testing.T) {
 			sameFrame(t, have, want)
 		}
 	}
+}
+
+// TestDirectMatchesPreparedAtSun: seen from the Sun the transform boosts
+// the catalogue directions straight from the columns (stored or computed
+// per block); both forms give the frame bit for bit [cp].
+func TestDirectMatchesPreparedAtSun(t *testing.T) {
+	stars := randomStars(20_000, -1, 9, 22)
+	opt := Options{Projection: proj(t, camera.Equirect, 400, 200), Observer: observer(t, r3.Unit(r3.Vec{X: -1, Y: 0.5, Z: 0.2}), 0.8),
+		Exposure: 3, Doppler: true, Workers: 2}
+	want, err := Render(stars, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want.Stats.Drawn < 1000 {
+		t.Fatalf("only %d stars drawn", want.Stats.Drawn)
+	}
+	p, err := Prepare(stars)
+	if err != nil {
+		t.Fatal(err)
+	}
+	have, err := p.Render(opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sameFrame(t, have, want)
 }
 
 // TestRenderCacheFileMatchesRender: streaming from a cache file through
