@@ -173,8 +173,7 @@ type splatRec struct {
 //
 // A catalogue longer than ChunkRows(opt, DefaultMemoryBudget) is drawn by
 // RenderStream in chunks of that length, which bounds the working memory
-// (about 220 bytes per star of a chunk, against about 170 per catalogue
-// star for the one-pass path) and gives a bit-identical frame.
+// (see ChunkRows) and gives a bit-identical frame.
 func Render(stars *catalog.Stars, opt Options) (*Frame, error) {
 	if rows := ChunkRows(opt, DefaultMemoryBudget); stars != nil && stars.Len() > rows {
 		return RenderStream(Chunks(stars, rows), opt)
@@ -192,7 +191,7 @@ func Render(stars *catalog.Stars, opt Options) (*Frame, error) {
 // depend on the worker count: stars are transformed in fixed chunks into
 // splat records; records are binned, in catalogue order, into 64×64-pixel
 // tiles (a star whose kernel crosses tiles goes into each); each tile then
-// accumulates its stars in catalogue order in float64 and is stored once.
+// adds its stars in catalogue order (see tileAcc.add).
 func (p *Prepared) Render(opt Options) (*Frame, error) {
 	opt, psf, workers, err := resolveOptions(opt)
 	if err != nil {
@@ -244,14 +243,8 @@ func (p *Prepared) Render(opt Options) (*Frame, error) {
 
 	// Phase 3: accumulate tiles.
 	var pool sync.Pool
-	parallel(workers, len(g.start)-1, func(ti int) {
-		acc, _ := pool.Get().(*tileAcc)
-		if acc == nil {
-			acc = &tileAcc{}
-		}
-		acc.render(&f.Buffer, g, ti, &psf)
-		pool.Put(acc)
-	})
+	addTiles(&f.Buffer, g, &psf, workers, &pool)
+	finishFrame(&f.Buffer, workers)
 	return f, nil
 }
 
@@ -574,52 +567,84 @@ func (g *grid) tileRange(x float64, clip0, clip1 int) (int, int) {
 	return p0 / tileSize, p1 / tileSize
 }
 
-// tileAcc is one worker's float64 accumulator for a tile.
+// tileAcc is one worker's scratch copy of a tile's running sums.
 type tileAcc struct {
-	rgb    [tileSize * tileSize * 3]float64
-	dsum   [tileSize * tileSize]float64
+	rgb    [tilePix * 3]float32
+	dsum   [tilePix]float32
 	wx, wy [maxTaps]float64
 }
 
-// render accumulates tile ti's records from zero and stores the tile
-// into b, rounding each pixel to float32 once.
-func (a *tileAcc) render(b *Buffer, g *grid, ti int, psf *PSF) {
+// tilePix is the number of pixels in a tile.
+const tilePix = tileSize * tileSize
+
+// add adds tile ti's records to the running sums in b: b.Pix holds Σ w·rgb
+// and, until finishDoppler, b.Doppler holds Σ w·luminance·D. The tile is
+// copied into a (which stays in cache), summed there and copied back.
+// Each pixel's sum is a sequence of float32 additions in catalogue order,
+// so it does not depend on how the catalogue was split into passes.
+func (a *tileAcc) add(b *Buffer, g *grid, ti int, psf *PSF) {
 	list := g.recs[g.start[ti]:g.start[ti+1]]
 	if len(list) == 0 {
-		return // the buffer is already black there
+		return
 	}
+	ox, oy := (ti%g.tw)*tileSize, (ti/g.tw)*tileSize
+	tw, th := min(tileSize, b.W-ox), min(tileSize, b.H-oy)
 	doppler := b.Doppler != nil
-	clear(a.rgb[:])
-	if doppler {
-		clear(a.dsum[:])
+	for j := 0; j < th; j++ {
+		p := (oy+j)*b.W + ox
+		copy(a.rgb[3*j*tileSize:3*(j*tileSize+tw)], b.Pix[3*p:3*(p+tw)])
+		if doppler {
+			copy(a.dsum[j*tileSize:j*tileSize+tw], b.Doppler[p:p+tw])
+		}
 	}
 	a.accumulate(g, ti, list, psf, doppler)
-	ox, oy := (ti%g.tw)*tileSize, (ti/g.tw)*tileSize
-	storeTile(b, &a.rgb, &a.dsum, ox, oy)
-}
-
-// storeTile rounds one tile's float64 sums (tile-local layout, row length
-// tileSize) into b at (ox, oy).
-func storeTile(b *Buffer, rgb *[tileSize * tileSize * 3]float64, dsum *[tileSize * tileSize]float64, ox, oy int) {
-	tw, th := min(tileSize, b.W-ox), min(tileSize, b.H-oy)
 	for j := 0; j < th; j++ {
-		for i := 0; i < tw; i++ {
-			q := j*tileSize + i
-			p := (oy+j)*b.W + ox + i
-			r, gg, bl := rgb[3*q], rgb[3*q+1], rgb[3*q+2]
-			b.Pix[3*p], b.Pix[3*p+1], b.Pix[3*p+2] = float32(r), float32(gg), float32(bl)
-			if b.Doppler != nil {
-				if l := lumR*r + lumG*gg + lumB*bl; l > 0 {
-					b.Doppler[p] = float32(dsum[q] / l)
-				}
-			}
+		p := (oy+j)*b.W + ox
+		copy(b.Pix[3*p:3*(p+tw)], a.rgb[3*j*tileSize:3*(j*tileSize+tw)])
+		if doppler {
+			copy(b.Doppler[p:p+tw], a.dsum[j*tileSize:j*tileSize+tw])
 		}
 	}
 }
 
+// finishDoppler turns the Doppler sums of image rows [y0, y1) into
+// luminance-weighted means: D = Σ w·L·D / L, with L the pixel's luminance
+// (0 where the pixel is black).
+func finishDoppler(b *Buffer, y0, y1 int) {
+	for p := y0 * b.W; p < y1*b.W; p++ {
+		l := lumR*float64(b.Pix[3*p]) + lumG*float64(b.Pix[3*p+1]) + lumB*float64(b.Pix[3*p+2])
+		if l > 0 {
+			b.Doppler[p] = float32(float64(b.Doppler[p]) / l)
+		} else {
+			b.Doppler[p] = 0
+		}
+	}
+}
+
+// addTiles runs tileAcc.add over every tile of g on workers goroutines.
+func addTiles(b *Buffer, g *grid, psf *PSF, workers int, pool *sync.Pool) {
+	parallel(workers, len(g.start)-1, func(ti int) {
+		a, _ := pool.Get().(*tileAcc)
+		if a == nil {
+			a = &tileAcc{}
+		}
+		a.add(b, g, ti, psf)
+		pool.Put(a)
+	})
+}
+
+// finishFrame completes the Doppler channel once every star is summed.
+func finishFrame(b *Buffer, workers int) {
+	if b.Doppler == nil {
+		return
+	}
+	parallel(workers, (b.H+tileSize-1)/tileSize, func(band int) {
+		finishDoppler(b, band*tileSize, min((band+1)*tileSize, b.H))
+	})
+}
+
 // accumulate adds the records of list, in order, to a's sums for tile ti:
-// the one summation both Render and RenderStream use, so each pixel's
-// float64 sum is formed by the same operations in the same order.
+// each deposit w·rgb is formed in float64 and added in float32.
 func (a *tileAcc) accumulate(g *grid, ti int, list []splatRec, psf *PSF, doppler bool) {
 	ox, oy := (ti%g.tw)*tileSize, (ti/g.tw)*tileSize
 	tw, th := min(tileSize, g.w-ox), min(tileSize, g.h-oy)
@@ -654,14 +679,14 @@ func (a *tileAcc) accumulate(g *grid, ti int, list []splatRec, psf *PSF, doppler
 				for ii, wxi := range wxs {
 					w := wxi * wyj
 					px := row[3*ii : 3*ii+3 : 3*ii+3]
-					px[0] += w * rgb[0]
-					px[1] += w * rgb[1]
-					px[2] += w * rgb[2]
+					px[0] += float32(w * rgb[0])
+					px[1] += float32(w * rgb[1])
+					px[2] += float32(w * rgb[2])
 				}
 				if doppler {
 					ds := dacc[q0 : q0+len(wxs)]
 					for ii, wxi := range wxs {
-						ds[ii] += wxi * wyj * lumD
+						ds[ii] += float32(wxi * wyj * lumD)
 					}
 				}
 			}

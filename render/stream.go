@@ -20,18 +20,18 @@ import (
 const DefaultMemoryBudget = 1 << 30
 
 // Memory model of the streaming renderer, in bytes. A chunk row costs its
-// catalogue columns (37), the Prepared per-star values (48), its splat
-// record (48) and that record's tile copies (48 and a little more for
-// stars whose kernel crosses tiles), about 190, and the peak Go heap was
-// measured at about 220 per row (BenchmarkScaleStreamFile1e7). A frame
-// pixel costs the
-// float32 buffer (12, +4 with Doppler) and the float64 accumulator the
-// stream sums into (24, +8 with Doppler).
+// catalogue columns (37), its splat record (32) and that record's tile
+// copies (32 and a little more for stars whose kernel crosses tiles),
+// about 105; streamBytesPerRow keeps the 220 measured when rows also held
+// the rest values, which leaves headroom for the transform chunk results
+// and the Go heap's growth. A frame pixel costs the float32 buffer the
+// stream sums into (12, +4 with Doppler); there is no other frame-sized
+// buffer.
 const (
 	streamBytesPerRow   = 220
 	streamMinChunkRows  = 1 << 16
-	streamBytesPerPixel = 12 + 24
-	streamDopplerPixel  = 4 + 8
+	streamBytesPerPixel = 12
+	streamDopplerPixel  = 4
 )
 
 // ChunkRows returns how many stars per chunk RenderStream can take for the
@@ -40,9 +40,8 @@ const (
 // row, and at least 65 536 rows (a budget smaller than the frame buffers
 // cannot be met; the minimum keeps the per-chunk overhead small).
 //
-// Longer chunks are faster: every chunk reads and writes the whole float64
-// accumulator once (48 bytes per pixel, 0.8 GB for 4096²), so for a large
-// frame the chunk count, not the star count, sets the memory traffic.
+// Longer chunks are faster: every chunk reads and writes each lit tile of
+// the frame once (24 bytes per pixel, 0.4 GB for 4096²).
 func ChunkRows(opt Options, memoryBudget int64) int {
 	if memoryBudget <= 0 {
 		memoryBudget = DefaultMemoryBudget
@@ -90,14 +89,14 @@ func RenderCacheFile(path string, opt Options, memoryBudget int64) (*Frame, erro
 // RenderStream renders a catalogue delivered in chunks: next returns the
 // successive chunks, in catalogue order, and io.EOF after the last one
 // (any other error stops the render and is returned). Only one chunk's
-// working set is held at a time, plus the frame buffers and a float64
-// accumulator of the frame (24 bytes per pixel, 32 with Doppler).
+// working set is held at a time, plus the frame buffers (12 bytes per
+// pixel, 16 with Doppler), which hold the running sums.
 //
 // The result is bit-identical to Render on the concatenated catalogue,
 // whatever the chunk lengths: every star is transformed by the same
-// per-star steps, each pixel sums its stars in catalogue order in float64
-// (chunk after chunk, and within a chunk tile by tile in catalogue order)
-// and is rounded to float32 once at the end. Stats are summed over chunks;
+// per-star steps and each pixel adds its stars' deposits in catalogue
+// order in float32 (chunk after chunk, and within a chunk tile by tile in
+// catalogue order); the Doppler channel's sums become means at the end. Stats are summed over chunks;
 // Brightest rows are catalogue rows (counted over all chunks) and the list
 // is merged by (V′, row) as Render orders it. The Frame's Stats.Total is
 // the total number of stars seen.
@@ -114,7 +113,6 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 		return nil, err
 	}
 	f := &Frame{Buffer: *buf, Options: opt, Scale: ExposureScale(opt.Exposure)}
-	sa := newStreamAcc(f.W, f.H, opt.Doppler)
 	p := &Prepared{}
 	var pool sync.Pool // *tileAcc scratch, one per worker in use
 	var recs []splatRec
@@ -177,18 +175,11 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 				best = best[:opt.Brightest]
 			}
 		}
-		// Bin this chunk's records (catalogue order) into tiles, then sum
-		// each tile into the frame accumulator; tiles are disjoint, so they
+		// Bin this chunk's records (catalogue order) into tiles, then add
+		// each tile into the frame's sums; tiles are disjoint, so they
 		// run in parallel without changing any pixel's order of addition.
 		g.binAll(recs, chunks, workers)
-		parallel(workers, len(g.start)-1, func(ti int) {
-			a, _ := pool.Get().(*tileAcc)
-			if a == nil {
-				a = &tileAcc{}
-			}
-			sa.tile(g, ti, &psf, a)
-			pool.Put(a)
-		})
+		addTiles(&f.Buffer, g, &psf, workers, &pool)
 		base += n
 	}
 	if !got {
@@ -198,7 +189,7 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 		best = nil
 	}
 	f.Stats.Brightest = best
-	sa.store(&f.Buffer, workers)
+	finishFrame(&f.Buffer, workers)
 	return f, nil
 }
 
@@ -413,84 +404,5 @@ func (g *grid) binAll(recs []splatRec, chunks []chunkResult, workers int) {
 				next[t]++
 			}
 		}
-	})
-}
-
-// streamAcc is the frame-sized float64 accumulator of RenderStream, laid
-// out tile by tile (each 64×64-pixel tile contiguous, edge tiles padded)
-// so that summing one tile touches one compact block, as tileAcc does.
-type streamAcc struct {
-	w, h, tw int
-	rgb      []float64 // 3 per pixel, tile-major
-	dsum     []float64 // Σ luminance·D per pixel, when Doppler
-	used     []bool    // tile has received a record (its block was written)
-}
-
-const tilePix = tileSize * tileSize
-
-func newStreamAcc(w, h int, doppler bool) *streamAcc {
-	tw, th := (w+tileSize-1)/tileSize, (h+tileSize-1)/tileSize
-	sa := &streamAcc{w: w, h: h, tw: tw, rgb: make([]float64, 3*tilePix*tw*th), used: make([]bool, tw*th)}
-	if doppler {
-		sa.dsum = make([]float64, tilePix*tw*th)
-	}
-	return sa
-}
-
-// tile adds tile ti's records to the accumulator with the same operations,
-// in the same order, as tileAcc.render, so each pixel's float64 sum is the
-// one Render forms.
-//
-// The tile's block is first copied into the worker's tileAcc (a fixed-size
-// array that stays in cache), summed there, and copied back: a sequential
-// copy streams at memory speed where scattered first touches of a cold
-// block would each miss the cache.
-func (sa *streamAcc) tile(g *grid, ti int, psf *PSF, a *tileAcc) {
-	list := g.recs[g.start[ti]:g.start[ti+1]]
-	if len(list) == 0 {
-		return
-	}
-	// A tile no earlier chunk touched is all zeros: clear the scratch
-	// instead of reading the (still unmapped) block.
-	first := !sa.used[ti]
-	sa.used[ti] = true
-	block := sa.rgb[3*tilePix*ti : 3*tilePix*(ti+1)]
-	acc := &a.rgb
-	if first {
-		clear(acc[:])
-	} else {
-		copy(acc[:], block)
-	}
-	doppler := sa.dsum != nil
-	var dblock []float64
-	if doppler {
-		dblock = sa.dsum[tilePix*ti : tilePix*(ti+1)]
-		if first {
-			clear(a.dsum[:])
-		} else {
-			copy(a.dsum[:], dblock)
-		}
-	}
-	a.accumulate(g, ti, list, psf, doppler)
-	copy(block, acc[:])
-	if doppler {
-		copy(dblock, a.dsum[:])
-	}
-}
-
-// store rounds the accumulator into b once, tile by tile in parallel, the
-// way tileAcc.render stores a tile.
-func (sa *streamAcc) store(b *Buffer, workers int) {
-	nt := len(sa.rgb) / (3 * tilePix)
-	var zero [tilePix]float64
-	parallel(workers, nt, func(ti int) {
-		if !sa.used[ti] {
-			return // the buffer is already black there
-		}
-		ds := &zero
-		if sa.dsum != nil {
-			ds = (*[tilePix]float64)(sa.dsum[tilePix*ti : tilePix*(ti+1)])
-		}
-		storeTile(b, (*[3 * tilePix]float64)(sa.rgb[3*tilePix*ti:3*tilePix*(ti+1)]), ds, (ti%sa.tw)*tileSize, (ti/sa.tw)*tileSize)
 	})
 }
