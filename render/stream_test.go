@@ -186,8 +186,9 @@ func TestChunkRows(t *testing.T) {
 	}{
 		{frame + 1000*streamBytesPerRow, streamMinChunkRows}, // below the floor
 		{frame + 100_000*streamBytesPerRow, 100_000},
-		{frame + 3_000_000*streamBytesPerRow, 3_000_000},
-		{0, int((DefaultMemoryBudget - frame) / streamBytesPerRow)},
+		{frame + 1_500_000*streamBytesPerRow, 1_500_000},
+		{frame + 3_000_000*streamBytesPerRow, streamMaxChunkRows}, // above the cap
+		{0, min(int((DefaultMemoryBudget-frame)/streamBytesPerRow), streamMaxChunkRows)},
 		{frame / 2, streamMinChunkRows}, // budget below the frame itself
 	}
 	small := Options{Projection: camera.Projection{Width: 100, Height: 100}}
