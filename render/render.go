@@ -527,13 +527,15 @@ type grid struct {
 	radius       float64
 	kind         camera.Kind
 	start        []int32 // tile t's records are recs[start[t]:start[t+1]]
+	lit          []bool  // tile t has been summed into the frame by an earlier pass
 	fill         []int32
 	recs         []splatRec
 }
 
 func newGrid(w, h int, radius float64, kind camera.Kind) *grid {
 	tw, th := (w+tileSize-1)/tileSize, (h+tileSize-1)/tileSize
-	return &grid{w: w, h: h, tw: tw, th: th, radius: radius, kind: kind, start: make([]int32, tw*th+1)}
+	return &grid{w: w, h: h, tw: tw, th: th, radius: radius, kind: kind,
+		start: make([]int32, tw*th+1), lit: make([]bool, tw*th)}
 }
 
 // span returns the image columns [clip0, clip1) a star at column x may
@@ -590,11 +592,20 @@ func (a *tileAcc) add(b *Buffer, g *grid, ti int, psf *PSF) {
 	ox, oy := (ti%g.tw)*tileSize, (ti/g.tw)*tileSize
 	tw, th := min(tileSize, b.W-ox), min(tileSize, b.H-oy)
 	doppler := b.Doppler != nil
-	for j := 0; j < th; j++ {
-		p := (oy+j)*b.W + ox
-		copy(a.rgb[3*j*tileSize:3*(j*tileSize+tw)], b.Pix[3*p:3*(p+tw)])
+	if !g.lit[ti] {
+		// No earlier pass touched the tile: its sums are zero.
+		g.lit[ti] = true
+		clear(a.rgb[:])
 		if doppler {
-			copy(a.dsum[j*tileSize:j*tileSize+tw], b.Doppler[p:p+tw])
+			clear(a.dsum[:])
+		}
+	} else {
+		for j := 0; j < th; j++ {
+			p := (oy+j)*b.W + ox
+			copy(a.rgb[3*j*tileSize:3*(j*tileSize+tw)], b.Pix[3*p:3*(p+tw)])
+			if doppler {
+				copy(a.dsum[j*tileSize:j*tileSize+tw], b.Doppler[p:p+tw])
+			}
 		}
 	}
 	a.accumulate(g, ti, list, psf, doppler)
