@@ -325,3 +325,61 @@ func (c *ChunkReader) Close() error {
 	c.f = nil
 	return err
 }
+
+// AppendRow appends row i of src to s, copying every column value exactly
+// (unlike Append, which recomputes the direction from RA/Dec). Optional
+// columns are created on first use and back-filled as Append does.
+// Source, Format and Epoch of s are left alone.
+func (s *Stars) AppendRow(src *Stars, i int) {
+	n := s.Len()
+	s.ID = append(s.ID, src.ID[i])
+	s.X, s.Y, s.Z = append(s.X, src.X[i]), append(s.Y, src.Y[i]), append(s.Z, src.Z[i])
+	s.Dist, s.Vmag = append(s.Dist, src.Dist[i]), append(s.Vmag, src.Vmag[i])
+	s.Teff, s.BV = append(s.Teff, src.Teff[i]), append(s.BV, src.BV[i])
+	s.Flags = append(s.Flags, src.Flags[i])
+	if src.PMRA != nil && s.PMRA == nil {
+		s.PMRA, s.PMDec = make([]float32, n, n+1), make([]float32, n, n+1)
+	}
+	if s.PMRA != nil {
+		var a, d float32
+		if src.PMRA != nil {
+			a, d = src.PMRA[i], src.PMDec[i]
+		}
+		s.PMRA, s.PMDec = append(s.PMRA, a), append(s.PMDec, d)
+	}
+	if src.RV != nil && s.RV == nil {
+		s.RV = make([]float32, n, n+1)
+		for k := range s.RV {
+			s.RV[k] = float32(math.NaN())
+		}
+	}
+	if s.RV != nil {
+		rv := float32(math.NaN())
+		if src.RV != nil {
+			rv = src.RV[i]
+		}
+		s.RV = append(s.RV, rv)
+	}
+	if nm := src.Names[i]; nm != "" {
+		if s.Names == nil {
+			s.Names = map[int]string{}
+		}
+		s.Names[n] = nm
+	}
+}
+
+// IsCacheFile reports whether the file at path begins with the binary
+// cache's magic bytes (see WriteCache); it reads only those bytes, so it
+// says nothing about whether the rest of the file is sound.
+func IsCacheFile(path string) (bool, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return false, fmt.Errorf("catalog: %w", err)
+	}
+	defer f.Close()
+	var b [7]byte
+	if _, err := io.ReadFull(f, b[:]); err != nil {
+		return false, nil
+	}
+	return string(b[:]) == string(cacheMagic), nil
+}

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"hash/crc32"
 	"io"
+	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -131,4 +132,69 @@ func TestOpenChunksRefusesDamage(t *testing.T) {
 func fixCRC(b []byte) []byte {
 	body := b[:len(b)-4]
 	return binary.LittleEndian.AppendUint32(bytes.Clone(body), crc32.Checksum(body, castagnoli))
+}
+
+// TestAppendRow: rows copied with AppendRow keep every column bit for bit
+// (the built-in sky has names, distances and proper motions), in the order
+// appended, and names follow their rows.
+func TestAppendRow(t *testing.T) {
+	src := BuiltIn()
+	rows := []int{7, 0, src.Len() - 1}
+	for i := range src.Names {
+		rows = append(rows, i)
+		break
+	}
+	var dst Stars
+	for _, i := range rows {
+		dst.AppendRow(src, i)
+	}
+	if err := dst.Validate(); err != nil {
+		t.Fatal(err)
+	}
+	bits := math.Float32bits
+	for k, i := range rows {
+		if dst.ID[k] != src.ID[i] || bits(dst.X[k]) != bits(src.X[i]) || bits(dst.Y[k]) != bits(src.Y[i]) ||
+			bits(dst.Z[k]) != bits(src.Z[i]) || bits(dst.Dist[k]) != bits(src.Dist[i]) || bits(dst.Vmag[k]) != bits(src.Vmag[i]) ||
+			bits(dst.Teff[k]) != bits(src.Teff[i]) || bits(dst.BV[k]) != bits(src.BV[i]) || dst.Flags[k] != src.Flags[i] {
+			t.Errorf("row %d (source row %d) differs: %+v vs %+v", k, i, dst.At(k), src.At(i))
+		}
+		if (src.PMRA != nil) && (dst.PMRA[k] != src.PMRA[i] || dst.PMDec[k] != src.PMDec[i]) {
+			t.Errorf("row %d: proper motion differs", k)
+		}
+		if dst.Names[k] != src.Names[i] {
+			t.Errorf("row %d: name %q, want %q", k, dst.Names[k], src.Names[i])
+		}
+	}
+}
+
+func TestIsCacheFile(t *testing.T) {
+	dir := t.TempDir()
+	cache := filepath.Join(dir, "s.skyc")
+	fh, err := os.Create(cache)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := WriteCache(fh, BuiltIn().Slice(0, 100)); err != nil {
+		t.Fatal(err)
+	}
+	fh.Close()
+	text := filepath.Join(dir, "s.csv")
+	if err := os.WriteFile(text, []byte("ra,dec,vmag\n1,2,3\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	short := filepath.Join(dir, "short")
+	if err := os.WriteFile(short, []byte("SKY"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		path string
+		want bool
+	}{{cache, true}, {text, false}, {short, false}} {
+		if have, err := IsCacheFile(c.path); err != nil || have != c.want {
+			t.Errorf("IsCacheFile(%s) = %v, %v; want %v", filepath.Base(c.path), have, err, c.want)
+		}
+	}
+	if _, err := IsCacheFile(filepath.Join(dir, "missing")); err == nil {
+		t.Error("missing file: no error")
+	}
 }
