@@ -316,6 +316,9 @@ func (c *ChunkReader) read(off int64, k int) ([]byte, error) {
 	return b, nil
 }
 
+// Rewind makes the next call of Next return the first chunk again.
+func (c *ChunkReader) Rewind() { c.pos = 0 }
+
 // Close closes the file.
 func (c *ChunkReader) Close() error {
 	if c.f == nil {

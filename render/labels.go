@@ -132,7 +132,10 @@ func labelTargets(f *Frame, stars *catalog.Stars, opt LabelOptions) ([]labelTarg
 	if err != nil {
 		return nil, err
 	}
-	seen := map[int]bool{}
+	// Keyed by catalogue id: the named stars may come from a catalogue
+	// holding only them (a streamed render), whose rows are not the
+	// frame's rows.
+	seen := map[int64]bool{}
 	var out []labelTarget
 	w, h := float64(f.W), float64(f.H)
 	inside := func(x, y float64) bool { return x >= 0 && x <= w && y >= 0 && y <= h }
@@ -140,15 +143,11 @@ func labelTargets(f *Frame, stars *catalog.Stars, opt LabelOptions) ([]labelTarg
 		if k >= opt.Brightest {
 			break
 		}
-		if seen[s.Row] || !inside(s.X, s.Y) {
+		if seen[s.ID] || !inside(s.X, s.Y) {
 			continue
 		}
-		seen[s.Row] = true
-		name := s.Name
-		if name == "" && stars != nil && s.Row < stars.Len() {
-			name = stars.Names[s.Row]
-		}
-		out = append(out, labelTarget{starText(name, s.ID), s.X, s.Y})
+		seen[s.ID] = true
+		out = append(out, labelTarget{starText(s.Name, s.ID), s.X, s.Y})
 	}
 	if len(rows) == 0 {
 		return out, nil
@@ -158,10 +157,10 @@ func labelTargets(f *Frame, stars *catalog.Stars, opt LabelOptions) ([]labelTarg
 		return nil, err
 	}
 	for _, i := range rows {
-		if seen[i] {
+		if seen[stars.ID[i]] {
 			continue
 		}
-		seen[i] = true
+		seen[stars.ID[i]] = true
 		st := stars.At(i)
 		n, _, _, r := f.Options.Observer.See(r3.Vec{X: st.Dir[0], Y: st.Dir[1], Z: st.Dir[2]}, st.Dist)
 		if r == 0 {

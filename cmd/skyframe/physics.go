@@ -1,9 +1,7 @@
 package main
 
 import (
-	"fmt"
 	"math"
-	"strconv"
 	"strings"
 
 	"github.com/spf13/pflag"
@@ -27,6 +25,12 @@ type physicsFlags struct {
 	beaming       string
 	epoch         float64
 	columns       []string
+
+	// stream, when set, is the cache file the frame is rendered from in
+	// chunks; the scene's stars then hold only the rows refs name (see
+	// referencedStars).
+	stream *catalog.ChunkReader
+	refs   []string
 }
 
 // Default heading: the galactic centre (ICRS, ESA SP-1200 galactic pole and
@@ -73,7 +77,16 @@ func (p *physicsFlags) resolve(fs *pflag.FlagSet) (*scene, error) {
 	if err := checkFinite("epoch", p.epoch); err != nil {
 		return nil, err
 	}
-	stars, err := loadStars(p.catalog, p.catalogFormat, p.columns, p.epoch)
+	var stars *catalog.Stars
+	var err error
+	if p.stream != nil {
+		if p.epoch != 0 {
+			return nil, usagef("--epoch: %s is rendered from disk in chunks (it does not fit in --memory), where proper motions are not propagated; raise --memory", p.catalog)
+		}
+		stars, err = referencedStars(p.stream, p.refs)
+	} else {
+		stars, err = loadStars(p.catalog, p.catalogFormat, p.columns, p.epoch)
+	}
 	if err != nil {
 		return nil, err
 	}
@@ -182,6 +195,3 @@ func resolveDirection(stars *catalog.Stars, flag, s string, pos r3.Vec) (r3.Vec,
 	}
 	return r3.Vec{}, usagef("--%s %q: want RA,DEC in degrees or a star id or name in %s", flag, s, stars.Source)
 }
-
-var _ = fmt.Sprint
-var _ = strconv.Itoa

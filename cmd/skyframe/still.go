@@ -53,6 +53,7 @@ type stillFlags struct {
 	depth                 int
 	output, fits, sidecar string
 	noSidecar             bool
+	memory                string
 }
 
 func (f *stillFlags) register(fs *pflag.FlagSet) {
@@ -74,6 +75,7 @@ func (f *stillFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&f.fits, "fits", "", "also write the linear buffer as 32-bit float FITS with WCS to this file")
 	fs.StringVar(&f.sidecar, "sidecar", "", "JSON sidecar file (default: the PNG name with .json)")
 	fs.BoolVar(&f.noSidecar, "no-sidecar", false, "do not write the JSON sidecar")
+	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget: a cache-file catalogue (skyframe catalog pack) that does not fit in it beside the frame is rendered from disk in chunks, with the same result")
 }
 
 func whiteNames() string {
@@ -115,17 +117,26 @@ type frameSpec struct {
 	layers   render.Layers
 }
 
-func (f *stillFlags) build(fs *pflag.FlagSet, sc *scene) (*frameSpec, error) {
-	spec := &frameSpec{}
-	kind, err := camera.ParseKind(f.projection)
+// frame reads --projection and --size.
+func (f *stillFlags) frame() (kind camera.Kind, w, h int, err error) {
+	kind, err = camera.ParseKind(f.projection)
 	if err != nil {
-		return nil, usagef("--projection %q: want pinhole, equirect, fisheye or cube", f.projection)
+		return kind, 0, 0, usagef("--projection %q: want pinhole, equirect, fisheye or cube", f.projection)
 	}
-	w, h := defaultSize(kind)
+	w, h = defaultSize(kind)
 	if f.size != "" {
 		if w, h, err = parseSize("size", f.size); err != nil {
-			return nil, err
+			return kind, 0, 0, err
 		}
+	}
+	return kind, w, h, nil
+}
+
+func (f *stillFlags) build(fs *pflag.FlagSet, sc *scene) (*frameSpec, error) {
+	spec := &frameSpec{}
+	kind, w, h, err := f.frame()
+	if err != nil {
+		return nil, err
 	}
 	for name, v := range map[string]float64{"fov": f.fov, "tilt": f.tilt, "roll": f.roll, "fwhm": f.fwhm, "limit": f.limit} {
 		if err := checkFinite(name, v); err != nil {
@@ -269,6 +280,21 @@ func runStill(e *env, args []string) error {
 	if err := outputs.check(); err != nil {
 		return err
 	}
+	budget, err := parseMemory(f.memory)
+	if err != nil {
+		return err
+	}
+	kind, w, h, err := f.frame()
+	if err != nil {
+		return err
+	}
+	if p.stream, err = openStream(&p, kind, w, h, budget); err != nil {
+		return err
+	}
+	if p.stream != nil {
+		defer p.stream.Close()
+		p.refs = append([]string{f.look, p.toward, p.position, lf.markDest}, lf.labelIDs...)
+	}
 	sc, err := p.resolve(fs)
 	if err != nil {
 		return err
@@ -281,7 +307,12 @@ func runStill(e *env, args []string) error {
 		return err
 	}
 	start := time.Now()
-	frame, err := render.Render(sc.stars, spec.opt)
+	var frame *render.Frame
+	if p.stream != nil {
+		frame, err = render.RenderStream(p.stream.Next, spec.opt)
+	} else {
+		frame, err = render.Render(sc.stars, spec.opt)
+	}
 	if err != nil {
 		return err
 	}
@@ -294,6 +325,10 @@ func runStill(e *env, args []string) error {
 	}
 	total := time.Since(start)
 	printSummary(e.stdout, frame, sc, spec, outputs, took, total)
+	if p.stream != nil {
+		fmt.Fprintf(e.stdout, "catalogue: %d stars rendered from disk in chunks of up to %d (they do not fit in --memory %s with the frame)\n",
+			frame.Stats.Total, render.ChunkRows(render.Options{Projection: spec.proj, Doppler: true}, budget), f.memory)
+	}
 	return nil
 }
 

@@ -1,0 +1,110 @@
+package main
+
+import (
+	"errors"
+	"io"
+	"math"
+	"sort"
+
+	"github.com/dustin/go-humanize"
+
+	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/render"
+)
+
+// parseMemory reads --memory: a size such as 512MiB, 4GiB or 2GB.
+func parseMemory(s string) (int64, error) {
+	v, err := humanize.ParseBytes(s)
+	if err != nil || v == 0 || v > math.MaxInt64 {
+		return 0, usagef("--memory %q: want a size such as 512MiB, 4GiB or 2GB", s)
+	}
+	return int64(v), nil
+}
+
+// openStream opens the catalogue for rendering from disk when it is a
+// cache file that does not fit in memory beside a w×h frame within
+// budget (render.FitsInMemory, counting a Doppler channel); otherwise it
+// returns nil and the catalogue is loaded as usual.
+func openStream(p *physicsFlags, kind camera.Kind, w, h int, budget int64) (*catalog.ChunkReader, error) {
+	if p.catalog == "" || (p.catalogFormat != "" && p.catalogFormat != "cache") {
+		return nil, nil
+	}
+	if ok, err := catalog.IsCacheFile(p.catalog); err != nil || !ok {
+		return nil, nil // loadStars reports a missing or unreadable file
+	}
+	opt := render.Options{Projection: camera.Projection{Kind: kind, Width: w, Height: h}, Doppler: true}
+	cr, err := catalog.OpenChunks(p.catalog, render.ChunkRows(opt, budget))
+	if err != nil {
+		return nil, usageError{err}
+	}
+	if render.FitsInMemory(opt, cr.Len(), budget) {
+		cr.Close()
+		return nil, nil
+	}
+	return cr, nil
+}
+
+// referencedStars scans the chunks of cr once for the stars the options
+// name (--look, --toward, --position, --mark-destination, --label) and
+// returns them as a small catalogue, in catalogue order and with their
+// columns copied exactly, so that every reference resolves as it would
+// against the whole catalogue (catalog.Stars.Find takes the first match in
+// catalogue order). cr is rewound for the render.
+func referencedStars(cr *catalog.ChunkReader, refs []string) (*catalog.Stars, error) {
+	pending := map[string]bool{}
+	for _, r := range refs {
+		if r != "" {
+			pending[r] = true
+		}
+	}
+	var out catalog.Stars
+	var rows []int
+	base := 0
+	first := true
+	for {
+		ch, err := cr.Next()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			return nil, err
+		}
+		if first {
+			out.Source, out.Format, out.Epoch = ch.Source, ch.Format, ch.Epoch
+			first = false
+		}
+		for q := range pending {
+			if i, ok := ch.Find(q); ok {
+				delete(pending, q)
+				if !containsInt(rows, base+i) {
+					rows = append(rows, base+i)
+					out.AppendRow(ch, i)
+				}
+			}
+		}
+		base += ch.Len()
+	}
+	cr.Rewind()
+	// Catalogue order: a name several references share resolves to its
+	// first row, as in the whole catalogue.
+	idx := make([]int, len(rows))
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.Slice(idx, func(a, b int) bool { return rows[idx[a]] < rows[idx[b]] })
+	sorted := catalog.Stars{Source: out.Source, Format: out.Format, Epoch: out.Epoch}
+	for _, i := range idx {
+		sorted.AppendRow(&out, i)
+	}
+	return &sorted, nil
+}
+
+func containsInt(s []int, v int) bool {
+	for _, x := range s {
+		if x == v {
+			return true
+		}
+	}
+	return false
+}
