@@ -281,6 +281,31 @@ func (p *Projection) Forward(dir r3.Vec) (x, y float64, ok bool) {
 	return fr.forward(p.Kind, dir)
 }
 
+// ForwardBatch is Forward over struct-of-arrays directions: for each
+// k < len(x) it sets px[k], py[k] to Forward's x, y for (x[k], y[k], z[k]),
+// bit for bit, and to NaN where Forward's ok is false. px and py must be at
+// least as long as x, and y and z too. The projection's frame is derived
+// once for the whole batch, and a tight loop lets consecutive directions'
+// long dependency chains (square root, arctangent, divisions) overlap.
+// ForwardBatch does not allocate.
+func (p *Projection) ForwardBatch(x, y, z, px, py []float64) {
+	n := len(x)
+	y, z, px, py = y[:n], z[:n], px[:n], py[:n]
+	fr := &p.cache
+	if !p.current() {
+		d := p.derive()
+		fr = &d
+	}
+	kind := p.Kind
+	for k := range x {
+		u, v, ok := fr.forward(kind, r3.Vec{X: x[k], Y: y[k], Z: z[k]})
+		if !ok {
+			u, v = nan, nan
+		}
+		px[k], py[k] = u, v
+	}
+}
+
 // Inverse maps continuous pixel coordinates to the unit direction seen
 // there. ok is false outside the imaged region: outside [0, W] × [0, H] for
 // Equirect and Cube, outside the circle of FOV for Fisheye (for a Pinhole

@@ -3,6 +3,7 @@ package camera
 import (
 	"errors"
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -429,3 +430,49 @@ func BenchmarkInversePinhole(b *testing.B)  { benchInverse(b, Pinhole) }
 func BenchmarkInverseEquirect(b *testing.B) { benchInverse(b, Equirect) }
 func BenchmarkInverseFisheye(b *testing.B)  { benchInverse(b, Fisheye) }
 func BenchmarkInverseCube(b *testing.B)     { benchInverse(b, Cube) }
+
+// TestForwardBatch: the batch form gives Forward's bits for every kind,
+// with the frame prepared or not, including directions Forward refuses
+// (zero, NaN, behind a pinhole, opposite a fisheye axis), which come back
+// as NaN.
+func TestForwardBatch(t *testing.T) {
+	rng := rand.New(rand.NewPCG(13, 14))
+	n := 5000
+	x, y, z := make([]float64, n), make([]float64, n), make([]float64, n)
+	for k := range x {
+		x[k], y[k], z[k] = rng.NormFloat64(), rng.NormFloat64(), rng.NormFloat64()
+	}
+	x[0], y[0], z[0] = 0, 0, 0
+	x[1] = math.NaN()
+	o, err := LookAt(r3.Unit(r3.Vec{X: 1, Y: 2, Z: 0.5}), r3.Vec{Z: 1}, 10)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := o.Forward
+	x[2], y[2], z[2] = -f.X, -f.Y, -f.Z
+	px, py := make([]float64, n), make([]float64, n)
+	same := func(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) || (math.IsNaN(a) && math.IsNaN(b)) }
+	for _, kind := range []Kind{Pinhole, Equirect, Fisheye, Cube} {
+		for _, prepared := range []bool{false, true} {
+			p := Projection{Kind: kind, Width: 640, Height: 480, Orient: o}
+			if kind == Cube {
+				p.Width, p.Height = 600, 100
+			}
+			if prepared {
+				if err := p.Prepare(); err != nil {
+					t.Fatal(err)
+				}
+			}
+			p.ForwardBatch(x, y, z, px, py)
+			for k := range x {
+				u, v, ok := p.Forward(r3.Vec{X: x[k], Y: y[k], Z: z[k]})
+				if !ok {
+					u, v = math.NaN(), math.NaN()
+				}
+				if !same(u, px[k]) || !same(v, py[k]) {
+					t.Fatalf("%v prepared=%v k=%d: batch (%v, %v), Forward (%v, %v)", kind, prepared, k, px[k], py[k], u, v)
+				}
+			}
+		}
+	}
+}

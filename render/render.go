@@ -340,6 +340,9 @@ type geomBlock struct {
 	vObs, lnW             [blockSize]float64
 	// Rest values of a direct Prepared, computed per block.
 	ux, uy, uz, lnT0, lnV0 [blockSize]float64
+	// Pixel coordinates of the boosted directions (NaN where the
+	// projection is undefined), filled by run.
+	px, py [blockSize]float64
 }
 
 // geometry fills g for stars lo..lo+m−1 with what Observer.See returns —
@@ -463,6 +466,7 @@ func (t *transformer) run(lo, hi int, out []splatRec, res *chunkResult) {
 		m := min(blockSize, hi-b0)
 		t.geometry(b0, m, gb)
 		t.photometry(b0, m, gb)
+		t.proj.ForwardBatch(gb.x[:m], gb.y[:m], gb.z[:m], gb.px[:m], gb.py[:m])
 		for j := 0; j < m; j++ {
 			k += t.star(b0+j, j, gb, &out[k], res)
 		}
@@ -482,8 +486,8 @@ func (t *transformer) star(i, j int, gb *geomBlock, rec *splatRec, res *chunkRes
 		return 0
 	}
 	n := r3.Vec{X: gb.x[j], Y: gb.y[j], Z: gb.z[j]}
-	x, y, ok := t.proj.Forward(n)
-	if !ok || !(x > -t.margin && x < t.w+t.margin && y > -t.margin && y < t.h+t.margin) {
+	x, y := gb.px[j], gb.py[j] // NaN where the projection is undefined
+	if !(x > -t.margin && x < t.w+t.margin && y > -t.margin && y < t.h+t.margin) {
 		res.off++
 		return 0
 	}
