@@ -451,7 +451,9 @@ func TestForwardBatch(t *testing.T) {
 	f := o.Forward
 	x[2], y[2], z[2] = -f.X, -f.Y, -f.Z
 	px, py := make([]float64, n), make([]float64, n)
-	same := func(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) || (math.IsNaN(a) && math.IsNaN(b)) }
+	same := func(a, b float64) bool {
+		return math.Float64bits(a) == math.Float64bits(b) || (math.IsNaN(a) && math.IsNaN(b))
+	}
 	for _, kind := range []Kind{Pinhole, Equirect, Fisheye, Cube} {
 		for _, prepared := range []bool{false, true} {
 			p := Projection{Kind: kind, Width: 640, Height: 480, Orient: o}
