@@ -62,32 +62,6 @@ func ChunkRows(opt Options, memoryBudget int64) int {
 	return int(min(max(rows, streamMinChunkRows), streamMaxChunkRows))
 }
 
-// catalogBytesPerStar is what one star of a catalogue held in memory costs:
-// its catalog.Stars columns (ID 8, X/Y/Z 12, Dist, Vmag, Teff, BV 4 each,
-// Flags 1).
-const catalogBytesPerStar = 37
-
-// FitsInMemory reports whether n stars can be loaded into memory and
-// rendered with Render for the frame of opt within memoryBudget bytes
-// (0 means DefaultMemoryBudget): the catalogue's columns (37 bytes per
-// star), the working set of one chunk of at most ChunkRows rows (183 bytes
-// per row, the row cost less the columns) and the frame buffers. When it
-// does not, render a cache file with RenderCacheFile, which holds only one
-// chunk of the catalogue at a time.
-func FitsInMemory(opt Options, n int, memoryBudget int64) bool {
-	if memoryBudget <= 0 {
-		memoryBudget = DefaultMemoryBudget
-	}
-	px := int64(opt.Projection.Width) * int64(opt.Projection.Height)
-	frame := px * streamBytesPerPixel
-	if opt.Doppler {
-		frame += px * streamDopplerPixel
-	}
-	rows := int64(min(n, ChunkRows(opt, memoryBudget)))
-	need := int64(n)*catalogBytesPerStar + rows*(streamBytesPerRow-catalogBytesPerStar) + frame
-	return need <= memoryBudget
-}
-
 // Chunks returns a chunk source for RenderStream over an in-memory
 // catalogue: successive Slices of at most rows stars (rows ≤ 0 means
 // catalog.DefaultChunkRows), then io.EOF.

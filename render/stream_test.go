@@ -201,26 +201,3 @@ func TestChunkRows(t *testing.T) {
 		}
 	}
 }
-
-// TestFitsInMemory: the model of FitsInMemory — 37 bytes per catalogue
-// star, 183 per row of one chunk, 12 per pixel — on cases either side of
-// the budget.
-func TestFitsInMemory(t *testing.T) {
-	opt := Options{Projection: camera.Projection{Width: 4096, Height: 4096}}
-	frame := int64(4096 * 4096 * 12)
-	for _, c := range []struct {
-		n      int
-		budget int64
-		want   bool
-	}{
-		{10_000_000, 0, true}, // 370 MB + 2^21·183 B + 201 MB < 1 GiB
-		{30_000_000, 0, false},
-		{1000, frame + 1000*220, true},
-		{1000, frame + 1000*220 - 1, false},
-		{1, frame - 1, false}, // not even the frame fits
-	} {
-		if have := FitsInMemory(opt, c.n, c.budget); have != c.want {
-			t.Errorf("FitsInMemory(n=%d, budget %d) = %v, want %v", c.n, c.budget, have, c.want)
-		}
-	}
-}

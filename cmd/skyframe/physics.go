@@ -81,7 +81,7 @@ func (p *physicsFlags) resolve(fs *pflag.FlagSet) (*scene, error) {
 	var err error
 	if p.stream != nil {
 		if p.epoch != 0 {
-			return nil, usagef("--epoch: %s is rendered from disk in chunks (it does not fit in --memory), where proper motions are not propagated; raise --memory", p.catalog)
+			return nil, usagef("--epoch: %s is rendered from disk chunk by chunk (it is longer than one chunk of --memory), where proper motions are not propagated; raise --memory to load it", p.catalog)
 		}
 		stars, err = referencedStars(p.stream, p.refs)
 	} else {

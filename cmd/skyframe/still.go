@@ -75,7 +75,7 @@ func (f *stillFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&f.fits, "fits", "", "also write the linear buffer as 32-bit float FITS with WCS to this file")
 	fs.StringVar(&f.sidecar, "sidecar", "", "JSON sidecar file (default: the PNG name with .json)")
 	fs.BoolVar(&f.noSidecar, "no-sidecar", false, "do not write the JSON sidecar")
-	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget: a cache-file catalogue (skyframe catalog pack) that does not fit in it beside the frame is rendered from disk in chunks, with the same result")
+	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget: a cache-file catalogue (skyframe catalog pack) longer than one chunk that fits in it beside the frame is rendered from disk chunk by chunk, with the same result")
 }
 
 func whiteNames() string {
@@ -326,7 +326,7 @@ func runStill(e *env, args []string) error {
 	total := time.Since(start)
 	printSummary(e.stdout, frame, sc, spec, outputs, took, total)
 	if p.stream != nil {
-		fmt.Fprintf(e.stdout, "catalogue: %d stars rendered from disk in chunks of up to %d (they do not fit in --memory %s with the frame)\n",
+		fmt.Fprintf(e.stdout, "catalogue: %d stars rendered from disk in chunks of up to %d (--memory %s)\n",
 			frame.Stats.Total, render.ChunkRows(render.Options{Projection: spec.proj, Doppler: true}, budget), f.memory)
 	}
 	return nil

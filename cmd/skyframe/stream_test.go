@@ -62,6 +62,18 @@ func TestStillStreamsLargeCache(t *testing.T) {
 	if len(memFITS) == 0 || !bytes.Equal(memFITS, strFITS) {
 		t.Error("FITS differs between the in-memory and streamed renders")
 	}
+	// A star reference that is not in the file, and --epoch, are refused
+	// with exit status 2 and the option named.
+	for _, args := range [][]string{{"--look", "No Such Star"}, {"--epoch", "2100"}} {
+		a := append([]string{"still", "--catalog", cache, "--memory", "1MiB", "--size", "32x18", "-o", filepath.Join(dir, "bad.png")}, args...)
+		_, errs, code := runCmd(t, a...)
+		if code != 2 || !strings.Contains(errs, args[0]) {
+			t.Errorf("%v: exit %d, %q", args, code, errs)
+		}
+		if _, err := os.Stat(filepath.Join(dir, "bad.png")); err == nil {
+			t.Errorf("%v: wrote an output file", args)
+		}
+	}
 	for _, k := range []string{"catalog", "stars", "brightest", "look", "heading"} {
 		a, _ := json.Marshal(memSide[k])
 		b, _ := json.Marshal(strSide[k])
