@@ -167,35 +167,18 @@ func estrin(c *[4]float64, t, t2 float64) float64 {
 // and the chromaticity of the red end of the spectrum locus; lnT = +Inf
 // gives +Inf and the Rayleigh–Jeans chromaticity; NaN gives NaN fields.
 func Lookup(lnT float64) Sample {
-	p := getPhot()
-	s := (lnT - tabLnT0) * tabInvH
-	if !(s >= 0 && s < tabN) {
-		return p.outside(lnT)
-	}
-	i := int(s)
-	t := s - float64(i)
-	c := &p.tab[i]
-	// e^{−t·h} for t·h < 0.036: degree-7 Taylor, relative error < 1e-16,
-	// in Estrin form (four short chains instead of one of seven steps).
-	z := t * tabH
-	z2 := z * z
-	z4 := z2 * z2
-	e := ((1 - z) + z2*(1.0/2-z*(1.0/6))) + z4*((1.0/24-z*(1.0/120))+z2*(1.0/720-z*(1.0/5040)))
-	t2 := t * t
-	return Sample{
-		LnY: estrin(&c.gy, t, t2) - c.wy*e,
-		LnV: estrin(&c.gv, t, t2) - c.wv*e,
-		X:   estrin(&c.cx, t, t2),
-		Y:   estrin(&c.cy, t, t2),
-	}
+	// One code path for both forms, so they agree to the bit.
+	var y, v, x, yy [1]float64
+	LookupBatch([]float64{lnT}, y[:], v[:], x[:], yy[:])
+	return Sample{LnY: y[0], LnV: v[0], X: x[0], Y: yy[0]}
 }
 
 // LookupBatch is Lookup over a slice, in struct-of-arrays form: for each
 // k < len(lnT) it sets lnY[k], lnV[k], x[k], y[k] to the fields of
-// Lookup(lnT[k]), bit for bit (TestLookupBatchMatchesLookup). The output
+// Lookup(lnT[k]) (Lookup is this function on one value). The output
 // slices must be at least as long as lnT. It allocates nothing; the table
-// is fetched once for the whole slice, which is what makes it faster than
-// calling Lookup per value.
+// is fetched once for the whole slice, so per value it costs less than
+// Lookup.
 func LookupBatch(lnT, lnY, lnV, x, y []float64) {
 	p := getPhot()
 	n := len(lnT)
@@ -210,7 +193,8 @@ func LookupBatch(lnT, lnY, lnV, x, y []float64) {
 		i := int(s)
 		t := s - float64(i)
 		c := &p.tab[i]
-		// The same expressions as Lookup, in the same order.
+		// e^{−t·h} for t·h < 0.036: degree-7 Taylor, relative error < 1e-16,
+		// in Estrin form (four short chains instead of one of seven steps).
 		z := t * tabH
 		z2 := z * z
 		z4 := z2 * z2

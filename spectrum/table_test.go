@@ -212,3 +212,17 @@ func BenchmarkTableBuild(b *testing.B) {
 		buildPhot()
 	}
 }
+
+func BenchmarkLookupBatch(b *testing.B) {
+	getPhot()
+	lnT := make([]float64, 256)
+	for k := range lnT {
+		lnT[k] = 5 + 15*float64(k*97%256)/256 // 150 K … 3·10⁸ K, scattered
+	}
+	y, v, x, yy := make([]float64, 256), make([]float64, 256), make([]float64, 256), make([]float64, 256)
+	b.ReportAllocs()
+	for b.Loop() {
+		LookupBatch(lnT, y, v, x, yy)
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/256, "ns/value")
+}
