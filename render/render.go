@@ -534,6 +534,8 @@ type grid struct {
 	lit          []bool  // tile t has been summed into the frame by an earlier pass
 	fill         []int32
 	recs         []splatRec
+	ids          [][]int32 // per transform chunk: each record's tiles, in order (binAll)
+	nts          [][]uint8 // per transform chunk: each record's tile count
 }
 
 func newGrid(w, h int, radius float64, kind camera.Kind) *grid {

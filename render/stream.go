@@ -372,16 +372,24 @@ func (g *grid) binAll(recs []splatRec, chunks []chunkResult, workers int) {
 	}
 	off := g.fill[:nt*nc] // off[c*nt+t]: chunk c's count, then its next slot, in tile t
 	clear(off)
+	for len(g.ids) < nc {
+		g.ids, g.nts = append(g.ids, nil), append(g.nts, nil)
+	}
 	parallel(workers, nc, func(c int) {
+		// Count, and keep each record's tiles for the copy pass.
 		var ts [maxTiles]int32
 		cnt := off[c*nt : (c+1)*nt]
 		lo := c * chunkSize
+		ids, nts := g.ids[c][:0], g.nts[c][:0]
 		for k := lo; k < lo+chunks[c].n; k++ {
 			m := g.tilesOf(&recs[k], &ts)
+			nts = append(nts, uint8(m))
 			for _, t := range ts[:m] {
 				cnt[t]++
+				ids = append(ids, t)
 			}
 		}
+		g.ids[c], g.nts[c] = ids, nts
 	})
 	var run int32
 	for t := 0; t < nt; t++ {
@@ -400,16 +408,17 @@ func (g *grid) binAll(recs []splatRec, chunks []chunkResult, workers int) {
 	}
 	g.recs = g.recs[:run]
 	parallel(workers, nc, func(c int) {
-		var ts [maxTiles]int32
 		next := off[c*nt : (c+1)*nt]
 		lo := c * chunkSize
-		for k := lo; k < lo+chunks[c].n; k++ {
-			r := &recs[k]
-			m := g.tilesOf(r, &ts)
-			for _, t := range ts[:m] {
+		ids, nts := g.ids[c], g.nts[c]
+		q := 0
+		for k, m := range nts {
+			r := &recs[lo+k]
+			for _, t := range ids[q : q+int(m)] {
 				g.recs[next[t]] = *r
 				next[t]++
 			}
+			q += int(m)
 		}
 	})
 }
