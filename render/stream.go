@@ -381,6 +381,11 @@ func (g *grid) binAll(recs []splatRec, chunks []chunkResult, workers int) {
 		cnt := off[c*nt : (c+1)*nt]
 		lo := c * chunkSize
 		ids, nts := g.ids[c][:0], g.nts[c][:0]
+		if n := chunks[c].n; cap(nts) < n {
+			// Sized once: most records touch one tile, a few (kernels
+			// crossing a tile edge) two or four.
+			nts, ids = make([]uint8, 0, n), make([]int32, 0, n+n/4)
+		}
 		for k := lo; k < lo+chunks[c].n; k++ {
 			m := g.tilesOf(&recs[k], &ts)
 			nts = append(nts, uint8(m))
