@@ -1,6 +1,7 @@
 package catalog
 
 import (
+	"math"
 	"strconv"
 	"strings"
 	"unicode"
@@ -19,8 +20,33 @@ var idPrefixes = []struct {
 	{"hr", []string{"bsc5"}},
 }
 
+// Designations of the built-in sky's identifiers, as DisplayID writes them
+// and Find reads them: "synth-N" is SyntheticIDBase + N, "nearby-K" is
+// NearbyIDBase + K.
+var builtInPrefixes = []struct {
+	prefix string
+	base   int64
+}{
+	{"synth-", SyntheticIDBase},
+	{"nearby-", NearbyIDBase},
+}
+
+// DisplayID returns the designation to show for catalogue identifier id:
+// the number itself, except for the built-in sky's 19-digit identifiers,
+// which read "synth-N" (sampled stars) and "nearby-K" (the invented nearby
+// stars). Find accepts what it returns.
+func DisplayID(id int64) string {
+	for i := len(builtInPrefixes) - 1; i >= 0; i-- {
+		if p := builtInPrefixes[i]; id >= p.base {
+			return p.prefix + strconv.FormatInt(id-p.base, 10)
+		}
+	}
+	return strconv.FormatInt(id, 10)
+}
+
 // Find returns the row of the star named by idOrName and whether there is
 // one. It accepts:
+//   - a designation written by DisplayID ("synth-49942");
 //   - a bare catalogue number ("2491"), matched against ID;
 //   - a prefixed number, "HR 2491" (BSC5), "HIP 32349" (Hipparcos, either
 //     reduction), "Gaia DR3 123…" (Gaia), matched against ID only when the
@@ -38,6 +64,13 @@ func (s *Stars) Find(idOrName string) (int, bool) {
 	}
 	if id, err := strconv.ParseInt(q, 10, 64); err == nil {
 		return s.findID(id)
+	}
+	for _, p := range builtInPrefixes {
+		if rest, ok := strings.CutPrefix(q, p.prefix); ok {
+			if k, err := strconv.ParseInt(rest, 10, 64); err == nil && k >= 0 && k <= math.MaxInt64-p.base {
+				return s.findID(p.base + k)
+			}
+		}
 	}
 	for _, p := range idPrefixes {
 		rest, ok := strings.CutPrefix(q, p.prefix)

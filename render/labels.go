@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"strconv"
 	"sync"
 
 	"github.com/fogleman/gg"
@@ -113,12 +112,13 @@ func placeLabels(targets []labelTarget, measure func(string) (float64, float64),
 	return out
 }
 
-// starText is the label of a star: its name, else its catalogue id.
+// starText is the label of a star: its name, else its catalogue
+// designation (catalog.DisplayID).
 func starText(name string, id int64) string {
 	if name != "" {
 		return name
 	}
-	return strconv.FormatInt(id, 10)
+	return catalog.DisplayID(id)
 }
 
 // labelTargets collects the stars to label: the brightest listed in the

@@ -249,7 +249,7 @@ func starLabel(s *catalog.Stars, i int) string {
 	if st.Name != "" {
 		return st.Name
 	}
-	return fmt.Sprint(st.ID)
+	return catalog.DisplayID(st.ID)
 }
 
 func runStill(e *env, args []string) error {
@@ -436,7 +436,7 @@ func printSummary(w io.Writer, frame *render.Frame, sc *scene, spec *frameSpec, 
 		s := st.Brightest[0]
 		name := s.Name
 		if name == "" {
-			name = fmt.Sprint(s.ID)
+			name = catalog.DisplayID(s.ID)
 		}
 		fmt.Fprintf(w, "brightest: %s at V′ = %.2f (D = %.4g, T′ = %.0f K, apparent RA %.3f° Dec %+.3f°)\n", name, s.V, s.D, s.T, s.RA, s.Dec)
 	}
