@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"image"
 	"image/draw"
+	"math"
 
 	"github.com/fogleman/gg"
 	"gonum.org/v1/gonum/spatial/r3"
@@ -58,6 +59,14 @@ var ErrLayers = errors.New("render: layers")
 // Validate checks the options that do not need the star list: the grid
 // step and frame, the lattice size, the label count and the HUD corner.
 // Unknown label names are reported by DrawOverlays (or ResolveLabels).
+
+// The heads-up display takes at most these fractions of a frame's height
+// and width (it shrinks on small frames, down to half its normal size).
+const (
+	hudMaxHeight = 0.45
+	hudMaxWidth  = 0.6
+)
+
 func (l Layers) Validate() error {
 	if l.Grid.Frame != GridNone {
 		if l.Grid.Frame != GridEquatorial && l.Grid.Frame != GridGalactic {
@@ -148,10 +157,19 @@ func DrawOverlays(img draw.Image, f *Frame, stars *catalog.Stars, l Layers) erro
 	var hudLines []string
 	var hudBox box
 	var hudLead float64
-	hudFace := newFace(fontMon, 11*scale)
+	hudFace, hudScale := newFace(fontMon, 11*scale), scale
 	if l.HUD != nil {
 		dc.SetFontFace(hudFace)
 		hudLines, hudBox, hudLead = hudLayout(*l.HUD, l.HUDCorner, p.Width, p.Height, dc.MeasureString, scale)
+		// On a small frame, shrink the display to at most hudMaxHeight of
+		// the height and hudMaxWidth of the width, but not below half size.
+		fit := math.Min(hudMaxHeight*float64(p.Height)/(hudBox.y1-hudBox.y0), hudMaxWidth*float64(p.Width)/(hudBox.x1-hudBox.x0))
+		if fit < 1 {
+			hudScale = scale * math.Max(fit, 0.5)
+			hudFace = newFace(fontMon, 11*hudScale)
+			dc.SetFontFace(hudFace)
+			hudLines, hudBox, hudLead = hudLayout(*l.HUD, l.HUDCorner, p.Width, p.Height, dc.MeasureString, hudScale)
+		}
 	}
 
 	if l.Grid.Frame != GridNone {
@@ -182,7 +200,7 @@ func DrawOverlays(img draw.Image, f *Frame, stars *catalog.Stars, l Layers) erro
 		placed := placeLabels(targets, dc.MeasureString, p.Width, p.Height, blocked, 4*scale)
 		drawLabels(dc, placed, face, scale)
 	}
-	drawHUD(dc, hudLines, hudBox, hudLead, hudFace, scale)
+	drawHUD(dc, hudLines, hudBox, hudLead, hudFace, hudScale)
 
 	draw.Draw(img, bnd, over, image.Point{}, draw.Over)
 	return nil
