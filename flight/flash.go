@@ -54,7 +54,9 @@ type FlashReport struct {
 // frames whose times i/fps lie in [t, t+1 s). Only the whole-frame mean is
 // tested: that is conservative for the area condition (a flash covering the
 // whole frame exceeds any area limit), but misses flashes confined to a small
-// region and does not check the red-flash threshold.
+// region and does not check the red-flash threshold. The flight command also
+// applies it to the mean of each of 5×5 overlapping windows a third of the
+// frame each way (WCAG 2.1's estimate of a 10° visual field).
 func FlashCheck(meanLum []float64, fps float64) FlashReport {
 	var rep FlashReport
 	if !(fps > 0) || math.IsInf(fps, 0) {

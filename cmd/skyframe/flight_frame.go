@@ -30,22 +30,25 @@ type flightSidecar struct {
 // parsecs, rates received signals per emitted second (the Doppler factor
 // toward the trajectory's start and end points).
 type flightInfo struct {
-	Title         string       `json:"title,omitempty"`
-	PlanHash      string       `json:"plan_hash"`
-	Frame         int          `json:"frame"`
-	Frames        int          `json:"frames"`
-	Phase         string       `json:"phase"`
-	VideoSeconds  float64      `json:"video_s"`
-	ShipYears     float64      `json:"tau_yr"`
-	CatalogueYrs  float64      `json:"t_yr"`
-	RateHome      float64      `json:"rate_home"`
-	RateDest      float64      `json:"rate_dest"`
-	TravelledPc   float64      `json:"travelled_pc"`
-	RemainingPc   float64      `json:"remaining_pc"`
-	LookKey       string       `json:"look_key"`
-	RollDeg       float64      `json:"roll_deg"`
-	MeanLuminance float64      `json:"mean_luminance"`
-	Files         []fileRecord `json:"files"`
+	Title         string  `json:"title,omitempty"`
+	PlanHash      string  `json:"plan_hash"`
+	Frame         int     `json:"frame"`
+	Frames        int     `json:"frames"`
+	Phase         string  `json:"phase"`
+	VideoSeconds  float64 `json:"video_s"`
+	ShipYears     float64 `json:"tau_yr"`
+	CatalogueYrs  float64 `json:"t_yr"`
+	RateHome      float64 `json:"rate_home"`
+	RateDest      float64 `json:"rate_dest"`
+	TravelledPc   float64 `json:"travelled_pc"`
+	RemainingPc   float64 `json:"remaining_pc"`
+	LookKey       string  `json:"look_key"`
+	RollDeg       float64 `json:"roll_deg"`
+	MeanLuminance float64 `json:"mean_luminance"`
+	// RegionLuminance holds the mean relative luminance of each of the
+	// flashRegions² overlapping windows (see regionLuminance), row by row.
+	RegionLuminance []float64    `json:"region_luminance,omitempty"`
+	Files           []fileRecord `json:"files"`
 }
 
 // fileRecord names an image file of the frame (relative to the output
@@ -104,23 +107,62 @@ var srgbToLinear = func() (t [256]float64) {
 	return t
 }()
 
-// meanLuminance is the mean relative luminance of an 8-bit sRGB image:
-// each pixel decoded to linear sRGB and weighted Y = 0.2126 R + 0.7152 G +
-// 0.0722 B (IEC 61966-2-1), 0 black, 1 white.
-func meanLuminance(img *image.NRGBA) float64 {
+// frameLum is what the flash check needs of one frame.
+type frameLum struct {
+	mean    float64   // whole-frame mean relative luminance
+	regions []float64 // regionLuminance; nil for frames recorded without it
+}
+
+// flashRegions is the number of windows per axis of the regional flash
+// check. WCAG 2.1 (understanding document of success criterion 2.3.1)
+// estimates a 10° visual field as 341 × 256 pixels of a 1024 × 768 screen,
+// a third of the screen each way; windows of a third of the frame each way,
+// at steps of a sixth, give 5 × 5 overlapping windows.
+const flashRegions = 5
+
+// meanLuminance returns the mean relative luminance of an 8-bit sRGB image
+// (each pixel decoded to linear sRGB and weighted Y = 0.2126 R + 0.7152 G +
+// 0.0722 B, IEC 61966-2-1; 0 black, 1 white) and that of each window of the
+// regional flash check: window (a, b), a the column, is the image's
+// columns [a·W/6, (a+2)·W/6) and rows [b·H/6, (b+2)·H/6), at index
+// b·flashRegions + a.
+func meanLuminance(img *image.NRGBA) frameLum {
 	b := img.Bounds()
-	n := b.Dx() * b.Dy()
-	if n == 0 {
-		return 0
+	w, h := b.Dx(), b.Dy()
+	if w*h == 0 {
+		return frameLum{}
 	}
+	// Sums over a 6 × 6 grid of cells; a window is 2 × 2 cells.
+	const cells = flashRegions + 1
+	var cell [cells][cells]float64
+	var cnt [cells][cells]int
 	var sum float64
-	for y := 0; y < b.Dy(); y++ {
-		row := img.Pix[y*img.Stride : y*img.Stride+4*b.Dx()]
-		for x := 0; x < len(row); x += 4 {
-			sum += 0.2126*srgbToLinear[row[x]] + 0.7152*srgbToLinear[row[x+1]] + 0.0722*srgbToLinear[row[x+2]]
+	for y := 0; y < h; y++ {
+		cy := y * cells / h
+		row := img.Pix[y*img.Stride : y*img.Stride+4*w]
+		for cx := 0; cx < cells; cx++ {
+			x0, x1 := (cx*w+cells-1)/cells, ((cx+1)*w+cells-1)/cells // first x with x·6/w ≥ cx
+			var s float64
+			for x := 4 * x0; x < 4*x1; x += 4 {
+				v := 0.2126*srgbToLinear[row[x]] + 0.7152*srgbToLinear[row[x+1]] + 0.0722*srgbToLinear[row[x+2]]
+				sum += v
+				s += v
+			}
+			cell[cy][cx] += s
+			cnt[cy][cx] += x1 - x0
 		}
 	}
-	return sum / float64(n)
+	out := frameLum{mean: sum / float64(w*h), regions: make([]float64, flashRegions*flashRegions)}
+	for by := 0; by < flashRegions; by++ {
+		for bx := 0; bx < flashRegions; bx++ {
+			s := cell[by][bx] + cell[by][bx+1] + cell[by+1][bx] + cell[by+1][bx+1]
+			n := cnt[by][bx] + cnt[by][bx+1] + cnt[by+1][bx] + cnt[by+1][bx+1]
+			if n > 0 {
+				out.regions[by*flashRegions+bx] = s / float64(n)
+			}
+		}
+	}
+	return out
 }
 
 func sha256Hex(b []byte) string {
@@ -130,41 +172,41 @@ func sha256Hex(b []byte) string {
 
 // renderFrame renders frame i and writes its files, each atomically, the
 // sidecar last so that its presence marks a complete frame. It returns the
-// frame's mean luminance.
-func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i int) (float64, error) {
+// frame's luminance for the flash check.
+func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i int) (frameLum, error) {
 	fs, err := j.plan.FrameState(i)
 	if err != nil {
-		return 0, err
+		return frameLum{}, err
 	}
 	obs, _, err := view(fs)
 	if err != nil {
-		return 0, err
+		return frameLum{}, err
 	}
 	proj, err := j.projection(fs)
 	if err != nil {
-		return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	opt := render.Options{Projection: proj, Observer: obs, Exposure: j.expo, Workers: j.workers}
 	frame, err := prep.Render(opt)
 	if err != nil {
-		return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	lay := j.frameLayers(fs, obs)
 	if err := lay.AddLinear(frame); err != nil {
-		return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	side := frame.Sidecar("skyframe", version, j.stars, j.tone)
 	img := frame.ToNRGBA(j.tone)
 	lum := meanLuminance(img)
 	if err := render.DrawOverlays(img, frame, j.stars, lay); err != nil {
-		return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	home, dest := signalRates(j.plan.Trajectory(), fs.State)
 	info := flightInfo{
 		Title: j.plan.Title, PlanHash: j.hash, Frame: i, Frames: j.plan.Frames(), Phase: fs.Phase.String(),
 		VideoSeconds: fs.Seconds, ShipYears: fs.State.Tau, CatalogueYrs: fs.State.T,
 		RateHome: home, RateDest: dest, TravelledPc: fs.State.Travelled, RemainingPc: fs.State.Remaining,
-		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum,
+		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum.mean, RegionLuminance: lum.regions,
 	}
 	spec := &frameSpec{proj: proj, opt: frame.Options, tone: j.tone, depth: 8, lookDesc: fs.Look.Look, source: "skyframe flight"}
 	sc := &scene{stars: j.stars, observer: obs, heading: fs.State.Dir}
@@ -175,35 +217,35 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 			render.KV{Key: "plan_hash", Value: j.hash})
 		var buf bytes.Buffer
 		if err := enc.Encode(&buf, img, meta); err != nil {
-			return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+			return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
 		if err := j.writeFile(ff.png, buf.Bytes()); err != nil {
-			return 0, err
+			return frameLum{}, err
 		}
 		info.Files = append(info.Files, fileRecord{Kind: "png", Name: ff.png, Bytes: int64(buf.Len()), SHA256: sha256Hex(buf.Bytes())})
 	}
 	if ff.fits != "" {
 		cards, err := fitsCards(frame, sc, spec)
 		if err != nil {
-			return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+			return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
 		cards = append(cards, render.Card{Key: "FRAME", Value: i, Comment: "frame index in the flight"})
 		var buf bytes.Buffer
 		if err := render.WriteFITS(&buf, frame.W, frame.H, frame.Pix, cards); err != nil {
-			return 0, fmt.Errorf("flight: frame %d: %w", i, err)
+			return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
 		if err := j.writeFile(ff.fits, buf.Bytes()); err != nil {
-			return 0, err
+			return frameLum{}, err
 		}
 		info.Files = append(info.Files, fileRecord{Kind: "fits", Name: ff.fits, Bytes: int64(buf.Len()), SHA256: sha256Hex(buf.Bytes())})
 	}
 	if ff.sidecar != "" {
 		data, err := json.MarshalIndent(flightSidecar{Sidecar: side, Flight: info}, "", "  ")
 		if err != nil {
-			return 0, fmt.Errorf("flight: frame %d: sidecar: %w", i, err)
+			return frameLum{}, fmt.Errorf("flight: frame %d: sidecar: %w", i, err)
 		}
 		if err := j.writeFile(ff.sidecar, append(data, '\n')); err != nil {
-			return 0, err
+			return frameLum{}, err
 		}
 	}
 	return lum, nil
@@ -235,49 +277,53 @@ const (
 // parses, records this plan's hash and frame index, and every image file it
 // lists exists with the recorded size and SHA-256. It returns the recorded
 // mean luminance and, when not intact, the reason.
-func (j *flightJob) checkFrame(i int) (frameStatus, float64, string) {
+func (j *flightJob) checkFrame(i int) (frameStatus, frameLum, string) {
 	ff := j.files(i)
 	data, err := os.ReadFile(j.path(ff.sidecar))
 	if os.IsNotExist(err) {
-		return frameMissing, 0, "no sidecar " + ff.sidecar
+		return frameMissing, frameLum{}, "no sidecar " + ff.sidecar
 	}
 	if err != nil {
-		return frameCorrupt, 0, err.Error()
+		return frameCorrupt, frameLum{}, err.Error()
 	}
 	var side flightSidecar
 	if err := json.Unmarshal(data, &side); err != nil {
-		return frameCorrupt, 0, ff.sidecar + ": " + err.Error()
+		return frameCorrupt, frameLum{}, ff.sidecar + ": " + err.Error()
 	}
 	fl := side.Flight
 	if fl.PlanHash != j.hash {
-		return frameCorrupt, 0, fmt.Sprintf("%s: rendered for another plan (hash %.12s…, this plan %.12s…)", ff.sidecar, fl.PlanHash, j.hash)
+		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: rendered for another plan (hash %.12s…, this plan %.12s…)", ff.sidecar, fl.PlanHash, j.hash)
 	}
 	if fl.Frame != i {
-		return frameCorrupt, 0, fmt.Sprintf("%s: records frame %d", ff.sidecar, fl.Frame)
+		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: records frame %d", ff.sidecar, fl.Frame)
 	}
 	want := map[string]string{"png": ff.png, "fits": ff.fits}
 	seen := 0
 	for _, rec := range fl.Files {
 		name, ok := want[rec.Kind]
 		if !ok || name == "" || rec.Name != name {
-			return frameCorrupt, 0, fmt.Sprintf("%s: unexpected file record %s %q", ff.sidecar, rec.Kind, rec.Name)
+			return frameCorrupt, frameLum{}, fmt.Sprintf("%s: unexpected file record %s %q", ff.sidecar, rec.Kind, rec.Name)
 		}
 		seen++
 		b, err := os.ReadFile(j.path(name))
 		if os.IsNotExist(err) {
-			return frameMissing, 0, "no " + name
+			return frameMissing, frameLum{}, "no " + name
 		}
 		if err != nil {
-			return frameCorrupt, 0, err.Error()
+			return frameCorrupt, frameLum{}, err.Error()
 		}
 		if int64(len(b)) != rec.Bytes || sha256Hex(b) != rec.SHA256 {
-			return frameCorrupt, 0, fmt.Sprintf("%s: %d bytes, SHA-256 does not match the sidecar", name, len(b))
+			return frameCorrupt, frameLum{}, fmt.Sprintf("%s: %d bytes, SHA-256 does not match the sidecar", name, len(b))
 		}
 	}
 	if n := btoi(ff.png != "") + btoi(ff.fits != ""); seen != n {
-		return frameCorrupt, 0, fmt.Sprintf("%s: lists %d image files, the plan writes %d", ff.sidecar, seen, n)
+		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: lists %d image files, the plan writes %d", ff.sidecar, seen, n)
 	}
-	return frameIntact, fl.MeanLuminance, ""
+	regions := fl.RegionLuminance
+	if len(regions) != flashRegions*flashRegions {
+		regions = nil // recorded without it, or damaged: whole-frame check only
+	}
+	return frameIntact, frameLum{mean: fl.MeanLuminance, regions: regions}, ""
 }
 
 func btoi(b bool) int {

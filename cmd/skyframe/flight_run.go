@@ -27,7 +27,7 @@ const envTestPace = "SKYFRAME_TEST_PACE"
 // render renders the job's frames, skipping intact ones with resume.
 func (j *flightJob) render(e *env, resume bool) error {
 	todo := j.frames
-	lum := make(map[int]float64, len(j.frames))
+	lum := make(map[int]frameLum, len(j.frames))
 	if resume {
 		todo = todo[:0:0]
 		for _, i := range j.frames {
@@ -104,30 +104,68 @@ func (j *flightJob) render(e *env, resume bool) error {
 }
 
 // flashWarning runs the general flash check over the frames in lum (the
-// contiguous block this run handled) and warns on w when it fails.
-func (j *flightJob) flashWarning(w io.Writer, lum map[int]float64) {
+// contiguous block this run handled) and warns on w when it fails: on the
+// whole-frame mean, and on each window of the regional check (see
+// meanLuminance), which catches a flash confined to part of the frame that
+// the whole-frame mean dilutes below threshold.
+func (j *flightJob) flashWarning(w io.Writer, lum map[int]frameLum) {
 	seq, first := contiguous(j.frames, lum)
 	if len(seq) < 2 {
 		return
 	}
-	rep := flight.FlashCheck(seq, j.plan.Show.FPS)
+	means := make([]float64, len(seq))
+	for k, l := range seq {
+		means[k] = l.mean
+	}
+	rep := flight.FlashCheck(means, j.plan.Show.FPS)
 	if rep.Err != nil {
 		fmt.Fprintf(w, "skyframe: flash check: %v\n", rep.Err)
 		return
 	}
-	if !rep.Pass {
-		fmt.Fprintf(w, "skyframe: warning: photosensitivity: frames %d-%d exceed the WCAG 2.3.1 / ITU-R BT.1702 general flash threshold: %d flashes in one second from frame %d (limit %d); %d flashes in all\n",
-			first, first+len(seq)-1, rep.MaxPerSecond, first+rep.WorstFrame, flight.FlashMaxPerSecond, rep.Flashes)
+	where := "the whole frame"
+	if rep.Pass {
+		worst, at := flashRegionCheck(seq, j.plan.Show.FPS)
+		if worst.Pass {
+			return
+		}
+		rep = worst
+		where = fmt.Sprintf("the window at column %d, row %d of a %d×%d grid of overlapping thirds of the frame (WCAG's 10° field)",
+			at%flashRegions+1, at/flashRegions+1, flashRegions, flashRegions)
 	}
+	fmt.Fprintf(w, "skyframe: warning: photosensitivity: frames %d-%d exceed the WCAG 2.3.1 / ITU-R BT.1702 general flash threshold in %s: %d flashes in one second from frame %d (limit %d); %d flashes in all\n",
+		first, first+len(seq)-1, where, rep.MaxPerSecond, first+rep.WorstFrame, flight.FlashMaxPerSecond, rep.Flashes)
+}
+
+// flashRegionCheck runs the flash check on each window's luminance and
+// returns the report with the most flashes in one second, and the window's
+// index. When a frame of seq lacks window luminances it returns a passing
+// report: there is nothing to check.
+func flashRegionCheck(seq []frameLum, fps float64) (flight.FlashReport, int) {
+	best, at := flight.FlashReport{Pass: true}, -1
+	for _, l := range seq {
+		if l.regions == nil {
+			return best, at
+		}
+	}
+	v := make([]float64, len(seq))
+	for r := 0; r < flashRegions*flashRegions; r++ {
+		for k, l := range seq {
+			v[k] = l.regions[r]
+		}
+		if rep := flight.FlashCheck(v, fps); rep.Err == nil && !rep.Pass && (at < 0 || rep.MaxPerSecond > best.MaxPerSecond) {
+			best, at = rep, r
+		}
+	}
+	return best, at
 }
 
 // contiguous returns the luminances of frames in order, stopping at the
 // first frame without one, and the index of the first frame.
-func contiguous(frames []int, lum map[int]float64) ([]float64, int) {
+func contiguous(frames []int, lum map[int]frameLum) ([]frameLum, int) {
 	if len(frames) == 0 {
 		return nil, 0
 	}
-	seq := make([]float64, 0, len(frames))
+	seq := make([]frameLum, 0, len(frames))
 	for _, i := range frames {
 		l, ok := lum[i]
 		if !ok {
@@ -224,7 +262,7 @@ func humanBytes(n uint64) string {
 // verify checks every selected frame and lists the missing and corrupt ones.
 func (j *flightJob) verify(e *env) error {
 	var missing, corrupt int
-	lum := make(map[int]float64, len(j.frames))
+	lum := make(map[int]frameLum, len(j.frames))
 	for _, i := range j.frames {
 		st, l, why := j.checkFrame(i)
 		switch st {
