@@ -103,7 +103,8 @@ func RenderCacheFile(path string, opt Options, memoryBudget int64) (*Frame, erro
 // whatever the chunk lengths: every star is transformed by the same
 // per-star steps and each pixel adds its stars' deposits in catalogue
 // order in float32 (chunk after chunk, and within a chunk tile by tile in
-// catalogue order); the Doppler channel's sums become means at the end. Stats are summed over chunks;
+// catalogue order); the Doppler channel's sums become means at the end.
+// Stats are summed over chunks;
 // Brightest rows are catalogue rows (counted over all chunks) and the list
 // is merged by (V′, row) as Render orders it. The Frame's Stats.Total is
 // the total number of stars seen.

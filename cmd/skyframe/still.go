@@ -75,7 +75,7 @@ func (f *stillFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&f.fits, "fits", "", "also write the linear buffer as 32-bit float FITS with WCS to this file")
 	fs.StringVar(&f.sidecar, "sidecar", "", "JSON sidecar file (default: the PNG name with .json)")
 	fs.BoolVar(&f.noSidecar, "no-sidecar", false, "do not write the JSON sidecar")
-	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget: a cache-file catalogue (skyframe catalog pack) longer than one chunk that fits in it beside the frame is rendered from disk chunk by chunk, with the same result")
+	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget for the render; a cache-file catalogue (skyframe catalog pack) with more stars than one chunk this budget allows is read from disk chunk by chunk instead of loaded whole, with the same result")
 }
 
 func whiteNames() string {
