@@ -5,34 +5,130 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"path/filepath"
+	"strconv"
+	"sync/atomic"
 )
 
-// WriteFileAtomic writes a file so that path either keeps its old content
-// or holds the complete new content, never a partial file.
-//
-// It creates a temporary file ".<base>.tmp-*" in the directory of path (so
-// the final rename stays within one file system), calls write with a
-// buffered writer on it, flushes, fsyncs and closes it, checking every
-// error, and then renames it over path. On any failure, including an error
-// returned by write, the temporary file is removed and the error, naming
-// path, is returned. The new file keeps the permission bits of the file it
-// replaces, or gets 0644 (not reduced by the umask) when path is new.
-func WriteFileAtomic(path string, write func(io.Writer) error) (err error) {
-	if write == nil {
-		return fmt.Errorf("render: writing %s: nil write function", path)
+// ErrNotRegular is returned (wrapped, naming the path) when a write would
+// replace something that is not a regular file: a device such as
+// /dev/null, a FIFO, a socket or a directory. Renaming over those would
+// destroy them (as root, the system's /dev/null).
+var ErrNotRegular = errors.New("exists and is not a regular file")
+
+// CheckReplaceable reports whether path may be written by WriteFileAtomic:
+// nil when it does not exist or is a regular file (or a symbolic link to
+// one, which the write replaces by a file); an error wrapping
+// ErrNotRegular, naming what path is, otherwise.
+func CheckReplaceable(path string) error {
+	fi, err := os.Lstat(path)
+	if errors.Is(err, fs.ErrNotExist) {
+		return nil
 	}
+	if err != nil {
+		return fmt.Errorf("render: %s: %w", path, err)
+	}
+	if fi.Mode()&fs.ModeSymlink != 0 {
+		target, err := os.Stat(path)
+		if errors.Is(err, fs.ErrNotExist) {
+			return nil // a dangling link is replaced by the new file
+		}
+		if err != nil {
+			return fmt.Errorf("render: %s: %w", path, err)
+		}
+		fi = target
+	}
+	if fi.Mode().IsRegular() {
+		return nil
+	}
+	return fmt.Errorf("render: %s %w (it is a %s); name a file", path, ErrNotRegular, kindOf(fi.Mode()))
+}
+
+func kindOf(m fs.FileMode) string {
+	switch {
+	case m.IsDir():
+		return "directory"
+	case m&fs.ModeNamedPipe != 0:
+		return "FIFO"
+	case m&fs.ModeSocket != 0:
+		return "socket"
+	case m&fs.ModeCharDevice != 0:
+		return "character device"
+	case m&fs.ModeDevice != 0:
+		return "device"
+	}
+	return "special file"
+}
+
+// TempPrefix returns the prefix of the temporary files written for path
+// (".<base>.tmp-"), so that a caller can recognise ones left behind by a
+// killed process.
+func TempPrefix(path string) string { return "." + filepath.Base(path) + ".tmp-" }
+
+var tempSeq atomic.Uint64
+
+// createTemp creates a new temporary file for path in its directory. It is
+// opened with mode 0666 so that the process umask applies, as it does to
+// any file a program creates (os.CreateTemp would use 0600 instead).
+func createTemp(path string) (*os.File, error) {
 	dir, base := filepath.Split(path)
 	if base == "" {
-		return fmt.Errorf("render: writing %q: path names a directory", path)
+		return nil, fmt.Errorf("render: writing %q: path names a directory", path)
 	}
 	if dir == "" {
 		dir = "."
 	}
-	f, err := os.CreateTemp(dir, "."+base+".tmp-*")
+	pid := strconv.Itoa(os.Getpid())
+	for range 10000 {
+		name := filepath.Join(dir, TempPrefix(path)+pid+"-"+strconv.FormatUint(tempSeq.Add(1), 10))
+		f, err := os.OpenFile(name, os.O_RDWR|os.O_CREATE|os.O_EXCL, 0o666)
+		if errors.Is(err, fs.ErrExist) {
+			continue
+		}
+		if err != nil {
+			return nil, fmt.Errorf("render: writing %s: %w", path, err)
+		}
+		return f, nil
+	}
+	return nil, fmt.Errorf("render: writing %s: no free temporary file name", path)
+}
+
+// pending is one file of a FileSet: written, synced and closed, not yet
+// renamed into place.
+type pending struct{ path, tmp string }
+
+// FileSet writes several files all or nothing: Add writes each to its own
+// temporary file beside its path (fsynced and closed), Commit renames them
+// all into place once every one was written, and Abort (safe to defer; a
+// no-op after Commit) removes the temporary files. A failure while adding
+// leaves every path as it was. The zero value is ready to use.
+type FileSet struct {
+	files []pending
+	done  bool
+}
+
+// Add writes path's new content to a temporary file through write (a
+// buffered writer). It refuses a path that exists and is not a regular
+// file (ErrNotRegular) and a path already in the set. The new file keeps
+// the permission bits of the regular file it replaces; a new file gets
+// 0666 reduced by the process umask.
+func (s *FileSet) Add(path string, write func(io.Writer) error) (err error) {
+	if write == nil {
+		return fmt.Errorf("render: writing %s: nil write function", path)
+	}
+	for _, p := range s.files {
+		if filepath.Clean(p.path) == filepath.Clean(path) {
+			return fmt.Errorf("render: writing %s twice in one set", path)
+		}
+	}
+	if err := CheckReplaceable(path); err != nil {
+		return err
+	}
+	f, err := createTemp(path)
 	if err != nil {
-		return fmt.Errorf("render: writing %s: %w", path, err)
+		return err
 	}
 	tmp := f.Name()
 	closed := false
@@ -53,14 +149,10 @@ func WriteFileAtomic(path string, write func(io.Writer) error) (err error) {
 	if err := bw.Flush(); err != nil {
 		return fmt.Errorf("render: writing %s: %w", path, err)
 	}
-	// CreateTemp uses mode 0600; keep the mode of the file being replaced,
-	// else use the common 0644.
-	mode := os.FileMode(0o644)
 	if fi, err := os.Stat(path); err == nil && fi.Mode().IsRegular() {
-		mode = fi.Mode().Perm()
-	}
-	if err := f.Chmod(mode); err != nil {
-		return fmt.Errorf("render: writing %s: %w", path, err)
+		if err := f.Chmod(fi.Mode().Perm()); err != nil {
+			return fmt.Errorf("render: writing %s: %w", path, err)
+		}
 	}
 	if err := f.Sync(); err != nil {
 		return fmt.Errorf("render: syncing %s: %w", path, err)
@@ -69,12 +161,67 @@ func WriteFileAtomic(path string, write func(io.Writer) error) (err error) {
 	if err := f.Close(); err != nil {
 		return fmt.Errorf("render: closing %s: %w", path, err)
 	}
-	if err := os.Rename(tmp, path); err != nil {
-		var le *os.LinkError
-		if errors.As(err, &le) {
-			err = le.Err
-		}
-		return fmt.Errorf("render: replacing %s: %w", path, err)
-	}
+	s.files = append(s.files, pending{path: path, tmp: tmp})
 	return nil
+}
+
+// Commit renames every written file into place, in the order added. A
+// rename can fail only for reasons outside the program (the directory
+// removed meanwhile, for instance); the files not yet renamed are then
+// removed and the error names the path.
+func (s *FileSet) Commit() error {
+	if s.done {
+		return errors.New("render: file set committed twice")
+	}
+	for i, p := range s.files {
+		if err := CheckReplaceable(p.path); err != nil {
+			s.files = s.files[i:]
+			s.Abort()
+			return err
+		}
+		if err := os.Rename(p.tmp, p.path); err != nil {
+			var le *os.LinkError
+			if errors.As(err, &le) {
+				err = le.Err
+			}
+			s.files = s.files[i:]
+			s.Abort()
+			return fmt.Errorf("render: replacing %s: %w", p.path, err)
+		}
+	}
+	s.done = true
+	return nil
+}
+
+// Abort removes the temporary files not yet committed.
+func (s *FileSet) Abort() {
+	if s.done {
+		return
+	}
+	for _, p := range s.files {
+		_ = os.Remove(p.tmp) // best effort
+	}
+	s.files = nil
+	s.done = true
+}
+
+// WriteFileAtomic writes a file so that path either keeps its old content
+// or holds the complete new content, never a partial file.
+//
+// It creates a temporary file ".<base>.tmp-*" in the directory of path (so
+// the final rename stays within one file system), calls write with a
+// buffered writer on it, flushes, fsyncs and closes it, checking every
+// error, and then renames it over path. On any failure, including an error
+// returned by write, the temporary file is removed and the error, naming
+// path, is returned. It refuses to replace anything that is not a regular
+// file (ErrNotRegular). The new file keeps the permission bits of the file
+// it replaces, or gets 0666 reduced by the umask when path is new. It is a
+// FileSet of one file.
+func WriteFileAtomic(path string, write func(io.Writer) error) error {
+	var s FileSet
+	defer s.Abort()
+	if err := s.Add(path, write); err != nil {
+		return err
+	}
+	return s.Commit()
 }

@@ -107,5 +107,7 @@
 // ARC fisheye, CAR equirectangular; none for the cube strip): it maps
 // pixels to the apparent ICRS directions seen from the ship, after
 // aberration. WriteFileAtomic writes any file through a temporary file in
-// the same directory, fsync and rename, so no partial file is ever left.
+// the same directory, fsync and rename, so no partial file is ever left;
+// FileSet does the same for the several files of one frame, renaming them
+// only when all were written. Neither replaces a device, FIFO or directory.
 package render

@@ -90,11 +90,21 @@ type Options struct {
 	Brightest int
 }
 
+// The range of Options.Exposure, in V magnitudes: from brighter than the
+// Sun seen from Earth (V = −26.7, common practice) to fainter than any
+// catalogued star. Outside it the buffer scale (a factor 10^0.4 per
+// magnitude) drives bright stars beyond float32 or every star to zero,
+// and at about 900 mag the scale itself is +Inf.
+const (
+	MinExposure = -30.0
+	MaxExposure = 40.0
+)
+
 // Errors returned by Render for bad options.
 var (
 	ErrWorkers  = errors.New("render: negative Workers")
 	ErrLimit    = errors.New("render: Limit is NaN")
-	ErrExposure = errors.New("render: Exposure is not finite")
+	ErrExposure = errors.New("render: Exposure is outside [MinExposure, MaxExposure]")
 	ErrStars    = errors.New("render: no star list")
 	ErrBeaming  = errors.New("render: unknown beaming convention")
 )

@@ -296,7 +296,7 @@ func resolveOptions(opt Options) (Options, PSF, int, error) {
 	if opt.Workers < 0 {
 		return opt, psf, 0, fmt.Errorf("%w: %d", ErrWorkers, opt.Workers)
 	}
-	if math.IsNaN(opt.Exposure) || math.IsInf(opt.Exposure, 0) {
+	if !(opt.Exposure >= MinExposure && opt.Exposure <= MaxExposure) {
 		return opt, psf, 0, fmt.Errorf("%w: %v", ErrExposure, opt.Exposure)
 	}
 	if math.IsNaN(opt.Limit) {

@@ -181,6 +181,9 @@ func catalogPack(e *env, args []string) error {
 	if err := checkWritable("output", *out); err != nil {
 		return err
 	}
+	if sameFile(fs.Arg(0), *out) {
+		return usagef("catalog pack: --output %s is the input file %s; write to another file", *out, fs.Arg(0))
+	}
 	opt, err := readOptions(*format, *cols)
 	if err != nil {
 		return err
@@ -288,9 +291,24 @@ func (p *byteProgress) finish() {
 	}
 }
 
-// checkWritable fails early, with the flag's name, when path's directory
-// cannot take a new file.
+// sameFile reports whether a and b name one existing file (through links
+// or different spellings).
+func sameFile(a, b string) bool {
+	fa, err1 := os.Stat(a)
+	fb, err2 := os.Stat(b)
+	return err1 == nil && err2 == nil && os.SameFile(fa, fb)
+}
+
+// checkWritable fails early, with the flag's name, when path names
+// something that is not a regular file (a device such as /dev/null, a FIFO,
+// a directory: never replaced) or its directory cannot take a new file.
 func checkWritable(flag, path string) error {
+	if st, err := os.Stat(path); err == nil && st.IsDir() {
+		return usagef("--%s %s: is a directory", flag, path)
+	}
+	if err := render.CheckReplaceable(path); err != nil {
+		return usagef("--%s %s: exists and is not a regular file (only regular files are replaced); name a file", flag, path)
+	}
 	dir := filepath.Dir(path)
 	st, err := os.Stat(dir)
 	if err != nil {
@@ -306,9 +324,6 @@ func checkWritable(flag, path string) error {
 	name := f.Name()
 	f.Close()
 	os.Remove(name)
-	if st, err := os.Stat(path); err == nil && st.IsDir() {
-		return usagef("--%s %s: is a directory", flag, path)
-	}
 	return nil
 }
 

@@ -5,13 +5,15 @@ import (
 
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/flight"
+	"github.com/skyframe/skyframe/render"
 )
 
 // isInputError reports whether err is about the user's input (a catalogue or
-// plan file), which exits with status 2 like a usage error.
+// plan file, or an output path naming a device, FIFO or directory), which exits with status 2 like a usage error.
 func isInputError(err error) bool {
 	var pe *catalog.ParseError
 	var ple *flight.PlanError
 	var le *flight.LegError
-	return errors.As(err, &pe) || errors.As(err, &ple) || errors.As(err, &le)
+	return errors.As(err, &pe) || errors.As(err, &ple) || errors.As(err, &le) ||
+		errors.Is(err, render.ErrNotRegular)
 }

@@ -171,8 +171,8 @@ func (f *stillFlags) build(fs *pflag.FlagSet, sc *scene) (*frameSpec, error) {
 	}
 	exposure := f.exposure
 	if fs.Changed("exposure") {
-		if err := checkFinite("exposure", exposure); err != nil {
-			return nil, err
+		if !(exposure >= render.MinExposure && exposure <= render.MaxExposure) {
+			return nil, usagef("--exposure %v: want a finite V magnitude from %g to %g", exposure, render.MinExposure, render.MaxExposure)
 		}
 	} else {
 		switch f.preset {
@@ -355,7 +355,9 @@ func (o outputPaths) check() error {
 	return nil
 }
 
-// writeFrame writes the PNG, FITS and sidecar of a frame, each atomically.
+// writeFrame writes the PNG, FITS and sidecar of a frame as one set: each
+// to a temporary file, and all renamed into place only when every one was
+// written, so a failure never leaves a new image beside an old sidecar.
 func writeFrame(frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths) error {
 	side := frame.Sidecar("skyframe", version, sc.stars, spec.tone)
 	meta := pngMeta(side, spec)
@@ -368,7 +370,9 @@ func writeFrame(frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths
 	if err := render.DrawOverlays(img, frame, sc.stars, spec.layers); err != nil {
 		return err
 	}
-	err := render.WriteFileAtomic(out.png, func(w io.Writer) error {
+	var set render.FileSet
+	defer set.Abort()
+	err := set.Add(out.png, func(w io.Writer) error {
 		return render.WritePNG(w, img, meta)
 	})
 	if err != nil {
@@ -379,20 +383,20 @@ func writeFrame(frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths
 		if err != nil {
 			return err
 		}
-		if err := render.WriteFileAtomic(out.fits, func(w io.Writer) error {
+		if err := set.Add(out.fits, func(w io.Writer) error {
 			return render.WriteFITS(w, frame.W, frame.H, frame.Pix, cards)
 		}); err != nil {
 			return err
 		}
 	}
 	if out.sidecar != "" {
-		if err := render.WriteFileAtomic(out.sidecar, func(w io.Writer) error {
+		if err := set.Add(out.sidecar, func(w io.Writer) error {
 			return render.WriteSidecar(w, side)
 		}); err != nil {
 			return err
 		}
 	}
-	return nil
+	return set.Commit()
 }
 
 func fitsCards(frame *render.Frame, sc *scene, spec *frameSpec) ([]render.Card, error) {

@@ -1,0 +1,138 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"syscall"
+	"testing"
+)
+
+// Regression tests for the defects of the second robustness audit, one per
+// item, at the command level where the defect was seen there.
+
+// mkfifo makes a FIFO at dir/name or skips the test.
+func mkfifo(t *testing.T, dir, name string) string {
+	t.Helper()
+	p := filepath.Join(dir, name)
+	if err := syscall.Mkfifo(p, 0o644); err != nil {
+		t.Skipf("cannot make a FIFO here: %v", err)
+	}
+	return p
+}
+
+// mknull makes a character device like /dev/null (1,3; Linux's
+// devices.txt) at dir/name, or skips the test. The tests never name the
+// system's /dev/null: code that regressed would replace it.
+func mknull(t *testing.T, dir, name string) string {
+	t.Helper()
+	p := filepath.Join(dir, name)
+	if err := syscall.Mknod(p, syscall.S_IFCHR|0o666, 1<<8|3); err != nil {
+		t.Skipf("cannot make a device node here: %v", err)
+	}
+	return p
+}
+
+// TestStillRefusesSpecialOutputs (item 7): an output naming a device, a
+// FIFO or a directory is refused with status 2 naming the flag, and left
+// as it was; it used to be replaced by a regular file.
+func TestStillRefusesSpecialOutputs(t *testing.T) {
+	dir := t.TempDir()
+	fifo := mkfifo(t, dir, "pipe")
+	null := mknull(t, dir, "null")
+	png := filepath.Join(dir, "x.png")
+	cases := []struct {
+		name string
+		args []string
+		flag string
+	}{
+		{"-o FIFO", []string{"-o", fifo, "--no-sidecar"}, "--output"},
+		{"--sidecar FIFO", []string{"-o", png, "--sidecar", fifo}, "--sidecar"},
+		{"--fits FIFO", []string{"-o", png, "--fits", fifo}, "--fits"},
+		{"-o device", []string{"-o", null, "--no-sidecar"}, "--output"},
+		{"--sidecar device", []string{"-o", png, "--sidecar", null}, "--sidecar"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			code, msg := hostileRun(t, append([]string{"still", "--size", "16x16"}, c.args...)...)
+			hostileExpect(t, code, msg, []string{c.flag, "not a regular file"}, dir, "pipe", "null")
+			if fi, err := os.Lstat(fifo); err != nil || fi.Mode()&os.ModeNamedPipe == 0 {
+				t.Errorf("the FIFO was replaced: %v %v", fi.Mode(), err)
+			}
+			if fi, err := os.Lstat(null); err != nil || fi.Mode()&os.ModeCharDevice == 0 {
+				t.Errorf("the device was replaced: %v %v", fi.Mode(), err)
+			}
+		})
+	}
+	t.Run("catalog pack -o FIFO", func(t *testing.T) {
+		code, msg := hostileRun(t, "catalog", "pack", filepath.Join(hostileFixtures, "generic_good.csv"), "-o", fifo)
+		hostileExpect(t, code, msg, []string{"--output", "not a regular file"}, dir, "pipe", "null")
+	})
+}
+
+// TestStillExposureOutOfRange (item 6): --exposure 1000 used to render,
+// fail in the sidecar (+Inf scale) and leave the new PNG beside the old
+// sidecar. It is refused before rendering, and a previous run's files stay
+// as they were.
+func TestStillExposureOutOfRange(t *testing.T) {
+	for _, v := range []string{"1000", "-1000", "41", "1e308"} {
+		t.Run(v, func(t *testing.T) {
+			dir := t.TempDir()
+			png := hostileFile(t, dir, "x.png", []byte("old png"))
+			side := hostileFile(t, dir, "x.json", []byte("old json"))
+			code, msg := hostileRun(t, "still", "--size", "16x16", "-o", png, "--exposure", v)
+			hostileExpect(t, code, msg, []string{"--exposure", "from -30 to 40"}, dir, "x.png", "x.json")
+			for p, want := range map[string]string{png: "old png", side: "old json"} {
+				if b, _ := os.ReadFile(p); string(b) != want {
+					t.Errorf("%s: %q, want %q", p, b, want)
+				}
+			}
+		})
+	}
+	// The ends of the documented range render.
+	dir := t.TempDir()
+	for _, v := range []string{"-30", "40"} {
+		if code, msg := hostileRun(t, "still", "--size", "16x16", "-o", filepath.Join(dir, "x.png"), "--exposure", v); code != exitOK {
+			t.Errorf("--exposure %s: status %d: %s", v, code, msg)
+		}
+	}
+}
+
+// TestStillHonoursUmask (item 11): written files get 0666 reduced by the
+// umask (POSIX open(2)), as any created file does; they used to get 0644
+// whatever the umask.
+func TestStillHonoursUmask(t *testing.T) {
+	dir := t.TempDir()
+	old := syscall.Umask(0o077)
+	code, msg := hostileRun(t, "still", "--size", "16x16", "-o", filepath.Join(dir, "x.png"), "--fits", filepath.Join(dir, "x.fits"))
+	syscall.Umask(old)
+	if code != exitOK {
+		t.Fatalf("status %d: %s", code, msg)
+	}
+	for _, n := range []string{"x.png", "x.json", "x.fits"} {
+		fi, err := os.Stat(filepath.Join(dir, n))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if fi.Mode().Perm() != 0o600 {
+			t.Errorf("%s: mode %03o under umask 077, want 600", n, fi.Mode().Perm())
+		}
+	}
+}
+
+// TestCatalogPackOntoItself (item 11): "catalog pack X -o X" is refused,
+// also through another spelling of the path; the input is unchanged.
+func TestCatalogPackOntoItself(t *testing.T) {
+	dir := t.TempDir()
+	src, err := os.ReadFile(filepath.Join(hostileFixtures, "generic_good.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	in := hostileFile(t, dir, "in.csv", src)
+	for _, out := range []string{in, filepath.Join(dir, ".", "in.csv")} {
+		code, msg := hostileRun(t, "catalog", "pack", in, "-o", out)
+		hostileExpect(t, code, msg, []string{"--output", "input file"}, dir, "in.csv")
+		if b, _ := os.ReadFile(in); string(b) != string(src) {
+			t.Error("the input was changed")
+		}
+	}
+}
