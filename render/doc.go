@@ -90,10 +90,9 @@
 // microwave background, each pixel at the surface brightness of a blackbody
 // at T′ = T₀·D_sun·D_ship for its direction times the pixel's solid angle,
 // on the stars' photometric scale. Tone mapping and sRGB encoding follow.
-// DrawOverlays then draws, anti-aliased, on the encoded image only, in this
-// order: the aberrated coordinate grid, the D = 1 circle, the lattice of
-// beacons, the motion and destination markers, star labels and the
-// heads-up display. Overlays never reach the FITS data.
+// The overlays (coordinate graticule, the D = 1 circle, the lattice of
+// beacons, markers, star labels and the heads-up display) are drawn on
+// the encoded image by package overlay; they never reach the FITS data.
 //
 // # Output
 //

@@ -15,6 +15,7 @@ import (
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/flight"
+	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/spectrum"
 )
@@ -198,7 +199,7 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 	side := frame.Sidecar("skyframe", version, j.stars, j.tone)
 	img := frame.ToNRGBA(j.tone)
 	lum := meanLuminance(img)
-	if err := render.DrawOverlays(img, frame, j.stars, lay); err != nil {
+	if err := overlay.Draw(img, frame, j.stars, lay.Options); err != nil {
 		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	home, dest := signalRates(j.plan.Trajectory(), fs.State)

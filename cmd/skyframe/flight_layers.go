@@ -9,6 +9,7 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/flight"
+	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 )
 
@@ -20,16 +21,16 @@ import (
 //	                                   circle and the motion and destination markers
 //	labels = true | "N" | "id,name,…"  label the 10 (or N) brightest stars, or these
 //	hud    = true | "top-left" | …     the heads-up display (clocks, distances, rates)
-func planLayers(plan *flight.Plan, sc *scene) (render.Layers, *layerFlags, error) {
+func planLayers(plan *flight.Plan, sc *scene) (layerSet, *layerFlags, error) {
 	ov := plan.Overlays
-	lf := &layerFlags{grid: "none", gridStep: render.DefaultGridStep, latticeStep: render.DefaultLatticeSpacing}
+	lf := &layerFlags{grid: "none", gridStep: overlay.DefaultGraticuleStep, latticeStep: overlay.DefaultLatticeSpacing}
 	where := func(key string) string { return fmt.Sprintf("%s: overlays.%s", plan.Name, key) }
 	switch v := ov.CMB.(type) {
 	case nil:
 	case bool:
 		lf.cmb = v
 	default:
-		return render.Layers{}, nil, usagef("%s = %v: want true or false", where("cmb"), v)
+		return layerSet{}, nil, usagef("%s = %v: want true or false", where("cmb"), v)
 	}
 	switch v := ov.Grid.(type) {
 	case nil:
@@ -40,7 +41,7 @@ func planLayers(plan *flight.Plan, sc *scene) (render.Layers, *layerFlags, error
 	case string:
 		lf.grid = v
 	default:
-		return render.Layers{}, nil, usagef("%s = %v: want true, \"radec\" or \"galactic\"", where("grid"), v)
+		return layerSet{}, nil, usagef("%s = %v: want true, \"radec\" or \"galactic\"", where("grid"), v)
 	}
 	if lf.grid != "none" {
 		lf.unity, lf.markMotion = true, true
@@ -62,7 +63,7 @@ func planLayers(plan *flight.Plan, sc *scene) (render.Layers, *layerFlags, error
 			}
 		}
 	default:
-		return render.Layers{}, nil, usagef("%s = %v: want true, a count or a list of star ids", where("labels"), v)
+		return layerSet{}, nil, usagef("%s = %v: want true, a count or a list of star ids", where("labels"), v)
 	}
 	switch v := ov.HUD.(type) {
 	case nil:
@@ -73,7 +74,7 @@ func planLayers(plan *flight.Plan, sc *scene) (render.Layers, *layerFlags, error
 	case string:
 		lf.hud = v
 	default:
-		return render.Layers{}, nil, usagef("%s = %v: want true or a corner", where("hud"), v)
+		return layerSet{}, nil, usagef("%s = %v: want true or a corner", where("hud"), v)
 	}
 	l, err := lf.layers(sc, nil)
 	if err != nil {
@@ -84,7 +85,7 @@ func planLayers(plan *flight.Plan, sc *scene) (render.Layers, *layerFlags, error
 
 // frameLayers specialises the plan's layers to frame fs: the destination
 // marker and HUD follow the ship.
-func (j *flightJob) frameLayers(fs flight.FrameState, obs camera.Observer) render.Layers {
+func (j *flightJob) frameLayers(fs flight.FrameState, obs camera.Observer) layerSet {
 	l := j.layers
 	if j.layerFlags == nil {
 		return l
@@ -98,7 +99,7 @@ func (j *flightJob) frameLayers(fs flight.FrameState, obs camera.Observer) rende
 		}
 	}
 	if l.HUD != nil {
-		v := render.NoHUDValues()
+		v := overlay.NoHUDValues()
 		v.Title = j.plan.Title
 		v.Beta, v.Gamma = fs.State.Beta, fs.State.Gamma
 		v.TauYears, v.TYears = fs.State.Tau, fs.State.T

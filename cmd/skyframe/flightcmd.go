@@ -105,7 +105,7 @@ type flightJob struct {
 	expo    float64
 	workers int
 	// layers are the plan's overlays (frameLayers specialises them).
-	layers     render.Layers
+	layers     layerSet
 	layerFlags *layerFlags
 }
 

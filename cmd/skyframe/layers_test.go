@@ -10,6 +10,7 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 )
 
@@ -71,9 +72,9 @@ func TestLayerFlagsConvert(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !l.CMB || l.Grid.Frame != render.GridGalactic || l.Grid.Step != 20 || !l.UnityCircle || !l.Markers.Motion ||
+	if !l.CMB || l.Graticule.Frame != overlay.GraticuleGalactic || l.Graticule.Step != 20 || !l.UnityCircle || !l.Markers.Motion ||
 		l.Markers.Destination == nil || l.Lattice.PerSide != 101 || !l.Lattice.Confirm || l.Labels.Brightest != 25 ||
-		len(l.Labels.Stars) != 1 || l.HUD == nil || l.HUDCorner != render.BottomRight || l.HUD.Title != "hello" {
+		len(l.Labels.Stars) != 1 || l.HUD == nil || l.HUDCorner != overlay.BottomRight || l.HUD.Title != "hello" {
 		t.Errorf("layers %+v", l)
 	}
 	if opt.Brightest != 25 {
@@ -89,7 +90,7 @@ func TestLayerFlagsConvert(t *testing.T) {
 	}
 	// No flags: no layers.
 	l, err = parseLayerFlags(t).layers(layerScene(t), &opt)
-	if err != nil || l.CMB || l.Grid.Frame != render.GridNone || l.HUD != nil || l.Lattice.PerSide != 0 {
+	if err != nil || l.CMB || l.Graticule.Frame != overlay.GraticuleNone || l.HUD != nil || l.Lattice.PerSide != 0 {
 		t.Errorf("defaults: %+v, %v", l, err)
 	}
 }

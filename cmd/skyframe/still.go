@@ -15,6 +15,7 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/spectrum"
 )
@@ -114,7 +115,7 @@ type frameSpec struct {
 	depth    int
 	lookDesc string
 	source   string // command recorded in the PNG "Source" chunk; empty: "skyframe still"
-	layers   render.Layers
+	layers   layerSet
 }
 
 // frame reads --projection and --size.
@@ -367,7 +368,7 @@ func writeFrame(frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths
 	} else {
 		img = frame.ToNRGBA(spec.tone)
 	}
-	if err := render.DrawOverlays(img, frame, sc.stars, spec.layers); err != nil {
+	if err := overlay.Draw(img, frame, sc.stars, spec.layers.Options); err != nil {
 		return err
 	}
 	var set render.FileSet

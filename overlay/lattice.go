@@ -1,11 +1,11 @@
-package render
+package overlay
 
 import (
 	"errors"
 	"fmt"
 	"math"
 
-	"github.com/fogleman/gg"
+	"git.sr.ht/~sbinet/gg"
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/camera"
@@ -19,9 +19,9 @@ const MaxBeacons = 1_000_000
 const DefaultLatticeSpacing = 1.0
 
 // ErrLattice reports unusable lattice options.
-var ErrLattice = errors.New("render: lattice")
+var ErrLattice = errors.New("overlay: lattice")
 
-// LatticeOptions configure the beacon lattice: a cubic grid of point
+// LatticeOptions configure the beacon lattice: a cubic array of point
 // beacons at rest in the catalogue frame, PerSide³ of them, Spacing parsecs
 // apart along the ICRS axes, centred on Origin. Seen through the same
 // transform as the stars (parallax from the observer's position, then the

@@ -1,80 +1,80 @@
-package render
+package overlay
 
 import (
 	"errors"
 	"fmt"
 	"math"
 
-	"github.com/fogleman/gg"
+	"git.sr.ht/~sbinet/gg"
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/camera"
 )
 
-// GridFrame selects the coordinate system of the reference grid.
-type GridFrame int
+// GraticuleFrame selects the coordinate system of the coordinate graticule.
+type GraticuleFrame int
 
 const (
-	// GridNone draws no grid (the zero value).
-	GridNone GridFrame = iota
-	// GridEquatorial draws lines of constant ICRS right ascension and
+	// GraticuleNone draws no graticule (the zero value).
+	GraticuleNone GraticuleFrame = iota
+	// GraticuleEquatorial draws lines of constant ICRS right ascension and
 	// declination.
-	GridEquatorial
-	// GridGalactic draws lines of constant galactic longitude and latitude
+	GraticuleEquatorial
+	// GraticuleGalactic draws lines of constant galactic longitude and latitude
 	// (ESA SP-1200 galactic frame, see camera.FromGalacticLB).
-	GridGalactic
+	GraticuleGalactic
 )
 
 // String returns "none", "radec" or "galactic".
-func (g GridFrame) String() string {
+func (g GraticuleFrame) String() string {
 	switch g {
-	case GridNone:
+	case GraticuleNone:
 		return "none"
-	case GridEquatorial:
+	case GraticuleEquatorial:
 		return "radec"
-	case GridGalactic:
+	case GraticuleGalactic:
 		return "galactic"
 	}
-	return fmt.Sprintf("GridFrame(%d)", int(g))
+	return fmt.Sprintf("GraticuleFrame(%d)", int(g))
 }
 
-// ParseGridFrame parses "none", "radec" (also "equatorial", "icrs") or
+// ParseGraticuleFrame parses "none", "radec" (also "equatorial", "icrs") or
 // "galactic" (case-sensitive lower case).
-func ParseGridFrame(s string) (GridFrame, error) {
+func ParseGraticuleFrame(s string) (GraticuleFrame, error) {
 	switch s {
 	case "none", "":
-		return GridNone, nil
+		return GraticuleNone, nil
 	case "radec", "equatorial", "icrs":
-		return GridEquatorial, nil
+		return GraticuleEquatorial, nil
 	case "galactic":
-		return GridGalactic, nil
+		return GraticuleGalactic, nil
 	}
-	return GridNone, fmt.Errorf("%w: unknown frame %q (want none, radec or galactic)", ErrGrid, s)
+	return GraticuleNone, fmt.Errorf("%w: unknown frame %q (want none, radec or galactic)", ErrGraticule, s)
 }
 
-// DefaultGridStep is the grid spacing in degrees when GridOptions.Step is 0.
-const DefaultGridStep = 15.0
+// DefaultGraticuleStep is the graticule spacing in degrees when GraticuleOptions.Step is 0.
+const DefaultGraticuleStep = 15.0
 
-// ErrGrid reports unusable grid options.
-var ErrGrid = errors.New("render: grid")
+// ErrGraticule reports unusable graticule options.
+var ErrGraticule = errors.New("overlay: graticule")
 
-// GridOptions configure the reference grid layer. The zero value draws no
-// grid.
-type GridOptions struct {
-	// Frame is the coordinate system; GridNone draws nothing.
-	Frame GridFrame
+// GraticuleOptions configure the coordinate graticule layer. The zero value draws no
+// graticule.
+type GraticuleOptions struct {
+	// Frame is the coordinate system; GraticuleNone draws nothing.
+	Frame GraticuleFrame
 	// Step is the spacing of the lines in degrees, in both coordinates;
-	// 0 means DefaultGridStep. It must be in (0, 90].
+	// 0 means DefaultGraticuleStep. It must be in (0, 90].
 	Step float64
 }
 
-func (o GridOptions) step() (float64, error) {
+func (o GraticuleOptions) step() (float64, error) {
 	s := o.Step
 	if s == 0 {
-		s = DefaultGridStep
+		s = DefaultGraticuleStep
 	}
 	if !(s > 0 && s <= 90) {
-		return 0, fmt.Errorf("%w: Step %g°, want 0 < step ≤ 90", ErrGrid, o.Step)
+		return 0, fmt.Errorf("%w: Step %g°, want 0 < step ≤ 90", ErrGraticule, o.Step)
 	}
 	return s, nil
 }
@@ -97,8 +97,8 @@ type Vertex struct {
 	X, Y float64
 	// Dir is the apparent direction drawn there (ship frame, ICRS axes).
 	Dir r3.Vec
-	// Lon and Lat are the coordinates of the point in degrees: for grid
-	// lines the catalogue-frame longitude and latitude of the grid's frame
+	// Lon and Lat are the coordinates of the point in degrees: for graticule
+	// lines the catalogue-frame longitude and latitude of the graticule's frame
 	// (RA/Dec or l/b); for the D = 1 circle the azimuth about the direction
 	// of motion and the apparent angle θ′ from it.
 	Lon, Lat float64
@@ -253,29 +253,29 @@ func (t *tracer) seg(a, b *traceSample, depth int) {
 }
 
 // catalogueDir returns the catalogue-frame unit vector of (lon, lat) in the
-// grid's frame.
-func (g GridFrame) catalogueDir(lon, lat float64) r3.Vec {
-	if g == GridGalactic {
+// graticule's frame.
+func (g GraticuleFrame) catalogueDir(lon, lat float64) r3.Vec {
+	if g == GraticuleGalactic {
 		return camera.FromGalacticLB(lon, lat)
 	}
 	return camera.FromRADec(lon, lat)
 }
 
-// GridLines returns the reference grid of opt as polylines in pixel
-// coordinates of p, seen through boost b: each catalogue-frame grid point
+// GraticuleLines returns the coordinate graticule of opt as polylines in pixel
+// coordinates of p, seen through boost b: each catalogue-frame graticule point
 // (at infinity, so no parallax) is aberrated with b.Apply and projected with
 // p.Forward. Lines are sampled adaptively until consecutive vertices are at
 // most MaxSegment pixels apart, and split where the projection is
 // discontinuous (the equirect seam, the plane of a pinhole, the rim of a
 // fisheye, cube face edges) or the line leaves the imaged part of the sky.
 // Meridians run through the poles; parallels are drawn every Step degrees
-// strictly between the poles. GridNone gives no lines.
-func GridLines(p camera.Projection, b camera.Boost, opt GridOptions) ([]Polyline, error) {
-	if opt.Frame == GridNone {
+// strictly between the poles. GraticuleNone gives no lines.
+func GraticuleLines(p camera.Projection, b camera.Boost, opt GraticuleOptions) ([]Polyline, error) {
+	if opt.Frame == GraticuleNone {
 		return nil, nil
 	}
-	if opt.Frame != GridEquatorial && opt.Frame != GridGalactic {
-		return nil, fmt.Errorf("%w: unknown Frame %d", ErrGrid, int(opt.Frame))
+	if opt.Frame != GraticuleEquatorial && opt.Frame != GraticuleGalactic {
+		return nil, fmt.Errorf("%w: unknown Frame %d", ErrGraticule, int(opt.Frame))
 	}
 	step, err := opt.step()
 	if err != nil {
@@ -403,11 +403,11 @@ func strokeLines(dc *gg.Context, lines []Polyline, st lineStyle, scale float64) 
 	dc.SetDash()
 }
 
-// drawGrid strokes grid lines, the equator or galactic plane (latitude 0)
+// drawGraticule strokes graticule lines, the equator or galactic plane (latitude 0)
 // and the prime meridian bolder than the rest.
-func drawGrid(dc *gg.Context, lines []Polyline, frame GridFrame, scale float64) {
+func drawGraticule(dc *gg.Context, lines []Polyline, frame GraticuleFrame, scale float64) {
 	minor, major := styleEquatorial, styleEquatorialMajor
-	if frame == GridGalactic {
+	if frame == GraticuleGalactic {
 		minor, major = styleGalactic, styleGalacticMajor
 	}
 	var lo, hi []Polyline

@@ -1,4 +1,4 @@
-package render
+package overlay
 
 import (
 	"errors"
@@ -6,18 +6,19 @@ import (
 	"math"
 	"sync"
 
-	"github.com/fogleman/gg"
-	"github.com/golang/freetype/truetype"
+	"git.sr.ht/~sbinet/gg"
 	"golang.org/x/image/font"
 	"golang.org/x/image/font/gofont/gomono"
 	"golang.org/x/image/font/gofont/goregular"
+	"golang.org/x/image/font/opentype"
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/render"
 )
 
 // ErrLabel reports a label that names no star, or bad label options.
-var ErrLabel = errors.New("render: label")
+var ErrLabel = errors.New("overlay: label")
 
 // LabelOptions choose which stars get a name label. The zero value labels
 // none.
@@ -124,7 +125,7 @@ func starText(name string, id int64) string {
 // labelTargets collects the stars to label: the brightest listed in the
 // frame's stats, then the named stars (seen through the frame's observer
 // and projection), each row once, those off the image left out.
-func labelTargets(f *Frame, stars *catalog.Stars, opt LabelOptions) ([]labelTarget, error) {
+func labelTargets(f *render.Frame, stars *catalog.Stars, opt LabelOptions) ([]labelTarget, error) {
 	if opt.Brightest < 0 {
 		return nil, fmt.Errorf("%w: Brightest %d, want ≥ 0", ErrLabel, opt.Brightest)
 	}
@@ -179,27 +180,34 @@ func labelTargets(f *Frame, stars *catalog.Stars, opt LabelOptions) ([]labelTarg
 // system fonts, so output is the same on every machine.
 var (
 	fontOnce          sync.Once
-	fontSans, fontMon *truetype.Font
+	fontSans, fontMon *opentype.Font
 	fontErr           error
 )
 
 func loadFonts() error {
 	fontOnce.Do(func() {
-		if fontSans, fontErr = truetype.Parse(goregular.TTF); fontErr != nil {
+		if fontSans, fontErr = opentype.Parse(goregular.TTF); fontErr != nil {
 			return
 		}
-		fontMon, fontErr = truetype.Parse(gomono.TTF)
+		fontMon, fontErr = opentype.Parse(gomono.TTF)
 	})
 	if fontErr != nil {
-		return fmt.Errorf("render: font: %w", fontErr)
+		return fmt.Errorf("overlay: font: %w", fontErr)
 	}
 	return nil
 }
 
 // newFace returns a face of f at size pixels (72 dpi, unhinted so layout
 // scales smoothly). Faces are not safe for concurrent use: one per call.
-func newFace(f *truetype.Font, size float64) font.Face {
-	return truetype.NewFace(f, &truetype.Options{Size: size, DPI: 72, Hinting: font.HintingNone})
+func newFace(f *opentype.Font, size float64) (font.Face, error) {
+	if !(size > 0) || math.IsInf(size, 0) {
+		return nil, fmt.Errorf("%w: text size %g px, want a finite size > 0", ErrOverlay, size)
+	}
+	face, err := opentype.NewFace(f, &opentype.FaceOptions{Size: size, DPI: 72, Hinting: font.HintingNone})
+	if err != nil {
+		return nil, fmt.Errorf("overlay: font: %w", err)
+	}
+	return face, nil
 }
 
 // drawLabels draws placed labels: a short leader tick toward the star and

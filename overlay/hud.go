@@ -1,4 +1,4 @@
-package render
+package overlay
 
 import (
 	"fmt"
@@ -6,7 +6,7 @@ import (
 	"strconv"
 	"strings"
 
-	"github.com/fogleman/gg"
+	"git.sr.ht/~sbinet/gg"
 	"golang.org/x/image/font"
 )
 
@@ -41,7 +41,7 @@ func ParseCorner(s string) (Corner, error) {
 			return Corner(i), nil
 		}
 	}
-	return 0, fmt.Errorf("render: HUD corner %q: want top-left, top-right, bottom-left or bottom-right", s)
+	return 0, fmt.Errorf("overlay: HUD corner %q: want top-left, top-right, bottom-left or bottom-right", s)
 }
 
 // HUDValues are the numbers the heads-up display shows, filled in by the

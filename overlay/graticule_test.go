@@ -1,4 +1,4 @@
-package render
+package overlay
 
 import (
 	"errors"
@@ -23,10 +23,10 @@ var icrsToGalactic = [3][3]float64{
 
 // refDir computes the catalogue direction of (lon, lat) without the camera
 // package: spherical to Cartesian, then the transposed galactic rotation.
-func refDir(frame GridFrame, lon, lat float64) r3.Vec {
+func refDir(frame GraticuleFrame, lon, lat float64) r3.Vec {
 	l, b := lon*math.Pi/180, lat*math.Pi/180
 	v := [3]float64{math.Cos(b) * math.Cos(l), math.Cos(b) * math.Sin(l), math.Sin(b)}
-	if frame == GridEquatorial {
+	if frame == GraticuleEquatorial {
 		return r3.Vec{X: v[0], Y: v[1], Z: v[2]}
 	}
 	m := icrsToGalactic
@@ -86,14 +86,14 @@ func TestGridVerticesOnAberratedCoordinates(t *testing.T) {
 		{camera.Cube, 6 * 40, 40, 0},
 	}
 	for _, k := range kinds {
-		for _, frame := range []GridFrame{GridEquatorial, GridGalactic} {
+		for _, frame := range []GraticuleFrame{GraticuleEquatorial, GraticuleGalactic} {
 			for _, beta := range []float64{0, 0.9} {
 				p := looking(t, k.kind, k.w, k.h, k.fov, look)
 				b, err := camera.NewBoost(heading, beta)
 				if err != nil {
 					t.Fatal(err)
 				}
-				lines, err := GridLines(p, b, GridOptions{Frame: frame, Step: 20})
+				lines, err := GraticuleLines(p, b, GraticuleOptions{Frame: frame, Step: 20})
 				if err != nil {
 					t.Fatal(err)
 				}
@@ -142,7 +142,7 @@ func TestGridVerticesOnAberratedCoordinates(t *testing.T) {
 // default orientation].
 func TestGridEquatorThroughCentre(t *testing.T) {
 	p := looking(t, camera.Pinhole, 160, 90, 60, axisX)
-	lines, err := GridLines(p, camera.Boost{}, GridOptions{Frame: GridEquatorial})
+	lines, err := GraticuleLines(p, camera.Boost{}, GraticuleOptions{Frame: GraticuleEquatorial})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -231,31 +231,31 @@ func TestUnityCircleVertices(t *testing.T) {
 
 func TestGridErrors(t *testing.T) {
 	p := looking(t, camera.Pinhole, 16, 9, 0, axisX)
-	for _, opt := range []GridOptions{
-		{Frame: GridEquatorial, Step: -1},
-		{Frame: GridEquatorial, Step: 91},
-		{Frame: GridGalactic, Step: math.NaN()},
-		{Frame: GridFrame(7)},
+	for _, opt := range []GraticuleOptions{
+		{Frame: GraticuleEquatorial, Step: -1},
+		{Frame: GraticuleEquatorial, Step: 91},
+		{Frame: GraticuleGalactic, Step: math.NaN()},
+		{Frame: GraticuleFrame(7)},
 	} {
-		if _, err := GridLines(p, camera.Boost{}, opt); !errors.Is(err, ErrGrid) {
-			t.Errorf("%+v: have %v, want ErrGrid", opt, err)
+		if _, err := GraticuleLines(p, camera.Boost{}, opt); !errors.Is(err, ErrGraticule) {
+			t.Errorf("%+v: have %v, want ErrGraticule", opt, err)
 		}
 	}
-	if l, err := GridLines(p, camera.Boost{}, GridOptions{}); err != nil || l != nil {
+	if l, err := GraticuleLines(p, camera.Boost{}, GraticuleOptions{}); err != nil || l != nil {
 		t.Errorf("zero options: have %v, %v; want nothing", l, err)
 	}
-	if _, err := ParseGridFrame("ecliptic"); !errors.Is(err, ErrGrid) {
-		t.Errorf("ParseGridFrame(ecliptic): %v, want ErrGrid", err)
+	if _, err := ParseGraticuleFrame("ecliptic"); !errors.Is(err, ErrGraticule) {
+		t.Errorf("ParseGraticuleFrame(ecliptic): %v, want ErrGraticule", err)
 	}
 	for _, s := range []string{"none", "radec", "galactic"} {
-		g, err := ParseGridFrame(s)
+		g, err := ParseGraticuleFrame(s)
 		if err != nil || g.String() != s {
-			t.Errorf("ParseGridFrame(%q) = %v, %v", s, g, err)
+			t.Errorf("ParseGraticuleFrame(%q) = %v, %v", s, g, err)
 		}
 	}
 }
 
-func BenchmarkGridLines(b *testing.B) {
+func BenchmarkGraticuleLines(b *testing.B) {
 	p := looking(b, camera.Pinhole, 1920, 1080, 90, axisX)
 	boost, err := camera.NewBoost(r3.Unit(r3.Vec{X: 1, Y: 0.3}), 0.95)
 	if err != nil {
@@ -263,7 +263,7 @@ func BenchmarkGridLines(b *testing.B) {
 	}
 	b.ReportAllocs()
 	for b.Loop() {
-		if _, err := GridLines(p, boost, GridOptions{Frame: GridGalactic, Step: 10}); err != nil {
+		if _, err := GraticuleLines(p, boost, GraticuleOptions{Frame: GraticuleGalactic, Step: 10}); err != nil {
 			b.Fatal(err)
 		}
 	}
