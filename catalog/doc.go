@@ -59,6 +59,16 @@
 // I/311) to a temporary file, verifies it by reading it, and renames it
 // into place in CacheDir().
 //
+// # Unresolved light
+//
+// NewUnresolvedSky maps the light of the synthetic sky's stars fainter than
+// a resolved depth V: the same galaxy model as Synthetic, integrated along
+// each line of sight (with its dust) into a few diluted blackbodies of fixed
+// temperatures per direction, I_λ(n) = Σ_k W_k(n) B_λ(T_k), on a grid in
+// galactic coordinates read by bilinear interpolation. Resolved stars plus
+// the map are the whole model sky, whatever the depth. The V-band
+// normalisation of W is passed in (the package has no photometry).
+//
 // The package sits at the start of the pipeline and imports no other
 // skyframe package.
 package catalog

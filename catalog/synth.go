@@ -193,10 +193,13 @@ type synthGen struct {
 	limF []float64                   // per M bin: fraction within the segment
 }
 
-func newSynthGen(opt SynthOptions) *synthGen {
+func newSynthGen(opt SynthOptions) *synthGen { return newSynthGenLimit(opt, opt.magLimit()) }
+
+// newSynthGenLimit is newSynthGen with the limit vlim given unclamped.
+func newSynthGenLimit(opt SynthOptions, vlim float64) *synthGen {
 	g := &synthGen{
 		rng:  rand.New(rand.NewPCG(opt.seed(), 0x9e3779b97f4a7c15)),
-		vlim: opt.magLimit(),
+		vlim: vlim,
 		dust: !opt.NoExtinction,
 	}
 	g.dlnR = math.Log(synthRMax/synthRMin) / (synthNR - 1)

@@ -1,0 +1,249 @@
+package catalog
+
+import (
+	"math"
+	"sync"
+	"testing"
+
+	"github.com/skyframe/skyframe/spectrum"
+	"gonum.org/v1/gonum/spatial/r3"
+)
+
+// unresW0 is the V-band dilution the renderer uses: the W of a V = 0
+// blackbody at T (spectrum.FromV, the same normalisation as every star).
+func unresW0(T float64) float64 {
+	b, err := spectrum.FromV(T, 0)
+	if err != nil {
+		return math.NaN()
+	}
+	return b.W
+}
+
+// s10PerSr is one S10 (one V = 10 star per square degree) in V = 0 stars
+// per steradian: 10⁻⁴·(180/π)² [cp: definition of the unit].
+var s10PerSr = 1e-4 * (180 / math.Pi) * (180 / math.Pi)
+
+// unresCache keeps the maps the tests build (a few tenths of a second each).
+var unresCache sync.Map
+
+func unresMust(t testing.TB, depth float64) *UnresolvedSky {
+	t.Helper()
+	if u, ok := unresCache.Load(depth); ok {
+		return u.(*UnresolvedSky)
+	}
+	u, err := NewUnresolvedSky(depth, unresW0, SynthOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	unresCache.Store(depth, u)
+	return u
+}
+
+func galDir(l, b float64) r3.Vec {
+	x, y, z := galacticToICRS(galacticLB(l, b))
+	return r3.Vec{X: x, Y: y, Z: z}
+}
+
+// TestUnresolvedSplitConservesLight checks that the resolved stars of the
+// built-in sky (a Monte Carlo sample of the model) and the unresolved map
+// (a quadrature of the same model) add up to the same whole sky wherever
+// the split is put, in V-band light: over the whole sky for depths 6, 8 and
+// 10, and per band of galactic latitude for the slice between 8 and 10.
+// Tolerances: the sample's own Poisson scatter (4σ of its flux) plus 1 %.
+func TestUnresolvedSplitConservesLight(t *testing.T) {
+	const sampleLim = 10.0
+	s := Synthetic(SynthOptions{MagLimit: sampleLim, NoNearby: true})
+	total := unresMust(t, MinUnresolvedDepth).AllSkyV()
+	depths := []float64{6, 8, 10}
+	if testing.Short() {
+		depths = depths[1:]
+	}
+	for _, d := range depths {
+		u := unresMust(t, d)
+		var res, v2 float64
+		for i := 0; i < s.Len(); i++ {
+			if v := float64(s.Vmag[i]); v <= d {
+				f := math.Pow(10, -0.4*v)
+				res += f
+				v2 += f * f
+			}
+		}
+		sum := res + u.AllSkyV()
+		tol := 4*math.Sqrt(v2) + 0.01*total
+		t.Logf("depth %g: resolved %.1f + unresolved %.1f = %.1f V=0 stars; whole model %.1f (tolerance %.1f)", d, res, u.AllSkyV(), sum, total, tol)
+		if math.Abs(sum-total) > tol {
+			t.Errorf("depth %g: resolved + unresolved = %.2f V=0 stars, want the whole model's %.2f ± %.2f", d, sum, total, tol)
+		}
+	}
+
+	// The slice 8 < V ≤ 10 per latitude band: sampled stars against the
+	// difference of the two maps integrated over the band.
+	u8, u10 := unresMust(t, 8), unresMust(t, 10)
+	bands := [][2]float64{{0, 5}, {5, 15}, {15, 40}, {40, 90}}
+	for _, band := range bands {
+		var res, v2 float64
+		for i := 0; i < s.Len(); i++ {
+			v := float64(s.Vmag[i])
+			if v <= 8 || v > 10 {
+				continue
+			}
+			_, _, gz := icrsToGalactic(float64(s.X[i]), float64(s.Y[i]), float64(s.Z[i]))
+			if ab := math.Abs(math.Asin(gz)) * 180 / math.Pi; ab < band[0] || ab >= band[1] {
+				continue
+			}
+			f := math.Pow(10, -0.4*v)
+			res += f
+			v2 += f * f
+		}
+		// Midpoint rule in l and sin b over both hemispheres.
+		const nl, nb = 360, 200
+		s0, s1 := math.Sin(band[0]*math.Pi/180), math.Sin(band[1]*math.Pi/180)
+		model := 0.0
+		for j := 0; j < nb; j++ {
+			sb := s0 + (s1-s0)*(float64(j)+0.5)/nb
+			b := math.Asin(sb) * 180 / math.Pi
+			for i := 0; i < nl; i++ {
+				l := 360 * (float64(i) + 0.5) / nl
+				for _, sg := range []float64{1, -1} {
+					n := galDir(l, sg*b)
+					model += u8.VRadiance(n) - u10.VRadiance(n)
+				}
+			}
+		}
+		model *= 2 * math.Pi / nl * (s1 - s0) / nb
+		tol := 4*math.Sqrt(v2) + 0.01*model
+		t.Logf("|b| in [%g, %g)°, 8 < V ≤ 10: sampled %.2f, map %.2f V=0 stars", band[0], band[1], res, model)
+		if math.Abs(res-model) > tol {
+			t.Errorf("|b| in [%g, %g)°, 8 < V ≤ 10: sampled stars give %.3f V=0 stars, the map %.3f; want equal ± %.3f", band[0], band[1], res, model, tol)
+		}
+	}
+}
+
+// TestUnresolvedPublished compares the model's integrated starlight at rest
+// with published all-sky figures. The figures are quoted from memory [mem]
+// (Leinert et al. 1998, A&AS 127, 1, §10 and its tables of integrated
+// starlight in S10 units after Roach & Megill 1961 and Toller 1981; Masana et
+// al. 2021, MNRAS 501, 5443, Gaia-based maps of the star radiance), so the
+// tolerances are the ranges those sources span, not their quoted errors:
+//
+//   - the whole sky's starlight is about 450 stars of V = 0 (V ≈ −6.6), to
+//     within ±0.3 mag;
+//   - about half of it comes from stars fainter than V = 10.5 (0.4–0.6);
+//   - at the galactic poles the starlight of all stars is 20–80 S10;
+//   - the galactic plane, averaged over longitude, is 100–600 S10 and 3 to
+//     20 times brighter than the poles (the plane/pole contrast at rest).
+func TestUnresolvedPublished(t *testing.T) {
+	all := unresMust(t, MinUnresolvedDepth)
+	tot := all.AllSkyV()
+	v := -2.5 * math.Log10(tot)
+	t.Logf("whole sky: %.1f V=0 stars, V = %.2f (450, −6.6 [mem])", tot, v)
+	if math.Abs(v-(-6.6)) > 0.3 {
+		t.Errorf("whole-sky starlight V = %.2f, want −6.6 ± 0.3 (Leinert et al. 1998 §10 [mem])", v)
+	}
+	faint := unresMust(t, 10.5).AllSkyV() / tot
+	t.Logf("share of the light from V > 10.5: %.3f", faint)
+	if faint < 0.4 || faint > 0.6 {
+		t.Errorf("share of the whole sky's light from stars fainter than V = 10.5: %.3f, want 0.4–0.6 [mem]", faint)
+	}
+	pole := (all.VRadiance(galDir(0, 90)) + all.VRadiance(galDir(0, -90))) / 2 / s10PerSr
+	plane := 0.0
+	for l := 0.0; l < 360; l += 1 {
+		plane += all.VRadiance(galDir(l, 0))
+	}
+	plane /= 360 * s10PerSr
+	t.Logf("poles %.1f S10, plane (mean over l) %.1f S10, contrast %.1f", pole, plane, plane/pole)
+	if pole < 20 || pole > 80 {
+		t.Errorf("galactic poles: %.1f S10, want 20–80 S10 (Leinert et al. 1998 §10 [mem])", pole)
+	}
+	if plane < 100 || plane > 600 {
+		t.Errorf("galactic plane, mean over longitude: %.1f S10, want 100–600 S10 (Leinert et al. 1998 §10 [mem])", plane)
+	}
+	if c := plane / pole; c < 3 || c > 20 {
+		t.Errorf("plane/pole contrast %.1f, want 3–20 (Leinert et al. 1998; Masana et al. 2021 [mem])", c)
+	}
+	// The galactic centre's side of the plane is brighter than the
+	// anticentre's (the disks are exponential in radius) [cp].
+	if gc, ac := all.VRadiance(galDir(20, 0)), all.VRadiance(galDir(180, 0)); !(gc > ac) {
+		t.Errorf("plane at l = 20° (%.3g) not brighter than at l = 180° (%.3g)", gc, ac)
+	}
+}
+
+// TestUnresolvedDilutions checks the interface form against VRadiance: the
+// components' V-band flux, computed by the spectrum package from (T_k, W_k),
+// must add up to the map's V-band surface brightness.
+func TestUnresolvedDilutions(t *testing.T) {
+	u := unresMust(t, 8)
+	T := u.Temperatures()
+	for k := 1; k < len(T); k++ {
+		if !(T[k] > T[k-1]) {
+			t.Fatalf("temperatures not ascending: %v", T)
+		}
+	}
+	w := make([]float64, len(T))
+	for _, lb := range [][2]float64{{0, 0}, {123, 4.2}, {250, -33}, {17, 89.9}, {359.9, -0.1}} {
+		n := galDir(lb[0], lb[1])
+		u.Dilutions(n, w)
+		sum := 0.0
+		for k := range w {
+			if !(w[k] >= 0) {
+				t.Fatalf("(l, b) = %v: W_%d = %v, want ≥ 0", lb, k, w[k])
+			}
+			bb, err := spectrum.NewBlackbody(T[k], w[k]/math.Pi)
+			if err != nil {
+				t.Fatal(err)
+			}
+			sum += bb.VFlux() / spectrum.V0FluxLambda
+		}
+		want := u.VRadiance(n)
+		if math.Abs(sum/want-1) > 1e-6 {
+			t.Errorf("(l, b) = %v: Σ V-band flux of the components %.6g, VRadiance %.6g", lb, sum, want)
+		}
+		// A non-unit direction gives the same values.
+		u.Dilutions(r3.Scale(3, n), w)
+		for k := range w {
+			bb, _ := spectrum.NewBlackbody(T[k], w[k]/math.Pi)
+			sum -= bb.VFlux() / spectrum.V0FluxLambda
+		}
+		if math.Abs(sum) > 1e-9*want {
+			t.Errorf("(l, b) = %v: a non-unit direction changes the result by %g", lb, sum)
+		}
+	}
+	// Interpolation is continuous across l = 0 and inside a cell [cp].
+	a, b := u.VRadiance(galDir(0.001, 10)), u.VRadiance(galDir(359.999, 10))
+	if math.Abs(a/b-1) > 1e-4 {
+		t.Errorf("discontinuity at l = 0: %g vs %g", a, b)
+	}
+}
+
+func TestUnresolvedBadInput(t *testing.T) {
+	for _, d := range []float64{math.NaN(), math.Inf(1), math.Inf(-1), 31, -31} {
+		if _, err := NewUnresolvedSky(d, unresW0, SynthOptions{}); err == nil {
+			t.Errorf("depth %v: no error", d)
+		}
+	}
+	if _, err := NewUnresolvedSky(8, nil, SynthOptions{}); err == nil {
+		t.Error("nil dilution function: no error")
+	}
+	if _, err := NewUnresolvedSky(8, func(float64) float64 { return math.NaN() }, SynthOptions{}); err == nil {
+		t.Error("NaN dilution: no error")
+	}
+}
+
+func BenchmarkUnresolvedDilutions(b *testing.B) {
+	u := unresMust(b, 8)
+	w := make([]float64, len(u.Temperatures()))
+	n := galDir(33, 2.5)
+	b.ReportAllocs()
+	for b.Loop() {
+		u.Dilutions(n, w)
+	}
+}
+
+func BenchmarkUnresolvedBuild(b *testing.B) {
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := NewUnresolvedSky(8, unresW0, SynthOptions{}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
