@@ -31,6 +31,19 @@ WCS, plus a JSON sidecar with the full physical state.
 With no options it renders the built-in sky at 0.9 c toward the galactic
 centre, looking ahead, 1920x1080, to sky.png (and sky.json).
 
+Fulldome (--projection fisheye): the frame is a domemaster as the fulldome
+show-file convention describes it (Dome Master Show File Format 1.0, sec. II,
+fulldome.org standards group): an equidistant fisheye (radius proportional to
+the angle from the centre) in a circle touching the frame's edges, its centre
+the dome's zenith, the circle's edge the spring line at the default 180°
+field; the BOTTOM of the frame is the FRONT of the dome, and left and right
+are the left and right of a viewer at the dome's centre facing the front.
+Give square sizes; the convention's standard ones include 2048x2048,
+4096x4096 and 8192x8192. The view direction (--look) is at the centre;
+--tilt DEG turns the dome's axis from it toward --up, so the view direction
+appears DEG below the centre, toward the front (the convention suggests a
+nominal camera tilt of 15°).
+
 Examples:
   skyframe still
   skyframe still --speed 0.99 --projection fisheye --size 2048x2048 -o dome.png
@@ -63,7 +76,7 @@ func (f *stillFlags) register(fs *pflag.FlagSet) {
 	fs.Float64Var(&f.roll, "roll", 0, "camera roll in degrees about the view direction (positive banks right)")
 	fs.StringVar(&f.projection, "projection", "pinhole", "projection: pinhole, equirect, fisheye (fulldome domemaster) or cube (6x1 strip)")
 	fs.Float64Var(&f.fov, "fov", 0, "field of view in degrees: pinhole horizontal (default 60), fisheye circle (default 180)")
-	fs.Float64Var(&f.tilt, "tilt", 0, "fisheye only: tilt the dome axis from the view direction toward up, degrees")
+	fs.Float64Var(&f.tilt, "tilt", 0, "fisheye only: turn the dome axis (frame centre) from the view direction toward --up by DEG, so the view direction appears DEG below the centre, toward the dome's front (the bottom of the frame)")
 	fs.StringVar(&f.size, "size", "", "image size WIDTHxHEIGHT (default 1920x1080; fisheye 2048x2048, equirect 4096x2048, cube 3072x512)")
 	fs.Float64Var(&f.exposure, "exposure", math.Round(render.NakedEyeExposure()*1000)/1000, "exposure in V magnitudes: a white star this bright just reaches full scale; fixed for every frame (default: the naked-eye preset)")
 	fs.StringVar(&f.preset, "preset", "naked-eye", "exposure preset when --exposure is not given: naked-eye (V = 6.5 just visible)")
