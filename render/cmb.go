@@ -180,6 +180,33 @@ func (s *pixelSolidAngle) at(i, j int, n r3.Vec) float64 {
 	}
 }
 
+// sub returns the solid angle of a sub-pixel of side 1/s pixels centred on
+// the continuous image position (x, y), whose direction is n: the
+// Jacobian at n times 1/s² (Equirect: exact over the sub-row). With s = 1
+// at a pixel centre it equals at.
+func (s *pixelSolidAngle) sub(x, y float64, ns int, n r3.Vec) float64 {
+	inv := 1 / float64(ns)
+	switch s.kind {
+	case camera.Pinhole:
+		c := r3.Dot(n, s.axis)
+		return c * c * c * s.invF2 * inv * inv
+	case camera.Cube:
+		face := min(5, max(0, int(x/s.h)))
+		c := r3.Dot(n, s.faces[face])
+		return c * c * c * s.invF2 * inv * inv
+	case camera.Fisheye:
+		a := math.Atan2(r3.Norm(r3.Cross(n, s.axis)), r3.Dot(n, s.axis))
+		if a < 1e-8 {
+			return s.invK2 * inv * inv
+		}
+		return math.Sin(a) / a * s.invK2 * inv * inv
+	default:
+		top := (s.h/2 - (y - 0.5*inv)) * math.Pi / s.h
+		bot := (s.h/2 - (y + 0.5*inv)) * math.Pi / s.h
+		return s.lonPix * inv * (math.Sin(top) - math.Sin(bot))
+	}
+}
+
 // AddCMB adds the cosmic microwave background, as seen from the frame's
 // observer (f.Options.Observer), to the linear buffer of f, at its true
 // surface brightness relative to the stars. It belongs to the linear stage:

@@ -89,7 +89,14 @@
 // so it is also in the FITS data: the stars, then (Layers.CMB) the cosmic
 // microwave background, each pixel at the surface brightness of a blackbody
 // at T′ = T₀·D_sun·D_ship for its direction times the pixel's solid angle,
-// on the stars' photometric scale. Tone mapping and sRGB encoding follow.
+// on the stars' photometric scale, then (Layers.Unresolved) the light of
+// the stars too faint to draw, an UnresolvedSky of diluted blackbodies
+// W_k(n)·B(T_k) in the catalogue frame, seen through the exact inverse
+// aberration: each component keeps its dilution and has T′ = D·T_k, so its
+// bolometric surface brightness goes as D⁴ (AddDiffuse; sub-sampled where
+// D or the catalogue-frame footprint changes fast within a pixel). A
+// uniform layer and stars carrying the same flux give the same buffer
+// total. Tone mapping and sRGB encoding follow.
 // The overlays (coordinate graticule, the D = 1 circle, the lattice of
 // beacons, markers, star labels and the heads-up display) are drawn on
 // the encoded image by package overlay; they never reach the FITS data.

@@ -128,3 +128,19 @@ var vTable = [24]float64{
 	0.000, 0.030, 0.163, 0.458, 0.780, 0.967, 1.000, 0.973, 0.898, 0.792, 0.684, 0.574,
 	0.461, 0.359, 0.270, 0.197, 0.135, 0.081, 0.045, 0.025, 0.017, 0.013, 0.009, 0.000,
 }
+
+// CMF returns the CIE 1931 2° colour-matching functions x̄, ȳ, z̄ at the
+// wavelength lambdaM (metres) as this package defines them: linear in λ
+// between the 5 nm nodes of the table above, zero outside 360–830 nm and
+// for NaN. It is for independent checks (direct integration of a
+// spectrum); the photometry itself uses the exact integrals, not this.
+func CMF(lambdaM float64) (x, y, z float64) {
+	u := (lambdaM - cmfLambda0) / cmfStep
+	if !(u >= 0 && u <= float64(len(cmfTable)-1)) {
+		return 0, 0, 0
+	}
+	i := min(int(u), len(cmfTable)-2)
+	f := u - float64(i)
+	a, b := &cmfTable[i], &cmfTable[i+1]
+	return a[0] + f*(b[0]-a[0]), a[1] + f*(b[1]-a[1]), a[2] + f*(b[2]-a[2])
+}

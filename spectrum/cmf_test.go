@@ -1,6 +1,7 @@
 package spectrum
 
 import (
+	"math"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -29,5 +30,27 @@ func TestCMFTableSums(t *testing.T) {
 	// Bessell (1990) V peaks at 1 at 530 nm [pub].
 	if v := vTable[(530-470)/10]; v != 1 {
 		t.Errorf("S_V(530) = %g, want 1", v)
+	}
+}
+
+// CMF returns the CIE 015:2004 table values at its nodes (ȳ(555 nm) = 1,
+// x̄(600 nm) = 1.0622 [pub]), interpolates linearly between them and is
+// zero outside 360–830 nm.
+func TestCMFExported(t *testing.T) {
+	if _, y, _ := CMF(555e-9); y != 1 {
+		t.Errorf("ȳ(555 nm) = %g, want 1", y)
+	}
+	if x, _, _ := CMF(600e-9); math.Abs(x-1.0622) > 1e-12 {
+		t.Errorf("x̄(600 nm) = %.6f, want 1.0622", x)
+	}
+	_, y0, _ := CMF(555e-9)
+	_, y1, _ := CMF(560e-9)
+	if _, y, _ := CMF(557.5e-9); math.Abs(y-(y0+y1)/2) > 1e-12 {
+		t.Errorf("ȳ(557.5 nm) = %g, want the mean of its nodes %g", y, (y0+y1)/2)
+	}
+	for _, l := range []float64{359e-9, 831e-9, math.NaN(), -1} {
+		if x, y, z := CMF(l); x != 0 || y != 0 || z != 0 {
+			t.Errorf("CMF(%g) = %g %g %g, want 0", l, x, y, z)
+		}
 	}
 }

@@ -1,0 +1,342 @@
+package render
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"runtime"
+	"slices"
+
+	"gonum.org/v1/gonum/spatial/r3"
+
+	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/spectrum"
+)
+
+// UnresolvedSky is light from stars too faint to be drawn, in the
+// catalogue frame, as a sum of diluted blackbodies with fixed temperatures:
+// I_λ(n) = Σ_k W_k(n) B_λ(T_k) (W dimensionless).
+//
+// Implementations must be safe for concurrent calls of Dilutions (each
+// caller passes its own w) and deterministic: the same n gives the same
+// values. A dilution must be finite and ≥ 0.
+type UnresolvedSky interface {
+	Temperatures() []float64         // K, ascending, the same for every direction
+	Dilutions(n r3.Vec, w []float64) // n: ICRS unit vector; writes len(Temperatures()) values
+}
+
+// UniformSky is an UnresolvedSky that is the same in every direction:
+// component k has temperature T[k] and dilution W[k]. It is the simplest
+// sky to check the layer against (a sphere of uniform radiance) and a
+// stand-in for a model.
+type UniformSky struct {
+	T []float64 // K, ascending
+	W []float64 // dilutions, one per temperature
+}
+
+// Temperatures returns s.T.
+func (s UniformSky) Temperatures() []float64 { return s.T }
+
+// Dilutions copies s.W into w.
+func (s UniformSky) Dilutions(_ r3.Vec, w []float64) { copy(w, s.W) }
+
+// ErrDiffuse reports unusable diffuse-layer options, a bad UnresolvedSky or
+// a frame the layer cannot be added to.
+var ErrDiffuse = errors.New("render: diffuse layer")
+
+// Sampling defaults of the diffuse layer (see AddDiffuse).
+const (
+	// DefaultDiffuseFootprint is the largest angle, in radians, that one
+	// sample of the diffuse layer may span in the catalogue frame: 0.25°,
+	// finer than the ≈ 1° structure of an all-sky starlight map.
+	DefaultDiffuseFootprint = 0.25 * math.Pi / 180
+	// DefaultDiffuseLnD is the largest change of ln D across one sample.
+	DefaultDiffuseLnD = 0.05
+	// DefaultDiffuseSamples is the largest number of samples per pixel side.
+	DefaultDiffuseSamples = 8
+)
+
+// DiffuseOptions control AddDiffuse. The zero value samples with the
+// defaults above, adds into the frame's own buffer and uses the frame's
+// worker count.
+type DiffuseOptions struct {
+	// Footprint is the largest catalogue-frame angle one sample may span,
+	// radians; 0 means DefaultDiffuseFootprint, +Inf turns that criterion
+	// off.
+	Footprint float64
+	// MaxLnD is the largest change of ln D across one sample; 0 means
+	// DefaultDiffuseLnD, +Inf turns that criterion off.
+	MaxLnD float64
+	// MaxSamples caps the samples per pixel side; 0 means
+	// DefaultDiffuseSamples, 1 samples every pixel at its centre only.
+	MaxSamples int
+	// Into, when not nil, receives the layer instead of the frame's buffer:
+	// give a black buffer of the frame's size to keep the layer apart (as
+	// its own output layer) and add it to the frame with Buffer.Add.
+	Into *Buffer
+	// Workers is the number of goroutines; 0 means the frame's
+	// Options.Workers, and then runtime.GOMAXPROCS(0). The result does not
+	// depend on it: every pixel is computed independently.
+	Workers int
+}
+
+// Add adds o's pixels to b's (same size); the Doppler channel is left as
+// it is.
+func (b *Buffer) Add(o *Buffer) error {
+	if o == nil || o.W != b.W || o.H != b.H || len(o.Pix) != len(b.Pix) {
+		return fmt.Errorf("render: Add: buffer sizes differ")
+	}
+	for i, v := range o.Pix {
+		b.Pix[i] += v
+	}
+	return nil
+}
+
+// AddDiffuse adds the unresolved starlight sky, as seen from the frame's
+// observer (f.Options.Observer.Boost), to the linear buffer of f (or to
+// opt.Into), at its true surface brightness on the stars' photometric
+// scale. It belongs to the linear stage, like AddCMB: call it after Render
+// and before tone mapping, so the layer is also in the FITS output.
+//
+// For each sample direction n′ (ship frame) the inverse boost gives the
+// catalogue-frame direction n and the Doppler factor D = γ(1 + β n·b̂) of
+// light from n. Because I_ν/ν³ is invariant, component k, a blackbody of
+// temperature T_k diluted by W_k(n), is seen as a blackbody of temperature
+// D·T_k with the same dilution W_k(n): its bolometric surface brightness
+// is W_k σ(D T_k)⁴/π, D⁴ times the rest value, with no other factor. Its
+// luminance is L_k = W_k·e^LnY(D·T_k)/π (spectrum.Lookup gives the
+// illuminance πB per unit dilution, from the same tables as the stars),
+// and X, Z follow from the table chromaticity. A pixel of solid angle Ω
+// receives Scale·Σ L·Ω, as the CMB layer does, so a uniform layer and
+// stars carrying the same illuminance give the same buffer total. The
+// observer's position is ignored: the unresolved stars are taken to be
+// far away. The beaming convention does not apply (it is a point-source
+// convention); the diffuse transform is always exact.
+//
+// Sampling. Each pixel is sampled on an s×s grid of sub-pixel centres,
+// each weighted by its own solid angle (the projection's Jacobian there;
+// equirect rows exactly), with s chosen at the pixel centre so that one
+// sample spans at most opt.Footprint in the catalogue frame (the pixel's
+// angular size δ′ = √Ω times D, the aberration magnifying by D) and ln D
+// changes by at most opt.MaxLnD across it (|∇ ln D| = γβ sin θ′·D per
+// radian on the ship's sky), capped at opt.MaxSamples. At rest and at
+// ordinary resolutions s = 1; near the edge of the forward beam at high
+// speed s rises. Sub-samples outside a fisheye's circle are skipped, so
+// rim pixels get their partial share.
+//
+// The Doppler channel, which describes stars, is not changed. Nothing is
+// allocated per pixel; rows run in parallel and the result does not depend
+// on the worker count. A negative, NaN or infinite dilution is an error
+// (the first one in row order is reported) and then the buffer holds the
+// rows that were drawn: draw into opt.Into to keep the frame untouched.
+func AddDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) error {
+	if f == nil || sky == nil {
+		return fmt.Errorf("%w: nil frame or sky", ErrDiffuse)
+	}
+	temps := slices.Clone(sky.Temperatures())
+	if len(temps) == 0 {
+		return fmt.Errorf("%w: the sky has no temperature components", ErrDiffuse)
+	}
+	for k, t := range temps {
+		if !(t > 0) || math.IsInf(t, 0) {
+			return fmt.Errorf("%w: temperature %d is %g K, want finite > 0", ErrDiffuse, k, t)
+		}
+		if k > 0 && !(t > temps[k-1]) {
+			return fmt.Errorf("%w: temperatures not ascending (%g K after %g K)", ErrDiffuse, t, temps[k-1])
+		}
+	}
+	fp, mlnD, ms := opt.Footprint, opt.MaxLnD, opt.MaxSamples
+	if fp == 0 {
+		fp = DefaultDiffuseFootprint
+	}
+	if mlnD == 0 {
+		mlnD = DefaultDiffuseLnD
+	}
+	if ms == 0 {
+		ms = DefaultDiffuseSamples
+	}
+	if !(fp > 0) || !(mlnD > 0) || ms < 1 || ms > 64 {
+		return fmt.Errorf("%w: Footprint %g rad, MaxLnD %g, MaxSamples %d: want > 0, > 0 and 1..64", ErrDiffuse, opt.Footprint, opt.MaxLnD, opt.MaxSamples)
+	}
+	if opt.Workers < 0 {
+		return fmt.Errorf("%w: negative Workers %d", ErrDiffuse, opt.Workers)
+	}
+	p := f.Options.Projection
+	if err := p.Prepare(); err != nil {
+		return err
+	}
+	if p.Width != f.W || p.Height != f.H {
+		return fmt.Errorf("%w: projection %d×%d does not match the buffer %d×%d", ErrDiffuse, p.Width, p.Height, f.W, f.H)
+	}
+	dst := &f.Buffer
+	if opt.Into != nil {
+		dst = opt.Into
+		if dst.W != f.W || dst.H != f.H || len(dst.Pix) != 3*f.W*f.H {
+			return fmt.Errorf("%w: Into is %d×%d, the frame %d×%d", ErrDiffuse, dst.W, dst.H, f.W, f.H)
+		}
+	}
+	if !(f.Scale > 0) || math.IsInf(f.Scale, 0) {
+		return fmt.Errorf("%w: frame Scale %g, want finite > 0", ErrDiffuse, f.Scale)
+	}
+	sa, err := newPixelSolidAngle(&p)
+	if err != nil {
+		return fmt.Errorf("%w: %v", ErrDiffuse, err)
+	}
+	workers := opt.Workers
+	if workers == 0 {
+		workers = f.Options.Workers
+	}
+	if workers == 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	boost := f.Options.Observer.Boost
+	d := diffuseSampler{
+		sky: sky, temps: temps, shipIn: boost.Inverse(), bdir: boost.Dir(), gb: boost.GammaBeta(),
+		sa: &sa, p: &p, fp: fp, mlnD: mlnD, ms: ms,
+	}
+	k := f.Scale / math.Pi // buffer luminance per (cd/m² · sr)
+	color := f.Options.Color
+	rowErr := make([]error, f.H)
+	parallel(workers, f.H, func(j int) {
+		// Scratch per row: rows run concurrently.
+		t, w := make([]float64, len(temps)), make([]float64, len(temps))
+		row := dst.Pix[3*j*f.W : 3*(j+1)*f.W]
+		for i := 0; i < f.W; i++ {
+			X, Y, Z, err := d.pixel(i, j, t, w)
+			if err != nil {
+				rowErr[j] = err
+				return
+			}
+			if !(Y > 0) {
+				continue
+			}
+			xl, yl, zl := k*X, k*Y, k*Z
+			if math.IsInf(yl, 0) || math.IsInf(xl, 0) || math.IsInf(zl, 0) {
+				continue
+			}
+			r, g, b := spectrum.XYZToLinearSRGB(xl, yl, zl, color)
+			r, g, b = spectrum.GamutMap(r, g, b, yl)
+			px := row[3*i : 3*i+3]
+			px[0] += float32(r)
+			px[1] += float32(g)
+			px[2] += float32(b)
+		}
+	})
+	for _, err := range rowErr {
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// DiffuseSeen returns what a ship with the given boost sees of sky in the
+// apparent direction np (ship frame, ICRS axes, unit): the catalogue-frame
+// direction n the light comes from (inverse aberration), its Doppler
+// factor D, and in t and w (each of length len(sky.Temperatures())) the
+// observed components, blackbodies of temperature t[k] = D·T_k with the
+// unchanged dilution w[k] = W_k(n). This is the exact transform of a
+// diffuse source (I_ν/ν³ invariant): the observed bolometric surface
+// brightness Σ w[k]σt[k]⁴/π is D⁴ times the rest value. AddDiffuse draws
+// exactly this.
+func DiffuseSeen(ship camera.Boost, sky UnresolvedSky, np r3.Vec, t, w []float64) (n r3.Vec, D float64) {
+	return seenDiffuse(ship.Inverse(), sky, sky.Temperatures(), np, t, w)
+}
+
+// seenDiffuse is DiffuseSeen with the inverse boost and the temperatures
+// given.
+func seenDiffuse(shipIn camera.Boost, sky UnresolvedSky, temps []float64, np r3.Vec, t, w []float64) (n r3.Vec, D float64) {
+	n, dInv := shipIn.Apply(np)
+	D = 1 / dInv
+	sky.Dilutions(n, w)
+	for k, tk := range temps {
+		t[k] = D * tk
+	}
+	return n, D
+}
+
+// diffuseSampler evaluates the layer's XYZ radiance × solid angle over one
+// pixel.
+type diffuseSampler struct {
+	sky      UnresolvedSky
+	temps    []float64
+	shipIn   camera.Boost // ship frame → catalogue frame
+	bdir     r3.Vec       // b̂, the direction of motion
+	gb       float64      // γβ
+	sa       *pixelSolidAngle
+	p        *camera.Projection
+	fp, mlnD float64
+	ms       int
+}
+
+// samples returns the number of samples per side for the pixel whose centre
+// shows np, with Doppler factor D there and solid angle omega.
+func (d *diffuseSampler) samples(np r3.Vec, D, omega float64) int {
+	if d.ms == 1 {
+		return 1
+	}
+	delta := math.Sqrt(omega) // the pixel's angular size on the ship's sky
+	need := delta * D / d.fp
+	if d.gb > 0 {
+		sinT := r3.Norm(r3.Cross(np, d.bdir))
+		need = max(need, delta*d.gb*sinT*D/d.mlnD)
+	}
+	if !(need > 1) {
+		return 1
+	}
+	if need >= float64(d.ms) {
+		return d.ms
+	}
+	return int(math.Ceil(need))
+}
+
+// pixel returns Σ over the samples of Ω_sample·Σ_k W_k e^LnY(D T_k) and
+// the matching X and Z, for pixel (i, j).
+func (d *diffuseSampler) pixel(i, j int, t, w []float64) (X, Y, Z float64, err error) {
+	np, ok := d.p.Inverse(float64(i)+0.5, float64(j)+0.5)
+	s := 1
+	if ok {
+		_, dInv := d.shipIn.Apply(np)
+		s = d.samples(np, 1/dInv, d.sa.at(i, j, np))
+	} else if d.ms > 1 && d.sa.kind == camera.Fisheye {
+		s = d.ms // the rim of a fisheye: some sub-samples may be inside
+	} else {
+		return 0, 0, 0, nil
+	}
+	inv := 1 / float64(s)
+	for b := 0; b < s; b++ {
+		y := float64(j) + (float64(b)+0.5)*inv
+		for a := 0; a < s; a++ {
+			x := float64(i) + (float64(a)+0.5)*inv
+			if s > 1 {
+				if np, ok = d.p.Inverse(x, y); !ok {
+					continue
+				}
+			}
+			omega := d.sa.sub(x, y, s, np)
+			n, _ := seenDiffuse(d.shipIn, d.sky, d.temps, np, t, w)
+			var sx, sy, sz float64
+			for k, wk := range w {
+				if wk == 0 {
+					continue
+				}
+				if !(wk > 0) || math.IsInf(wk, 0) {
+					return 0, 0, 0, fmt.Errorf("%w: dilution %g of the %g K component toward (%.6f, %.6f, %.6f), want finite ≥ 0",
+						ErrDiffuse, wk, d.temps[k], n.X, n.Y, n.Z)
+				}
+				if !(t[k] > 0) || math.IsInf(t[k], 0) {
+					continue // D underflowed or overflowed: no representable light
+				}
+				sm := spectrum.Lookup(math.Log(t[k]))
+				yk := wk * math.Exp(sm.LnY)
+				sx += sm.X / sm.Y * yk
+				sy += yk
+				sz += (1 - sm.X - sm.Y) / sm.Y * yk
+			}
+			X += omega * sx
+			Y += omega * sy
+			Z += omega * sz
+		}
+	}
+	return X, Y, Z, nil
+}
