@@ -86,4 +86,3 @@ func BenchmarkEncode4096FloatZIP(b *testing.B) {
 	}
 	benchEncode(b, img, Encoder{})
 }
-
