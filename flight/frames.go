@@ -7,10 +7,11 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"math"
 	"strconv"
 
 	"gonum.org/v1/gonum/spatial/r3"
+
+	"github.com/skyframe/skyframe/frameopt"
 )
 
 // FramePhase says which part of the video a frame belongs to.
@@ -44,8 +45,11 @@ type FrameState struct {
 	Phase   FramePhase
 	State   State   // ship state (State.Tau, State.T: ship and catalogue time)
 	Look    LookKey // the look key in effect (the last with At ≤ Seconds)
-	LookDir r3.Vec  // interpolated unit viewing direction, ICRS axes
-	Roll    float64 // interpolated roll, degrees
+	LookDir r3.Vec  // interpolated unit viewing direction, apparent (ship frame, ICRS axes)
+	Roll    float64 // interpolated roll, degrees (as keyed; the orientation carries it)
+	// Camera is the interpolated camera: orientation (ship frame), field
+	// of view, tilt and exposure.
+	Camera Camera
 }
 
 // Frames returns the number of frames of the video.
@@ -85,78 +89,13 @@ func (p *Plan) FrameState(i int) (FrameState, error) {
 			fs.State = tr.AtTau(s0.Tau + u*(s1.Tau-s0.Tau))
 		}
 	}
-	fs.Look, fs.LookDir, fs.Roll = p.look(fs.Seconds, fs.State)
+	cam, key, err := p.camera(fs.Seconds, fs.State)
+	if err != nil {
+		return FrameState{}, fmt.Errorf("flight: frame %d: %w", i, err)
+	}
+	fs.Camera, fs.Look = cam, key
+	fs.LookDir, fs.Roll = cam.Orient.Forward, cam.Roll
 	return fs, nil
-}
-
-// look interpolates the look keys at video time s.
-func (p *Plan) look(s float64, st State) (LookKey, r3.Vec, float64) {
-	ks := p.looks
-	j := 0
-	for j+1 < len(ks) && ks[j+1].at <= s {
-		j++
-	}
-	cur := ks[j]
-	lk := LookKey{At: cur.at, Look: p.lookName(j), Roll: cur.roll}
-	d0 := p.lookDir(cur, st)
-	if j+1 == len(ks) || s <= cur.at {
-		return lk, d0, cur.roll
-	}
-	nx := ks[j+1]
-	w := (s - cur.at) / (nx.at - cur.at)
-	return lk, slerp(d0, p.lookDir(nx, st), w), cur.roll + w*(nx.roll-cur.roll)
-}
-
-func (p *Plan) lookName(j int) string {
-	if j < len(p.Camera.Look) {
-		if v := p.Camera.Look[j].Look; v != "" {
-			return v
-		}
-	}
-	return "ahead"
-}
-
-// lookDir resolves a key's direction for the ship state st.
-func (p *Plan) lookDir(k lookKey, st State) r3.Vec {
-	ahead := st.Dir
-	if r3.Norm(ahead) == 0 {
-		ahead = r3.Vec{X: 1}
-	}
-	switch k.mode {
-	case lookBehind:
-		return r3.Scale(-1, ahead)
-	case lookFixed:
-		return k.dir
-	case lookStar:
-		if d := r3.Sub(k.dir, st.Pos); r3.Norm(d) > 0 {
-			return r3.Unit(d)
-		}
-		return ahead
-	default:
-		return ahead
-	}
-}
-
-// slerp interpolates unit vectors a → b along the great circle; for
-// opposite vectors it turns about an axis perpendicular to a, chosen from
-// the ICRS axes so the result is deterministic.
-func slerp(a, b r3.Vec, w float64) r3.Vec {
-	cos := math.Max(-1, math.Min(1, r3.Dot(a, b)))
-	if cos > 1-1e-12 {
-		return a
-	}
-	var perp r3.Vec
-	if cos < -1+1e-12 {
-		ax := r3.Vec{Z: 1}
-		if math.Abs(a.Z) > 0.9 {
-			ax = r3.Vec{X: 1}
-		}
-		perp = r3.Unit(r3.Cross(ax, a))
-	} else {
-		perp = r3.Unit(r3.Sub(b, r3.Scale(cos, a)))
-	}
-	th := w * math.Acos(cos)
-	return r3.Add(r3.Scale(math.Cos(th), a), r3.Scale(math.Sin(th), perp))
 }
 
 // Hash returns the hex SHA-256 of a canonical encoding of the decoded plan
@@ -173,8 +112,8 @@ func (p *Plan) Hash() string {
 		Show      ShowSpec
 		Camera    CameraSpec
 		Output    OutputSpec
-		Overlays  OverlaySpec
-	}{"skyframe-plan-1", p.Title, p.Catalogue, p.Start, p.Legs, p.Show, p.Camera, p.Output, p.Overlays}
+		Frame     frameopt.Options
+	}{"skyframe-plan-2", p.Title, p.Catalogue, p.Start, p.Legs, p.Show, p.Camera, p.Output, p.Frame}
 	b, err := json.Marshal(canon)
 	if err != nil {
 		// Only finite numbers, strings, booleans and maps of strings reach

@@ -7,12 +7,16 @@ import (
 	"path"
 	"reflect"
 	"regexp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
 	"gonum.org/v1/gonum/spatial/r3"
+
+	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/frameopt"
 )
 
 // Errors wrapped by PlanError.
@@ -147,30 +151,24 @@ type ShowSpec struct {
 	HoldEnd   float64 `toml:"hold_end"`
 }
 
-// LookKey is one key of the camera's look direction: from At (seconds of
-// video) the camera looks at Look — "ahead", "behind", "RA,Dec" in degrees,
-// or a star id/name — rolled by Roll degrees. Between keys the direction is
-// interpolated along the great circle and the roll linearly.
+// LookKey is one [[camera.look]] key: from At (seconds of video) the
+// camera takes the key's values of the keyed frame options (look, up, roll,
+// fov, tilt, exposure; see frameopt.Defs). Look is "ahead", "behind", an
+// apparent "RA,DEC", "catalogue:RA,DEC" or a star id/name; Frame holds the
+// plan's [camera] values with the key's own on top, and Given lists the
+// plan keys the key sets itself. Between keys the values are interpolated.
 type LookKey struct {
-	At   float64 `toml:"at"`
-	Look string  `toml:"look"`
-	Roll float64 `toml:"roll"`
+	At    float64          `json:"at"`
+	Look  string           `json:"look"`
+	Roll  float64          `json:"roll"`
+	Given []string         `json:"given,omitempty"`
+	Frame frameopt.Options `json:"frame"`
 }
 
-// CameraSpec is the [camera] table. Projection is "pinhole" (default),
-// "equirect", "fisheye" or "cube"; Width×Height in pixels (default
-// 1280×720); FOV in degrees (0: the projection's default); Tilt in degrees
-// (fisheye); Exposure in magnitudes (nil: renderer default); Tone "shoulder"
-// (default) or "linear"; Look the keyed look direction (default: ahead).
+// CameraSpec is the [camera] table's keys ([[camera.look]]); the frame
+// options of [camera] and [overlays] are in Plan.Frame.
 type CameraSpec struct {
-	Projection string    `toml:"projection"`
-	Width      int       `toml:"width"`
-	Height     int       `toml:"height"`
-	FOV        float64   `toml:"fov"`
-	Tilt       float64   `toml:"tilt"`
-	Exposure   *float64  `toml:"exposure"`
-	Tone       string    `toml:"tone"`
-	Look       []LookKey `toml:"look"`
+	Look []LookKey
 }
 
 // OutputSpec is the [output] table. Frames is the frame-file pattern,
@@ -186,25 +184,16 @@ type OutputSpec struct {
 	Sidecar *bool  `toml:"sidecar"`
 }
 
-// OverlaySpec is the [overlays] table. The keys are reserved for layers not
-// yet drawn; each holds a boolean or a string.
-type OverlaySpec struct {
-	CMB    any `toml:"cmb"`
-	Grid   any `toml:"grid"`
-	Labels any `toml:"labels"`
-	HUD    any `toml:"hud"`
-}
-
 // planFile is the whole file.
 type planFile struct {
-	Title     string        `toml:"title"`
-	Catalogue CatalogueSpec `toml:"catalogue"`
-	Start     StartSpec     `toml:"start"`
-	Legs      []LegEntry    `toml:"leg"`
-	Show      ShowSpec      `toml:"show"`
-	Camera    CameraSpec    `toml:"camera"`
-	Output    OutputSpec    `toml:"output"`
-	Overlays  OverlaySpec   `toml:"overlays"`
+	Title     string         `toml:"title"`
+	Catalogue CatalogueSpec  `toml:"catalogue"`
+	Start     StartSpec      `toml:"start"`
+	Legs      []LegEntry     `toml:"leg"`
+	Show      ShowSpec       `toml:"show"`
+	Camera    toml.Primitive `toml:"camera"`
+	Output    OutputSpec     `toml:"output"`
+	Overlays  toml.Primitive `toml:"overlays"`
 }
 
 // Plan is a parsed, validated plan file with defaults filled in.
@@ -217,7 +206,10 @@ type Plan struct {
 	Show      ShowSpec
 	Camera    CameraSpec
 	Output    OutputSpec
-	Overlays  OverlaySpec
+	// Frame holds the frame options of [camera] and [overlays] (the same
+	// options as still's flags, frameopt.Defs); Given lists the keys set.
+	Frame frameopt.Options
+	Given []string
 
 	spacing      Spacing
 	nHold0, nFly int
@@ -225,7 +217,8 @@ type Plan struct {
 	specs        []LegSpec
 	needsStars   bool
 	traj         *Trajectory
-	looks        []lookKey
+	looks        []cameraKey
+	starPos      map[string]r3.Vec
 	frameFmt     frameFormat
 	lines        keyLines
 }
@@ -335,12 +328,30 @@ func ParsePlan(data []byte, name string) (*Plan, error) {
 		return nil, pe
 	}
 	lines := scanKeyLines(src)
-	if err := unknownKeys(md.Undecoded(), lines, name); err != nil {
+	var camera, overlays map[string]any
+	for _, t := range []struct {
+		prim toml.Primitive
+		dst  *map[string]any
+		name string
+	}{{pf.Camera, &camera, "camera"}, {pf.Overlays, &overlays, "overlays"}} {
+		if !md.IsDefined(t.name) {
+			continue
+		}
+		if err := md.PrimitiveDecode(t.prim, t.dst); err != nil {
+			return nil, &PlanError{File: name, Line: lines.line(t.name), Key: t.name, Msg: err.Error(), Err: ErrPlanValue}
+		}
+	}
+	// [camera] and [overlays] check their own keys (frameOptions).
+	undecoded := slices.DeleteFunc(md.Undecoded(), func(k toml.Key) bool {
+		return len(k) > 0 && (k[0] == "camera" || k[0] == "overlays")
+	})
+	if err := unknownKeys(undecoded, lines, name); err != nil {
 		return nil, err
 	}
 	p := &Plan{Name: name, lines: lines}
 	c := &checker{file: name, lines: lines}
 	p.fill(&pf, c)
+	p.frameOptions(camera, overlays, c)
 	if len(c.errs) > 0 {
 		return nil, errors.Join(c.errs...)
 	}
@@ -375,6 +386,9 @@ var knownKeys = func() map[string][]string {
 	}
 	walk(reflect.TypeOf(planFile{}), "")
 	out["catalogue.columns"] = CatalogueColumns
+	out["camera"] = append(frameopt.InTable(frameopt.CameraTable), "look", "width", "height")
+	out["camera.look"] = keyedKeys()
+	out["overlays"] = frameopt.InTable(frameopt.OverlaysTable)
 	return out
 }()
 
@@ -418,34 +432,11 @@ func unknownKeys(keys []toml.Key, lines keyLines, file string) error {
 	return errors.Join(out...)
 }
 
-// lookKey is a parsed look key.
-type lookKey struct {
-	at   float64
-	mode lookMode
-	dir  r3.Vec // for lookFixed (unit, ICRS) and lookStar (position, pc)
-	star string
-	roll float64
-}
-
-type lookMode int
-
-const (
-	lookAhead lookMode = iota
-	lookBehind
-	lookFixed
-	lookStar
-)
-
 var tomlTypeErr = regexp.MustCompile(`^toml: line (\d+) \(last key "([^"]*)"\): (.*)$`)
 
-var raDecRe = regexp.MustCompile(`^\s*([-+]?[0-9.]+(?:[eE][-+]?[0-9]+)?)\s*,\s*([-+]?[0-9.]+(?:[eE][-+]?[0-9]+)?)\s*$`)
-
 // RADec returns the ICRS unit vector for right ascension and declination in
-// degrees.
-func RADec(ra, dec float64) r3.Vec {
-	a, d := ra*math.Pi/180, dec*math.Pi/180
-	return r3.Vec{X: math.Cos(d) * math.Cos(a), Y: math.Cos(d) * math.Sin(a), Z: math.Sin(d)}
-}
+// degrees (camera.FromRADec, so plans and stills agree to the bit).
+func RADec(ra, dec float64) r3.Vec { return camera.FromRADec(ra, dec) }
 
 // heading parses an optional RA/Dec pair; both or neither must be set.
 func (c *checker) heading(ra, dec *float64, key ...string) (r3.Vec, bool) {
@@ -567,73 +558,6 @@ func (p *Plan) fill(pf *planFile, c *checker) {
 	}
 	p.Show = sh
 
-	// Camera.
-	cam := pf.Camera
-	switch cam.Projection {
-	case "":
-		cam.Projection = "pinhole"
-	case "pinhole", "equirect", "fisheye", "cube":
-	default:
-		c.errs = append(c.errs, &PlanError{File: c.file, Line: c.lines.line("camera", "projection"), Key: "camera.projection",
-			Msg: fmt.Sprintf("unknown projection %q", cam.Projection), Suggest: closest(cam.Projection, []string{"pinhole", "equirect", "fisheye", "cube"}), Err: ErrPlanValue})
-	}
-	if cam.Width == 0 && cam.Height == 0 {
-		cam.Width, cam.Height = 1280, 720
-	}
-	if cam.Width < 1 || cam.Width > 32768 {
-		c.fail(fmt.Sprintf("width %d (want 1..32768)", cam.Width), "camera", "width")
-	}
-	if cam.Height < 1 || cam.Height > 32768 {
-		c.fail(fmt.Sprintf("height %d (want 1..32768)", cam.Height), "camera", "height")
-	}
-	c.num(cam.FOV, 0, 360, false, "camera", "fov")
-	c.num(cam.Tilt, -90, 90, false, "camera", "tilt")
-	if cam.Exposure != nil {
-		c.num(*cam.Exposure, -30, 40, false, "camera", "exposure")
-	}
-	switch cam.Tone {
-	case "":
-		cam.Tone = "shoulder"
-	case "shoulder", "linear":
-	default:
-		c.fail(fmt.Sprintf("%q (want \"shoulder\" or \"linear\")", cam.Tone), "camera", "tone")
-	}
-	if len(cam.Look) > MaxLookKeys {
-		c.fail(fmt.Sprintf("%d look keys (limit %d)", len(cam.Look), MaxLookKeys), "camera", "look")
-	}
-	for i, k := range cam.Look {
-		key := []string{"camera", "look#" + strconv.Itoa(i)}
-		if !c.num(k.At, 0, 1e6, false, append(key, "at")...) || !c.num(k.Roll, -360, 360, false, append(key, "roll")...) {
-			continue
-		}
-		if i > 0 && !(k.At > cam.Look[i-1].At) {
-			c.fail(fmt.Sprintf("at = %v does not follow the previous key's %v", k.At, cam.Look[i-1].At), append(key, "at")...)
-		}
-		lk := lookKey{at: k.At, roll: k.Roll}
-		switch v := strings.TrimSpace(k.Look); {
-		case v == "" || v == "ahead":
-			lk.mode = lookAhead
-		case v == "behind":
-			lk.mode = lookBehind
-		case raDecRe.MatchString(v):
-			m := raDecRe.FindStringSubmatch(v)
-			ra, _ := strconv.ParseFloat(m[1], 64)
-			dec, _ := strconv.ParseFloat(m[2], 64)
-			if c.num(ra, -360, 360, false, append(key, "look")...) && c.num(dec, -90, 90, false, append(key, "look")...) {
-				lk.mode, lk.dir = lookFixed, RADec(ra, dec)
-			}
-		default:
-			c.str(v, append(key, "look")...)
-			lk.mode, lk.star = lookStar, v
-			p.needsStars = true
-		}
-		p.looks = append(p.looks, lk)
-	}
-	if len(p.looks) == 0 {
-		p.looks = []lookKey{{mode: lookAhead}}
-	}
-	p.Camera = cam
-
 	// Output.
 	out := pf.Output
 	if out.Dir == "" {
@@ -658,21 +582,6 @@ func (p *Plan) fill(pf *planFile, c *checker) {
 	}
 	p.Output = out
 
-	// Overlays: booleans or strings only.
-	ov := pf.Overlays
-	for _, f := range []struct {
-		name string
-		v    any
-	}{{"cmb", ov.CMB}, {"grid", ov.Grid}, {"labels", ov.Labels}, {"hud", ov.HUD}} {
-		switch v := f.v.(type) {
-		case nil, bool:
-		case string:
-			c.str(v, "overlays", f.name)
-		default:
-			c.fail(fmt.Sprintf("want a boolean or a string, have %T", v), "overlays", f.name)
-		}
-	}
-	p.Overlays = ov
 }
 
 // legSpec validates one [[leg]] and returns its LegSpec (nil on error).
@@ -837,22 +746,8 @@ func (p *Plan) Bind(resolve Resolver) error {
 		}
 		return pe
 	}
-	for i := range p.looks {
-		lk := &p.looks[i]
-		if lk.mode != lookStar {
-			continue
-		}
-		var pos r3.Vec
-		ok := false
-		if resolve != nil {
-			pos, ok = resolve(lk.star)
-		}
-		if !ok || !finiteVec(pos) {
-			key := []string{"camera", "look#" + strconv.Itoa(i), "look"}
-			return &PlanError{File: p.Name, Line: p.lines.line(key...), Key: displayKey(key),
-				Msg: fmt.Sprintf("unknown star %q", lk.star), Err: ErrUnknownDestination}
-		}
-		lk.dir = pos
+	if err := p.bindStars(resolve); err != nil {
+		return err
 	}
 	p.traj = tr
 	return nil

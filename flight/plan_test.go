@@ -6,6 +6,7 @@ import (
 	"errors"
 	"math"
 	"os"
+	"reflect"
 	"strconv"
 	"strings"
 	"testing"
@@ -64,7 +65,7 @@ func TestParseExamplePlan(t *testing.T) {
 	}
 	// Determinism: the same index gives the same state.
 	again, _ := p.FrameState(101)
-	if again != b {
+	if !reflect.DeepEqual(again, b) {
 		t.Errorf("FrameState not deterministic")
 	}
 	if p.FrameName(7, "") != "frames/00007.png" || p.FrameName(7, ".fits") != "frames/00007.fits" {

@@ -7,6 +7,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"image"
+	"image/draw"
 	"io"
 	"os"
 	"path/filepath"
@@ -179,15 +180,17 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 	if err != nil {
 		return frameLum{}, err
 	}
-	obs, _, err := view(fs)
+	obs, err := flight.Observer(fs.State)
 	if err != nil {
-		return frameLum{}, err
+		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	proj, err := j.projection(fs)
 	if err != nil {
 		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
-	opt := render.Options{Projection: proj, Observer: obs, Exposure: j.expo, Workers: j.workers}
+	fr := j.frame
+	opt := render.Options{Projection: proj, Observer: obs, Beaming: fr.Beaming, FWHM: fr.FWHM,
+		Exposure: fs.Camera.Exposure, Limit: fr.Limit, Color: spectrum.ColorOptions{White: fr.White}, Workers: j.workers}
 	frame, err := prep.Render(opt)
 	if err != nil {
 		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
@@ -196,9 +199,13 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 	if err := lay.AddLinear(frame); err != nil {
 		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
-	side := frame.Sidecar("skyframe", version, j.stars, j.tone)
-	img := frame.ToNRGBA(j.tone)
-	lum := meanLuminance(img)
+	side := frame.Sidecar("skyframe", version, j.stars, fr.Tone)
+	img8 := frame.ToNRGBA(fr.Tone)
+	lum := meanLuminance(img8)
+	var img draw.Image = img8
+	if fr.Depth == 16 {
+		img = frame.ToNRGBA64(fr.Tone)
+	}
 	if err := overlay.Draw(img, frame, j.stars, lay.Options); err != nil {
 		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
@@ -209,7 +216,7 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 		RateHome: home, RateDest: dest, TravelledPc: fs.State.Travelled, RemainingPc: fs.State.Remaining,
 		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum.mean, RegionLuminance: lum.regions,
 	}
-	spec := &frameSpec{proj: proj, opt: frame.Options, tone: j.tone, depth: 8, lookDesc: fs.Look.Look, source: "skyframe flight"}
+	spec := &frameSpec{proj: proj, opt: frame.Options, tone: fr.Tone, depth: fr.Depth, lookDesc: fs.Look.Look, source: "skyframe flight"}
 	sc := &scene{stars: j.stars, observer: obs, heading: fs.State.Dir}
 	ff := j.files(i)
 	if ff.png != "" {

@@ -211,7 +211,7 @@ const (
 
 // frameBytes estimates the bytes one frame writes.
 func (j *flightJob) frameBytes() uint64 {
-	w, h := uint64(j.plan.Camera.Width), uint64(j.plan.Camera.Height)
+	w, h := uint64(j.frame.Width), uint64(j.frame.Height)
 	var n uint64
 	o := j.plan.Output
 	if *o.PNG {

@@ -2,19 +2,17 @@ package main
 
 import (
 	"fmt"
-	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"time"
 
 	"github.com/spf13/pflag"
-	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/flight"
-	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/frameopt"
 )
 
 const flightHelp = `Usage: skyframe flight PLAN.toml [options]
@@ -26,10 +24,11 @@ each file atomically (a temporary file renamed into place).
 
 Paths in the plan (catalogue.path, output.dir) are relative to the plan
 file's directory; --out replaces output.dir and is relative to the current
-directory. Look directions in the plan ("ahead", "behind", "RA,Dec", a star)
-are catalogue-frame directions: the camera points where that direction
-appears from the moving ship (aberrated), so a star key keeps the star's
-light centred.
+directory. Every option of still is a plan key of the same name (with _ for
+-) in [camera] or [overlays], with the same meaning, default and checks.
+Directions mean the same as in still: RA,DEC is apparent (where the
+audience sees it from the ship), catalogue:RA,DEC a catalogue-frame
+direction shown where it appears, a star where its light appears.
 
 A frame depends only on the plan and its index, so a render can be split
 and resumed:
@@ -100,13 +99,10 @@ type flightJob struct {
 	outDir  string
 	frames  []int // the frames this invocation handles, ascending
 	shard   flight.Shard
-	kind    camera.Kind
-	tone    render.ToneMode
-	expo    float64
+	frame   frameopt.Frame // the plan's frame options, parsed
 	workers int
 	// layers are the plan's overlays (frameLayers specialises them).
-	layers     layerSet
-	layerFlags *layerFlags
+	layers layerSet
 }
 
 func runFlight(e *env, args []string) error {
@@ -204,7 +200,7 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 	if err := job.checkCamera(); err != nil {
 		return nil, err
 	}
-	if job.layers, job.layerFlags, err = planLayers(plan, &scene{stars: stars, observer: camera.Observer{Position: plan.Trajectory().Start().Pos}}); err != nil {
+	if job.layers, err = planLayers(plan, stars); err != nil {
 		return nil, err
 	}
 	if !*plan.Output.PNG && !plan.Output.FITS {
@@ -273,70 +269,24 @@ func planStars(plan *flight.Plan, base string) (*catalog.Stars, error) {
 	return stars, nil
 }
 
-// checkCamera validates the plan's camera with the first frame's view.
+// checkCamera builds the first frame's camera, so that a projection the
+// plan's values cannot make is reported before anything renders.
 func (j *flightJob) checkCamera() error {
-	cam := j.plan.Camera
-	var err error
-	if j.kind, err = camera.ParseKind(cam.Projection); err != nil {
-		return usagef("%s: camera.projection: %v", j.plan.Name, err)
-	}
-	if j.tone, err = render.ParseTone(cam.Tone); err != nil {
-		return usagef("%s: camera.tone: %v", j.plan.Name, err)
-	}
-	j.expo = render.NakedEyeExposure()
-	if cam.Exposure != nil {
-		j.expo = *cam.Exposure
-	}
+	j.frame = j.plan.Frame.Frame()
 	fsx, err := j.plan.FrameState(0)
 	if err != nil {
 		return err
 	}
 	if _, err := j.projection(fsx); err != nil {
-		msg := err.Error()
-		key := "camera.projection"
-		switch {
-		case strings.Contains(msg, "FOV"):
-			key = "camera.fov"
-		case strings.Contains(msg, "Tilt"):
-			key = "camera.tilt"
-		case strings.Contains(msg, "Width"), strings.Contains(msg, "Height"):
-			key = "camera.width/height"
-		}
-		return usagef("%s: %s: %v", j.plan.Name, key, err)
+		return usagef("%s: camera: %v", j.plan.Name, err)
 	}
 	return nil
 }
 
-// view returns the observer and the apparent forward direction of a frame.
-func view(fs flight.FrameState) (camera.Observer, r3.Vec, error) {
-	st := fs.State
-	b, err := camera.NewBoostRapidity(st.Dir, st.Rapidity)
-	if err != nil {
-		return camera.Observer{}, r3.Vec{}, fmt.Errorf("flight: frame %d: %w", fs.Index, err)
-	}
-	fwd := fs.LookDir
-	if r3.Norm(fwd) == 0 || math.IsNaN(r3.Norm(fwd)) {
-		fwd = st.Dir
-	}
-	if r3.Norm(fwd) == 0 {
-		fwd = r3.Vec{X: 1}
-	}
-	fwd, _ = b.Apply(r3.Unit(fwd))
-	return camera.Observer{Position: st.Pos, Boost: b}, fwd, nil
-}
-
 // projection builds the prepared camera projection of a frame.
 func (j *flightJob) projection(fs flight.FrameState) (camera.Projection, error) {
-	_, fwd, err := view(fs)
-	if err != nil {
-		return camera.Projection{}, err
-	}
-	orient, err := camera.LookAt(fwd, r3.Vec{Z: 1}, fs.Roll)
-	if err != nil {
-		return camera.Projection{}, fmt.Errorf("flight: frame %d: %w", fs.Index, err)
-	}
-	cam := j.plan.Camera
-	p := camera.Projection{Kind: j.kind, Width: cam.Width, Height: cam.Height, FOV: cam.FOV, Tilt: cam.Tilt, Orient: orient}
+	fr := j.frame
+	p := camera.Projection{Kind: fr.Kind, Width: fr.Width, Height: fr.Height, FOV: fs.Camera.FOV, Tilt: fs.Camera.Tilt, Orient: fs.Camera.Orient}
 	if err := p.Prepare(); err != nil {
 		return camera.Projection{}, err
 	}

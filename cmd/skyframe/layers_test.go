@@ -10,6 +10,7 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 )
@@ -25,15 +26,30 @@ func layerScene(t *testing.T) *scene {
 	return &scene{stars: s, observer: camera.Observer{Boost: b}, heading: camera.FromRADec(10, 5)}
 }
 
+// layerFlags parses frame-option flags and converts them to layers as
+// still does: the definitions' checks, then frameLayers.
+type layerFlags struct {
+	o   frameopt.Options
+	err error
+}
+
 func parseLayerFlags(t *testing.T, args ...string) *layerFlags {
 	t.Helper()
 	fs := pflag.NewFlagSet("t", pflag.ContinueOnError)
 	var f layerFlags
-	f.register(fs)
+	frameopt.Register(fs, &f.o)
 	if err := fs.Parse(args); err != nil {
 		t.Fatal(err)
 	}
+	f.err = checkFrameFlags(fs, &f.o)
 	return &f
+}
+
+func (f *layerFlags) layers(sc *scene, opt *render.Options) (layerSet, error) {
+	if f.err != nil {
+		return layerSet{}, f.err
+	}
+	return frameLayers(&f.o, sc, opt)
 }
 
 // Bad layer options are usage errors (exit status 2) naming the flag.

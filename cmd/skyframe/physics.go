@@ -9,6 +9,7 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/spectrum"
 )
 
@@ -43,9 +44,11 @@ func (p *physicsFlags) register(fs *pflag.FlagSet, defaultSpeed float64) {
 	fs.Float64Var(&p.speed, "speed", defaultSpeed, "ship speed β = v/c, 0 ≤ β < 1")
 	fs.Float64Var(&p.gamma, "gamma", 0, "Lorentz factor γ ≥ 1 instead of --speed (exact up to γ = 1e8 and beyond)")
 	fs.Float64Var(&p.rapidity, "rapidity", 0, "rapidity φ = atanh β instead of --speed")
-	fs.StringVar(&p.toward, "toward", defaultToward, "direction of motion as RA,DEC (ICRS degrees), or a star id or name from the catalogue")
+	fs.StringVar(&p.toward, "toward", defaultToward, "direction of motion as RA,DEC (ICRS degrees; the same apparent or as catalogue:RA,DEC, since aberration keeps the axis of motion), or a star id or name from the catalogue")
 	fs.StringVar(&p.position, "position", "0,0,0", "ship position X,Y,Z in parsecs (ICRS axes, Sun at origin), or a star id or name")
-	fs.StringVar(&p.beaming, "beaming", "exact", "point-source beaming convention: exact (flux ∝ D²), d3, d4 (moving-source conventions of published figures)")
+	if fs.Lookup("beaming") == nil { // still takes it as a frame option (frameopt)
+		fs.StringVar(&p.beaming, "beaming", "exact", "point-source beaming convention: exact (flux ∝ D²), d3, d4 (moving-source conventions of published figures)")
+	}
 	fs.StringSliceVar(&p.columns, "column", nil, "generic CSV/TSV column map, FIELD=NAME, repeatable (fields: "+strings.Join(columnFields, ", ")+"; add ra-hours if RA is in hours)")
 	fs.Float64Var(&p.epoch, "epoch", 0, "propagate positions by proper motion to this Julian epoch (e.g. 2100); 0 keeps the catalogue epoch")
 }
@@ -91,7 +94,11 @@ func (p *physicsFlags) resolve(fs *pflag.FlagSet) (*scene, error) {
 		return nil, err
 	}
 	sc := &scene{stars: stars}
-	if sc.beaming, err = spectrum.ParseBeaming(p.beaming); err != nil {
+	beaming := p.beaming
+	if f := fs.Lookup("beaming"); f != nil {
+		beaming = f.Value.String()
+	}
+	if sc.beaming, err = spectrum.ParseBeaming(beaming); err != nil {
 		return nil, usagef("--beaming: %v", err)
 	}
 	pos, err := resolvePosition(stars, "position", p.position)
@@ -174,8 +181,12 @@ func resolvePosition(stars *catalog.Stars, flag, s string) (r3.Vec, error) {
 	return r3.Vec{}, usagef("--%s %q: want X,Y,Z in parsecs or a star id or name in %s", flag, s, stars.Source)
 }
 
-// resolveDirection reads RA,DEC or a star reference (seen from pos).
+// resolveDirection reads the direction of motion: RA,DEC (or
+// catalogue:RA,DEC, the same direction) or a star reference (seen from pos).
 func resolveDirection(stars *catalog.Stars, flag, s string, pos r3.Vec) (r3.Vec, error) {
+	if rest, ok := strings.CutPrefix(s, frameopt.CataloguePrefix); ok {
+		s = rest
+	}
 	if ra, dec, err := parseRADec(flag, s); err == nil {
 		return camera.FromRADec(ra, dec), nil
 	} else if _, ferr := parseFloats(flag, s, 2); ferr == nil {

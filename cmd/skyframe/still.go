@@ -15,6 +15,7 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/spectrum"
@@ -54,70 +55,23 @@ Examples:
 Options:
 `
 
+// stillFlags are the options of still that are not frame options (those
+// are frameopt.Options, shared with flight plans): the files written and
+// the memory budget.
 type stillFlags struct {
-	look, up              string
-	roll                  float64
-	projection            string
-	fov, tilt             float64
-	size                  string
-	exposure, limit       float64
-	preset                string
-	tone, white           string
-	fwhm                  float64
-	depth                 int
+	frame                 frameopt.Options
 	output, fits, sidecar string
 	noSidecar             bool
 	memory                string
 }
 
 func (f *stillFlags) register(fs *pflag.FlagSet) {
-	fs.StringVar(&f.look, "look", "ahead", "view direction: ahead (direction of motion), behind, an apparent RA,DEC in ICRS degrees, or a star id or name (its apparent position)")
-	fs.StringVar(&f.up, "up", "", "camera up direction as RA,DEC (default: the north celestial pole)")
-	fs.Float64Var(&f.roll, "roll", 0, "camera roll in degrees about the view direction (positive banks right)")
-	fs.StringVar(&f.projection, "projection", "pinhole", "projection: pinhole, equirect, fisheye (fulldome domemaster) or cube (6x1 strip)")
-	fs.Float64Var(&f.fov, "fov", 0, "field of view in degrees: pinhole horizontal (default 60), fisheye circle (default 180)")
-	fs.Float64Var(&f.tilt, "tilt", 0, "fisheye only: turn the dome axis (frame centre) from the view direction toward --up by DEG, so the view direction appears DEG below the centre, toward the dome's front (the bottom of the frame)")
-	fs.StringVar(&f.size, "size", "", "image size WIDTHxHEIGHT (default 1920x1080; fisheye 2048x2048, equirect 4096x2048, cube 3072x512)")
-	fs.Float64Var(&f.exposure, "exposure", math.Round(render.NakedEyeExposure()*1000)/1000, "exposure in V magnitudes: a white star this bright just reaches full scale; fixed for every frame (default: the naked-eye preset)")
-	fs.StringVar(&f.preset, "preset", "naked-eye", "exposure preset when --exposure is not given: naked-eye (V = 6.5 just visible)")
-	fs.Float64Var(&f.limit, "limit", 0, "skip stars whose observed V is fainter than this (default exposure + 10)")
-	fs.StringVar(&f.tone, "tone", "shoulder", "tone curve: shoulder (smooth roll-off that keeps hue, for outreach) or linear (clip, for science)")
-	fs.StringVar(&f.white, "white", "d65", "white point the viewer is adapted to: "+whiteNames())
-	fs.Float64Var(&f.fwhm, "fwhm", render.DefaultFWHM, "star image FWHM in pixels (Gaussian, energy-conserving)")
-	fs.IntVar(&f.depth, "depth", 8, "PNG bits per channel: 8 or 16")
+	frameopt.Register(fs, &f.frame)
 	fs.StringVarP(&f.output, "output", "o", "sky.png", "PNG file to write")
 	fs.StringVar(&f.fits, "fits", "", "also write the linear buffer as 32-bit float FITS with WCS to this file")
 	fs.StringVar(&f.sidecar, "sidecar", "", "JSON sidecar file (default: the PNG name with .json)")
 	fs.BoolVar(&f.noSidecar, "no-sidecar", false, "do not write the JSON sidecar")
 	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget for the render; a cache-file catalogue (skyframe catalog pack) with more stars than one chunk this budget allows is read from disk chunk by chunk instead of loaded whole, with the same result")
-}
-
-func whiteNames() string {
-	var names []string
-	for w := spectrum.WhiteD65; ; w++ {
-		s := w.String()
-		if _, err := spectrum.ParseWhitePoint(s); err != nil {
-			break
-		}
-		names = append(names, strings.ToLower(s))
-		if len(names) > 16 {
-			break
-		}
-	}
-	return strings.Join(names, ", ")
-}
-
-// defaultSize is the frame size per projection when --size is not given.
-func defaultSize(k camera.Kind) (int, int) {
-	switch k {
-	case camera.Fisheye:
-		return 2048, 2048
-	case camera.Equirect:
-		return 4096, 2048
-	case camera.Cube:
-		return 3072, 512
-	}
-	return 1920, 1080
 }
 
 // frameSpec is everything about a frame that is not the physics.
@@ -131,131 +85,94 @@ type frameSpec struct {
 	layers   layerSet
 }
 
-// frame reads --projection and --size.
-func (f *stillFlags) frame() (kind camera.Kind, w, h int, err error) {
-	kind, err = camera.ParseKind(f.projection)
-	if err != nil {
-		return kind, 0, 0, usagef("--projection %q: want pinhole, equirect, fisheye or cube", f.projection)
+// checkFrameFlags checks every frame option given on the command line
+// with the definitions' own checks, naming the flag.
+func checkFrameFlags(fs *pflag.FlagSet, o *frameopt.Options) error {
+	if errs := frameopt.Check(o, fs.Changed); len(errs) > 0 {
+		e := errs[0]
+		return usagef("--%s: %s", e.Def.Name, e.Msg)
 	}
-	w, h = defaultSize(kind)
-	if f.size != "" {
-		if w, h, err = parseSize("size", f.size); err != nil {
-			return kind, 0, 0, err
-		}
-	}
-	return kind, w, h, nil
+	return nil
 }
 
-func (f *stillFlags) build(fs *pflag.FlagSet, sc *scene) (*frameSpec, error) {
-	spec := &frameSpec{}
-	kind, w, h, err := f.frame()
-	if err != nil {
-		return nil, err
-	}
-	for name, v := range map[string]float64{"fov": f.fov, "tilt": f.tilt, "roll": f.roll, "fwhm": f.fwhm, "limit": f.limit} {
-		if err := checkFinite(name, v); err != nil {
-			return nil, err
+// starFinder looks stars up in the scene's catalogue.
+func (sc *scene) starFinder() frameopt.StarFinder {
+	return func(name string) (r3.Vec, float64, bool) {
+		i, ok := sc.stars.Find(name)
+		if !ok {
+			return r3.Vec{}, 0, false
 		}
+		st := sc.stars.At(i)
+		return r3.Vec{X: st.Dir[0], Y: st.Dir[1], Z: st.Dir[2]}, st.Dist, true
 	}
-	forward, desc, err := lookDirection(sc, f.look)
+}
+
+// build turns the frame options into the frame's projection and render
+// options for scene sc (the options were checked by checkFrameFlags).
+func (f *stillFlags) build(sc *scene) (*frameSpec, error) {
+	o := &f.frame
+	spec := &frameSpec{}
+	fr := o.Frame()
+	forward, desc, err := lookDirection(sc, o.Look)
 	if err != nil {
 		return nil, err
 	}
 	spec.lookDesc = desc
-	var up r3.Vec
-	if f.up != "" {
-		ra, dec, err := parseRADec("up", f.up)
+	up := r3.Vec{Z: 1}
+	if o.Up != "" {
+		d, err := frameopt.ParseDirection(o.Up, frameopt.SkyDir)
 		if err != nil {
-			return nil, err
+			return nil, usagef("--up: %v", err)
 		}
-		up = camera.FromRADec(ra, dec)
-	} else {
-		up = r3.Vec{Z: 1}
+		if up, err = d.Resolve(sc.observer, sc.heading, nil); err != nil {
+			return nil, usagef("--up: %v", err)
+		}
 	}
-	orient, err := camera.LookAt(forward, up, f.roll)
+	orient, err := camera.LookAt(forward, up, fr.Roll)
 	if err != nil {
 		return nil, usagef("--look/--up: %v", err)
 	}
-	spec.proj = camera.Projection{Kind: kind, Width: w, Height: h, FOV: f.fov, Tilt: f.tilt, Orient: orient}
+	spec.proj = camera.Projection{Kind: fr.Kind, Width: fr.Width, Height: fr.Height, FOV: fr.FOV, Tilt: fr.Tilt, Orient: orient}
 	if err := spec.proj.Validate(); err != nil {
-		return nil, usagef("%s", projectionFlagError(err, kind))
+		return nil, usagef("--projection %s: %v", fr.Kind, err)
 	}
 	if err := spec.proj.Prepare(); err != nil {
 		return nil, usageError{err}
 	}
-	exposure := f.exposure
-	if fs.Changed("exposure") {
-		if !(exposure >= render.MinExposure && exposure <= render.MaxExposure) {
-			return nil, usagef("--exposure %v: want a finite V magnitude from %g to %g", exposure, render.MinExposure, render.MaxExposure)
-		}
-	} else {
-		switch f.preset {
-		case "naked-eye":
-			exposure = render.NakedEyeExposure()
-		default:
-			return nil, usagef("--preset %q: want naked-eye", f.preset)
-		}
-	}
-	white, err := spectrum.ParseWhitePoint(f.white)
-	if err != nil {
-		return nil, usagef("--white %q: want %s", f.white, whiteNames())
-	}
-	if spec.tone, err = render.ParseTone(f.tone); err != nil {
-		return nil, usagef("--tone %q: want shoulder or linear", f.tone)
-	}
-	if f.depth != 8 && f.depth != 16 {
-		return nil, usagef("--depth %d: want 8 or 16", f.depth)
-	}
-	if !(f.fwhm > 0 && f.fwhm <= render.MaxFWHM) {
-		return nil, usagef("--fwhm %g: want 0 < FWHM ≤ %g pixels", f.fwhm, float64(render.MaxFWHM))
-	}
-	spec.depth = f.depth
+	spec.tone, spec.depth = fr.Tone, fr.Depth
 	spec.opt = render.Options{
-		Projection: spec.proj, Observer: sc.observer, Beaming: sc.beaming,
-		FWHM: f.fwhm, Exposure: exposure, Limit: f.limit,
-		Color: spectrum.ColorOptions{White: white},
+		Projection: spec.proj, Observer: sc.observer, Beaming: fr.Beaming,
+		FWHM: fr.FWHM, Exposure: fr.Exposure, Limit: fr.Limit,
+		Color: spectrum.ColorOptions{White: fr.White},
 	}
 	return spec, nil
 }
 
-// projectionFlagError rewords a camera validation error with the flag names.
-func projectionFlagError(err error, k camera.Kind) string {
-	msg := err.Error()
-	switch {
-	case strings.Contains(msg, "FOV"):
-		return "--fov: " + msg
-	case strings.Contains(msg, "Tilt"):
-		return "--tilt: " + msg
-	case strings.Contains(msg, "Width") || strings.Contains(msg, "Height") || strings.Contains(msg, "size"):
-		return "--size: " + msg
-	}
-	return "--projection " + k.String() + ": " + msg
-}
-
-// lookDirection resolves --look into an apparent (ship-frame) direction.
+// lookDirection resolves --look into an apparent (ship-frame) direction and
+// its description.
 func lookDirection(sc *scene, s string) (r3.Vec, string, error) {
-	heading := sc.heading
-	switch strings.ToLower(s) {
-	case "ahead", "":
-		return heading, "ahead", nil
-	case "behind":
-		return r3.Scale(-1, heading), "behind", nil
+	if s == "" {
+		s = "ahead"
 	}
-	if ra, dec, err := parseRADec("look", s); err == nil {
-		return camera.FromRADec(ra, dec), s, nil
-	} else if _, ferr := parseFloats("look", s, 2); ferr == nil {
-		return r3.Vec{}, "", err
+	d, err := frameopt.ParseDirection(s, frameopt.AnyDir)
+	if err != nil {
+		return r3.Vec{}, "", usagef("--look: %v", err)
 	}
-	i, ok := sc.stars.Find(s)
-	if !ok {
-		return r3.Vec{}, "", usagef("--look %q: want ahead, behind, RA,DEC in degrees or a star id or name in %s", s, sc.stars.Source)
+	n, err := d.Resolve(sc.observer, sc.heading, sc.starFinder())
+	switch {
+	case errors.Is(err, frameopt.ErrUnknownStar):
+		return r3.Vec{}, "", usagef("--look %q: want %s in %s", s, frameopt.AnyDir.Spellings(), sc.stars.Source)
+	case err != nil:
+		return r3.Vec{}, "", usagef("--look: %v", err)
 	}
-	st := sc.stars.At(i)
-	n, _, _, r := sc.observer.See(r3.Vec{X: st.Dir[0], Y: st.Dir[1], Z: st.Dir[2]}, st.Dist)
-	if r == 0 {
-		return r3.Vec{}, "", usagef("--look %q: the ship is at that star", s)
+	desc := strings.ToLower(strings.TrimSpace(s))
+	if d.Kind == frameopt.Star {
+		i, _ := sc.stars.Find(d.Star)
+		desc = starLabel(sc.stars, i)
+	} else if d.Kind == frameopt.Apparent || d.Kind == frameopt.Catalogue {
+		desc = strings.TrimSpace(s)
 	}
-	return n, starLabel(sc.stars, i), nil
+	return n, desc, nil
 }
 
 func starLabel(s *catalog.Stars, i int) string {
@@ -269,12 +186,10 @@ func starLabel(s *catalog.Stars, i int) string {
 func runStill(e *env, args []string) error {
 	fs := pflag.NewFlagSet("still", pflag.ContinueOnError)
 	fs.SetOutput(e.stderr)
-	var p physicsFlags
-	p.register(fs, 0.9)
 	var f stillFlags
 	f.register(fs)
-	var lf layerFlags
-	lf.register(fs)
+	var p physicsFlags
+	p.register(fs, 0.9)
 	fs.Usage = func() {
 		fmt.Fprint(e.stdout, stillHelp)
 		fs.SetOutput(e.stdout)
@@ -282,6 +197,9 @@ func runStill(e *env, args []string) error {
 		fmt.Fprint(e.stdout, exitStatusHelp)
 	}
 	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	if err := checkFrameFlags(fs, &f.frame); err != nil {
 		return err
 	}
 	outputs := outputPaths{png: f.output, fits: f.fits, sidecar: f.sidecar}
@@ -298,26 +216,24 @@ func runStill(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	kind, w, h, err := f.frame()
-	if err != nil {
-		return err
-	}
+	fr := f.frame.Frame()
+	kind, w, h := fr.Kind, fr.Width, fr.Height
 	if p.stream, err = openStream(&p, kind, w, h, budget); err != nil {
 		return err
 	}
 	if p.stream != nil {
 		defer p.stream.Close()
-		p.refs = append([]string{f.look, p.toward, p.position, lf.markDest}, lf.labelIDs...)
+		p.refs = append([]string{f.frame.Look, p.toward, p.position, f.frame.MarkDestination}, f.frame.Label...)
 	}
 	sc, err := p.resolve(fs)
 	if err != nil {
 		return err
 	}
-	spec, err := f.build(fs, sc)
+	spec, err := f.build(sc)
 	if err != nil {
 		return err
 	}
-	if spec.layers, err = lf.layers(sc, &spec.opt); err != nil {
+	if spec.layers, err = frameLayers(&f.frame, sc, &spec.opt); err != nil {
 		return err
 	}
 	start := time.Now()

@@ -1,0 +1,221 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"image"
+	"image/png"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/spf13/pflag"
+
+	"github.com/skyframe/skyframe/flight"
+	"github.com/skyframe/skyframe/frameopt"
+)
+
+// Every option of still is either a frame option (a plan key with the same
+// definition) or listed in frameopt.Elsewhere with the plan's equivalent;
+// every frame option is a flag of still. Adding a flag to still any other
+// way fails here.
+func TestStillFlagsAreFrameOptions(t *testing.T) {
+	fs := pflag.NewFlagSet("still", pflag.ContinueOnError)
+	var f stillFlags
+	f.register(fs)
+	var p physicsFlags
+	p.register(fs, 0.9)
+	elsewhere := map[string]bool{}
+	for _, e := range frameopt.Elsewhere {
+		elsewhere[e.Flag] = true
+	}
+	fs.VisitAll(func(fl *pflag.Flag) {
+		d, ok := frameopt.Lookup(fl.Name)
+		switch {
+		case ok && d.Name == fl.Name:
+		case elsewhere[fl.Name]:
+		default:
+			t.Errorf("still --%s is neither a frame option (frameopt.Defs) nor listed in frameopt.Elsewhere", fl.Name)
+		}
+	})
+	for _, d := range frameopt.Defs {
+		if fs.Lookup(d.Name) == nil {
+			t.Errorf("frame option %s is not a flag of still", d.Name)
+		}
+	}
+	for _, e := range frameopt.Elsewhere {
+		if fs.Lookup(e.Flag) == nil {
+			t.Errorf("frameopt.Elsewhere lists --%s, which still does not have", e.Flag)
+		}
+	}
+}
+
+func decodePNG(t *testing.T, path string) image.Image {
+	t.Helper()
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	img, err := png.Decode(bytes.NewReader(data))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return img
+}
+
+func pixels(t *testing.T, img image.Image) []byte {
+	t.Helper()
+	switch m := img.(type) {
+	case *image.NRGBA64:
+		return m.Pix
+	case *image.NRGBA:
+		return m.Pix
+	case *image.RGBA64:
+		return m.Pix
+	case *image.RGBA:
+		return m.Pix
+	}
+	t.Fatalf("unexpected image type %T", img)
+	return nil
+}
+
+// A one-frame plan renders what still renders with the same options, to
+// the byte (issue check: depth 16, fwhm 2.5, white d50, limit 9, beaming d4
+// and an up, plus a look in each direction spelling). The PNG text chunks
+// differ (they name the command and the plan), so the decoded pixels and
+// the FITS data are compared.
+func TestPlanMatchesStill(t *testing.T) {
+	for _, look := range []string{"45,5", "catalogue:45,5", "ahead", "Sollow"} {
+		t.Run(look, func(t *testing.T) {
+			dir := t.TempDir()
+			plan := writePlan(t, dir, fmt.Sprintf(`
+[start]
+position = [0.5, -0.25, 0.1]
+speed = 0.6
+ra = 30
+dec = 10
+
+[[leg]]
+kind = "cruise"
+ship_years = 1
+
+[show]
+fps = 10
+seconds = 0.1
+
+[camera]
+size = "160x90"
+fov = 50
+depth = 16
+fwhm = 2.5
+white = "d50"
+limit = 9
+beaming = "d4"
+up = "100,40"
+look = %q
+exposure = 3
+
+[output]
+fits = true
+`, look))
+			code, _, errs := runIn(t, "flight", plan, "--workers", "1")
+			if code != 0 {
+				t.Fatalf("flight: exit %d: %s", code, errs)
+			}
+			p, err := readPlanFile(plan)
+			if err != nil {
+				t.Fatal(err)
+			}
+			pl, err := flight.ParsePlan(p, plan)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if pl.NeedsResolver() {
+				if err := pl.Bind(nil); err == nil {
+					t.Fatal("bound a plan naming a star without a resolver")
+				}
+				stars, _ := planStars(pl, dir)
+				if err := pl.Bind(flight.StarsResolver(stars, stars.Find)); err != nil {
+					t.Fatal(err)
+				}
+			}
+			fs0, err := pl.FrameState(0)
+			if err != nil {
+				t.Fatal(err)
+			}
+			phi := strconv.FormatFloat(fs0.State.Rapidity, 'g', -1, 64)
+			out := filepath.Join(dir, "still.png")
+			fits := filepath.Join(dir, "still.fits")
+			code, _, errs = runIn(t, "still", "--position", "0.5,-0.25,0.1", "--rapidity", phi, "--toward", "30,10",
+				"--size", "160x90", "--fov", "50", "--depth", "16", "--fwhm", "2.5", "--white", "d50", "--limit", "9",
+				"--beaming", "d4", "--up", "100,40", "--look", look, "--exposure", "3", "-o", out, "--fits", fits)
+			if code != 0 {
+				t.Fatalf("still: exit %d: %s", code, errs)
+			}
+			a := decodePNG(t, out)
+			b := decodePNG(t, filepath.Join(dir, "out", "frames", "00000.png"))
+			if _, ok := b.(*image.RGBA64); !ok {
+				t.Errorf("flight frame is %T, want 16-bit", b)
+			}
+			if !bytes.Equal(pixels(t, a), pixels(t, b)) {
+				t.Errorf("flight frame pixels differ from still's")
+			}
+			fa, _ := os.ReadFile(fits)
+			fb, _ := os.ReadFile(filepath.Join(dir, "out", "frames", "00000.fits"))
+			if len(fa) != len(fb) || len(fa) < 2880*2 {
+				t.Fatalf("FITS sizes %d, %d", len(fa), len(fb))
+			}
+			// Data unit: after the header (ends with the END card's block).
+			ha, hb := headerLen(fa), headerLen(fb)
+			if !bytes.Equal(fa[ha:], fb[hb:]) {
+				t.Errorf("FITS data differ")
+			}
+		})
+	}
+}
+
+// headerLen is the length of a FITS primary header: blocks up to the one
+// holding the END card.
+func headerLen(b []byte) int {
+	for i := 0; i+80 <= len(b); i += 80 {
+		if strings.HasPrefix(string(b[i:i+80]), "END ") {
+			return (i/2880 + 1) * 2880
+		}
+	}
+	return len(b)
+}
+
+// Plan errors in frame options name the file, line and plan key, never a
+// flag.
+func TestPlanFrameOptionErrors(t *testing.T) {
+	base := "[[leg]]\nkind = \"cruise\"\nship_years = 1\nspeed = 0\n[show]\nseconds = 1\n"
+	cases := []struct{ body, want string }{
+		{"[camera]\ndepth = 12\n", ":8: camera.depth: 12: want 8 or 16"},
+		{"[camera]\nfwhm = 0.0\n", ":8: camera.fwhm: 0: want 0 < FWHM"},
+		{"[camera]\nwhite = \"d55\"\n", ":8: camera.white:"},
+		{"[camera]\nbeaming = \"d5\"\n", ":8: camera.beaming:"},
+		{"[camera]\nup = \"Sollow\"\n", ":8: camera.up:"},
+		{"[camera]\nsize = \"64x0\"\n", ":8: camera.size:"},
+		{"[overlays]\ngrid_step = 0\n", ":8: overlays.grid_step:"},
+		{"[overlays]\nhud = true\n", ":8: overlays.hud: want a string"},
+		{"[overlays]\nlabels = \"named\"\n", ":8: overlays.labels: want a whole number"},
+		{"[camera]\nfwhmm = 2\n", `:8: camera.fwhmm: unknown key (did you mean "camera.fwhm"?)`},
+		{"[[camera.look]]\nat = 0\nfov = 500\n", ":9: camera.look[0].fov:"},
+		{"[[camera.look]]\nat = 0\ndepth = 16\n", ":9: camera.look[0].depth: unknown key"},
+		{"[[camera.look]]\nat = 2\n[[camera.look]]\nat = 1\n", ":10: camera.look[1].at:"},
+		{"[[camera.look]]\nat = 0\nexposure = nan\n", ":9: camera.look[0].exposure: is NaN"},
+	}
+	for _, c := range cases {
+		dir := t.TempDir()
+		plan := writePlan(t, dir, base+c.body)
+		code, _, errs := runIn(t, "flight", plan, "--dry-run")
+		if code != 2 || !strings.Contains(errs, c.want) || strings.Contains(errs, "--") {
+			t.Errorf("%q: exit %d, %q; want exit 2 with %q and no flag name", c.body, code, errs, c.want)
+		}
+		if ents, _ := os.ReadDir(dir); len(ents) != 1 {
+			t.Errorf("%q: wrote files", c.body)
+		}
+	}
+}
