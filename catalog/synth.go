@@ -3,6 +3,7 @@ package catalog
 import (
 	"math"
 	"math/rand/v2"
+	"runtime"
 	"sync"
 )
 
@@ -23,9 +24,10 @@ const (
 	DefaultSynthSeed uint64 = 0x5eed_51c7_f4a3_0001
 	// DefaultSynthMagLimit is the faintest V of BuiltIn.
 	DefaultSynthMagLimit = 8.0
-	// MaxSynthMagLimit caps SynthOptions.MagLimit: a V = 11 sky already has
-	// about 800 000 stars.
-	MaxSynthMagLimit = 11.0
+	// MaxSynthMagLimit caps SynthOptions.MagLimit: the whole sky to V = 15
+	// has about 3·10⁷ stars (1.1 GB of columns); SynthOptions.CellLimit
+	// keeps a frame to the cells it needs.
+	MaxSynthMagLimit = 15.0
 	// MinSynthMagLimit is the brightest useful limit.
 	MinSynthMagLimit = -2.0
 )
@@ -49,6 +51,12 @@ type SynthOptions struct {
 	NoNearby bool
 	// NoExtinction switches the dust layer off (no dimming, no reddening).
 	NoExtinction bool
+	// CellLimit, when not nil, gives the faintest V wanted in each cell of
+	// the sampling grid (72 × 40 cells equal in galactic l and sin b); a
+	// cell keeps its stars to the smaller of that and MagLimit (NaN: to
+	// MagLimit), so a frame pays only for the depth it needs where it
+	// needs it. It is called once per cell, from one goroutine.
+	CellLimit func(SynthCell) float64
 }
 
 func (o SynthOptions) seed() uint64 {
@@ -116,18 +124,27 @@ func BuiltIn() *Stars {
 // no spiral structure and no clusters: to V = 8 the bulge contributes no
 // stars and the rest only modulates the counts.
 //
-// Sampling. The sky is cut into 72 × 40 cells equal in galactic l and sin b.
-// For each cell the model integrates, along the line of sight through its
-// centre on a logarithmic grid of 80 distances from 5 pc to 30 kpc, the
-// cumulative number of stars per steradian C(r) = ∫ ρ r² dr of every density component,
-// and the distance modulus with extinction m(r) = 5 log10(r/10 pc) + A(r).
-// For each 0.25-mag bin of M_V the stars brighter than the limit lie within
-// m(r) ≤ V_lim − M_V, so the expected count is φ ΔM ΔΩ C(r_lim). The number
-// of stars in the cell is Poisson-drawn, and each star's bin, M_V (rejection
-// within the bin), distance (inverse of C) and direction (uniform within the
-// cell) follow; V = M_V + m(r) ≤ V_lim by construction. The cost is
-// proportional to the number of cells and of stars kept, not to the number
-// of stars in the model volume. The invented stars of NearbyStars fill the
+// Sampling. The sky is cut into 72 × 40 cells equal in galactic l and sin b,
+// and apparent magnitude into slices: V ≤ 2, then one magnitude each
+// (2 < V ≤ 3, …). For each cell the model integrates, along the line of
+// sight through its centre on a logarithmic grid of 80 distances from 5 pc
+// to 30 kpc, the cumulative number of stars per steradian
+// C(r) = ∫ ρ r² dr of every density component, and the distance modulus
+// with extinction m(r) = 5 log10(r/10 pc) + A(r). For each 0.25-mag bin of
+// M_V the stars of slice (V₁, V₂] lie where V₁ < M_V + m(r) ≤ V₂, so the
+// expected count is φ ΔM ΔΩ [C(r(V₂)) − C(r(V₁))]. Each (cell, slice) has
+// its own random stream, seeded from Seed, the cell and the slice: the
+// number of its stars is Poisson-drawn, and each star's bin, M_V (rejection
+// within the bin), distance (inverse of C) and direction (uniform within
+// the cell) follow. A sky to V_lim draws the slices down to the one holding
+// V_lim and keeps the stars with V ≤ V_lim, so a star's values never depend
+// on the limit, on SynthOptions.CellLimit or on the number of goroutines
+// (cells are drawn in parallel): a deeper sky only adds fainter stars. The
+// star j of slice s in cell c has identifier SyntheticIDBase +
+// s·10¹⁰ + c·10⁶ + j; rows come slice by slice, cell by cell. The cost is
+// proportional to the number of cells and of stars drawn, not to the number
+// of stars in the model volume (about 1–2·10⁶ stars per second and core,
+// BenchmarkSyntheticDeep). The invented stars of NearbyStars fill the
 // sphere of 5 pc that the sampled population leaves empty.
 //
 // Values. B−V is the reddened colour a catalogue would list; Teff is from the
@@ -136,11 +153,10 @@ func BuiltIn() *Stars {
 // no proper motions or radial velocities. Teff outside the validity range of
 // TeffFromBV carries FlagTeffExtrapolated.
 //
-// Counts. The default V = 8 sky has about 42 000 stars; to V = 6, 7, 9, 10
-// and 11 about 4 900, 14 000, 117 000, 314 000 and 816 000. Building the
-// default sky takes a few tens of milliseconds; the cost grows with the
-// number of stars kept. The model constants and their sources are in
-// synth_model.go.
+// Counts. The default V = 8 sky has about 42 000 stars; to V = 6, 10, 12
+// and 14 about 4 800, 3.1·10⁵, 2.1·10⁶ and 1.5·10⁷ (TestSyntheticCounts
+// compares them with Allen's Astrophysical Quantities). The model constants
+// and their sources are in synth_model.go.
 func Synthetic(opt SynthOptions) *Stars {
 	s := &Stars{Epoch: 2000, Source: SyntheticSource, Format: SyntheticFormat}
 	if !opt.NoNearby {
@@ -149,7 +165,7 @@ func Synthetic(opt SynthOptions) *Stars {
 		}
 	}
 	g := newSynthGen(opt)
-	g.run(s)
+	g.run(s, opt)
 	return s
 }
 
@@ -174,7 +190,7 @@ type synthComp struct {
 }
 
 type synthGen struct {
-	rng    *rand.Rand
+	seed   uint64
 	vlim   float64
 	dust   bool
 	nM     int // number of M bins
@@ -186,11 +202,9 @@ type synthGen struct {
 	cumPhi []float64 // per-cell cumulative expected counts over comps
 
 	// Per-cell line-of-sight tables.
-	cum  [geomCount][synthNR]float64 // C_g(r_k), stars sr⁻¹ per unit density at the Sun
-	mod  [synthNR]float64            // m(r_k) = μ + A
-	ext  [synthNR]float64            // A(r_k)
-	limK []int                       // per M bin: grid segment of r_lim (−1: none)
-	limF []float64                   // per M bin: fraction within the segment
+	cum [geomCount][synthNR]float64 // C_g(r_k), stars sr⁻¹ per unit density at the Sun
+	mod [synthNR]float64            // m(r_k) = μ + A
+	ext [synthNR]float64            // A(r_k)
 }
 
 func newSynthGen(opt SynthOptions) *synthGen { return newSynthGenLimit(opt, opt.magLimit()) }
@@ -198,7 +212,7 @@ func newSynthGen(opt SynthOptions) *synthGen { return newSynthGenLimit(opt, opt.
 // newSynthGenLimit is newSynthGen with the limit vlim given unclamped.
 func newSynthGenLimit(opt SynthOptions, vlim float64) *synthGen {
 	g := &synthGen{
-		rng:  rand.New(rand.NewPCG(opt.seed(), 0x9e3779b97f4a7c15)),
+		seed: opt.seed(),
 		vlim: vlim,
 		dust: !opt.NoExtinction,
 	}
@@ -208,14 +222,9 @@ func newSynthGenLimit(opt SynthOptions, vlim float64) *synthGen {
 		g.r[k] = math.Exp(g.lnR[k])
 		g.mu[k] = 5*g.lnR[k]/math.Ln10 - 5
 	}
-	// Faintest M that can be seen at the inner edge.
-	mMax := math.Min(synthMMax0, g.vlim-g.mu[0])
-	g.nM = int(math.Ceil((mMax - synthPhiMMin) / synthDM))
-	if g.nM < 0 {
-		g.nM = 0
-	}
-	g.limK = make([]int, g.nM)
-	g.limF = make([]float64, g.nM)
+	// Every bin of the luminosity function, whatever the limit, so that the
+	// population (and the random draws made from it) never depends on it.
+	g.nM = int(math.Ceil((synthMMax0 - synthPhiMMin) / synthDM))
 	for j := 0; j < g.nM; j++ {
 		m := synthPhiMMin + (float64(j)+0.5)*synthDM
 		phi := synthPhi(m) * synthDM
@@ -246,33 +255,179 @@ func newSynthGenLimit(opt SynthOptions, vlim float64) *synthGen {
 	return g
 }
 
-// run samples every sky cell and appends the stars to s.
-func (g *synthGen) run(s *Stars) {
-	dOmega := 4 * math.Pi / (synthNL * synthNB)
-	next := int64(0)
-	for ib := 0; ib < synthNB; ib++ {
-		s0 := -1 + 2*float64(ib)/synthNB
-		s1 := -1 + 2*float64(ib+1)/synthNB
-		sb := 0.5 * (s0 + s1)
-		cb := math.Sqrt(1 - sb*sb)
-		for il := 0; il < synthNL; il++ {
-			l0 := 360 * float64(il) / synthNL
-			l1 := 360 * float64(il+1) / synthNL
-			lc := 0.5 * (l0 + l1) * math.Pi / 180
-			g.lineOfSight(cb*math.Cos(lc), sb)
-			total := 0.0
-			for c := range g.comps {
-				cp := &g.comps[c]
-				total += cp.w * dOmega * g.cumAtLimit(cp.geom, cp.mBin)
-				g.cumPhi[c] = total
+// Magnitude slices and identifiers of the sampled stars. Slice 0 holds the
+// stars with V ≤ synthSlice0, slice s ≥ 1 those with
+// synthSlice0 + s − 1 < V ≤ synthSlice0 + s. Each (cell, slice) is drawn from
+// its own random stream, seeded from the sky's seed, the cell and the slice,
+// so a star never depends on how deep, or in which cells, a sky was asked
+// for: a deeper sky only adds stars. The star j of slice s in cell c has the
+// identifier SyntheticIDBase + s·synthSliceStride + c·synthCellStride + j.
+const (
+	synthSlice0      = 2.0
+	synthSliceStride = 10_000_000_000
+	synthCellStride  = 1_000_000
+	synthCells       = synthNL * synthNB
+)
+
+// synthSliceOf returns the slice of magnitude v.
+func synthSliceOf(v float64) int {
+	if v <= synthSlice0 {
+		return 0
+	}
+	return int(math.Ceil(v - synthSlice0))
+}
+
+// synthCellGeom returns the bounds of cell c: sin b in [s0, s1], l in
+// [l0, l1] degrees.
+func synthCellGeom(c int) (s0, s1, l0, l1 float64) {
+	ib, il := c/synthNL, c%synthNL
+	s0 = -1 + 2*float64(ib)/synthNB
+	s1 = -1 + 2*float64(ib+1)/synthNB
+	l0 = 360 * float64(il) / synthNL
+	l1 = 360 * float64(il+1) / synthNL
+	return
+}
+
+// SynthCell describes a cell of the synthetic sky's sampling grid for
+// SynthOptions.CellLimit: Dir is the ICRS unit vector of its centre and
+// Radius (radians) the angular radius of a cap around Dir holding the
+// whole cell.
+type SynthCell struct {
+	Dir    [3]float64
+	Radius float64
+}
+
+// synthCellCap returns the cap holding cell c.
+func synthCellCap(c int) SynthCell {
+	s0, s1, l0, l1 := synthCellGeom(c)
+	sc := 0.5 * (s0 + s1)
+	lc := 0.5 * (l0 + l1) * math.Pi / 180
+	cc := math.Sqrt(1 - sc*sc)
+	cx, cy, cz := cc*math.Cos(lc), cc*math.Sin(lc), sc
+	// The farthest point of the cell from its centre is on its boundary;
+	// sample the boundary finely (the cell is small) and widen slightly.
+	minDot := 1.0
+	const n = 16
+	for i := 0; i <= n; i++ {
+		f := float64(i) / n
+		for _, pt := range [][2]float64{{s0, l0 + f*(l1-l0)}, {s1, l0 + f*(l1-l0)}, {s0 + f*(s1-s0), l0}, {s0 + f*(s1-s0), l1}} {
+			sb, l := pt[0], pt[1]*math.Pi/180
+			cb := math.Sqrt(math.Max(0, 1-sb*sb))
+			d := cx*cb*math.Cos(l) + cy*cb*math.Sin(l) + cz*sb
+			minDot = math.Min(minDot, d)
+		}
+	}
+	x, y, z := galacticToICRS(cx, cy, cz)
+	return SynthCell{Dir: [3]float64{x, y, z}, Radius: math.Acos(math.Max(-1, minDot)) * 1.02}
+}
+
+// synthBlock holds the stars of one (cell, slice).
+type synthBlock struct{ s Stars }
+
+// run samples every sky cell to its limit and appends the stars to s, slice
+// by slice and, within a slice, cell by cell.
+func (g *synthGen) run(s *Stars, opt SynthOptions) {
+	limits := make([]float64, synthCells)
+	nSlices := 0
+	for c := range limits {
+		lim := g.vlim
+		if opt.CellLimit != nil {
+			if l := opt.CellLimit(synthCellCap(c)); l < lim {
+				lim = l // NaN keeps the global limit
 			}
-			n := poisson(g.rng, total)
-			for ; n > 0; n-- {
-				g.draw(s, next, total, s0, s1, l0, l1)
-				next++
+		}
+		limits[c] = lim
+		nSlices = max(nSlices, synthSliceOf(lim)+1)
+	}
+	blocks := make([][]synthBlock, synthCells)
+	cells := make(chan int)
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), 8) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			w := *g
+			w.cumPhi = make([]float64, len(g.comps))
+			for c := range cells {
+				blocks[c] = w.cell(c, limits[c])
+			}
+		}()
+	}
+	for c := range limits {
+		cells <- c
+	}
+	close(cells)
+	wg.Wait()
+	n := s.Len()
+	for c := range blocks {
+		for _, b := range blocks[c] {
+			n += b.s.Len()
+		}
+	}
+	s.grow(n)
+	for sl := 0; sl < nSlices; sl++ {
+		for c := range blocks {
+			if sl < len(blocks[c]) {
+				s.appendStars(&blocks[c][sl].s)
 			}
 		}
 	}
+}
+
+// cell samples the slices of cell c down to limit lim.
+func (g *synthGen) cell(c int, lim float64) []synthBlock {
+	if lim < MinSynthMagLimit {
+		return nil
+	}
+	ns := synthSliceOf(lim) + 1
+	out := make([]synthBlock, ns)
+	s0, s1, l0, l1 := synthCellGeom(c)
+	sb := 0.5 * (s0 + s1)
+	cb := math.Sqrt(1 - sb*sb)
+	lc := 0.5 * (l0 + l1) * math.Pi / 180
+	// Tables deep enough for the last slice's faint edge.
+	g.vlim = synthSlice0 + float64(ns-1)
+	g.lineOfSight(cb*math.Cos(lc), sb)
+	dOmega := 4 * math.Pi / synthCells
+	// Cumulative counts per geometry at each M bin's centre, at the slice
+	// edges: cLo for the bright edge of the current slice, cHi for its faint
+	// edge (the next slice's bright edge).
+	cLo := make([]float64, g.nM*geomCount)
+	cHi := make([]float64, g.nM*geomCount)
+	for sl := 0; sl < ns; sl++ {
+		v1, v2 := math.Inf(-1), synthSlice0+float64(sl)
+		if sl > 0 {
+			v1 = v2 - 1
+			cLo, cHi = cHi, cLo
+		}
+		for j := 0; j < g.nM; j++ {
+			m := synthPhiMMin + (float64(j)+0.5)*synthDM
+			k, f := g.limit(v2 - m)
+			for gi := 0; gi < geomCount; gi++ {
+				cHi[j*geomCount+gi] = g.cumAt(gi, k, f)
+			}
+		}
+		rng := rand.New(rand.NewPCG(g.seed^0x9e3779b97f4a7c15, uint64(sl)<<32|uint64(c)))
+		total := 0.0
+		for i := range g.comps {
+			cp := &g.comps[i]
+			idx := cp.mBin*geomCount + cp.geom
+			d := cHi[idx]
+			if sl > 0 {
+				d -= cLo[idx]
+			}
+			total += cp.w * dOmega * d
+			g.cumPhi[i] = total
+		}
+		n := min(poisson(rng, total), synthCellStride-1)
+		id := SyntheticIDBase + int64(sl)*synthSliceStride + int64(c)*synthCellStride
+		blk := &out[sl].s
+		blk.grow(n)
+		for j := 0; j < n; j++ {
+			g.draw(rng, blk, id+int64(j), total, v1, v2, lim, s0, s1, l0, l1)
+		}
+	}
+	return out
 }
 
 // lineOfSight fills the per-cell tables for the direction with cos b·cos l =
@@ -344,11 +499,6 @@ func (g *synthGen) lineOfSight(cbl, sb float64) {
 		prevDust, prevR = dust, r
 		g.mod[k] = g.mu[k] + g.ext[k]
 	}
-	// Distance limit of each M bin, at its centre.
-	for j := 0; j < g.nM; j++ {
-		m := synthPhiMMin + (float64(j)+0.5)*synthDM
-		g.limK[j], g.limF[j] = g.limit(g.vlim - m)
-	}
 }
 
 // limit finds where the modulus grid reaches target: segment k and fraction
@@ -385,13 +535,10 @@ func (g *synthGen) cumAt(geom, k int, f float64) float64 {
 	return c[k] + f*(c[k+1]-c[k])
 }
 
-func (g *synthGen) cumAtLimit(geom, j int) float64 {
-	return g.cumAt(geom, g.limK[j], g.limF[j])
-}
-
-// draw samples one star of the current cell and appends it.
-func (g *synthGen) draw(s *Stars, idx int64, total, s0, s1, l0, l1 float64) {
-	rng := g.rng
+// draw samples one star of the current cell with v1 < V ≤ v2 and appends it
+// to s when V ≤ lim (the draws are made either way, so the stars kept never
+// depend on lim).
+func (g *synthGen) draw(rng *rand.Rand, s *Stars, id int64, total, v1, v2, lim, s0, s1, l0, l1 float64) {
 	// Component, by inverse of the cumulative expected counts.
 	u := rng.Float64() * total
 	lo, hi := 0, len(g.cumPhi)-1
@@ -404,28 +551,38 @@ func (g *synthGen) draw(s *Stars, idx int64, total, s0, s1, l0, l1 float64) {
 		}
 	}
 	cp := &g.comps[lo]
-	// M_V within the bin, weighted by the reachable volume C(r_lim(M)).
+	// M_V within the bin, weighted by the volume in which the star falls in
+	// the slice, C(r(v2 − M)) − C(r(v1 − M)); C(r(v2 − M_bright)) bounds it.
 	mb := synthPhiMMin + float64(cp.mBin)*synthDM
-	k0, f0 := g.limit(g.vlim - mb)
+	k0, f0 := g.limit(v2 - mb)
 	cMax := g.cumAt(cp.geom, k0, f0)
-	var m, cLim float64
+	var m, c1, c2 float64
 	var k int
 	var f float64
 	for try := 0; ; try++ {
 		m = mb + synthDM*rng.Float64()
-		k, f = g.limit(g.vlim - m)
-		cLim = g.cumAt(cp.geom, k, f)
-		if cLim > 0 && (rng.Float64()*cMax <= cLim || try > 64) {
+		k, f = g.limit(v2 - m)
+		c2 = g.cumAt(cp.geom, k, f)
+		c1 = 0
+		if !math.IsInf(v1, -1) {
+			k1, f1 := g.limit(v1 - m)
+			c1 = g.cumAt(cp.geom, k1, f1)
+		}
+		if c2 > c1 && (rng.Float64()*cMax <= c2-c1 || try > 64) {
+			break
+		}
+		if try > 64 {
 			break
 		}
 	}
-	// Distance: invert C on [0, C(r_lim)].
+	// Distance: invert C on [C(r(v1 − M)), C(r(v2 − M))].
 	c := &g.cum[cp.geom]
-	t := rng.Float64() * cLim
+	t := c1 + rng.Float64()*(c2-c1)
 	kk := k
 	if kk > synthNR-2 {
 		kk = synthNR - 2
 	}
+	kk = max(kk, 0)
 	a, b := 0, kk+1 // c[a] ≤ t ≤ c[b]
 	for b-a > 1 {
 		mid := (a + b) / 2
@@ -445,16 +602,22 @@ func (g *synthGen) draw(s *Stars, idx int64, total, s0, s1, l0, l1 float64) {
 	lnr := g.lnR[a] + fr*g.dlnR
 	mod := g.mod[a] + fr*(g.mod[a+1]-g.mod[a])
 	ext := g.ext[a] + fr*(g.ext[a+1]-g.ext[a])
-	v := math.Min(m+mod, g.vlim)
+	v := math.Min(m+mod, v2)
+	if v <= v1 {
+		v = math.Nextafter(v1, v2)
+	}
 	// Direction, uniform within the cell.
 	sb := s0 + (s1-s0)*rng.Float64()
 	l := (l0 + (l1-l0)*rng.Float64()) * math.Pi / 180
+	bv0 := synthColour(cp.law, m, rng)
+	if v > lim {
+		return
+	}
 	cb := math.Sqrt(math.Max(0, 1-sb*sb))
 	sl, cl := math.Sincos(l)
 	x, y, z := galacticToICRS(cb*cl, cb*sl, sb)
-	bv0 := synthColour(cp.law, m, rng)
 	bv := bv0 + ext/synthRV
-	s.ID = append(s.ID, SyntheticIDBase+idx)
+	s.ID = append(s.ID, id)
 	s.X = append(s.X, float32(x))
 	s.Y = append(s.Y, float32(y))
 	s.Z = append(s.Z, float32(z))
@@ -503,4 +666,34 @@ func poisson(rng *rand.Rand, lam float64) int {
 		c += p
 	}
 	return n
+}
+
+// grow makes room for n stars in the core columns.
+func (s *Stars) grow(n int) {
+	if n <= cap(s.ID) {
+		return
+	}
+	s.ID = append(make([]int64, 0, n), s.ID...)
+	s.X = append(make([]float32, 0, n), s.X...)
+	s.Y = append(make([]float32, 0, n), s.Y...)
+	s.Z = append(make([]float32, 0, n), s.Z...)
+	s.Dist = append(make([]float32, 0, n), s.Dist...)
+	s.Vmag = append(make([]float32, 0, n), s.Vmag...)
+	s.Teff = append(make([]float32, 0, n), s.Teff...)
+	s.BV = append(make([]float32, 0, n), s.BV...)
+	s.Flags = append(make([]Flag, 0, n), s.Flags...)
+}
+
+// appendStars appends the core columns of b (a block of sampled stars: no
+// optional columns, no names).
+func (s *Stars) appendStars(b *Stars) {
+	s.ID = append(s.ID, b.ID...)
+	s.X = append(s.X, b.X...)
+	s.Y = append(s.Y, b.Y...)
+	s.Z = append(s.Z, b.Z...)
+	s.Dist = append(s.Dist, b.Dist...)
+	s.Vmag = append(s.Vmag, b.Vmag...)
+	s.Teff = append(s.Teff, b.Teff...)
+	s.BV = append(s.BV, b.BV...)
+	s.Flags = append(s.Flags, b.Flags...)
 }
