@@ -103,17 +103,9 @@
 //
 // # Output
 //
-// WritePNG writes 8- or 16-bit sRGB PNG with sRGB, gAMA and cHRM chunks and
-// the frame's parameters as tEXt (or iTXt) chunks; its own encoder deflates
-// strips of rows in parallel into one zlib stream (image/png spends over a
-// second on a 16-bit 4096² frame), byte-identical for any worker count.
-// WriteFITS writes the linear buffer as a BITPIX −32 cube (NAXIS3 = 3: R, G,
-// B); FITS rows run bottom-up, so buffer pixel (x, y) is FITS pixel
-// (x+1, H−y). WCSCards describes the projection in FITS WCS (TAN pinhole,
-// ARC fisheye, CAR equirectangular; none for the cube strip): it maps
-// pixels to the apparent ICRS directions seen from the ship, after
-// aberration. WriteFileAtomic writes any file through a temporary file in
-// the same directory, fsync and rename, so no partial file is ever left;
-// FileSet does the same for the several files of one frame, renaming them
-// only when all were written. Neither replaces a device, FIFO or directory.
+// The file encoders — PNG, FITS with its WCS — are in package imgfile (and
+// OpenEXR in package exr), which use no render types; ToNRGBA and
+// ToNRGBA64 make the images they encode. WriteFileAtomic writes any file
+// through a temporary file in the same directory, fsync and rename, so no
+// partial file is ever left.
 package render

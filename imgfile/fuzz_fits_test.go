@@ -1,4 +1,4 @@
-package render
+package imgfile
 
 import (
 	"bytes"
@@ -34,13 +34,13 @@ func FuzzReadFITS(f *testing.F) {
 	f.Add([]byte(huge + strings.Repeat(" ", 2880-len(huge))))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		if _, err := ReadFITSHeader(bytes.NewReader(data)); err != nil {
-			if !strings.HasPrefix(err.Error(), "render: ") {
+			if !strings.HasPrefix(err.Error(), "imgfile: ") {
 				t.Fatalf("error without the package prefix: %v", err)
 			}
 		}
 		img, err := ReadFITS(bytes.NewReader(data))
 		if err != nil {
-			if !strings.HasPrefix(err.Error(), "render: ") {
+			if !strings.HasPrefix(err.Error(), "imgfile: ") {
 				t.Fatalf("error without the package prefix: %v", err)
 			}
 			return

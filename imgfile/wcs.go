@@ -1,4 +1,4 @@
-package render
+package imgfile
 
 import (
 	"errors"
@@ -36,7 +36,7 @@ import (
 // LONPOLE and LATPOLE (CAR).
 
 // ErrNoWCS reports a projection that has no single celestial WCS.
-var ErrNoWCS = errors.New("render: projection has no single WCS")
+var ErrNoWCS = errors.New("imgfile: projection has no single WCS")
 
 // WCSCards returns the celestial WCS header cards of projection p for
 // WriteFITS: Pinhole → TAN (gnomonic), Fisheye → ARC (zenithal
@@ -51,7 +51,7 @@ var ErrNoWCS = errors.New("render: projection has no single WCS")
 // camera's validation error.
 func WCSCards(p camera.Projection) ([]Card, error) {
 	if err := p.Validate(); err != nil {
-		return nil, fmt.Errorf("render: WCS: %w", err)
+		return nil, fmt.Errorf("imgfile: WCS: %w", err)
 	}
 	o := p.CentreOrientation()
 	g := wcsGeometry{width: p.Width, height: p.Height, ref: o.Forward, right: o.Right, up: o.Up}
@@ -68,7 +68,7 @@ func WCSCards(p camera.Projection) ([]Card, error) {
 	case camera.Equirect:
 		g.code, g.scaleX, g.scaleY = "CAR", 360/float64(p.Width), 180/float64(p.Height)
 	default:
-		return nil, fmt.Errorf("render: %v projection: %w", p.Kind, ErrNoWCS)
+		return nil, fmt.Errorf("imgfile: %v projection: %w", p.Kind, ErrNoWCS)
 	}
 	return g.cards()
 }
@@ -114,7 +114,7 @@ func eastNorth(ra, dec float64) (e, n r3.Vec) {
 func (g wcsGeometry) cards() ([]Card, error) {
 	if g.width < 1 || g.height < 1 || !(g.scaleX > 0) || !(g.scaleY > 0) ||
 		math.IsInf(g.scaleX, 0) || math.IsInf(g.scaleY, 0) {
-		return nil, fmt.Errorf("render: WCS for %d×%d pixels at %g×%g deg/pixel: bad geometry", g.width, g.height, g.scaleX, g.scaleY)
+		return nil, fmt.Errorf("imgfile: WCS for %d×%d pixels at %g×%g deg/pixel: bad geometry", g.width, g.height, g.scaleX, g.scaleY)
 	}
 	// The reference point is the image centre (W/2, H/2) in continuous
 	// coordinates: FITS pixel (W/2 + 1/2, H/2 + 1/2).
@@ -205,7 +205,7 @@ func (g wcsGeometry) cards() ([]Card, error) {
 			Card{"LATPOLE", posZero(decP), "[deg] declination of native pole"},
 		)
 	default:
-		return nil, fmt.Errorf("render: WCS projection code %q: %w", g.code, ErrNoWCS)
+		return nil, fmt.Errorf("imgfile: WCS projection code %q: %w", g.code, ErrNoWCS)
 	}
 	return c, nil
 }

@@ -1,4 +1,4 @@
-package render
+package imgfile
 
 import (
 	"bytes"
@@ -83,7 +83,7 @@ func (c PNGCompression) level() (png.CompressionLevel, error) {
 	case PNGNone:
 		return png.NoCompression, nil
 	}
-	return 0, fmt.Errorf("render: unknown PNG compression %d", int(c))
+	return 0, fmt.Errorf("imgfile: unknown PNG compression %d", int(c))
 }
 
 // PNGEncoder writes PNG files tagged as sRGB and carrying text metadata.
@@ -98,11 +98,11 @@ type PNGEncoder struct {
 }
 
 // ErrPNGKeyword reports a metadata key that is not a valid PNG keyword.
-var ErrPNGKeyword = errors.New("render: invalid PNG text keyword")
+var ErrPNGKeyword = errors.New("imgfile: invalid PNG text keyword")
 
 // ErrPNGText reports a metadata value that cannot be stored in a PNG text
 // chunk (invalid UTF-8 or a NUL character).
-var ErrPNGText = errors.New("render: invalid PNG text value")
+var ErrPNGText = errors.New("imgfile: invalid PNG text value")
 
 // WritePNG encodes img with a zero PNGEncoder: see PNGEncoder.Encode.
 func WritePNG(w io.Writer, img image.Image, meta []KV) error {
@@ -163,10 +163,10 @@ func (e *PNGEncoder) Encode(w io.Writer, img image.Image, meta []KV) error {
 		if sw.err != nil {
 			return sw.err
 		}
-		return fmt.Errorf("render: encoding PNG: %w", err)
+		return fmt.Errorf("imgfile: encoding PNG: %w", err)
 	}
 	if sw.n < pngHeadLen {
-		return errors.New("render: PNG encoder produced a truncated header")
+		return errors.New("imgfile: PNG encoder produced a truncated header")
 	}
 	return nil
 }
@@ -212,15 +212,15 @@ func (s *spliceWriter) Write(p []byte) (int, error) {
 			return total, nil
 		}
 		if string(s.head[8:16]) != "\x00\x00\x00\x0dIHDR" {
-			s.err = errors.New("render: PNG encoder did not start with IHDR")
+			s.err = errors.New("imgfile: PNG encoder did not start with IHDR")
 			return 0, s.err
 		}
 		if _, err := s.w.Write(s.head[:]); err != nil {
-			s.err = fmt.Errorf("render: writing PNG: %w", err)
+			s.err = fmt.Errorf("imgfile: writing PNG: %w", err)
 			return 0, s.err
 		}
 		if _, err := s.w.Write(s.extra); err != nil {
-			s.err = fmt.Errorf("render: writing PNG: %w", err)
+			s.err = fmt.Errorf("imgfile: writing PNG: %w", err)
 			return 0, s.err
 		}
 		if len(p) == 0 {
@@ -229,7 +229,7 @@ func (s *spliceWriter) Write(p []byte) (int, error) {
 	}
 	s.n += len(p)
 	if _, err := s.w.Write(p); err != nil {
-		s.err = fmt.Errorf("render: writing PNG: %w", err)
+		s.err = fmt.Errorf("imgfile: writing PNG: %w", err)
 		return 0, s.err
 	}
 	return total, nil
@@ -393,7 +393,7 @@ var pngStripBytes = 1 << 20
 
 func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, stride, depth int, extra []byte) error {
 	if width < 1 || height < 1 {
-		return fmt.Errorf("render: encoding PNG: image size %d×%d", width, height)
+		return fmt.Errorf("imgfile: encoding PNG: image size %d×%d", width, height)
 	}
 	srcBpp := 4 * depth / 8
 	opaque := true
@@ -422,7 +422,7 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 	hdr = appendChunk(hdr, "IHDR", ihdr)
 	hdr = append(hdr, extra...)
 	if _, err := w.Write(hdr); err != nil {
-		return fmt.Errorf("render: writing PNG: %w", err)
+		return fmt.Errorf("imgfile: writing PNG: %w", err)
 	}
 
 	rowsPer := max(1, pngStripBytes/(rowBytes+1))
@@ -495,7 +495,7 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 			data = binary.BigEndian.AppendUint32(data, total)
 		}
 		if _, err := w.Write(appendChunk(nil, "IDAT", data)); err != nil {
-			werr = fmt.Errorf("render: writing PNG: %w", err)
+			werr = fmt.Errorf("imgfile: writing PNG: %w", err)
 			abort.Store(true)
 		}
 		s.data = nil
@@ -504,7 +504,7 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 		return werr
 	}
 	if _, err := w.Write(appendChunk(nil, "IEND", nil)); err != nil {
-		return fmt.Errorf("render: writing PNG: %w", err)
+		return fmt.Errorf("imgfile: writing PNG: %w", err)
 	}
 	return nil
 }
@@ -519,7 +519,7 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 	if fw == nil {
 		var err error
 		if fw, err = flate.NewWriter(&out, level); err != nil {
-			return nil, 0, 0, fmt.Errorf("render: encoding PNG: %w", err)
+			return nil, 0, 0, fmt.Errorf("imgfile: encoding PNG: %w", err)
 		}
 	} else {
 		fw.Reset(&out)
@@ -563,7 +563,7 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 		ad.Write(line)
 		n += int64(len(line))
 		if _, err := fw.Write(line); err != nil {
-			return nil, 0, 0, fmt.Errorf("render: encoding PNG: %w", err)
+			return nil, 0, 0, fmt.Errorf("imgfile: encoding PNG: %w", err)
 		}
 		cur, prev = prev, cur
 	}
@@ -574,7 +574,7 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 		err = fw.Flush()
 	}
 	if err != nil {
-		return nil, 0, 0, fmt.Errorf("render: encoding PNG: %w", err)
+		return nil, 0, 0, fmt.Errorf("imgfile: encoding PNG: %w", err)
 	}
 	return out.Bytes(), ad.Sum32(), n, nil
 }

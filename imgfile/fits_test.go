@@ -1,4 +1,4 @@
-package render
+package imgfile
 
 import (
 	"bytes"

@@ -1,4 +1,4 @@
-package render
+package imgfile
 
 import (
 	"bufio"
@@ -10,6 +10,8 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+
+	"github.com/skyframe/skyframe/camera"
 )
 
 // References for this file: FITS Standard version 4.0 (IAU FITS Working
@@ -49,7 +51,7 @@ func (h FITSHeader) Get(key string) (Card, bool) {
 
 // ErrFITSKey reports a missing header keyword or one whose value has the
 // wrong type.
-var ErrFITSKey = errors.New("render: FITS keyword")
+var ErrFITSKey = errors.New("imgfile: FITS keyword")
 
 // Float returns the numeric value of key (an integer value is converted).
 func (h FITSHeader) Float(key string) (float64, error) {
@@ -92,7 +94,7 @@ func (h FITSHeader) String(key string) (string, error) {
 
 // ErrFITSCard reports a header card that cannot be written: a bad keyword,
 // an unrepresentable value, a reserved or duplicated keyword.
-var ErrFITSCard = errors.New("render: bad FITS card")
+var ErrFITSCard = errors.New("imgfile: bad FITS card")
 
 // fitsReserved are the structural keywords WriteFITS writes itself.
 var fitsReserved = map[string]bool{
@@ -140,7 +142,7 @@ func WriteFITS(w io.Writer, width, height int, pix []float32, cards []Card) erro
 	case 3 * n:
 		channels = 3
 	default:
-		return fmt.Errorf("render: FITS image %d×%d needs %d or %d values, have %d", width, height, n, 3*n, len(pix))
+		return fmt.Errorf("imgfile: FITS image %d×%d needs %d or %d values, have %d", width, height, n, 3*n, len(pix))
 	}
 	hdr := []Card{
 		{"SIMPLE", true, "conforms to FITS Standard 4.0"},
@@ -185,7 +187,7 @@ func WriteFITS(w io.Writer, width, height int, pix []float32, cards []Card) erro
 
 	bw := bufio.NewWriterSize(w, 1<<16)
 	if _, err := bw.Write(head); err != nil {
-		return fmt.Errorf("render: writing FITS header: %w", err)
+		return fmt.Errorf("imgfile: writing FITS header: %w", err)
 	}
 	// Data: NAXIS1 varies fastest, then NAXIS2, then NAXIS3 (FITS 4.0 §3.3.2).
 	row := make([]byte, 4*width)
@@ -196,18 +198,18 @@ func WriteFITS(w io.Writer, width, height int, pix []float32, cards []Card) erro
 				binary.BigEndian.PutUint32(row[4*i:], math.Float32bits(src[channels*i+ch]))
 			}
 			if _, err := bw.Write(row); err != nil {
-				return fmt.Errorf("render: writing FITS data: %w", err)
+				return fmt.Errorf("imgfile: writing FITS data: %w", err)
 			}
 		}
 	}
 	// Fill the last data block with zeros (FITS 4.0 §3.3.2).
 	if r := (4 * channels * n) % fitsBlock; r != 0 {
 		if _, err := bw.Write(make([]byte, fitsBlock-r)); err != nil {
-			return fmt.Errorf("render: writing FITS data: %w", err)
+			return fmt.Errorf("imgfile: writing FITS data: %w", err)
 		}
 	}
 	if err := bw.Flush(); err != nil {
-		return fmt.Errorf("render: writing FITS data: %w", err)
+		return fmt.Errorf("imgfile: writing FITS data: %w", err)
 	}
 	return nil
 }
@@ -345,7 +347,7 @@ func fitsFloat(key string, v float64) (string, error) {
 }
 
 // ErrFITSFormat reports input that ReadFITSHeader or ReadFITS cannot parse.
-var ErrFITSFormat = errors.New("render: malformed FITS")
+var ErrFITSFormat = errors.New("imgfile: malformed FITS")
 
 // ReadFITSHeader reads the primary header of a FITS file up to and
 // including its END card and the rest of that block, leaving r at the start
@@ -630,3 +632,10 @@ func (m FITSMeta) Cards() ([]Card, error) {
 	}
 	return c, nil
 }
+
+// MaxSize is the largest width or height WriteFITS and ReadFITS accept, in
+// pixels (the projections' limit).
+const MaxSize = camera.MaxSize
+
+// ErrSize reports an image size outside 1..MaxSize.
+var ErrSize = errors.New("imgfile: image size out of range")
