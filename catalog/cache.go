@@ -258,6 +258,8 @@ func ReadCache(r io.Reader) (*Stars, error) {
 // remaining returns the bytes left in r when it can tell, else -1.
 func remaining(r io.Reader) int64 {
 	switch v := r.(type) {
+	case *ctxReader:
+		return remaining(v.r)
 	case interface{ Len() int }:
 		return int64(v.Len())
 	case *os.File:

@@ -95,6 +95,9 @@ func openChunks(f *os.File, path string, chunkRows int) (*ChunkReader, error) {
 	if err != nil {
 		return nil, err
 	}
+	if !fi.Mode().IsRegular() {
+		return nil, fmt.Errorf("%s is not a regular file: a cache is read in chunks only from a file", path)
+	}
 	size := fi.Size()
 	if size < 4 {
 		return nil, fmt.Errorf("%w: %d bytes", ErrTruncated, size)
@@ -375,6 +378,11 @@ func (s *Stars) AppendRow(src *Stars, i int) {
 // cache's magic bytes (see WriteCache); it reads only those bytes, so it
 // says nothing about whether the rest of the file is sound.
 func IsCacheFile(path string) (bool, error) {
+	// Only a regular file can be a cache file read in chunks; opening a
+	// FIFO would block until a writer appears.
+	if fi, err := os.Stat(path); err == nil && !fi.Mode().IsRegular() {
+		return false, nil
+	}
 	f, err := os.Open(path)
 	if err != nil {
 		return false, fmt.Errorf("catalog: %w", err)

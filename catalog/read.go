@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"compress/flate"
 	"compress/gzip"
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -141,23 +142,28 @@ type Report struct {
 	Propagated                                                bool    // positions were moved to ReadOptions.Epoch
 }
 
-// Open reads the catalogue in the named file. See Read.
+// Open reads the catalogue in the named file. See Read, and OpenContext
+// to make it interruptible.
 func Open(path string, opt ReadOptions) (*Stars, *Report, error) {
-	f, err := os.Open(path)
-	if err != nil {
-		return nil, nil, fmt.Errorf("catalog: %w", err)
-	}
-	defer f.Close()
+	return OpenContext(context.Background(), path, opt)
+}
+
+// open reads the catalogue in f, through r (f itself or a wrapper of it).
+func open(f *os.File, r io.Reader, path string, opt ReadOptions) (*Stars, *Report, error) {
 	// Parquet is read through io.ReaderAt: straight from the file, not
 	// buffered into memory as Read must.
 	var head [4]byte
 	if k, _ := f.ReadAt(head[:], 0); !math.IsNaN(opt.Epoch) && math.Abs(opt.Epoch) <= 1e5 && (opt.Format == FormatAuto || opt.Format == FormatParquet) && k == 4 && bytes.Equal(head[:], parquetMagic) {
 		if fi, err := f.Stat(); err == nil && fi.Mode().IsRegular() {
 			o := opt.withDefaults()
-			return readParquet(f, fi.Size(), path, o, &Report{Source: path, DeclaredRows: -1})
+			var ra io.ReaderAt = f
+			if cr, ok := r.(*ctxReader); ok {
+				ra = ctxReaderAt{ctx: cr.ctx, r: f}
+			}
+			return readParquet(ra, fi.Size(), path, o, &Report{Source: path, DeclaredRows: -1})
 		}
 	}
-	return Read(f, path, opt)
+	return Read(r, path, opt)
 }
 
 // Read reads a catalogue from r; name (a file name) is used in messages and

@@ -114,7 +114,7 @@ func catalogInspect(e *env, args []string) error {
 		return err
 	}
 	start := time.Now()
-	stars, rep, err := catalog.Open(fs.Arg(0), opt)
+	stars, rep, err := catalog.OpenContext(e.ctx, fs.Arg(0), opt)
 	if err != nil {
 		return usageError{err}
 	}
@@ -188,11 +188,11 @@ func catalogPack(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	stars, rep, err := catalog.Open(fs.Arg(0), opt)
+	stars, rep, err := catalog.OpenContext(e.ctx, fs.Arg(0), opt)
 	if err != nil {
 		return usageError{err}
 	}
-	err = render.WriteFileAtomic(*out, func(w io.Writer) error { return write(w, stars) })
+	err = render.WriteFileAtomic(*out, func(w io.Writer) error { return write(ctxWriter{e.ctx, w}, stars) })
 	if err != nil {
 		return err
 	}

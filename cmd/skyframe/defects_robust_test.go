@@ -1,8 +1,11 @@
 package main
 
 import (
+	"bytes"
 	"os"
+	"os/exec"
 	"path/filepath"
+	"strings"
 	"syscall"
 	"testing"
 )
@@ -135,4 +138,75 @@ func TestCatalogPackOntoItself(t *testing.T) {
 			t.Error("the input was changed")
 		}
 	}
+}
+
+// TestMemoryRefusedUpFront (item 4): requests that cannot fit in --memory
+// are refused with status 2, the figure and the flag to change, before
+// anything of that size is allocated; they used to end in a Go runtime
+// crash (status 2 and a goroutine dump). Each runs as a real process under
+// a 4 GiB address-space limit (ulimit -v, POSIX), so that a regression
+// crashes the child, not the test.
+func TestMemoryRefusedUpFront(t *testing.T) {
+	exe, err := os.Executable()
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		name string
+		args []string
+		want []string
+	}{
+		{"32768² frame", []string{"--size", "32768x32768"}, []string{"--memory 1.0 GiB", "GB", "frame buffer 13 GB", "--size"}},
+		{"10¹⁵ beacons", []string{"--lattice", "100000", "--lattice-confirm"}, []string{"--memory", "overlays", "--lattice"}},
+		{"grid step 1e-9°", []string{"--grid", "radec", "--grid-step", "1e-9"}, []string{"--memory", "overlays", "--grid-step"}},
+		{"4096² in 100 MiB", []string{"--size", "4096x4096", "--memory", "100MiB"}, []string{"--memory 100 MiB", "frame buffer 201 MB"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			dir := t.TempDir()
+			args := append([]string{"still", "-o", filepath.Join(dir, "x.png")}, c.args...)
+			p := exec.Command("sh", append([]string{"-c", `ulimit -v 4194304; exec "$0" "$@"`, exe}, args...)...)
+			p.Env = append(os.Environ(), envExecMain+"=1")
+			var stderr bytes.Buffer
+			p.Stderr = &stderr
+			err := p.Run()
+			code := 0
+			if ee, ok := err.(*exec.ExitError); ok {
+				code = ee.ExitCode()
+			} else if err != nil {
+				t.Fatal(err)
+			}
+			msg := stderr.String()
+			if strings.Contains(msg, "goroutine ") || strings.Contains(msg, "fatal error") {
+				t.Fatalf("runtime crash:\n%.600s", msg)
+			}
+			hostileExpect(t, code, msg, c.want, dir)
+		})
+	}
+}
+
+// TestSmallInputsAreBounded (item 4): a plan is read through a reader
+// limited to flight.MaxPlanBytes, so /dev/zero (whose stat size is 0) and
+// an endless pipe are refused at the limit instead of filling memory.
+func TestSmallInputsAreBounded(t *testing.T) {
+	dir := t.TempDir()
+	code, msg := hostileRun(t, "flight", "/dev/zero", "--out", filepath.Join(dir, "out"))
+	hostileExpect(t, code, msg, []string{"/dev/zero", "larger than the limit"}, dir)
+
+	fifo := mkfifo(t, dir, "plan")
+	go func() {
+		f, err := os.OpenFile(fifo, os.O_WRONLY, 0)
+		if err != nil {
+			return
+		}
+		defer f.Close()
+		line := []byte("# a comment line, again and again, never ending\n")
+		for {
+			if _, err := f.Write(line); err != nil {
+				return
+			}
+		}
+	}()
+	code, msg = hostileRun(t, "flight", fifo, "--out", filepath.Join(dir, "out"))
+	hostileExpect(t, code, msg, []string{fifo, "larger than the limit"}, dir, "plan")
 }

@@ -1,8 +1,8 @@
 package main
 
 import (
+	"context"
 	"fmt"
-	"os"
 	"path/filepath"
 	"strings"
 	"time"
@@ -150,7 +150,7 @@ func runFlight(e *env, args []string) error {
 
 // loadFlightJob reads, binds and validates the plan, before any rendering.
 func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) {
-	data, err := readPlanFile(planPath)
+	data, err := readPlanFile(e.ctx, planPath)
 	if err != nil {
 		return nil, err
 	}
@@ -159,7 +159,7 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 		return nil, err
 	}
 	base := filepath.Dir(planPath)
-	stars, err := planStars(plan, base)
+	stars, err := planStars(e.ctx, plan, base)
 	if err != nil {
 		return nil, err
 	}
@@ -212,27 +212,17 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 	return job, nil
 }
 
-func readPlanFile(path string) ([]byte, error) {
-	st, err := os.Stat(path)
+func readPlanFile(ctx context.Context, path string) ([]byte, error) {
+	data, err := readSmallFile(ctx, path, flight.MaxPlanBytes)
 	if err != nil {
-		return nil, usagef("flight: %v", err)
-	}
-	if st.IsDir() {
-		return nil, usagef("flight: %s is a directory", path)
-	}
-	if st.Size() > flight.MaxPlanBytes {
-		return nil, usagef("flight: %s: %d bytes (a plan may have at most %d)", path, st.Size(), flight.MaxPlanBytes)
-	}
-	data, err := os.ReadFile(path)
-	if err != nil {
-		return nil, usagef("flight: %v", err)
+		return nil, usagef("flight: %w", err)
 	}
 	return data, nil
 }
 
 // planStars opens the plan's catalogue (relative to the plan's directory)
 // or returns the built-in sky.
-func planStars(plan *flight.Plan, base string) (*catalog.Stars, error) {
+func planStars(ctx context.Context, plan *flight.Plan, base string) (*catalog.Stars, error) {
 	c := plan.Catalogue
 	if c.Path == "" || c.Path == "builtin" {
 		if c.Format != "" || len(c.Columns) > 0 {
@@ -262,7 +252,7 @@ func planStars(plan *flight.Plan, base string) (*catalog.Stars, error) {
 	if !filepath.IsAbs(path) {
 		path = filepath.Join(base, path)
 	}
-	stars, _, err := catalog.Open(path, opt)
+	stars, _, err := catalog.OpenContext(ctx, path, opt)
 	if err != nil {
 		return nil, usageError{err}
 	}

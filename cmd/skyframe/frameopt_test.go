@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"fmt"
 	"image"
 	"image/png"
@@ -124,7 +125,7 @@ fits = true
 			if code != 0 {
 				t.Fatalf("flight: exit %d: %s", code, errs)
 			}
-			p, err := readPlanFile(plan)
+			p, err := readPlanFile(context.Background(), plan)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -136,7 +137,7 @@ fits = true
 				if err := pl.Bind(nil); err == nil {
 					t.Fatal("bound a plan naming a star without a resolver")
 				}
-				stars, _ := planStars(pl, dir)
+				stars, _ := planStars(context.Background(), pl, dir)
 				if err := pl.Bind(flight.StarsResolver(stars, stars.Find)); err != nil {
 					t.Fatal(err)
 				}

@@ -28,6 +28,13 @@ const version = "0.1.0"
 
 func main() {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	// After the first signal the command winds down (removing its
+	// temporary files); a second one takes the default action and ends the
+	// process at once.
+	go func() {
+		<-ctx.Done()
+		stop()
+	}()
 	code := run(ctx, os.Args[1:], os.Stdout, os.Stderr)
 	stop()
 	os.Exit(code)
@@ -97,6 +104,9 @@ func (e *env) usage(w io.Writer) {
 
 const exitStatusHelp = `
 Exit status: 0 success, 1 runtime failure, 2 usage or input error.
+SIGINT or SIGTERM stops any command within a fraction of a second (a flight
+after the frame in progress), removes its temporary files and exits with
+status 1; a second signal ends the process at once.
 `
 
 // usageError marks a bad flag, argument or input file: exit status 2.
@@ -116,6 +126,10 @@ var errHelp = errors.New("help requested")
 func (e *env) report(err error) int {
 	if err == nil || errors.Is(err, errHelp) {
 		return exitOK
+	}
+	if errors.Is(err, context.Canceled) {
+		fmt.Fprintf(e.stderr, "skyframe: interrupted (%v); no partial file was left\n", err)
+		return exitFailure
 	}
 	fmt.Fprintf(e.stderr, "skyframe: %v\n", err)
 	var u usageError

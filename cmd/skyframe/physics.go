@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"math"
 	"strings"
 
@@ -76,7 +77,7 @@ type scene struct {
 	heading  r3.Vec // unit direction of motion (ICRS)
 }
 
-func (p *physicsFlags) resolve(fs *pflag.FlagSet) (*scene, error) {
+func (p *physicsFlags) resolve(ctx context.Context, fs *pflag.FlagSet) (*scene, error) {
 	if err := checkFinite("epoch", p.epoch); err != nil {
 		return nil, err
 	}
@@ -88,7 +89,7 @@ func (p *physicsFlags) resolve(fs *pflag.FlagSet) (*scene, error) {
 		}
 		stars, err = referencedStars(p.stream, p.refs)
 	} else {
-		stars, err = loadStars(p.catalog, p.catalogFormat, p.columns, p.epoch)
+		stars, err = loadStars(ctx, p.catalog, p.catalogFormat, p.columns, p.epoch)
 	}
 	if err != nil {
 		return nil, err
@@ -143,7 +144,7 @@ func (p *physicsFlags) resolve(fs *pflag.FlagSet) (*scene, error) {
 	return sc, nil
 }
 
-func loadStars(path, format string, columns []string, epoch float64) (*catalog.Stars, error) {
+func loadStars(ctx context.Context, path, format string, columns []string, epoch float64) (*catalog.Stars, error) {
 	if path == "" {
 		if format != "" {
 			return nil, usagef("--catalog-format needs --catalog")
@@ -159,7 +160,7 @@ func loadStars(path, format string, columns []string, epoch float64) (*catalog.S
 		return nil, err
 	}
 	opt.Epoch = epoch
-	stars, _, err := catalog.Open(path, opt)
+	stars, _, err := catalog.OpenContext(ctx, path, opt)
 	if err != nil {
 		return nil, usageError{err}
 	}

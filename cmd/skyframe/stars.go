@@ -84,7 +84,7 @@ func runStars(e *env, args []string) error {
 	default:
 		return usagef("--format %q: want csv, tsv or json", *format)
 	}
-	sc, err := p.resolve(fs)
+	sc, err := p.resolve(e.ctx, fs)
 	if err != nil {
 		return err
 	}

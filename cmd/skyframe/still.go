@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"image/draw"
@@ -218,14 +219,22 @@ func runStill(e *env, args []string) error {
 	}
 	fr := f.frame.Frame()
 	kind, w, h := fr.Kind, fr.Width, fr.Height
-	if p.stream, err = openStream(&p, kind, w, h, budget); err != nil {
+	frameOnly := render.Options{Projection: camera.Projection{Kind: kind, Width: w, Height: h}}
+	fixed := render.EstimateMemory(frameOnly, fr.Depth, 0, false, budget)
+	if err := checkMemory(fixed, budget, "reduce --size"); err != nil {
+		return err
+	}
+	// What the image and its encoder take is not available to the
+	// streaming renderer's chunks.
+	renderBudget := budget - fixed.Image - fixed.Encode
+	if p.stream, err = openStream(&p, kind, w, h, renderBudget); err != nil {
 		return err
 	}
 	if p.stream != nil {
 		defer p.stream.Close()
 		p.refs = append([]string{f.frame.Look, p.toward, p.position, f.frame.MarkDestination}, f.frame.Label...)
 	}
-	sc, err := p.resolve(fs)
+	sc, err := p.resolve(e.ctx, fs)
 	if err != nil {
 		return err
 	}
@@ -236,10 +245,24 @@ func runStill(e *env, args []string) error {
 	if spec.layers, err = frameLayers(&f.frame, sc, &spec.opt); err != nil {
 		return err
 	}
+	rows := sc.stars.Len()
+	if p.stream != nil {
+		rows = p.stream.Len()
+	}
+	need := render.EstimateMemory(spec.opt, spec.depth, rows, p.stream != nil, renderBudget)
+	need.Overlays = overlayBytes(spec.layers.Options, w, h)
+	if err := checkMemory(need, budget, "reduce --size, --grid-step or --lattice"); err != nil {
+		return err
+	}
 	start := time.Now()
 	var frame *render.Frame
 	if p.stream != nil {
-		frame, err = render.RenderStream(p.stream.Next, spec.opt)
+		frame, err = render.RenderStream(func() (*catalog.Stars, error) {
+			if err := e.ctx.Err(); err != nil {
+				return nil, context.Cause(e.ctx)
+			}
+			return p.stream.Next()
+		}, spec.opt)
 	} else {
 		frame, err = render.Render(sc.stars, spec.opt)
 	}
@@ -250,14 +273,17 @@ func runStill(e *env, args []string) error {
 		return err
 	}
 	took := time.Since(start)
-	if err := writeFrame(frame, sc, spec, outputs); err != nil {
+	if err := e.ctx.Err(); err != nil {
+		return context.Cause(e.ctx)
+	}
+	if err := writeFrame(e.ctx, frame, sc, spec, outputs); err != nil {
 		return err
 	}
 	total := time.Since(start)
 	printSummary(e.stdout, frame, sc, spec, outputs, took, total)
 	if p.stream != nil {
 		fmt.Fprintf(e.stdout, "catalogue: %d stars rendered from disk in chunks of up to %d (--memory %s)\n",
-			frame.Stats.Total, render.ChunkRows(render.Options{Projection: spec.proj, Doppler: true}, budget), f.memory)
+			frame.Stats.Total, render.ChunkRows(render.Options{Projection: spec.proj, Doppler: true}, renderBudget), f.memory)
 	}
 	return nil
 }
@@ -288,7 +314,7 @@ func (o outputPaths) check() error {
 // writeFrame writes the PNG, FITS and sidecar of a frame as one set: each
 // to a temporary file, and all renamed into place only when every one was
 // written, so a failure never leaves a new image beside an old sidecar.
-func writeFrame(frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths) error {
+func writeFrame(ctx context.Context, frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths) error {
 	side := frame.Sidecar("skyframe", version, sc.stars, spec.tone)
 	meta := pngMeta(side, spec)
 	var img draw.Image
@@ -303,7 +329,7 @@ func writeFrame(frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths
 	var set render.FileSet
 	defer set.Abort()
 	err := set.Add(out.png, func(w io.Writer) error {
-		return render.WritePNG(w, img, meta)
+		return render.WritePNG(ctxWriter{ctx, w}, img, meta)
 	})
 	if err != nil {
 		return err
@@ -314,7 +340,7 @@ func writeFrame(frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths
 			return err
 		}
 		if err := set.Add(out.fits, func(w io.Writer) error {
-			return render.WriteFITS(w, frame.W, frame.H, frame.Pix, cards)
+			return render.WriteFITS(ctxWriter{ctx, w}, frame.W, frame.H, frame.Pix, cards)
 		}); err != nil {
 			return err
 		}

@@ -52,7 +52,10 @@ func TestStillStreamsLargeCache(t *testing.T) {
 		return out, p, f, side
 	}
 	memOut, memPNG, memFITS, memSide := render("mem", "1GiB")
-	strOut, strPNG, strFITS, strSide := render("str", "1MiB")
+	// 24 MiB holds the 320×180 frame and one chunk of about 10⁵ stars,
+	// fewer than the catalogue's: it streams. (--memory bounds the whole
+	// run, so a budget below the smallest chunk is refused.)
+	strOut, strPNG, strFITS, strSide := render("str", "24MiB")
 	if strings.Contains(memOut, "from disk") || !strings.Contains(strOut, "from disk") {
 		t.Fatalf("stream decision: 1GiB run says %q; 1MiB run says %q", memOut, strOut)
 	}
@@ -65,7 +68,7 @@ func TestStillStreamsLargeCache(t *testing.T) {
 	// A star reference that is not in the file, and --epoch, are refused
 	// with exit status 2 and the option named.
 	for _, args := range [][]string{{"--look", "No Such Star"}, {"--epoch", "2100"}} {
-		a := append([]string{"still", "--catalog", cache, "--memory", "1MiB", "--size", "32x18", "-o", filepath.Join(dir, "bad.png")}, args...)
+		a := append([]string{"still", "--catalog", cache, "--memory", "24MiB", "--size", "32x18", "-o", filepath.Join(dir, "bad.png")}, args...)
 		_, errs, code := runCmd(t, a...)
 		if code != 2 || !strings.Contains(errs, args[0]) {
 			t.Errorf("%v: exit %d, %q", args, code, errs)
