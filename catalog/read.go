@@ -470,6 +470,15 @@ func (b *builder) finish() (*Stars, *Report, error) {
 	return b.s, b.rep, nil
 }
 
+// Summary returns the Report of a catalogue that was not read from a file
+// (the built-in sky): its source, rows, ranges and flag counts; no lines
+// and nothing skipped.
+func Summary(s *Stars) *Report {
+	rep := &Report{Source: s.Source, DeclaredRows: -1}
+	summarise(s, rep)
+	return rep
+}
+
 // summarise fills the ranges and flag counts of rep from s.
 func summarise(s *Stars, rep *Report) {
 	rep.Rows = s.Len()

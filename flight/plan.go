@@ -79,6 +79,10 @@ type CatalogueSpec struct {
 	Format string `toml:"format"`
 	// Columns maps our column names (see CatalogueColumns) to the file's.
 	Columns map[string]string `toml:"columns"`
+	// Names is the IAU Catalog of Star Names file for proper names in star
+	// references and labels; empty: the fetched copy in the user cache, if
+	// any; "none": no names table.
+	Names string `toml:"names"`
 }
 
 // CatalogueColumns lists the column names a [catalogue.columns] map may set.
@@ -464,6 +468,7 @@ func (p *Plan) fill(pf *planFile, c *checker) {
 	cat := pf.Catalogue
 	c.str(cat.Path, "catalogue", "path")
 	c.str(cat.Format, "catalogue", "format")
+	c.str(cat.Names, "catalogue", "names")
 	for k, v := range cat.Columns {
 		known := false
 		for _, n := range CatalogueColumns {

@@ -191,7 +191,7 @@ var Defs = []Def{
 		},
 		ptr: func(o *Options) any { return &o.Labels }},
 	{Name: "label", Table: OverlaysTable, Type: List, Arg: "STAR",
-		Help: "label this star (id or name; repeatable, a list in a plan)",
+		Help: "label this star: a name, designation or id (Betelgeuse, α Ori, HR 2061); STAR=TEXT labels it with TEXT (repeatable, a list in a plan)",
 		Check: func(o *Options) error {
 			for _, s := range o.Label {
 				if strings.TrimSpace(s) == "" {

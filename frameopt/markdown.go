@@ -12,6 +12,7 @@ var Elsewhere = []struct{ Flag, Plan string }{
 	{"catalog", "catalogue.path"},
 	{"catalog-format", "catalogue.format"},
 	{"column", "catalogue.columns"},
+	{"names", "catalogue.names"},
 	{"epoch", "— (proper motions: still only)"},
 	{"speed", "[start] speed and the [[leg]] tables"},
 	{"gamma", "[[leg]] gamma_cap and accelerations"},

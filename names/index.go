@@ -500,5 +500,21 @@ func (x *Index) LabelByID(id int64, name string) string {
 	if i, ok := x.idRow[id]; ok {
 		return x.Label(i)
 	}
+	if x.table != nil {
+		// A star of a streamed catalogue, which the index holds only in
+		// part: the table's HR or HIP cross-identification.
+		switch x.stars.Format {
+		case catalog.FormatBSC5.String(), catalog.FormatHipparcos.String(), catalog.FormatHipparcos2007.String():
+			for _, e := range x.table.Entries {
+				n := e.HIP
+				if x.stars.Format == catalog.FormatBSC5.String() {
+					n = e.HR
+				}
+				if n > 0 && int64(n) == id {
+					return e.Name
+				}
+			}
+		}
+	}
 	return LabelText(x.stars.Format, id, name)
 }

@@ -27,9 +27,25 @@ type LabelOptions struct {
 	// Frame.Stats.Brightest: render with Options.Brightest ≥ N to have
 	// that many listed.
 	Brightest int
-	// Stars are catalogue ids or names (anything catalog.Stars.Find
-	// accepts), labelled at their apparent positions.
+	// Stars are catalogue ids or names (anything Find accepts), labelled
+	// at their apparent positions.
 	Stars []string
+	// Find resolves Stars to catalogue rows; nil means catalog.Stars.Find.
+	// The names package's Index.Find also reads proper names and
+	// designations.
+	Find func(query string) (int, error)
+	// Text gives a star's label from its catalogue id and name; nil means
+	// the name, else catalog.DisplayID. The names package's
+	// Index.LabelByID writes readable labels (proper name, α Ori, …).
+	Text func(id int64, name string) string
+}
+
+// text is the label of a star under o.
+func (o LabelOptions) text(id int64, name string) string {
+	if o.Text != nil {
+		return o.Text(id, name)
+	}
+	return starText(name, id)
 }
 
 // ResolveLabels returns the catalogue rows of ids, in order, or an error
@@ -129,9 +145,23 @@ func labelTargets(f *render.Frame, stars *catalog.Stars, opt LabelOptions) ([]la
 	if opt.Brightest < 0 {
 		return nil, fmt.Errorf("%w: Brightest %d, want ≥ 0", ErrLabel, opt.Brightest)
 	}
-	rows, err := ResolveLabels(stars, opt.Stars)
-	if err != nil {
-		return nil, err
+	var rows []int
+	if opt.Find == nil {
+		var err error
+		if rows, err = ResolveLabels(stars, opt.Stars); err != nil {
+			return nil, err
+		}
+	} else {
+		for _, q := range opt.Stars {
+			i, err := opt.Find(q)
+			if err != nil {
+				return nil, fmt.Errorf("%w: %w", ErrLabel, err)
+			}
+			if stars == nil || i < 0 || i >= stars.Len() {
+				return nil, fmt.Errorf("%w: %q: row %d out of range", ErrLabel, q, i)
+			}
+			rows = append(rows, i)
+		}
 	}
 	// Keyed by catalogue id: the named stars may come from a catalogue
 	// holding only them (a streamed render), whose rows are not the
@@ -148,7 +178,7 @@ func labelTargets(f *render.Frame, stars *catalog.Stars, opt LabelOptions) ([]la
 			continue
 		}
 		seen[s.ID] = true
-		out = append(out, labelTarget{starText(s.Name, s.ID), s.X, s.Y})
+		out = append(out, labelTarget{opt.text(s.ID, s.Name), s.X, s.Y})
 	}
 	if len(rows) == 0 {
 		return out, nil
@@ -171,7 +201,7 @@ func labelTargets(f *render.Frame, stars *catalog.Stars, opt LabelOptions) ([]la
 		if !ok || !inside(x, y) || math.IsNaN(x) {
 			continue
 		}
-		out = append(out, labelTarget{starText(st.Name, st.ID), x, y})
+		out = append(out, labelTarget{opt.text(st.ID, st.Name), x, y})
 	}
 	return out, nil
 }

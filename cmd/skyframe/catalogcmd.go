@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 	"time"
 
@@ -17,19 +18,22 @@ import (
 	"golang.org/x/term"
 
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/render"
 )
 
 const catalogHelp = `Usage: skyframe catalog <inspect|pack|fetch> [options] ...
 
   inspect FILE          report the format, rows read and skipped (with reasons and
-                        first line numbers), and the magnitude, colour and
-                        distance ranges
+                        first line numbers), the magnitude, colour and
+                        distance ranges, and the named stars; FILE builtin
+                        reports the built-in synthetic sky
   pack FILE -o OUT      convert any catalogue into skyframe's compact, versioned,
                         checksummed binary cache (loads fast; use it with --catalog);
                         --to parquet writes Apache Parquet instead
-  fetch NAME            download a catalogue from the CDS archive into the user
-                        cache directory, verify its structure, print its path.
+  fetch NAME            download a catalogue from the CDS archive (or, for
+                        names, the IAU Catalog of Star Names from the IAU WGSN)
+                        into the user cache directory, verify it, print its path.
                         NAME: ` + "%s" + `
 
 Examples:
@@ -39,12 +43,13 @@ Examples:
 `
 
 func sourceNames() string {
-	var names []string
+	var list []string
 	for k := range catalog.KnownSources {
-		names = append(names, k)
+		list = append(list, k)
 	}
-	sort.Strings(names)
-	return strings.Join(names, ", ")
+	list = append(list, "names")
+	sort.Strings(list)
+	return strings.Join(list, ", ")
 }
 
 func runCatalog(e *env, args []string) error {
@@ -100,6 +105,8 @@ func catalogInspect(e *env, args []string) error {
 	fs := catalogFlagSet(e, "inspect", "Usage: skyframe catalog inspect [options] FILE\n\nOptions:\n")
 	format := fs.String("catalog-format", "", "format, overriding detection")
 	cols := fs.StringSlice("column", nil, "generic CSV/TSV column map, FIELD=NAME (fields: "+strings.Join(columnFields, ", ")+")")
+	var namesPath string
+	registerNames(fs, &namesPath)
 	if err := fs.Parse(args); err != nil {
 		if err == pflag.ErrHelp {
 			return errHelp
@@ -107,19 +114,66 @@ func catalogInspect(e *env, args []string) error {
 		return usageError{err}
 	}
 	if fs.NArg() != 1 {
-		return usagef("catalog inspect: want exactly one FILE")
+		return usagef("catalog inspect: want exactly one FILE (or builtin)")
 	}
-	opt, err := readOptions(*format, *cols)
+	table, err := loadNames(namesPath)
 	if err != nil {
 		return err
 	}
 	start := time.Now()
-	stars, rep, err := catalog.OpenContext(e.ctx, fs.Arg(0), opt)
-	if err != nil {
-		return usageError{err}
+	var stars *catalog.Stars
+	var rep *catalog.Report
+	if fs.Arg(0) == "builtin" {
+		if *format != "" || len(*cols) > 0 {
+			return usagef("catalog inspect builtin: --catalog-format and --column are for files")
+		}
+		stars = catalog.BuiltIn()
+		rep = catalog.Summary(stars)
+	} else {
+		opt, err := readOptions(*format, *cols)
+		if err != nil {
+			return err
+		}
+		if stars, rep, err = catalog.OpenContext(e.ctx, fs.Arg(0), opt); err != nil {
+			return usageError{err}
+		}
 	}
 	printReport(e.stdout, stars, rep, time.Since(start))
+	printNamed(e.stdout, names.NewIndex(stars, table))
 	return nil
+}
+
+// printNamed lists the stars with a proper name: all of them in the
+// built-in sky (its invented names), a count for a real catalogue.
+func printNamed(w io.Writer, x *names.Index) {
+	s := x.Stars()
+	named := x.Named()
+	if s.Format != catalog.SyntheticFormat {
+		if x.Table() == nil {
+			fmt.Fprintln(w, "named stars: no names table (--names FILE, or `skyframe catalog fetch names`)")
+			return
+		}
+		fmt.Fprintf(w, "named stars: %d of the %d in %s\n", len(named), len(x.Table().Entries), x.Table().Source)
+		fmt.Fprintf(w, "             %s\n", names.Credit)
+		return
+	}
+	var nearby []int
+	for i := range s.Names {
+		if i >= 0 && i < s.Len() {
+			nearby = append(nearby, i)
+		}
+	}
+	sort.Ints(nearby)
+	sort.SliceStable(named, func(a, b int) bool { return s.Vmag[named[a]] < s.Vmag[named[b]] })
+	fmt.Fprintf(w, "named stars: %d invented nearby stars and the %d brightest sampled stars (invented names; no real star is meant)\n", len(nearby), len(named))
+	for _, i := range append(nearby, named...) {
+		st := s.At(i)
+		dist := "—"
+		if !math.IsInf(st.Dist, 0) {
+			dist = strconv.FormatFloat(st.Dist, 'g', 4, 64) + " pc"
+		}
+		fmt.Fprintf(w, "  %-14s %-14s V = %5.2f  RA %7.3f°  Dec %+7.3f°  %s\n", x.Label(i), catalog.DisplayID(st.ID), st.Vmag, st.RA, st.Dec, dist)
+	}
 }
 
 func printReport(w io.Writer, s *catalog.Stars, r *catalog.Report, took time.Duration) {
@@ -128,7 +182,11 @@ func printReport(w io.Writer, s *catalog.Stars, r *catalog.Report, took time.Dur
 	if r.Compressed {
 		comp = " (gzip)"
 	}
-	fmt.Fprintf(w, "format:      %s%s\n", r.Format, comp)
+	format := r.Format.String()
+	if s != nil && s.Format == catalog.SyntheticFormat {
+		format = catalog.SyntheticFormat
+	}
+	fmt.Fprintf(w, "format:      %s%s\n", format, comp)
 	fmt.Fprintf(w, "lines:       %d\n", r.Lines)
 	fmt.Fprintf(w, "stars kept:  %d\n", r.Rows)
 	fmt.Fprintf(w, "rows skipped: %d\n", r.Skipped)
@@ -212,6 +270,9 @@ func catalogFetch(e *env, args []string) error {
 	}
 	if fs.NArg() != 1 {
 		return usagef("catalog fetch: want one NAME (%s)", sourceNames())
+	}
+	if fs.Arg(0) == "names" {
+		return fetchNames(e, *url, *out)
 	}
 	src, ok := catalog.KnownSources[fs.Arg(0)]
 	if !ok {
@@ -329,3 +390,29 @@ func checkWritable(flag, path string) error {
 
 var _ = bufio.NewReader
 var _ = math.Inf
+
+// fetchNames downloads the IAU Catalog of Star Names into the user cache
+// (or out), where --names finds it by default.
+func fetchNames(e *env, url, out string) error {
+	dst := out
+	if dst == "" {
+		dir, err := catalog.CacheDir()
+		if err != nil {
+			return err
+		}
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			return err
+		}
+		dst = filepath.Join(dir, names.Published.File)
+	}
+	if err := checkWritable("output", dst); err != nil {
+		return err
+	}
+	client := &http.Client{Timeout: 5 * time.Minute}
+	if err := names.Fetch(e.ctx, client, names.Published, url, dst); err != nil {
+		return err
+	}
+	fmt.Fprintln(e.stdout, dst)
+	fmt.Fprintln(e.stderr, names.Credit)
+	return nil
+}

@@ -216,8 +216,9 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 		RateHome: home, RateDest: dest, TravelledPc: fs.State.Travelled, RemainingPc: fs.State.Remaining,
 		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum.mean, RegionLuminance: lum.regions,
 	}
-	spec := &frameSpec{proj: proj, opt: frame.Options, tone: fr.Tone, depth: fr.Depth, lookDesc: fs.Look.Look, source: "skyframe flight"}
-	sc := &scene{stars: j.stars, observer: obs, heading: fs.State.Dir}
+	spec := &frameSpec{proj: proj, opt: frame.Options, tone: fr.Tone, depth: fr.Depth, lookDesc: fs.Look.Look, source: "skyframe flight",
+		credit: namesCredit(j.index, lay.Labels)}
+	sc := &scene{stars: j.stars, index: j.index, observer: obs, heading: fs.State.Dir}
 	ff := j.files(i)
 	if ff.png != "" {
 		meta := append(pngMeta(side, spec),

@@ -4,17 +4,17 @@ import (
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/camera"
-	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/flight"
 	"github.com/skyframe/skyframe/frameopt"
+	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/overlay"
 )
 
 // planLayers turns a plan's overlay options (checked with line numbers by
 // flight.ParsePlan) into render layers. The stars the plan names were
 // resolved by flight.Plan.Bind.
-func planLayers(plan *flight.Plan, stars *catalog.Stars) (layerSet, error) {
-	sc := &scene{stars: stars, observer: camera.Observer{Position: plan.Trajectory().Start().Pos}, heading: r3.Vec{X: 1}}
+func planLayers(plan *flight.Plan, index *names.Index) (layerSet, error) {
+	sc := &scene{stars: index.Stars(), index: index, observer: camera.Observer{Position: plan.Trajectory().Start().Pos}, heading: r3.Vec{X: 1}}
 	if s := plan.Trajectory().Start(); r3.Norm(s.Dir) > 0 {
 		sc.heading = r3.Unit(s.Dir)
 	}
@@ -33,7 +33,7 @@ func (j *flightJob) frameLayers(fs flight.FrameState, obs camera.Observer) layer
 	l := j.layers
 	tr := j.plan.Trajectory()
 	if md := j.plan.Frame.MarkDestination; md != "" {
-		sc := &scene{stars: j.stars, observer: obs, heading: fs.State.Dir}
+		sc := &scene{stars: j.stars, index: j.index, observer: obs, heading: fs.State.Dir}
 		if d, err := frameopt.ParseDirection(md, frameopt.PointDir); err == nil {
 			if u, err := d.CatalogueDir(obs, fs.State.Dir, sc.starFinder()); err == nil {
 				l.Markers.Destination = &u

@@ -13,6 +13,7 @@ import (
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/flight"
 	"github.com/skyframe/skyframe/frameopt"
+	"github.com/skyframe/skyframe/names"
 )
 
 const flightHelp = `Usage: skyframe flight PLAN.toml [options]
@@ -96,6 +97,7 @@ type flightJob struct {
 	plan    *flight.Plan
 	hash    string
 	stars   *catalog.Stars
+	index   *names.Index
 	outDir  string
 	frames  []int // the frames this invocation handles, ascending
 	shard   flight.Shard
@@ -163,10 +165,18 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 	if err != nil {
 		return nil, err
 	}
-	if err := plan.Bind(flight.StarsResolver(stars, stars.Find)); err != nil {
+	index, err := planNames(plan, base, stars)
+	if err != nil {
 		return nil, err
 	}
-	job := &flightJob{plan: plan, hash: plan.Hash(), stars: stars, workers: f.workers}
+	find := func(q string) (int, bool) {
+		i, err := index.Find(q)
+		return i, err == nil
+	}
+	if err := plan.Bind(flight.StarsResolver(stars, find)); err != nil {
+		return nil, err
+	}
+	job := &flightJob{plan: plan, hash: plan.Hash(), stars: stars, index: index, workers: f.workers}
 	job.outDir = plan.Output.Dir
 	if !filepath.IsAbs(job.outDir) {
 		job.outDir = filepath.Join(base, job.outDir)
@@ -200,7 +210,7 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 	if err := job.checkCamera(); err != nil {
 		return nil, err
 	}
-	if job.layers, err = planLayers(plan, stars); err != nil {
+	if job.layers, err = planLayers(plan, index); err != nil {
 		return nil, err
 	}
 	if !*plan.Output.PNG && !plan.Output.FITS {
@@ -218,6 +228,20 @@ func readPlanFile(ctx context.Context, path string) ([]byte, error) {
 		return nil, usagef("flight: %w", err)
 	}
 	return data, nil
+}
+
+// planNames reads the plan's catalogue.names (relative to the plan's
+// directory; see loadNames) and indexes stars with it.
+func planNames(plan *flight.Plan, base string, stars *catalog.Stars) (*names.Index, error) {
+	path := plan.Catalogue.Names
+	if path != "" && path != "none" && !filepath.IsAbs(path) {
+		path = filepath.Join(base, path)
+	}
+	table, err := loadNames(path)
+	if err != nil {
+		return nil, usagef("%s: catalogue.names: %v", plan.Name, err)
+	}
+	return names.NewIndex(stars, table), nil
 }
 
 // planStars opens the plan's catalogue (relative to the plan's directory)

@@ -42,7 +42,7 @@ func frameLayers(o *frameopt.Options, sc *scene, opt *render.Options) (layerSet,
 		v, err := d.CatalogueDir(sc.observer, sc.heading, sc.starFinder())
 		if err != nil {
 			if errors.Is(err, frameopt.ErrUnknownStar) {
-				return l, usagef("--mark-destination %q: want %s in %s", o.MarkDestination, frameopt.PointDir.Spellings(), sc.stars.Source)
+				return l, sc.starError("mark-destination", frameopt.PointDir.Spellings(), d.Star)
 			}
 			return l, usagef("--mark-destination: %v", err)
 		}
@@ -50,10 +50,25 @@ func frameLayers(o *frameopt.Options, sc *scene, opt *render.Options) (layerSet,
 		l.Markers.Destination = dest
 	}
 	l.Lattice = overlay.LatticeOptions{PerSide: o.Lattice, Spacing: o.LatticeStep, Origin: sc.observer.Position, Confirm: o.LatticeConfirm}
-	l.Labels = overlay.LabelOptions{Brightest: o.Labels, Stars: o.Label}
-	if _, err := overlay.ResolveLabels(sc.stars, o.Label); err != nil {
-		return l, usagef("--label: %v", err)
+	custom := map[int64]string{}
+	for _, v := range o.Label {
+		q, text := splitLabel(v)
+		i, err := findStar(sc.index, "label", "", q)
+		if err != nil {
+			return l, err
+		}
+		if text != "" {
+			custom[sc.stars.ID[i]] = text
+		}
 	}
+	x := sc.index
+	l.Labels = overlay.LabelOptions{Brightest: o.Labels, Stars: labelStars(o.Label), Find: x.Find,
+		Text: func(id int64, name string) string {
+			if t, ok := custom[id]; ok {
+				return t
+			}
+			return x.LabelByID(id, name)
+		}}
 	if opt != nil && o.Labels > 0 {
 		b := opt.Brightest
 		if b == 0 {
@@ -79,4 +94,14 @@ func frameLayers(o *frameopt.Options, sc *scene, opt *render.Options) (layerSet,
 		l.HUD = &v
 	}
 	return l, nil
+}
+
+// labelStars returns the star references of label values (STAR or
+// STAR=TEXT) without their custom texts.
+func labelStars(values []string) []string {
+	out := make([]string, len(values))
+	for k, v := range values {
+		out[k], _ = splitLabel(v)
+	}
+	return out
 }

@@ -11,6 +11,7 @@ import (
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/frameopt"
+	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 )
@@ -23,7 +24,7 @@ func layerScene(t *testing.T) *scene {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return &scene{stars: s, observer: camera.Observer{Boost: b}, heading: camera.FromRADec(10, 5)}
+	return &scene{stars: s, index: names.NewIndex(s, nil), observer: camera.Observer{Boost: b}, heading: camera.FromRADec(10, 5)}
 }
 
 // layerFlags parses frame-option flags and converts them to layers as

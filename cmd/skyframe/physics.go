@@ -11,6 +11,7 @@ import (
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/frameopt"
+	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/spectrum"
 )
 
@@ -27,6 +28,7 @@ type physicsFlags struct {
 	beaming       string
 	epoch         float64
 	columns       []string
+	names         string
 
 	// stream, when set, is the cache file the frame is rendered from in
 	// chunks; the scene's stars then hold only the rows refs name (see
@@ -52,6 +54,7 @@ func (p *physicsFlags) register(fs *pflag.FlagSet, defaultSpeed float64) {
 	}
 	fs.StringSliceVar(&p.columns, "column", nil, "generic CSV/TSV column map, FIELD=NAME, repeatable (fields: "+strings.Join(columnFields, ", ")+"; add ra-hours if RA is in hours)")
 	fs.Float64Var(&p.epoch, "epoch", 0, "propagate positions by proper motion to this Julian epoch (e.g. 2100); 0 keeps the catalogue epoch")
+	registerNames(fs, &p.names)
 }
 
 func formatNames() string {
@@ -72,6 +75,7 @@ func formatNames() string {
 // scene is the resolved physical state of one observation.
 type scene struct {
 	stars    *catalog.Stars
+	index    *names.Index // star lookup and label text over stars
 	observer camera.Observer
 	beaming  spectrum.Beaming
 	heading  r3.Vec // unit direction of motion (ICRS)
@@ -82,19 +86,22 @@ func (p *physicsFlags) resolve(ctx context.Context, fs *pflag.FlagSet) (*scene, 
 		return nil, err
 	}
 	var stars *catalog.Stars
-	var err error
+	table, err := loadNames(p.names)
+	if err != nil {
+		return nil, err
+	}
 	if p.stream != nil {
 		if p.epoch != 0 {
 			return nil, usagef("--epoch: %s is rendered from disk chunk by chunk (it is longer than one chunk of --memory), where proper motions are not propagated; raise --memory to load it", p.catalog)
 		}
-		stars, err = referencedStars(p.stream, p.refs)
+		stars, err = referencedStars(p.stream, p.refs, table)
 	} else {
 		stars, err = loadStars(ctx, p.catalog, p.catalogFormat, p.columns, p.epoch)
 	}
 	if err != nil {
 		return nil, err
 	}
-	sc := &scene{stars: stars}
+	sc := &scene{stars: stars, index: names.NewIndex(stars, table)}
 	beaming := p.beaming
 	if f := fs.Lookup("beaming"); f != nil {
 		beaming = f.Value.String()
@@ -102,11 +109,11 @@ func (p *physicsFlags) resolve(ctx context.Context, fs *pflag.FlagSet) (*scene, 
 	if sc.beaming, err = spectrum.ParseBeaming(beaming); err != nil {
 		return nil, usagef("--beaming: %v", err)
 	}
-	pos, err := resolvePosition(stars, "position", p.position)
+	pos, err := resolvePosition(sc.index, "position", p.position)
 	if err != nil {
 		return nil, err
 	}
-	sc.heading, err = resolveDirection(stars, "toward", p.toward, pos)
+	sc.heading, err = resolveDirection(sc.index, "toward", p.toward, pos)
 	if err != nil {
 		return nil, err
 	}
@@ -167,24 +174,25 @@ func loadStars(ctx context.Context, path, format string, columns []string, epoch
 	return stars, nil
 }
 
-// resolvePosition reads X,Y,Z in parsecs or a star reference.
-func resolvePosition(stars *catalog.Stars, flag, s string) (r3.Vec, error) {
+// resolvePosition reads X,Y,Z in parsecs or a star reference (names.Index.Find).
+func resolvePosition(x *names.Index, flag, s string) (r3.Vec, error) {
 	if v, err := parseFloats(flag, s, 3); err == nil {
 		return r3.Vec{X: v[0], Y: v[1], Z: v[2]}, nil
 	}
-	if i, ok := stars.Find(s); ok {
-		st := stars.At(i)
-		if math.IsInf(st.Dist, 0) {
-			return r3.Vec{}, usagef("--%s %q: that star has no known distance", flag, s)
-		}
-		return r3.Scale(st.Dist, r3.Vec{X: st.Dir[0], Y: st.Dir[1], Z: st.Dir[2]}), nil
+	i, err := findStar(x, flag, "X,Y,Z in parsecs", s)
+	if err != nil {
+		return r3.Vec{}, err
 	}
-	return r3.Vec{}, usagef("--%s %q: want X,Y,Z in parsecs or a star id or name in %s", flag, s, stars.Source)
+	st := x.Stars().At(i)
+	if math.IsInf(st.Dist, 0) {
+		return r3.Vec{}, usagef("--%s %q: that star (%s) has no known distance", flag, s, x.Label(i))
+	}
+	return r3.Scale(st.Dist, r3.Vec{X: st.Dir[0], Y: st.Dir[1], Z: st.Dir[2]}), nil
 }
 
 // resolveDirection reads the direction of motion: RA,DEC (or
 // catalogue:RA,DEC, the same direction) or a star reference (seen from pos).
-func resolveDirection(stars *catalog.Stars, flag, s string, pos r3.Vec) (r3.Vec, error) {
+func resolveDirection(x *names.Index, flag, s string, pos r3.Vec) (r3.Vec, error) {
 	if rest, ok := strings.CutPrefix(s, frameopt.CataloguePrefix); ok {
 		s = rest
 	}
@@ -193,17 +201,18 @@ func resolveDirection(stars *catalog.Stars, flag, s string, pos r3.Vec) (r3.Vec,
 	} else if _, ferr := parseFloats(flag, s, 2); ferr == nil {
 		return r3.Vec{}, err
 	}
-	if i, ok := stars.Find(s); ok {
-		st := stars.At(i)
-		u := r3.Vec{X: st.Dir[0], Y: st.Dir[1], Z: st.Dir[2]}
-		if math.IsInf(st.Dist, 0) {
-			return u, nil
-		}
-		d := r3.Sub(r3.Scale(st.Dist, u), pos)
-		if r3.Norm(d) == 0 {
-			return r3.Vec{}, usagef("--%s %q: the ship is at that star", flag, s)
-		}
-		return r3.Unit(d), nil
+	i, err := findStar(x, flag, "RA,DEC in degrees", s)
+	if err != nil {
+		return r3.Vec{}, err
 	}
-	return r3.Vec{}, usagef("--%s %q: want RA,DEC in degrees or a star id or name in %s", flag, s, stars.Source)
+	st := x.Stars().At(i)
+	u := r3.Vec{X: st.Dir[0], Y: st.Dir[1], Z: st.Dir[2]}
+	if math.IsInf(st.Dist, 0) {
+		return u, nil
+	}
+	d := r3.Sub(r3.Scale(st.Dist, u), pos)
+	if r3.Norm(d) == 0 {
+		return r3.Vec{}, usagef("--%s %q: the ship is at that star", flag, s)
+	}
+	return r3.Unit(d), nil
 }

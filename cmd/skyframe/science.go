@@ -14,6 +14,7 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"github.com/skyframe/skyframe/analysis"
+	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/spectrum"
 )
@@ -265,6 +266,7 @@ func runCensus(e *env, args []string) error {
 	fs.StringVar(&p.toward, "toward", defaultToward, "direction of motion as RA,DEC (ICRS degrees), or a star id or name")
 	fs.StringVar(&p.position, "position", "0,0,0", "ship position X,Y,Z in parsecs (ICRS axes, Sun at origin), or a star id or name")
 	fs.StringVar(&p.beaming, "beaming", "exact", "point-source beaming convention: exact (flux ∝ D²), d3, d4")
+	registerNames(fs, &p.names)
 	speeds := fs.String("speeds", defaultCensusSpeeds, "ship speeds β, comma-separated, each 0 ≤ β < 1")
 	gammas := fs.String("gammas", "", "ship speeds as Lorentz factors γ ≥ 1 instead of --speeds")
 	from := fs.Float64("from", 0, "first speed β of an evenly spaced range (with --to, --steps)")
@@ -334,11 +336,16 @@ func runCensus(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	pos, err := resolvePosition(stars, "position", p.position)
+	table, err := loadNames(p.names)
 	if err != nil {
 		return err
 	}
-	heading, err := resolveDirection(stars, "toward", p.toward, pos)
+	index := names.NewIndex(stars, table)
+	pos, err := resolvePosition(index, "position", p.position)
+	if err != nil {
+		return err
+	}
+	heading, err := resolveDirection(index, "toward", p.toward, pos)
 	if err != nil {
 		return err
 	}

@@ -84,6 +84,7 @@ type frameSpec struct {
 	lookDesc string
 	source   string // command recorded in the PNG "Source" chunk; empty: "skyframe still"
 	layers   layerSet
+	credit   string // attribution of the star names in the labels; empty: none shown
 }
 
 // checkFrameFlags checks every frame option given on the command line
@@ -96,11 +97,12 @@ func checkFrameFlags(fs *pflag.FlagSet, o *frameopt.Options) error {
 	return nil
 }
 
-// starFinder looks stars up in the scene's catalogue.
+// starFinder looks stars up in the scene's catalogue through its names
+// index (proper names, designations, catalogue numbers).
 func (sc *scene) starFinder() frameopt.StarFinder {
 	return func(name string) (r3.Vec, float64, bool) {
-		i, ok := sc.stars.Find(name)
-		if !ok {
+		i, err := sc.index.Find(name)
+		if err != nil {
 			return r3.Vec{}, 0, false
 		}
 		st := sc.stars.At(i)
@@ -149,6 +151,16 @@ func (f *stillFlags) build(sc *scene) (*frameSpec, error) {
 	return spec, nil
 }
 
+// starError explains why option flag's star reference q found no star
+// (names.Index.Find's message: candidates or close matches), saying what
+// else the option takes.
+func (sc *scene) starError(flag, other, q string) error {
+	if _, err := findStar(sc.index, flag, other, q); err != nil {
+		return err
+	}
+	return usagef("--%s %q: want %s in %s", flag, q, other, sc.stars.Source)
+}
+
 // lookDirection resolves --look into an apparent (ship-frame) direction and
 // its description.
 func lookDirection(sc *scene, s string) (r3.Vec, string, error) {
@@ -162,26 +174,19 @@ func lookDirection(sc *scene, s string) (r3.Vec, string, error) {
 	n, err := d.Resolve(sc.observer, sc.heading, sc.starFinder())
 	switch {
 	case errors.Is(err, frameopt.ErrUnknownStar):
-		return r3.Vec{}, "", usagef("--look %q: want %s in %s", s, frameopt.AnyDir.Spellings(), sc.stars.Source)
+		return r3.Vec{}, "", sc.starError("look", frameopt.AnyDir.Spellings(), d.Star)
 	case err != nil:
 		return r3.Vec{}, "", usagef("--look: %v", err)
 	}
 	desc := strings.ToLower(strings.TrimSpace(s))
 	if d.Kind == frameopt.Star {
-		i, _ := sc.stars.Find(d.Star)
-		desc = starLabel(sc.stars, i)
+		if i, err := sc.index.Find(d.Star); err == nil {
+			desc = sc.index.Label(i)
+		}
 	} else if d.Kind == frameopt.Apparent || d.Kind == frameopt.Catalogue {
 		desc = strings.TrimSpace(s)
 	}
 	return n, desc, nil
-}
-
-func starLabel(s *catalog.Stars, i int) string {
-	st := s.At(i)
-	if st.Name != "" {
-		return st.Name
-	}
-	return catalog.DisplayID(st.ID)
 }
 
 func runStill(e *env, args []string) error {
@@ -232,7 +237,7 @@ func runStill(e *env, args []string) error {
 	}
 	if p.stream != nil {
 		defer p.stream.Close()
-		p.refs = append([]string{f.frame.Look, p.toward, p.position, f.frame.MarkDestination}, f.frame.Label...)
+		p.refs = append([]string{f.frame.Look, p.toward, p.position, f.frame.MarkDestination}, labelStars(f.frame.Label)...)
 	}
 	sc, err := p.resolve(e.ctx, fs)
 	if err != nil {
@@ -254,6 +259,7 @@ func runStill(e *env, args []string) error {
 	if err := checkMemory(need, budget, "reduce --size, --grid-step or --lattice"); err != nil {
 		return err
 	}
+	spec.credit = namesCredit(sc.index, spec.layers.Labels)
 	start := time.Now()
 	var frame *render.Frame
 	if p.stream != nil {
@@ -434,6 +440,9 @@ func pngMeta(s render.Sidecar, spec *frameSpec) []render.KV {
 	}
 	if s.Heading != nil {
 		m["heading"] = fmt.Sprintf("%+v", *s.Heading)
+	}
+	if spec.credit != "" {
+		m["star_names"] = spec.credit
 	}
 	return render.SortedKV(m)
 }

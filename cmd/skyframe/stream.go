@@ -11,6 +11,7 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/render"
 )
 
@@ -53,9 +54,10 @@ func openStream(p *physicsFlags, kind camera.Kind, w, h int, budget int64) (*cat
 // name (--look, --toward, --position, --mark-destination, --label) and
 // returns them as a small catalogue, in catalogue order and with their
 // columns copied exactly, so that every reference resolves as it would
-// against the whole catalogue (catalog.Stars.Find takes the first match in
-// catalogue order). cr is rewound for the render.
-func referencedStars(cr *catalog.ChunkReader, refs []string) (*catalog.Stars, error) {
+// against the whole catalogue, each chunk looked up through a names.Index
+// with the names table (a name is taken from the first chunk where it
+// fits one star). cr is rewound for the render.
+func referencedStars(cr *catalog.ChunkReader, refs []string, table *names.Table) (*catalog.Stars, error) {
 	pending := map[string]bool{}
 	for _, r := range refs {
 		if isStarRef(r) {
@@ -78,8 +80,12 @@ func referencedStars(cr *catalog.ChunkReader, refs []string) (*catalog.Stars, er
 			out.Source, out.Format, out.Epoch = ch.Source, ch.Format, ch.Epoch
 			first = false
 		}
+		var x *names.Index
+		if len(pending) > 0 {
+			x = names.NewIndex(ch, table)
+		}
 		for q := range pending {
-			if i, ok := ch.Find(q); ok {
+			if i, err := x.Find(q); err == nil {
 				delete(pending, q)
 				if !containsInt(rows, base+i) {
 					rows = append(rows, base+i)
