@@ -1,0 +1,186 @@
+package render
+
+import (
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/spatial/r3"
+
+	"github.com/skyframe/skyframe/spectrum"
+)
+
+// BrighteningV returns ΔV = V′ − V, the change of a star's V magnitude when
+// a blackbody of temperature T (K) is seen with Doppler factor D under beam:
+// the renderer's photometry for one star at its rest-frame distance,
+//
+//	ΔV = −2.5 log₁₀( WScale(D) · F_V(D·T)/F_V(T) ),
+//
+// F_V the V-band flux per unit dilution (spectrum.Lookup's LnV). Negative
+// values are brightenings: about −4.2 mag at 3000 K and D ≈ 4.4, while very
+// hot stars fade toward +2.5 log₁₀ D (exact beaming). NaN for T or D not
+// positive and finite.
+func BrighteningV(T, D float64, beam spectrum.Beaming) float64 {
+	if !(T > 0 && D > 0) || math.IsInf(T, 0) || math.IsInf(D, 0) {
+		return math.NaN()
+	}
+	lnT, lnD := math.Log(T), math.Log(D)
+	s0 := spectrum.Lookup(lnT)
+	s1 := spectrum.Lookup(lnT + lnD)
+	beamExp := float64(beam.FluxExponent() - 4)
+	return -lnToMag * (beamExp*lnD + s1.LnV - s0.LnV)
+}
+
+// Depth is the completeness bound of a frame: the faintest catalogue V whose
+// star can reach the frame's limit somewhere in view.
+type Depth struct {
+	// Needed is the faintest catalogue V (seen from the Sun) a star may
+	// have and still be drawn: Limit − DeltaV.
+	Needed float64
+	// DeltaV is the most negative V′ − V over the temperatures and Doppler
+	// factors in view, at temperature T and Doppler factor D.
+	DeltaV, T, D float64
+	// DMin and DMax are the smallest and largest Doppler factors in view.
+	DMin, DMax float64
+}
+
+// DopplerRange returns the smallest and largest Doppler factors of light
+// reaching the frame opt describes: D(n′) = 1/(γ(1 − β cos θ′)) for the
+// apparent directions n′ of its pixels, cos θ′ = n′·b̂. The extremes are the
+// direction of motion and its opposite when they are in view, else found on
+// a grid of 257 × 257 pixel positions (borders included), refined on a
+// 33 × 33 grid around each, and widened by the fine grid's step, so the
+// range contains the exact one.
+func DopplerRange(opt Options) (dmin, dmax float64, err error) {
+	p := opt.Projection
+	if err := p.Validate(); err != nil {
+		return 0, 0, err
+	}
+	b := opt.Observer.Boost
+	if b.Beta() == 0 {
+		return 1, 1, nil
+	}
+	inv := b.Inverse()
+	dir := b.Dir()
+	// cos θ′ extremes.
+	cmin, cmax := 2.0, -2.0
+	inView := func(v r3.Vec) bool {
+		x, y, ok := p.Forward(v)
+		return ok && x >= 0 && y >= 0 && x <= float64(p.Width) && y <= float64(p.Height)
+	}
+	if inView(dir) {
+		cmax = 1
+	}
+	if inView(r3.Scale(-1, dir)) {
+		cmin = -1
+	}
+	// A grid of pixel positions, then a finer one around each extreme.
+	const n = 256
+	sx, sy := float64(p.Width)/n, float64(p.Height)/n
+	var minAt, maxAt [2]float64
+	scan := func(x0, y0, dx, dy float64, m int) {
+		for j := 0; j <= m; j++ {
+			for i := 0; i <= m; i++ {
+				x := math.Max(0, math.Min(float64(p.Width), x0+float64(i)*dx))
+				y := math.Max(0, math.Min(float64(p.Height), y0+float64(j)*dy))
+				v, ok := p.Inverse(x, y)
+				if !ok {
+					continue
+				}
+				c := r3.Dot(v, dir)
+				if c < cmin {
+					cmin, minAt = c, [2]float64{x, y}
+				}
+				if c > cmax {
+					cmax, maxAt = c, [2]float64{x, y}
+				}
+			}
+		}
+	}
+	scan(0, 0, sx, sy, n)
+	if cmin > cmax {
+		return 0, 0, fmt.Errorf("render: no pixel of the frame has a direction")
+	}
+	const m = 32
+	if cmax < 1 {
+		scan(maxAt[0]-sx, maxAt[1]-sy, 2*sx/m, 2*sy/m, m)
+	}
+	if cmin > -1 {
+		scan(minAt[0]-sx, minAt[1]-sy, 2*sx/m, 2*sy/m, m)
+	}
+	// Widen by twice the angle of one fine step's diagonal at the centre's
+	// pixel scale, which covers the projections' distortion at that scale.
+	step := 2 * math.Hypot(2*sx/m, 2*sy/m) * p.PixelScale() * math.Pi / 180
+	thMin := math.Max(0, math.Acos(math.Min(1, cmax))-step)
+	thMax := math.Min(math.Pi, math.Acos(math.Max(-1, cmin))+step)
+	dmax = 1 / inv.Doppler(unitAt(dir, thMin))
+	dmin = 1 / inv.Doppler(unitAt(dir, thMax))
+	return dmin, dmax, nil
+}
+
+// unitAt returns a unit vector at angle th from the unit vector d.
+func unitAt(d r3.Vec, th float64) r3.Vec {
+	// Any vector perpendicular to d.
+	a := r3.Vec{X: 1}
+	if math.Abs(d.X) > 0.9 {
+		a = r3.Vec{Y: 1}
+	}
+	p := r3.Unit(r3.Cross(d, a))
+	s, c := math.Sincos(th)
+	return r3.Add(r3.Scale(c, d), r3.Scale(s, p))
+}
+
+// MaxBrightening returns the most negative BrighteningV over temperatures
+// in [tmin, tmax] and Doppler factors in [dmin, dmax], and where it is: a
+// 65 × 65 grid in ln T and ln D, refined twice around its best point.
+// The extreme lies at a corner for most ranges (coolest star, largest D) but
+// not always (hot stars brighten most at an intermediate D), hence the grid.
+func MaxBrightening(tmin, tmax, dmin, dmax float64, beam spectrum.Beaming) (dv, T, D float64) {
+	lt0, lt1 := math.Log(tmin), math.Log(tmax)
+	ld0, ld1 := math.Log(dmin), math.Log(dmax)
+	dv = math.Inf(1)
+	const n = 64
+	bt, bd := lt0, ld0
+	for level := 0; level < 3; level++ {
+		for i := 0; i <= n; i++ {
+			lt := lt0 + (lt1-lt0)*float64(i)/n
+			for j := 0; j <= n; j++ {
+				ld := ld0 + (ld1-ld0)*float64(j)/n
+				if v := BrighteningV(math.Exp(lt), math.Exp(ld), beam); v < dv {
+					dv, T, D, bt, bd = v, math.Exp(lt), math.Exp(ld), lt, ld
+				}
+			}
+		}
+		// Refine within one cell of the best point.
+		ht, hd := (lt1-lt0)/n, (ld1-ld0)/n
+		lt0, lt1 = math.Max(math.Log(tmin), bt-ht), math.Min(math.Log(tmax), bt+ht)
+		ld0, ld1 = math.Max(math.Log(dmin), bd-hd), math.Min(math.Log(dmax), bd+hd)
+	}
+	return dv, T, D
+}
+
+// NeededDepth returns the completeness bound of the frame opt describes for
+// a catalogue whose temperatures span [tmin, tmax] K: the faintest catalogue
+// V a star may have and still reach opt.Limit (DefaultLimitOffset fainter
+// than Exposure when Limit is zero) somewhere in view, from the largest
+// V-band brightening over those temperatures and the Doppler factors in
+// view (DopplerRange). Stars are compared at their rest-frame distance from
+// the Sun: a ship far from the Sun brightens stars it approaches, which the
+// bound does not count.
+func NeededDepth(opt Options, tmin, tmax float64) (Depth, error) {
+	if !(tmin > 0 && tmax >= tmin) || math.IsInf(tmax, 0) {
+		return Depth{}, fmt.Errorf("render: temperature range [%v, %v] K: want 0 < min ≤ max, finite", tmin, tmax)
+	}
+	lim := opt.Limit
+	if lim == 0 {
+		lim = opt.Exposure + DefaultLimitOffset
+	}
+	if math.IsNaN(lim) {
+		return Depth{}, ErrLimit
+	}
+	dmin, dmax, err := DopplerRange(opt)
+	if err != nil {
+		return Depth{}, err
+	}
+	dv, T, D := MaxBrightening(tmin, tmax, dmin, dmax, opt.Beaming)
+	return Depth{Needed: lim - dv, DeltaV: dv, T: T, D: D, DMin: dmin, DMax: dmax}, nil
+}
