@@ -57,4 +57,3 @@ func EstimateDepth(s *Stars) Depth {
 	d.V = lo + float64(best)*w
 	return d
 }
-
