@@ -536,9 +536,22 @@ type FITSMeta struct {
 	// only written when the caller supplies it: the library never reads the
 	// clock, so files are reproducible.
 	Date string
-	// Unit is the pixel value unit BUNIT; empty means "relative": linear
-	// sRGB where 1 is full scale at the exposure.
+	// Unit is the pixel value unit BUNIT. Empty writes BUNIT = '', the
+	// FITS and astropy spelling of a dimensionless value: skyframe's data
+	// are linear sRGB where 1 is full scale at the exposure, and
+	// ScalePerLux converts them to illuminance.
 	Unit string
+	// ScalePerLux is the data value per lux of illuminance at the observer
+	// (the frame's photometric scale, the sidecar's scale_per_lux), written
+	// as LUXSCALE when positive: a pixel's value / LUXSCALE is the
+	// illuminance in lux that the light falling in that pixel gives (for
+	// the G plane and a white source; R, G and B are linear sRGB).
+	ScalePerLux float64
+	// White names the white point the colours are adapted to (WHITEPT).
+	White string
+	// Layers lists the linear contributions summed in the data, e.g.
+	// "stars", "cmb", "unresolved" (LAYERS, comma-separated).
+	Layers []string
 	// Beta and Gamma are the ship's speed v/c and Lorentz factor, written as
 	// BETA and GAMMA when Gamma ≥ 1.
 	Beta, Gamma float64
@@ -587,11 +600,18 @@ func (m FITSMeta) Cards() ([]Card, error) {
 		}
 		c = append(c, Card{"DATE", m.Date, "file creation date (UTC)"})
 	}
-	unit := m.Unit
-	if unit == "" {
-		unit = "relative"
+	if m.Unit == "" {
+		c = append(c, Card{"BUNIT", "", "dimensionless: linear sRGB, 1 = full scale"})
+	} else {
+		c = append(c, Card{"BUNIT", m.Unit, "linear sRGB"})
 	}
-	c = append(c, Card{"BUNIT", unit, "linear sRGB, 1 = full scale at EXPOSURE"})
+	if m.ScalePerLux > 0 {
+		c = append(c, Card{"LUXSCALE", m.ScalePerLux, "[1/lx] value per lux: lux = value / LUXSCALE"})
+	}
+	str("WHITEPT", m.White, "white point the sRGB is adapted to")
+	if len(m.Layers) > 0 {
+		c = append(c, Card{"LAYERS", strings.Join(m.Layers, ","), "linear contributions summed in the data"})
+	}
 	if m.Gamma >= 1 {
 		c = append(c,
 			Card{"BETA", m.Beta, "ship speed v/c"},

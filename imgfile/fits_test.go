@@ -247,7 +247,7 @@ func TestFITSMetaCards(t *testing.T) {
 		Beta: 0.9, Gamma: 2.294157338705618, MotionRA: 279.23, MotionDec: 38.78,
 		Position: [3]float64{1, -2, 3}, Exposure: 2, Limit: 12, FWHM: 1.5,
 		Beaming: "exact", Projection: "fisheye", FOV: 180, Tilt: 30,
-		Catalog: "BSC5", Stars: 9000,
+		Catalog: "BSC5", Stars: 9000, ScalePerLux: 123456.75, White: "d65", Layers: []string{"stars", "cmb"},
 	}
 	cards, err := m.Cards()
 	if err != nil {
@@ -264,7 +264,7 @@ func TestFITSMetaCards(t *testing.T) {
 	for key, want := range map[string]float64{
 		"BETA": 0.9, "GAMMA": 2.294157338705618, "VELRA": 279.23, "VELDEC": 38.78,
 		"OBSX": 1, "OBSY": -2, "OBSZ": 3, "EXPOSURE": 2, "MAGLIM": 12, "PSFFWHM": 1.5,
-		"FOV": 180, "TILT": 30, "NSTARS": 9000,
+		"FOV": 180, "TILT": 30, "NSTARS": 9000, "LUXSCALE": 123456.75,
 	} {
 		if have, err := h.Float(key); err != nil || have != want {
 			t.Errorf("%s: have %v (%v), want %v", key, have, err, want)
@@ -272,7 +272,8 @@ func TestFITSMetaCards(t *testing.T) {
 	}
 	for key, want := range map[string]string{
 		"OBJECT": "Vega", "CREATOR": "skyframe test", "DATE": "2026-12-01T10:00:00.5",
-		"BUNIT": "relative", "BEAMING": "exact", "PROJ": "fisheye", "CATALOG": "BSC5",
+		"BUNIT": "", "BEAMING": "exact", "PROJ": "fisheye", "CATALOG": "BSC5",
+		"WHITEPT": "d65", "LAYERS": "stars,cmb",
 	} {
 		if have, err := h.String(key); err != nil || have != want {
 			t.Errorf("%s: have %q (%v), want %q", key, have, err, want)

@@ -1,5 +1,10 @@
 package render
 
+import (
+	"fmt"
+	"slices"
+)
+
 // Layers select the optional linear layers of a frame. The zero value adds
 // nothing.
 //
@@ -33,4 +38,74 @@ func (l Layers) AddLinear(f *Frame) error {
 		return AddDiffuse(f, l.Unresolved, l.DiffuseOptions)
 	}
 	return nil
+}
+
+// Names of the linear contributions, as recorded in file metadata (FITS
+// LAYERS, PNG text, sidecar) and used as OpenEXR layer prefixes.
+const (
+	LayerStars      = "stars"
+	LayerCMB        = "cmb"
+	LayerUnresolved = "unresolved"
+)
+
+// Names returns the linear contributions a frame rendered with l holds, in
+// the order they are added: the stars, then the CMB and the unresolved
+// starlight when selected.
+func (l Layers) Names() []string {
+	n := []string{LayerStars}
+	if l.CMB {
+		n = append(n, LayerCMB)
+	}
+	if l.Unresolved != nil {
+		n = append(n, LayerUnresolved)
+	}
+	return n
+}
+
+// Contribution is one linear contribution to a frame kept as its own
+// buffer: Pix is laid out like Buffer.Pix (W×H interleaved R, G, B).
+type Contribution struct {
+	Name string
+	Pix  []float32
+}
+
+// AddLinearKept does what AddLinear does and also returns every
+// contribution as its own buffer, in Names order: the stars (a copy of the
+// buffer before the layers are added) and each layer. The frame ends
+// bit-identical to AddLinear's: each layer is computed into a black buffer
+// (where 0 + v is exact) and then added, the same float32 additions in the
+// same order. It costs one extra buffer per contribution.
+func (l Layers) AddLinearKept(f *Frame) ([]Contribution, error) {
+	if f == nil {
+		return nil, fmt.Errorf("%w: nil frame", ErrCMB)
+	}
+	out := []Contribution{{Name: LayerStars, Pix: slices.Clone(f.Pix)}}
+	layer := func() *Frame {
+		g := *f
+		g.Buffer = Buffer{W: f.W, H: f.H, Pix: make([]float32, len(f.Pix))}
+		return &g
+	}
+	if l.CMB {
+		g := layer()
+		if err := AddCMB(g, l.CMBOptions); err != nil {
+			return nil, err
+		}
+		if err := f.Buffer.Add(&g.Buffer); err != nil {
+			return nil, err
+		}
+		out = append(out, Contribution{Name: LayerCMB, Pix: g.Pix})
+	}
+	if l.Unresolved != nil {
+		g := layer()
+		opt := l.DiffuseOptions
+		opt.Into = &g.Buffer
+		if err := AddDiffuse(f, l.Unresolved, opt); err != nil {
+			return nil, err
+		}
+		if err := f.Buffer.Add(&g.Buffer); err != nil {
+			return nil, err
+		}
+		out = append(out, Contribution{Name: LayerUnresolved, Pix: g.Pix})
+	}
+	return out, nil
 }

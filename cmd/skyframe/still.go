@@ -375,6 +375,7 @@ func fitsCards(frame *render.Frame, sc *scene, spec *frameSpec) ([]render.Card, 
 		Position: [3]float64{pos.X, pos.Y, pos.Z}, Exposure: frame.Options.Exposure, Limit: limit,
 		FWHM: frame.Options.FWHM, Beaming: sc.beaming.String(), Projection: spec.proj.Kind.String(),
 		FOV: spec.proj.FieldOfView(), Tilt: spec.proj.Tilt, Catalog: sc.stars.Source, Stars: frame.Stats.Drawn,
+		ScalePerLux: frame.Scale, White: frame.Options.Color.White.String(), Layers: spec.layers.Layers.Names(),
 	}
 	cards, err := meta.Cards()
 	if err != nil {
