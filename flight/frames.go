@@ -126,7 +126,7 @@ func (p *Plan) Hash() string {
 
 // DryRunColumns are the columns WriteDryRunCSV writes, in order.
 var DryRunColumns = []string{"frame", "tau_yr", "t_yr", "beta", "gamma", "x_pc", "y_pc", "z_pc",
-	"doppler_ahead", "doppler_behind", "rate_home", "rate_dest"}
+	"doppler_ahead", "doppler_behind", "rate_home", "rate_dest", "camera_deg_s", "centre_px_frame"}
 
 // WriteDryRunCSV writes one CSV row per frame of frames (clipped to the
 // plan): frame index, ship and catalogue time (yr), β, γ, position (pc),
@@ -147,11 +147,25 @@ func WriteDryRunCSV(w io.Writer, p *Plan, frames Range) error {
 	lo, hi := frames.Clip(p.Frames())
 	f := func(v float64) string { return strconv.FormatFloat(v, 'g', 12, 64) }
 	row := make([]string, len(DryRunColumns))
+	var prev FrameState
+	if lo > 0 {
+		var err error
+		if prev, err = p.FrameState(lo - 1); err != nil {
+			return err
+		}
+	}
 	for i := lo; i < hi; i++ {
 		fs, err := p.FrameState(i)
 		if err != nil {
 			return err
 		}
+		var m Motion
+		if i > 0 {
+			if m, err = p.motion(prev, fs); err != nil {
+				return err
+			}
+		}
+		prev = fs
 		s := fs.State
 		toHome, toDest := r3.Sub(home, s.Pos), r3.Sub(dest, s.Pos)
 		rateHome := s.DopplerBehind()
@@ -163,7 +177,8 @@ func WriteDryRunCSV(w io.Writer, p *Plan, frames Range) error {
 			rateDest = s.Doppler(toDest)
 		}
 		row = append(row[:0], strconv.Itoa(i), f(s.Tau), f(s.T), f(s.Beta), f(s.Gamma),
-			f(s.Pos.X), f(s.Pos.Y), f(s.Pos.Z), f(s.DopplerAhead()), f(s.DopplerBehind()), f(rateHome), f(rateDest))
+			f(s.Pos.X), f(s.Pos.Y), f(s.Pos.Z), f(s.DopplerAhead()), f(s.DopplerBehind()), f(rateHome), f(rateDest),
+			f(m.RateDegS), f(m.ScreenPx))
 		if err := cw.Write(row); err != nil {
 			return fmt.Errorf("flight: dry run: %w", err)
 		}

@@ -325,8 +325,9 @@ seconds = 1
 	if err != nil {
 		t.Fatal(err)
 	}
-	// The column list of the flight command's specification (tracker issue 5).
-	wantHeader := "frame,tau_yr,t_yr,beta,gamma,x_pc,y_pc,z_pc,doppler_ahead,doppler_behind,rate_home,rate_dest"
+	// The column list of the flight command's specification (tracker issue 5)
+	// and the camera motion columns (issue 15).
+	wantHeader := "frame,tau_yr,t_yr,beta,gamma,x_pc,y_pc,z_pc,doppler_ahead,doppler_behind,rate_home,rate_dest,camera_deg_s,centre_px_frame"
 	if h := strings.Join(recs[0], ","); h != wantHeader {
 		t.Fatalf("header %q, want %q", h, wantHeader)
 	}
@@ -358,6 +359,8 @@ seconds = 1
 			{9, 0.5, "D behind at 0.6 c [cp]"},
 			{10, 0.5, "home straight behind: rate 0.5 [cp]"},
 			{11, 2, "destination straight ahead: rate 2 [cp]"},
+			{12, 0, "camera fixed ahead: no rotation"},
+			{13, 0, "camera fixed ahead: the centre does not move"},
 		} {
 			if !scalar.EqualWithinAbsOrRel(v[c.col], c.want, 1e-10, 1e-10) {
 				t.Errorf("frame %v %s: have %v, want %v (%s)", r[0], recs[0][c.col], v[c.col], c.want, c.src)

@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"fmt"
+	"io"
 	"path/filepath"
 	"strings"
 	"time"
@@ -139,11 +140,14 @@ func runFlight(e *env, args []string) error {
 	}
 	switch {
 	case f.dryRun:
-		if len(job.frames) == 0 {
-			return flight.WriteDryRunCSV(e.stdout, job.plan, flight.Range{First: 1, Last: 0})
+		r := flight.Range{First: 1, Last: 0}
+		if len(job.frames) > 0 {
+			r = flight.Range{First: job.frames[0], Last: job.frames[len(job.frames)-1]}
 		}
-		r := flight.Range{First: job.frames[0], Last: job.frames[len(job.frames)-1]}
-		return flight.WriteDryRunCSV(e.stdout, job.plan, r)
+		if err := flight.WriteDryRunCSV(e.stdout, job.plan, r); err != nil {
+			return err
+		}
+		return job.comfortWarning(e.stderr, r)
 	case f.verify:
 		return job.verify(e)
 	}
@@ -313,4 +317,19 @@ func fmtDuration(d time.Duration) string {
 		return d.Round(100 * time.Millisecond).String()
 	}
 	return d.Round(time.Second).String()
+}
+
+// comfortWarning warns on w about stretches of frames whose camera motion
+// exceeds the comfort limits (flight.ComfortDegPerSec, flight.ScreenLimitPx).
+func (j *flightJob) comfortWarning(w io.Writer, r flight.Range) error {
+	st, err := flight.ComfortStretches(j.plan, r)
+	if err != nil {
+		return err
+	}
+	limitPx := flight.ScreenLimitPx(j.frame.Width, j.plan.Show.FPS)
+	for _, s := range st {
+		fmt.Fprintf(w, "warning: frames %d-%d: camera motion above the comfort limit (up to %.3g°/s, limit %g°/s; up to %.3g px/frame at the centre, limit %.3g px/frame = the frame width in %g s)\n",
+			s.First, s.Last, s.MaxRateDegS, flight.ComfortDegPerSec, s.MaxScreenPx, limitPx, flight.ComfortCrossingSec)
+	}
+	return nil
 }
