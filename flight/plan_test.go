@@ -285,7 +285,7 @@ fps = 5
 	if err != nil {
 		t.Fatal(err)
 	}
-	if strings.Join(rows[0], ",") != "frame,tau_yr,t_yr,beta,gamma,x_pc,y_pc,z_pc,doppler_ahead,doppler_behind,rate_home,rate_dest" {
+	if strings.Join(rows[0], ",") != "frame,tau_yr,t_yr,beta,gamma,x_pc,y_pc,z_pc,doppler_ahead,doppler_behind,rate_home,rate_dest,camera_deg_s,centre_px_frame" {
 		t.Fatalf("header %v", rows[0])
 	}
 	if len(rows) != 4 {
