@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -288,6 +289,11 @@ func (x *Index) Find(q string) (int, error) {
 	}
 	if d, ok := ParseDesignation(q); ok {
 		if rows := x.keys[d.queryKey()]; len(rows) > 0 {
+			if len(rows) > 1 {
+				if i, ok := x.tableDesignation(d, rows); ok {
+					return i, nil
+				}
+			}
 			return x.one(q, rows)
 		}
 		if x.table != nil {
@@ -301,6 +307,30 @@ func (x *Index) Find(q string) (int, error) {
 		}
 	}
 	return 0, &LookupError{Query: q, Source: s.Source, Err: ErrUnknown, Candidates: x.closeMatches(fq, 5)}
+}
+
+// tableDesignation settles a designation that fits several rows (a
+// multiple star the catalogue lists by component, such as HR 1879 and
+// HR 1880, both "Lam Ori" in BSC5) when exactly one names-table entry
+// carries that designation as written (lam Ori: Meissa) and is one of the
+// rows. α Cen stays ambiguous: the table names both components alf Cen.
+func (x *Index) tableDesignation(d Designation, rows []int) (int, bool) {
+	if x.table == nil {
+		return 0, false
+	}
+	found, n := -1, 0
+	for k, e := range x.table.Entries {
+		ed, ok := ParseDesignation(e.ID + " " + e.Con)
+		if !ok || ed.Con != d.Con || ed.Letter != d.Letter || ed.Sup != d.Sup ||
+			(d.Letter == 0 && ed.Flamsteed != d.Flamsteed) {
+			continue
+		}
+		n++
+		if i, ok := x.entryRow[k]; ok && slices.Contains(rows, i) {
+			found = i
+		}
+	}
+	return found, n == 1 && found >= 0
 }
 
 // one returns the single row of rows or an ambiguity error listing them.

@@ -37,6 +37,9 @@ func TestFindBSC5(t *testing.T) {
 		{"Rigil Kentaurus", 5459}, {"rigilkentaurus", 5459}, {"Toliman", 5460},
 		{"α¹ Cen", 5459}, {"alf02 Cen", 5460},
 		{"Sirius", 2491}, {"Vega", 7001}, {"Tau Ceti", 509}, {"Polaris", 424},
+		// BSC5 lists λ Ori's components as HR 1879 and HR 1880, both
+		// "Lam Ori"; the IAU table names lam Ori (Meissa) HR 1879.
+		{"lam Ori", 1879}, {"Meissa", 1879},
 	} {
 		i, err := x.Find(c.q)
 		if err != nil {
