@@ -2,13 +2,18 @@ package catalog
 
 import (
 	"context"
-
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
 	"fmt"
 	"io"
 	"net/http"
 	"os"
 	"path"
 	"path/filepath"
+	"strings"
+
+	"github.com/skyframe/skyframe/internal/tempfile"
 )
 
 // Source describes a catalogue that Fetch can download.
@@ -29,6 +34,13 @@ type Source struct {
 //     hip_main.dat.gz (118 218 entries, ≈ 13 MB);
 //   - "hipparcos2007": I/311, Hipparcos, the New Reduction (van Leeuwen
 //     2007), hip2.dat.gz (117 955 entries).
+//
+// No published length or SHA-256 of these compressed files could be
+// established offline (the CDS ReadMe files give record lengths and counts
+// of the uncompressed tables, not of the .gz files), so none is recorded
+// here: FetchWith relies on the server's Content-Length or chunked framing
+// and on reading the file completely, and a user can pin a digest
+// (FetchOptions.SHA256, `catalog fetch --sha256`), which every fetch prints.
 var KnownSources = map[string]Source{
 	"bsc5": {Name: "bsc5", URL: "https://cdsarc.cds.unistra.fr/ftp/V/50/catalog.gz", File: "bsc5.dat.gz",
 		Format: FormatBSC5, Description: "Bright Star Catalogue, 5th Revised Ed. (CDS V/50)"},
@@ -60,23 +72,46 @@ func CacheDir() (string, error) {
 	return filepath.Join(d, "skyframe"), nil
 }
 
-// FetchOptions refines Fetch; the zero value detects the format.
+// FetchOptions refines Fetch; the zero value detects the format and
+// checks completeness by the length the server declares.
 type FetchOptions struct {
 	Format Format // expected format, checked after download; FormatAuto accepts any
+	// Size, when > 0, is the exact length in bytes the file must have.
+	Size int64
+	// SHA256, when not empty, is the hex SHA-256 digest the file must have.
+	SHA256 string
+	// Digest, when not nil, receives the hex SHA-256 of the accepted file,
+	// so that a caller can record or print it for later pinning.
+	Digest *string
 }
 
+// ErrUnverifiable is returned when a download's completeness cannot be
+// established: the server sent neither a Content-Length nor a chunked body
+// (RFC 9112 §6.3: the body then ends when the connection closes, which a
+// connection cut short does too) and no expected Size was given.
+var ErrUnverifiable = errors.New("cannot tell whether the download is complete")
+
 // Fetch downloads url to dst (the cache directory and the URL's base name
-// when dst is ""). It writes to a temporary file beside dst, checks the
-// structure by reading it completely with the catalogue reader, and only
-// then renames it into place, so dst is either the old file or a verified
-// new one. progress, if not nil, is called after each chunk with the bytes
-// done and the total (−1 when the server does not say). client nil means
-// http.DefaultClient.
+// when dst is ""). It writes to a temporary file beside dst, checks that the
+// whole file arrived (see FetchWith) and its structure by reading it
+// completely with the catalogue reader, and only then renames it into
+// place, so dst is either the old file or a verified new one. progress, if
+// not nil, is called after each chunk with the bytes done and the total
+// (−1 when the server does not say). client nil means http.DefaultClient.
 func Fetch(ctx context.Context, client *http.Client, url string, dst string, progress func(done, total int64)) error {
 	return FetchWith(ctx, client, url, dst, progress, FetchOptions{})
 }
 
-// FetchWith is Fetch with options.
+// FetchWith is Fetch with options. A download is accepted only when its
+// end is known: the length matches the server's Content-Length, or the
+// body was chunked (its last chunk marks the end; a connection cut short
+// is an error), or it matches opt.Size; a close-delimited body with no
+// expected size is refused (ErrUnverifiable). It must also match opt.Size
+// and opt.SHA256 when given, and it must read completely as a catalogue:
+// the reader inflates a gzip file to its end, checking every member's
+// CRC-32 and length (RFC 1952), so a member cut short is ErrTruncated. The body is requested without content coding, so these are
+// the bytes the server stores. Partial files never take dst's name: they
+// are written to ".<base>.<pid>-<n>.part" and removed on any failure.
 func FetchWith(ctx context.Context, client *http.Client, url string, dst string, progress func(done, total int64), opt FetchOptions) (err error) {
 	if client == nil {
 		client = http.DefaultClient
@@ -92,6 +127,12 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 		}
 		dst = filepath.Join(dir, base)
 	}
+	want := strings.ToLower(strings.TrimSpace(opt.SHA256))
+	if want != "" {
+		if b, err := hex.DecodeString(want); err != nil || len(b) != sha256.Size {
+			return fmt.Errorf("catalog: fetch: SHA-256 %q is not 64 hex digits", opt.SHA256)
+		}
+	}
 	dir := filepath.Dir(dst)
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("catalog: fetch: %w", err)
@@ -100,6 +141,8 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 	if err != nil {
 		return fmt.Errorf("catalog: fetch: %w", err)
 	}
+	// No transparent decompression: verify the bytes as stored.
+	req.Header.Set("Accept-Encoding", "identity")
 	resp, err := client.Do(req)
 	if err != nil {
 		return fmt.Errorf("catalog: fetch: %w", err)
@@ -108,7 +151,21 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 	if resp.StatusCode != http.StatusOK {
 		return fmt.Errorf("catalog: fetch %s: HTTP status %s", url, resp.Status)
 	}
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(dst)+".*.part")
+	if ce := resp.Header.Get("Content-Encoding"); ce != "" && ce != "identity" {
+		return fmt.Errorf("catalog: fetch %s: the server applied Content-Encoding %q although none was asked for", url, ce)
+	}
+	total := resp.ContentLength
+	chunked := len(resp.TransferEncoding) > 0 && resp.TransferEncoding[0] == "chunked"
+	if total < 0 && !chunked && opt.Size <= 0 {
+		return fmt.Errorf("catalog: fetch %s: %w: the server sent no Content-Length and the body is not chunked; give the expected size", url, ErrUnverifiable)
+	}
+	if total >= 0 && opt.Size > 0 && total != opt.Size {
+		return fmt.Errorf("catalog: fetch %s: the server announces %d bytes, the file has %d", url, total, opt.Size)
+	}
+	if total < 0 && opt.Size > 0 {
+		total = opt.Size
+	}
+	tmp, err := tempfile.Create(dir, "."+filepath.Base(dst)+".", ".part")
 	if err != nil {
 		return fmt.Errorf("catalog: fetch: %w", err)
 	}
@@ -118,16 +175,17 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 			os.Remove(tmp.Name())
 		}
 	}()
-	total := resp.ContentLength
+	h := sha256.New()
 	var done int64
 	buf := make([]byte, 64<<10)
 	for {
 		n, rerr := resp.Body.Read(buf)
 		if n > 0 {
 			done += int64(n)
-			if done > MaxDownloadBytes {
-				return fmt.Errorf("catalog: fetch %s: more than %d bytes", url, MaxDownloadBytes)
+			if done > MaxDownloadBytes || (total >= 0 && done > total) {
+				return fmt.Errorf("catalog: fetch %s: more than the %d bytes expected", url, min(total, MaxDownloadBytes))
 			}
+			h.Write(buf[:n])
 			if _, werr := tmp.Write(buf[:n]); werr != nil {
 				return fmt.Errorf("catalog: fetch: %w", werr)
 			}
@@ -139,11 +197,15 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 			break
 		}
 		if rerr != nil {
-			return fmt.Errorf("catalog: fetch %s: %w", url, rerr)
+			return fmt.Errorf("catalog: fetch %s: %w: %w after %d bytes", url, ErrTruncated, rerr, done)
 		}
 	}
 	if total >= 0 && done != total {
 		return fmt.Errorf("catalog: fetch %s: %w: got %d of %d bytes", url, ErrTruncated, done, total)
+	}
+	digest := hex.EncodeToString(h.Sum(nil))
+	if want != "" && digest != want {
+		return fmt.Errorf("catalog: fetch %s: SHA-256 %s, want %s", url, digest, want)
 	}
 	if err := tmp.Sync(); err != nil {
 		return fmt.Errorf("catalog: fetch: %w", err)
@@ -151,7 +213,7 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 	if err := tmp.Close(); err != nil {
 		return fmt.Errorf("catalog: fetch: %w", err)
 	}
-	_, rep, verr := Open(tmp.Name(), ReadOptions{Format: opt.Format})
+	_, rep, verr := OpenContext(ctx, tmp.Name(), ReadOptions{Format: opt.Format})
 	if verr != nil {
 		return fmt.Errorf("catalog: fetch %s: downloaded file does not read as a catalogue: %w", url, verr)
 	}
@@ -160,6 +222,9 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 	}
 	if err := os.Rename(tmp.Name(), dst); err != nil {
 		return fmt.Errorf("catalog: fetch: %w", err)
+	}
+	if opt.Digest != nil {
+		*opt.Digest = digest
 	}
 	return nil
 }

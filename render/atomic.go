@@ -8,8 +8,8 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
-	"strconv"
-	"sync/atomic"
+
+	"github.com/skyframe/skyframe/internal/tempfile"
 )
 
 // ErrNotRegular is returned (wrapped, naming the path) when a write would
@@ -67,32 +67,18 @@ func kindOf(m fs.FileMode) string {
 // killed process.
 func TempPrefix(path string) string { return "." + filepath.Base(path) + ".tmp-" }
 
-var tempSeq atomic.Uint64
-
-// createTemp creates a new temporary file for path in its directory. It is
-// opened with mode 0666 so that the process umask applies, as it does to
-// any file a program creates (os.CreateTemp would use 0600 instead).
+// createTemp creates a new temporary file for path in its directory, with
+// mode 0666 less the umask (see internal/tempfile).
 func createTemp(path string) (*os.File, error) {
 	dir, base := filepath.Split(path)
 	if base == "" {
 		return nil, fmt.Errorf("render: writing %q: path names a directory", path)
 	}
-	if dir == "" {
-		dir = "."
+	f, err := tempfile.Create(dir, TempPrefix(path), "")
+	if err != nil {
+		return nil, fmt.Errorf("render: writing %s: %w", path, err)
 	}
-	pid := strconv.Itoa(os.Getpid())
-	for range 10000 {
-		name := filepath.Join(dir, TempPrefix(path)+pid+"-"+strconv.FormatUint(tempSeq.Add(1), 10))
-		f, err := os.OpenFile(name, os.O_RDWR|os.O_CREATE|os.O_EXCL, 0o666)
-		if errors.Is(err, fs.ErrExist) {
-			continue
-		}
-		if err != nil {
-			return nil, fmt.Errorf("render: writing %s: %w", path, err)
-		}
-		return f, nil
-	}
-	return nil, fmt.Errorf("render: writing %s: no free temporary file name", path)
+	return f, nil
 }
 
 // pending is one file of a FileSet: written, synced and closed, not yet

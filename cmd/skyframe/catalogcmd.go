@@ -262,6 +262,8 @@ func catalogFetch(e *env, args []string) error {
 	fs := catalogFlagSet(e, "fetch", "Usage: skyframe catalog fetch [options] NAME\n\nNAME: "+sourceNames()+"\n\nOptions:\n")
 	url := fs.String("url", "", "download from this address instead of the CDS archive (a mirror)")
 	out := fs.StringP("output", "o", "", "file to write (default: the user cache directory)")
+	size := fs.Int64("size", 0, "expected length in bytes: required when the server marks the end of the file by closing the connection only")
+	sum := fs.String("sha256", "", "expected SHA-256 of the file (hex), e.g. as printed by an earlier fetch")
 	if err := fs.Parse(args); err != nil {
 		if err == pflag.ErrHelp {
 			return errHelp
@@ -298,12 +300,17 @@ func catalogFetch(e *env, args []string) error {
 	}
 	progress := newByteProgress(e.stderr, "fetch "+src.Name)
 	client := &http.Client{Timeout: 30 * time.Minute}
-	err := catalog.FetchWith(e.ctx, client, u, dst, progress.update, catalog.FetchOptions{Format: src.Format})
+	if *size < 0 {
+		return usagef("--size %d: want a length in bytes", *size)
+	}
+	var digest string
+	err := catalog.FetchWith(e.ctx, client, u, dst, progress.update, catalog.FetchOptions{Format: src.Format, Size: *size, SHA256: *sum, Digest: &digest})
 	progress.finish()
 	if err != nil {
 		return err
 	}
 	fmt.Fprintln(e.stdout, dst)
+	fmt.Fprintf(e.stderr, "sha256 %s (pin it with --sha256 for later fetches)\n", digest)
 	return nil
 }
 

@@ -2,9 +2,12 @@ package main
 
 import (
 	"bytes"
+	"net/http"
+	"net/http/httptest"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"syscall"
 	"testing"
@@ -209,4 +212,40 @@ func TestSmallInputsAreBounded(t *testing.T) {
 	}()
 	code, msg = hostileRun(t, "flight", fifo, "--out", filepath.Join(dir, "out"))
 	hostileExpect(t, code, msg, []string{fifo, "larger than the limit"}, dir, "plan")
+}
+
+// TestCatalogFetchRefusesUnverifiable (item 10): "catalog fetch" from a
+// server that sends a body without Content-Length or chunking (its end is
+// the connection closing, RFC 9112 §6.3) refuses it with status 1 and a
+// message saying why, leaving no file; --size makes the same body
+// verifiable, and the SHA-256 is printed for pinning.
+func TestCatalogFetchRefusesUnverifiable(t *testing.T) {
+	raw, err := os.ReadFile(filepath.Join(hostileFixtures, "bsc5_good.dat"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv := httptest.NewServer(http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		c, bw, err := w.(http.Hijacker).Hijack()
+		if err != nil {
+			return
+		}
+		defer c.Close()
+		bw.WriteString("HTTP/1.1 200 OK\r\nConnection: close\r\n\r\n")
+		bw.Write(raw)
+		bw.Flush()
+	}))
+	defer srv.Close()
+	dir := t.TempDir()
+	dst := filepath.Join(dir, "bsc5.dat")
+	code, out, errs := runIn(t, "catalog", "fetch", "bsc5", "--url", srv.URL+"/catalog", "-o", dst)
+	if code != exitFailure || !strings.Contains(errs, "cannot tell whether the download is complete") {
+		t.Errorf("status %d, stderr %q", code, errs)
+	}
+	if ents, _ := os.ReadDir(dir); len(ents) != 0 {
+		t.Errorf("left behind: %v", ents)
+	}
+	code, out, errs = runIn(t, "catalog", "fetch", "bsc5", "--url", srv.URL+"/catalog", "-o", dst, "--size", strconv.Itoa(len(raw)))
+	if code != exitOK || strings.TrimSpace(out) != dst || !strings.Contains(errs, "sha256 ") {
+		t.Errorf("with --size: status %d, stdout %q, stderr %q", code, out, errs)
+	}
 }
