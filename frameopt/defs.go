@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/spectrum"
@@ -125,6 +126,28 @@ var Defs = []Def{
 	{Name: "cmb", Table: OverlaysTable, Type: Switch, Default: "false",
 		Help: "add the cosmic microwave background at its true surface brightness (in the PNG and the FITS)",
 		ptr:  func(o *Options) any { return &o.CMB }},
+	{Name: "unresolved", Table: OverlaysTable, Type: Text, Arg: "MODE", Default: "auto",
+		Help: "the light of the stars too faint to draw, from the built-in sky's galaxy model, as a diffuse layer (in the PNG and the FITS): auto (on for the built-in sky, off for a catalogue file), on or off",
+		Check: func(o *Options) error {
+			switch strings.ToLower(strings.TrimSpace(o.Unresolved)) {
+			case "auto", "on", "off":
+				return nil
+			}
+			return fmt.Errorf("%q: want auto, on or off", o.Unresolved)
+		},
+		ptr: func(o *Options) any { return &o.Unresolved }},
+	{Name: "unresolved-depth", Table: OverlaysTable, Type: Magnitude, Arg: "MAG", Default: "the built-in sky's depth",
+		Help: "V magnitude where the catalogue stops resolving stars: the unresolved layer holds the model's light of the fainter ones (needed for a catalogue file; giving it turns the layer on unless unresolved is off)",
+		Check: func(o *Options) error {
+			if o.UnresolvedDepth == nil {
+				return nil
+			}
+			if v := *o.UnresolvedDepth; !(v >= catalog.MinUnresolvedDepth && v <= catalog.MaxUnresolvedDepth) {
+				return fmt.Errorf("%g: want a V magnitude from %g to %g", v, catalog.MinUnresolvedDepth, catalog.MaxUnresolvedDepth)
+			}
+			return nil
+		},
+		ptr: func(o *Options) any { return &o.UnresolvedDepth }},
 	{Name: "grid", Table: OverlaysTable, Type: Text, Arg: "FRAME", Default: "none",
 		Help: "overlay a coordinate grid, aberrated like the stars: none, radec or galactic",
 		Check: func(o *Options) error {

@@ -35,7 +35,9 @@ type Options struct {
 
 	// Overlays ([overlays]).
 	CMB             bool
-	Grid            string // none (""), radec, galactic
+	Unresolved      string   // auto (""), on, off
+	UnresolvedDepth *float64 // V; nil: the built-in sky's depth
+	Grid            string   // none (""), radec, galactic
 	GridStep        float64
 	UnityCircle     bool
 	MarkMotion      bool

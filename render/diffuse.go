@@ -189,9 +189,13 @@ func AddDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) error {
 	if workers == 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
+	lnT := make([]float64, len(temps))
+	for k, t := range temps {
+		lnT[k] = math.Log(t)
+	}
 	boost := f.Options.Observer.Boost
 	d := diffuseSampler{
-		sky: sky, temps: temps, shipIn: boost.Inverse(), bdir: boost.Dir(), gb: boost.GammaBeta(),
+		sky: sky, temps: temps, lnT: lnT, shipIn: boost.Inverse(), bdir: boost.Dir(), gb: boost.GammaBeta(),
 		sa: &sa, p: &p, fp: fp, mlnD: mlnD, ms: ms,
 	}
 	k := f.Scale / math.Pi // buffer luminance per (cd/m² · sr)
@@ -199,10 +203,10 @@ func AddDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) error {
 	rowErr := make([]error, f.H)
 	parallel(workers, f.H, func(j int) {
 		// Scratch per row: rows run concurrently.
-		t, w := make([]float64, len(temps)), make([]float64, len(temps))
+		sc, w := newDiffuseScratch(len(temps)), make([]float64, len(temps))
 		row := dst.Pix[3*j*f.W : 3*(j+1)*f.W]
 		for i := 0; i < f.W; i++ {
-			X, Y, Z, err := d.pixel(i, j, t, w)
+			X, Y, Z, err := d.pixel(i, j, sc, w)
 			if err != nil {
 				rowErr[j] = err
 				return
@@ -255,11 +259,22 @@ func seenDiffuse(shipIn camera.Boost, sky UnresolvedSky, temps []float64, np r3.
 	return n, D
 }
 
+// diffuseScratch holds one worker's per-component values.
+type diffuseScratch struct {
+	lnT, lnY, lnV, x, y []float64
+}
+
+func newDiffuseScratch(k int) *diffuseScratch {
+	return &diffuseScratch{lnT: make([]float64, k), lnY: make([]float64, k), lnV: make([]float64, k),
+		x: make([]float64, k), y: make([]float64, k)}
+}
+
 // diffuseSampler evaluates the layer's XYZ radiance × solid angle over one
 // pixel.
 type diffuseSampler struct {
 	sky      UnresolvedSky
 	temps    []float64
+	lnT      []float64 // ln T_k
 	shipIn   camera.Boost // ship frame → catalogue frame
 	bdir     r3.Vec       // b̂, the direction of motion
 	gb       float64      // γβ
@@ -292,7 +307,7 @@ func (d *diffuseSampler) samples(np r3.Vec, D, omega float64) int {
 
 // pixel returns Σ over the samples of Ω_sample·Σ_k W_k e^LnY(D T_k) and
 // the matching X and Z, for pixel (i, j).
-func (d *diffuseSampler) pixel(i, j int, t, w []float64) (X, Y, Z float64, err error) {
+func (d *diffuseSampler) pixel(i, j int, sc *diffuseScratch, w []float64) (X, Y, Z float64, err error) {
 	np, ok := d.p.Inverse(float64(i)+0.5, float64(j)+0.5)
 	s := 1
 	if ok {
@@ -314,7 +329,15 @@ func (d *diffuseSampler) pixel(i, j int, t, w []float64) (X, Y, Z float64, err e
 				}
 			}
 			omega := d.sa.sub(x, y, s, np)
-			n, _ := seenDiffuse(d.shipIn, d.sky, d.temps, np, t, w)
+			n, dInv := d.shipIn.Apply(np)
+			d.sky.Dilutions(n, w)
+			// ln T′_k = ln T_k + ln D, D = 1/dInv: the transform of
+			// DiffuseSeen, in logarithms for the tables.
+			lnD := -lnFast(dInv)
+			for k, l := range d.lnT {
+				sc.lnT[k] = l + lnD
+			}
+			spectrum.LookupBatch(sc.lnT, sc.lnY, sc.lnV, sc.x, sc.y)
 			var sx, sy, sz float64
 			for k, wk := range w {
 				if wk == 0 {
@@ -324,14 +347,11 @@ func (d *diffuseSampler) pixel(i, j int, t, w []float64) (X, Y, Z float64, err e
 					return 0, 0, 0, fmt.Errorf("%w: dilution %g of the %g K component toward (%.6f, %.6f, %.6f), want finite ≥ 0",
 						ErrDiffuse, wk, d.temps[k], n.X, n.Y, n.Z)
 				}
-				if !(t[k] > 0) || math.IsInf(t[k], 0) {
-					continue // D underflowed or overflowed: no representable light
-				}
-				sm := spectrum.Lookup(math.Log(t[k]))
-				yk := wk * math.Exp(sm.LnY)
-				sx += sm.X / sm.Y * yk
+				yk := wk * expFast(sc.lnY[k])
+				cx, cy := sc.x[k], sc.y[k]
+				sx += cx / cy * yk
 				sy += yk
-				sz += (1 - sm.X - sm.Y) / sm.Y * yk
+				sz += (1 - cx - cy) / cy * yk
 			}
 			X += omega * sx
 			Y += omega * sy

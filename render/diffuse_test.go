@@ -441,3 +441,34 @@ func BenchmarkAddDiffuse(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(f.W*f.H), "ns/pixel")
 }
+
+// BenchmarkAddDiffuseModel draws the built-in sky's unresolved light
+// (catalog.UnresolvedSky, 7 components, depth V = 8) into the default
+// still frame: 1920×1080 pinhole, 60°, at 0.9 c toward the galactic
+// centre, looking ahead.
+func BenchmarkAddDiffuseModel(b *testing.B) {
+	u, err := catalog.NewUnresolvedSky(catalog.DefaultSynthMagLimit, func(T float64) float64 {
+		bb, err := spectrum.FromV(T, 0)
+		if err != nil {
+			return math.NaN()
+		}
+		return bb.W
+	}, catalog.SynthOptions{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	gc := camera.FromGalacticLB(0, 0)
+	boost, err := camera.NewBoost(gc, 0.9)
+	if err != nil {
+		b.Fatal(err)
+	}
+	f := blankFrame(b, looking(b, camera.Pinhole, 1920, 1080, 60, gc), camera.Observer{Boost: boost})
+	b.ReportAllocs()
+	b.ResetTimer()
+	for b.Loop() {
+		if err := AddDiffuse(f, u, DiffuseOptions{}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(f.W*f.H), "ns/pixel")
+}

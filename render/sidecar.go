@@ -43,8 +43,23 @@ type Sidecar struct {
 
 	Catalog CatalogInfo `json:"catalog"`
 	Counts  Counts      `json:"stars"`
+	// CMB is true when the frame holds the cosmic microwave background.
+	CMB bool `json:"cmb,omitempty"`
+	// Unresolved describes the unresolved-starlight layer, when drawn.
+	Unresolved *UnresolvedInfo `json:"unresolved,omitempty"`
 	// Brightest are the brightest drawn stars, brightest first.
 	Brightest []StarInfo `json:"brightest"`
+}
+
+// UnresolvedInfo describes the diffuse layer of the stars too faint to be
+// drawn (AddDiffuse).
+type UnresolvedInfo struct {
+	// DepthV is the resolved depth: the layer holds the model's light of
+	// the stars fainter than this V magnitude.
+	DepthV float64 `json:"depth_v"`
+	// Components is the number of diluted-blackbody components per
+	// direction.
+	Components int `json:"components"`
 }
 
 // Direction is a unit vector given as ICRS right ascension and declination.

@@ -200,6 +200,7 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	side := frame.Sidecar("skyframe", version, j.stars, fr.Tone)
+	lay.sidecarInfo(&side)
 	img8 := frame.ToNRGBA(fr.Tone)
 	lum := meanLuminance(img8)
 	var img draw.Image = img8

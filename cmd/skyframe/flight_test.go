@@ -442,6 +442,20 @@ width = 64
 height = 36
 lok = "ahead"
 `, []string{"plan.toml:12:", "camera.lok", `did you mean "camera.look"`}},
+		{"unresolved light", `
+[[leg]]
+kind = "cruise"
+ship_years = 1
+[overlays]
+unresolved = "maybe"
+` + show, []string{"plan.toml:6:", "overlays.unresolved", "auto"}},
+		{"unresolved depth out of range", `
+[[leg]]
+kind = "cruise"
+ship_years = 1
+[overlays]
+unresolved_depth = 99
+` + show, []string{"plan.toml:6:", "overlays.unresolved_depth"}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

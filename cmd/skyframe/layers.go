@@ -15,6 +15,17 @@ import (
 type layerSet struct {
 	render.Layers
 	overlay.Options
+	// unresolvedDepth is the resolved depth (V) of the unresolved-light
+	// layer, when Layers.Unresolved is set.
+	unresolvedDepth float64
+}
+
+// sidecarInfo describes the linear layers for a frame's sidecar.
+func (l *layerSet) sidecarInfo(side *render.Sidecar) {
+	side.CMB = l.CMB
+	if l.Unresolved != nil {
+		side.Unresolved = &render.UnresolvedInfo{DepthV: l.unresolvedDepth, Components: len(l.Unresolved.Temperatures())}
+	}
 }
 
 // frameLayers converts the overlay options (already checked by frameopt)
@@ -26,6 +37,10 @@ type layerSet struct {
 func frameLayers(o *frameopt.Options, sc *scene, opt *render.Options) (layerSet, error) {
 	var l layerSet
 	l.CMB = o.CMB
+	var err error
+	if l.Unresolved, l.unresolvedDepth, err = unresolvedLayer(sc.stars, o.Unresolved, o.UnresolvedDepth); err != nil {
+		return l, err
+	}
 	g, _ := overlay.ParseGraticuleFrame(o.Grid)
 	if o.Grid == "" {
 		g = overlay.GraticuleNone

@@ -322,6 +322,7 @@ func (o outputPaths) check() error {
 // written, so a failure never leaves a new image beside an old sidecar.
 func writeFrame(ctx context.Context, frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths) error {
 	side := frame.Sidecar("skyframe", version, sc.stars, spec.tone)
+	spec.layers.sidecarInfo(&side)
 	meta := pngMeta(side, spec)
 	var img draw.Image
 	if spec.depth == 16 {

@@ -1,0 +1,81 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"strings"
+	"sync"
+
+	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/spectrum"
+)
+
+// Unresolved-light modes of --unresolved (plan key overlays.unresolved).
+const (
+	unresolvedAuto = "auto" // on for the built-in sky, off for a catalogue file
+	unresolvedOn   = "on"
+	unresolvedOff  = "off"
+)
+
+// builtInDepth is the resolved depth (V) of the built-in sky: the map of
+// unresolved light starts where its sampled stars stop.
+const builtInDepth = catalog.DefaultSynthMagLimit
+
+// unresolvedMaps caches the built maps by depth: a map takes a few tenths of
+// a second of CPU to build and a flight uses the same one for every frame.
+var unresolvedMaps sync.Map // float64 → *catalog.UnresolvedSky
+
+// v0Dilution is the dilution of a blackbody at T whose V-band flux is that
+// of a V = 0 star, from the same photometry as every star.
+func v0Dilution(T float64) float64 {
+	b, err := spectrum.FromV(T, 0)
+	if err != nil {
+		return math.NaN()
+	}
+	return b.W
+}
+
+// unresolvedLayer resolves the unresolved-light options (frameopt
+// unresolved and unresolved-depth) for stars: mode is auto (""), on or off;
+// depthOpt (nil: not given) is the V magnitude where the catalogue stops
+// resolving stars, and giving it turns auto into on. It returns nil when
+// the layer is off, and the depth used. Messages name the flags, as the
+// other frame layers do (a flight prefixes the plan and "overlays").
+func unresolvedLayer(stars *catalog.Stars, mode string, depthOpt *float64) (render.UnresolvedSky, float64, error) {
+	const what = "--unresolved"
+	builtIn := stars != nil && stars.Source == catalog.SyntheticSource
+	depth := math.NaN()
+	if depthOpt != nil {
+		depth = *depthOpt
+	}
+	switch m := strings.ToLower(strings.TrimSpace(mode)); {
+	case m == unresolvedOff:
+		return nil, 0, nil
+	case (m == unresolvedAuto || m == "") && depthOpt == nil:
+		if !builtIn {
+			return nil, 0, nil
+		}
+	case m == unresolvedOn || m == unresolvedAuto || m == "":
+	default:
+		return nil, 0, usagef("%s %q: want auto, on or off", what, mode)
+	}
+	if math.IsNaN(depth) {
+		if !builtIn {
+			return nil, 0, usagef("%s on with a catalogue file needs --unresolved-depth, the catalogue's completeness limit (V): the model adds the light of the stars fainter than it", what)
+		}
+		depth = builtInDepth
+	}
+	if math.IsInf(depth, 0) || depth < catalog.MinUnresolvedDepth || depth > catalog.MaxUnresolvedDepth {
+		return nil, 0, usagef("--unresolved-depth %v: want a V magnitude in [%g, %g]", depth, catalog.MinUnresolvedDepth, catalog.MaxUnresolvedDepth)
+	}
+	if u, ok := unresolvedMaps.Load(depth); ok {
+		return u.(*catalog.UnresolvedSky), depth, nil
+	}
+	u, err := catalog.NewUnresolvedSky(depth, v0Dilution, catalog.SynthOptions{})
+	if err != nil {
+		return nil, 0, fmt.Errorf("%s: %w", what, err)
+	}
+	unresolvedMaps.Store(depth, u)
+	return u, depth, nil
+}
