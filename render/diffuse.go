@@ -274,7 +274,7 @@ func newDiffuseScratch(k int) *diffuseScratch {
 type diffuseSampler struct {
 	sky      UnresolvedSky
 	temps    []float64
-	lnT      []float64 // ln T_k
+	lnT      []float64    // ln T_k
 	shipIn   camera.Boost // ship frame → catalogue frame
 	bdir     r3.Vec       // b̂, the direction of motion
 	gb       float64      // γβ
