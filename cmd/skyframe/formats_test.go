@@ -53,7 +53,7 @@ print(repr(str(c.unit)), repr(float(c.header["LUXSCALE"])), c.header["WHITEPT"],
 	if v, err := strconv.ParseFloat(f[1], 64); err != nil || v != side.Scale {
 		t.Errorf("LUXSCALE %s, sidecar scale_per_lux %v", f[1], side.Scale)
 	}
-	if f[2] != "d50" || f[3] != "stars,cmb" {
-		t.Errorf("WHITEPT %s, LAYERS %s; want d50, stars,cmb", f[2], f[3])
+	if f[2] != "d50" || f[3] != "stars,cmb,unresolved" { // the built-in sky draws its unresolved light by default
+		t.Errorf("WHITEPT %s, LAYERS %s; want d50, stars,cmb,unresolved", f[2], f[3])
 	}
 }
