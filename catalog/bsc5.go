@@ -83,8 +83,13 @@ func readBSC5(lr *lineReader, b *builder) error {
 			if sign[0] == '-' {
 				st.Dec = -st.Dec
 			}
-			if st.Dec > 90 || st.RA >= 360 {
-				return &ParseError{File: b.file, Line: n, Field: "DEd", Value: string(col(line, 84, 90)), Err: ErrOutOfRange}
+			if st.RA >= 360 {
+				return &ParseError{File: b.file, Line: n, Field: "RAh", Value: string(col(line, 76, 83)),
+					Err: fmt.Errorf("%w: RA %gh %gm %gs is 24h or more", ErrOutOfRange, rah, ram, ras)}
+			}
+			if st.Dec > 90 {
+				return &ParseError{File: b.file, Line: n, Field: "DEd", Value: string(col(line, 84, 90)),
+					Err: fmt.Errorf("%w: declination beyond 90°", ErrOutOfRange)}
 			}
 			v, ok, err := b.ranged(col(line, 103, 107), "Vmag", n, vmagLo, vmagHi)
 			if err != nil {

@@ -91,6 +91,9 @@ func readDelimited(lr *lineReader, b *builder, f Format) error {
 		break
 	}
 	hline := lr.line
+	if bytes.IndexByte(header, 0) >= 0 {
+		return &ParseError{File: b.file, Line: hline, Err: fmt.Errorf("%w: NUL bytes in the header line: UTF-16 or binary data; save the table as UTF-8 text", ErrUnknownFormat)}
+	}
 	delim := pickDelimiter(header)
 	if f == FormatTSV {
 		delim = '\t'
@@ -152,9 +155,10 @@ func planColumns(b *builder, labels []string, gaia bool, line int) (*rowPlan, er
 	index := map[string]int{}
 	for i, nm := range labels {
 		key := strings.ToLower(strings.TrimSpace(nm))
-		if _, dup := index[key]; !dup {
-			index[key] = i
+		if j, dup := index[key]; dup && key != "" {
+			return nil, &ParseError{File: b.file, Line: line, Field: nm, Err: fmt.Errorf("%w: columns %d and %d are both named %q (names compare without case)", ErrDuplicateColumn, j+1, i+1, nm)}
 		}
+		index[key] = i
 	}
 	pl := &rowPlan{gaia: gaia, labels: labels}
 	cols := &pl.cols

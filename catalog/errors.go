@@ -32,6 +32,8 @@ var (
 	ErrCorrupt = errors.New("corrupt input")
 	// ErrMissingColumn: a header lacks a column the format or ColumnMap needs.
 	ErrMissingColumn = errors.New("missing column")
+	// ErrDuplicateColumn: two header columns have the same name.
+	ErrDuplicateColumn = errors.New("duplicate column name")
 	// ErrFieldCount: a delimited row has a different number of fields than
 	// its header, or too few fields for its format.
 	ErrFieldCount = errors.New("wrong number of fields")

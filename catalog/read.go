@@ -206,6 +206,9 @@ func Read(r io.Reader, name string, opt ReadOptions) (*Stars, *Report, error) {
 			return nil, rep, &ParseError{File: name, Err: fmt.Errorf("%w: gzip inside gzip is not read", ErrUnknownFormat)}
 		}
 	}
+	if head, _ := br.Peek(2); len(head) == 2 && (head[0] == 0xff && head[1] == 0xfe || head[0] == 0xfe && head[1] == 0xff) {
+		return nil, rep, &ParseError{File: name, Line: 1, Err: fmt.Errorf("%w: UTF-16 text (byte-order mark % x); save it as UTF-8", ErrUnknownFormat, head)}
+	}
 	format := opt.Format
 	if format == FormatAuto {
 		f, err := detectFormat(br, name, rep.Compressed)
@@ -580,7 +583,23 @@ func (b *builder) number(raw []byte, field string, line int) (v float64, ok bool
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return 0, false, &ParseError{File: b.file, Line: line, Field: field, Value: shortValue(t), Err: ErrNotFinite}
 	}
+	if !decimalNumber(t) {
+		// strconv also takes hexadecimal floats (0x1p-2) and digit
+		// separators (0x_1p0), which no catalogue writes.
+		return 0, false, &ParseError{File: b.file, Line: line, Field: field, Value: shortValue(t), Err: fmt.Errorf("%w: want a decimal number", ErrNotNumber)}
+	}
 	return v, true, nil
+}
+
+// decimalNumber reports whether t uses only the characters of a decimal
+// number with an optional exponent.
+func decimalNumber(t []byte) bool {
+	for _, c := range t {
+		if !(c >= '0' && c <= '9' || c == '.' || c == '+' || c == '-' || c == 'e' || c == 'E') {
+			return false
+		}
+	}
+	return true
 }
 
 // ranged is number with a [lo, hi] check on present values.

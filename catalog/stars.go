@@ -148,7 +148,12 @@ func (s *Stars) Append(st Star) {
 }
 
 // Validate checks that all columns have consistent lengths and that every
-// value is finite where it must be. Readers call it before returning.
+// value is in the range the text readers accept: unit directions (|n|²
+// within 1e-4 of 1), V from −30 to 40, Teff from 100 K to 10⁶ K, distance
+// > 0 or +Inf, B−V from −5 to 10 or NaN, proper motions within ±10⁵ mas/yr,
+// radial velocity within ±10⁵ km/s or NaN. Every reader (text, cache,
+// cache chunks, Parquet) calls it before returning, so a binary file cannot
+// carry a value a text file could not.
 func (s *Stars) Validate() error {
 	n := s.Len()
 	cols := []struct {
@@ -168,15 +173,40 @@ func (s *Stars) Validate() error {
 		return fmt.Errorf("catalog: RV column has %d rows, want %d", len(s.RV), n)
 	}
 	for i := 0; i < n; i++ {
-		if !finite32(s.X[i]) || !finite32(s.Y[i]) || !finite32(s.Z[i]) || !finite32(s.Vmag[i]) || !finite32(s.Teff[i]) || s.Teff[i] <= 0 {
-			return fmt.Errorf("catalog: star %d (id %d) has a non-finite direction, magnitude or temperature", i, s.ID[i])
+		x, y, z := s.X[i], s.Y[i], s.Z[i]
+		if !finite32(x) || !finite32(y) || !finite32(z) {
+			return fmt.Errorf("catalog: star %d (id %d) has a non-finite direction", i, s.ID[i])
+		}
+		if n2 := x*x + y*y + z*z; !(n2 > 1-unitTol && n2 < 1+unitTol) {
+			return fmt.Errorf("catalog: star %d (id %d) has direction (%g, %g, %g), not a unit vector", i, s.ID[i], x, y, z)
+		}
+		if v := s.Vmag[i]; !(v >= vmagLo && v <= vmagHi) {
+			return fmt.Errorf("catalog: star %d (id %d) has V = %g, want %d to %d", i, s.ID[i], v, vmagLo, vmagHi)
+		}
+		if t := s.Teff[i]; !(t >= teffLo && t <= teffHi) {
+			return fmt.Errorf("catalog: star %d (id %d) has Teff = %g K, want %g to %g", i, s.ID[i], t, float64(teffLo), float64(teffHi))
 		}
 		if !(s.Dist[i] > 0) {
 			return fmt.Errorf("catalog: star %d (id %d) has distance %v; want > 0 or +Inf", i, s.ID[i], s.Dist[i])
 		}
+		if bv := s.BV[i]; bv == bv && !(bv >= bvLo && bv <= bvHi) {
+			return fmt.Errorf("catalog: star %d (id %d) has B−V = %g, want %d to %d or none", i, s.ID[i], bv, bvLo, bvHi)
+		}
+		if s.PMRA != nil && !(math.Abs(float64(s.PMRA[i])) <= pmLim && math.Abs(float64(s.PMDec[i])) <= pmLim) {
+			return fmt.Errorf("catalog: star %d (id %d) has proper motion (%g, %g) mas/yr beyond ±%g", i, s.ID[i], s.PMRA[i], s.PMDec[i], float64(pmLim))
+		}
+		if s.RV != nil {
+			if rv := s.RV[i]; rv == rv && !(math.Abs(float64(rv)) <= rvLim) {
+				return fmt.Errorf("catalog: star %d (id %d) has radial velocity %g km/s beyond ±%g", i, s.ID[i], rv, float64(rvLim))
+			}
+		}
 	}
 	return nil
 }
+
+// unitTol is how far |n|² of a stored direction may be from 1: float32
+// rounding of a unit vector's components leaves |n|² within about 2e-7.
+const unitTol = 1e-4
 
 // finite32 reports whether v is neither NaN nor ±Inf (exponent bits not
 // all set), without converting to float64.

@@ -2,6 +2,9 @@ package main
 
 import (
 	"bytes"
+	"encoding/binary"
+	"hash/crc32"
+	"math"
 	"net/http"
 	"net/http/httptest"
 	"os"
@@ -11,6 +14,8 @@ import (
 	"strings"
 	"syscall"
 	"testing"
+
+	"github.com/skyframe/skyframe/catalog"
 )
 
 // Regression tests for the defects of the second robustness audit, one per
@@ -247,5 +252,121 @@ func TestCatalogFetchRefusesUnverifiable(t *testing.T) {
 	code, out, errs = runIn(t, "catalog", "fetch", "bsc5", "--url", srv.URL+"/catalog", "-o", dst, "--size", strconv.Itoa(len(raw)))
 	if code != exitOK || strings.TrimSpace(out) != dst || !strings.Contains(errs, "sha256 ") {
 		t.Errorf("with --size: status %d, stdout %q, stderr %q", code, out, errs)
+	}
+}
+
+// patchCache rewrites float32 column col (0 X, 1 Y, 2 Z, 3 Dist, 4 Vmag,
+// 5 Teff, 6 BV; the layout in catalog/cache.go) of row i in a binary cache
+// and recomputes its CRC-32C trailer, as a hostile or buggy writer would.
+func patchCache(t *testing.T, b []byte, col, i int, v float32) []byte {
+	t.Helper()
+	b = bytes.Clone(b)
+	n := int(binary.LittleEndian.Uint64(b[12:]))
+	off := 28
+	for range 2 { // source and format strings
+		off += 2 + int(binary.LittleEndian.Uint16(b[off:]))
+	}
+	off += 8*n + 4*(col*n+i)
+	binary.LittleEndian.PutUint32(b[off:], math.Float32bits(v))
+	body := b[:len(b)-4]
+	binary.LittleEndian.PutUint32(b[len(b)-4:], crc32.Checksum(body, crc32.MakeTable(crc32.Castagnoli)))
+	return b
+}
+
+// TestCacheValuesValidatedOnLoad (item 11): a cache file (checksum intact)
+// holding values the text readers refuse — V = −1e38, Teff = 3e38 K, a
+// zero or non-unit direction — is refused with status 2 naming the file,
+// by catalog inspect and by still, loaded whole or streamed in chunks.
+func TestCacheValuesValidatedOnLoad(t *testing.T) {
+	dir := t.TempDir()
+	good := filepath.Join(dir, "good.skyc")
+	if code, msg := hostileRun(t, "catalog", "pack", filepath.Join(hostileFixtures, "bsc5_good.dat"), "-o", good); code != exitOK {
+		t.Fatalf("pack: %d %s", code, msg)
+	}
+	b, err := os.ReadFile(good)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		name     string
+		col      int
+		v        float32
+		want     string
+		zeroAlso bool
+	}{
+		{"V = -1e38", 4, -1e38, "V = ", false},
+		{"Teff = 3e38", 5, 3e38, "Teff", false},
+		{"non-unit direction", 0, 0.5, "not a unit vector", false},
+		{"zero direction", 0, 0, "not a unit vector", true},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			p := patchCache(t, b, c.col, 0, c.v)
+			if c.zeroAlso {
+				p = patchCache(t, patchCache(t, p, 1, 0, 0), 2, 0, 0)
+			}
+			cache := hostileFile(t, dir, "bad.skyc", p)
+			code, msg := hostileRun(t, "catalog", "inspect", cache)
+			hostileExpect(t, code, msg, []string{"bad.skyc", c.want}, dir, "good.skyc", "bad.skyc")
+			out := filepath.Join(dir, "x.png")
+			code, msg = hostileRun(t, "still", "--size", "16x16", "--catalog", cache, "-o", out)
+			hostileExpect(t, code, msg, []string{"bad.skyc", c.want}, dir, "good.skyc", "bad.skyc")
+			cr, err := catalog.OpenChunks(cache, 1)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer cr.Close()
+			if _, err := cr.Next(); err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Errorf("chunk reader: %v, want an error saying %q", err, c.want)
+			}
+		})
+	}
+}
+
+// utf16LE encodes ASCII s as UTF-16LE (RFC 2781), with the byte-order mark
+// FF FE when bom.
+func utf16LE(s string, bom bool) []byte {
+	var b []byte
+	if bom {
+		b = append(b, 0xff, 0xfe)
+	}
+	for _, c := range []byte(s) {
+		b = append(b, c, 0)
+	}
+	return b
+}
+
+// TestCatalogueMessagesAndStrictness (item 11): hexadecimal floats are not
+// magnitudes; duplicate column names are refused instead of resolved
+// silently; UTF-16 tables are named as such (they were reported as "none
+// named ra"); an RA of 24h in BSC5 names the RA field (it was labelled
+// DEd). Each is status 2 naming the file and what is wrong.
+func TestCatalogueMessagesAndStrictness(t *testing.T) {
+	bsc := hostileReplace(t, "bsc5_good.dat", 1, func(l string) string {
+		return splice(splice(splice(l, 76, 77, "23"), 78, 79, "59"), 80, 83, "60.0")
+	})
+	cases := []struct {
+		name string
+		file string
+		body []byte
+		args []string
+		want []string
+	}{
+		{"hex float magnitude", "hex.csv", []byte("ra,dec,vmag\n10,20,0x1p2\n"), nil, []string{"hex.csv:2", "vmag", "decimal"}},
+		{"digit separators", "sep.csv", []byte("ra,dec,vmag\n10,20,0x_1p2\n"), nil, []string{"sep.csv:2", "vmag"}},
+		{"duplicate column", "dup.csv", []byte("ra,dec,vmag,VMag\n10,20,3,4\n"), nil, []string{"dup.csv:1", "duplicate column", "3 and 4"}},
+		{"UTF-16 with BOM", "u16.csv", utf16LE("ra,dec,vmag\n10,20,3\n", true), nil, []string{"u16.csv", "UTF-16"}},
+		{"UTF-16 with BOM, format given", "u16.csv", utf16LE("ra,dec,vmag\n10,20,3\n", true), []string{"--catalog-format", "csv"}, []string{"u16.csv", "UTF-16"}},
+		{"UTF-16 without BOM, format given", "u16.csv", utf16LE("ra,dec,vmag\n10,20,3\n", false), []string{"--catalog-format", "csv"}, []string{"u16.csv", "UTF-16"}},
+		{"BSC5 RA of 24h", "bsc5.dat", bsc, nil, []string{"bsc5.dat:1", "RAh", "24h"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			dir := t.TempDir()
+			p := hostileFile(t, dir, c.file, c.body)
+			args := append([]string{"catalog", "inspect", p}, c.args...)
+			code, msg := hostileRun(t, args...)
+			hostileExpect(t, code, msg, c.want, dir, c.file)
+		})
 	}
 }
