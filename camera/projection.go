@@ -247,6 +247,16 @@ func (p Projection) Centre() r3.Vec {
 	return fr.f
 }
 
+// ImageCircle returns the centre and radius, in pixels, of a Fisheye's
+// image circle: centred on the frame, diameter min(Width, Height). ok is
+// false for the other kinds.
+func (p Projection) ImageCircle() (cx, cy, r float64, ok bool) {
+	if p.Kind != Fisheye {
+		return 0, 0, 0, false
+	}
+	return float64(p.Width) / 2, float64(p.Height) / 2, float64(min(p.Width, p.Height)) / 2, true
+}
+
 // CentreOrientation returns the orthonormal basis at the image centre:
 // Forward toward Centre, Right along +x, Up along −y there. It equals Orient
 // (or DefaultOrientation) except for a tilted Fisheye. For Cube it is the

@@ -225,7 +225,7 @@ var Defs = []Def{
 		},
 		ptr: func(o *Options) any { return &o.Label }},
 	{Name: "hud", Table: OverlaysTable, Type: Text, Arg: "CORNER",
-		Help: "show a heads-up display in a corner: top-left, top-right, bottom-left, bottom-right (or tl, tr, bl, br)",
+		Help: "show a heads-up display in a corner: top-left, top-right, bottom-left, bottom-right (or tl, tr, bl, br); in a fisheye frame it sits in the dome's front safe area (bottom: low, top: high, left/right: turned toward that side)",
 		Check: func(o *Options) error {
 			if o.HUD == "" {
 				return nil
@@ -245,6 +245,15 @@ var Defs = []Def{
 			return nil
 		},
 		ptr: func(o *Options) any { return &o.HUDTitle }},
+	{Name: "text-size", Table: OverlaysTable, Type: Number, Arg: "PT", Default: strconv.FormatFloat(overlay.DefaultTextSize, 'g', -1, 64),
+		Help: "size of label and heads-up display text in points (a point is a pixel up to a 720-pixel short side, proportionally more above)",
+		Check: func(o *Options) error {
+			if !(o.TextSize > 0 && o.TextSize <= overlay.MaxTextSize) {
+				return fmt.Errorf("%g: want points with 0 < size ≤ %g", o.TextSize, overlay.MaxTextSize)
+			}
+			return nil
+		},
+		ptr: func(o *Options) any { return &o.TextSize }},
 }
 
 func dirCheck(get func(*Options) string, allow DirSet) func(*Options) error {

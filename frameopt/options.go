@@ -49,6 +49,7 @@ type Options struct {
 	Label           []string
 	HUD             string
 	HUDTitle        string
+	TextSize        float64 // label and HUD text, overlay points; 0: overlay.DefaultTextSize
 }
 
 // Type is the kind of value an option holds.

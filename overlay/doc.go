@@ -23,12 +23,31 @@
 // Sizes of strokes and text scale with the frame: one overlay "point" is
 // one pixel up to a 720-pixel short side, proportionally more above.
 //
+// # Fulldome frames
+//
+// A fisheye frame is a domemaster (Dome Master Show File Format 1.0,
+// sec. II, Fulldome Standards group, fulldome.org): the image centre is
+// the dome's zenith, the bottom of the frame its front, left and right
+// those of a viewer at the centre facing the front. DomeAzAlt gives the
+// dome azimuth (from the front, positive to the viewer's right) and
+// altitude of a pixel. There, nothing is drawn outside the image circle,
+// labels are placed wholly inside it, and the heads-up display goes into
+// the convention's unidirectional safe area (FrontSafeArea: ±50° azimuth,
+// 10–60° altitude), turned about the centre so its lines run level along
+// the dome; if it cannot fit even at half size, Draw and CheckHUDFit
+// return an error wrapping ErrHUDFit. Flat projections keep the corner
+// layout.
+//
+// Label and HUD text is drawn with a dark halo; Options.TextSize scales
+// it (overlay points, default 11).
+//
 // # Order and compositing
 //
-// Draw renders the overlays selected by Options into a transparent RGBA
-// layer, in this order: graticule, D = 1 circle, lattice, markers, labels,
-// heads-up display, and composites that layer over the image (Porter–Duff
-// "over"). Overlays never reach the linear buffer or the FITS data.
+// Layer renders the overlays selected by Options into a transparent RGBA
+// image (alpha-premultiplied, sRGB-encoded colours), in this order:
+// graticule, D = 1 circle, lattice, markers, labels, heads-up display; Draw
+// composites that layer over the frame's image (Porter–Duff "over").
+// Overlays never reach the linear buffer or the FITS data.
 //
 // # Errors
 //

@@ -8,6 +8,8 @@ import (
 
 	"git.sr.ht/~sbinet/gg"
 	"golang.org/x/image/font"
+
+	"github.com/skyframe/skyframe/camera"
 )
 
 // Corner places the heads-up display.
@@ -150,7 +152,108 @@ func hudLayout(v HUDValues, c Corner, w, h int, measure func(string) (float64, f
 	return lines, box{x0, y0, x0 + bw, y0 + bh}, lead
 }
 
-// drawHUD draws the display on a translucent dark panel.
+// hudPlan is a heads-up display laid out for one frame.
+type hudPlan struct {
+	lines []string
+	b     box // the panel, before turning (fisheye)
+	bound box // what the drawn panel covers, for label placement
+	lead  float64
+	face  font.Face
+	scale float64 // overlay points to pixels for this display
+	rot   float64 // fisheye: turn about the image centre, degrees of azimuth
+	fish  bool
+}
+
+// planHUD lays out display v for projection p with text of size points at
+// overlay scale scale. Flat frames: in corner c, shrunk on small frames to
+// at most hudMaxHeight of the height and hudMaxWidth of the width (down to
+// half size). Fisheye frames: in the front safe area (placeDomeHUD), shrunk
+// until it fits, down to half size; below that, an error wrapping
+// ErrHUDFit. setFace selects the face that measure uses.
+func planHUD(p camera.Projection, v HUDValues, c Corner, size, scale float64, measure func(string) (float64, float64), setFace func(font.Face)) (*hudPlan, error) {
+	layout := func(hs float64) (*hudPlan, error) {
+		face, err := newFace(fontMon, DefaultTextSize*hs)
+		if err != nil {
+			return nil, err
+		}
+		setFace(face)
+		lines, b, lead := hudLayout(v, c, p.Width, p.Height, measure, hs)
+		return &hudPlan{lines: lines, b: b, bound: b, lead: lead, face: face, scale: hs}, nil
+	}
+	hs := size / DefaultTextSize * scale
+	if _, _, _, fish := p.ImageCircle(); fish {
+		var last *hudPlan
+		for k := 0; k <= 10; k++ {
+			h, err := layout(hs * (1 - 0.05*float64(k)))
+			if err != nil {
+				return nil, err
+			}
+			if len(h.lines) == 0 {
+				return h, nil
+			}
+			last = h
+			d, ok := placeDomeHUD(p, FrontSafeArea, h.b.x1-h.b.x0, h.b.y1-h.b.y0, c, 2*h.scale)
+			if ok {
+				h.b, h.bound, h.rot, h.fish = d.b, d.bound, d.rot, true
+				return h, nil
+			}
+		}
+		return nil, hudFitError(p, len(last.lines), last.b.x1-last.b.x0, last.b.y1-last.b.y0)
+	}
+	h, err := layout(hs)
+	if err != nil || len(h.lines) == 0 {
+		return h, err
+	}
+	fit := math.Min(hudMaxHeight*float64(p.Height)/(h.b.y1-h.b.y0), hudMaxWidth*float64(p.Width)/(h.b.x1-h.b.x0))
+	if fit < 1 {
+		return layout(hs * math.Max(fit, 0.5))
+	}
+	return h, nil
+}
+
+// CheckHUDFit reports, before anything is rendered, whether display v
+// with text of size points (0: DefaultTextSize) fits projection p: an
+// error wrapping ErrHUDFit when a fisheye frame has no room for it in the
+// front safe area, nil otherwise (flat frames always make room).
+func CheckHUDFit(p camera.Projection, v HUDValues, c Corner, size float64) error {
+	if err := (Options{HUD: &v, HUDCorner: c, TextSize: size}).Validate(); err != nil {
+		return err
+	}
+	if err := p.Prepare(); err != nil {
+		return err
+	}
+	if err := loadFonts(); err != nil {
+		return err
+	}
+	if size == 0 {
+		size = DefaultTextSize
+	}
+	var face font.Face
+	measure := func(s string) (float64, float64) {
+		return float64(font.MeasureString(face, s)) / 64, float64(face.Metrics().Height) / 64
+	}
+	_, err := planHUD(p, v, c, size, overlayScale(p.Width, p.Height), measure, func(f font.Face) { face = f })
+	return err
+}
+
+// draw draws the planned display; in a fisheye frame turned about the
+// image centre by its azimuth, so its text stays upright along the dome's
+// local vertical.
+func (h *hudPlan) draw(dc *gg.Context, p camera.Projection) {
+	if len(h.lines) == 0 {
+		return
+	}
+	if h.fish && h.rot != 0 {
+		cx, cy, _, _ := p.ImageCircle()
+		dc.Push()
+		defer dc.Pop()
+		dc.RotateAbout(-h.rot*math.Pi/180, cx, cy)
+	}
+	drawHUD(dc, h.lines, h.b, h.lead, h.face, h.scale)
+}
+
+// drawHUD draws the display on a translucent dark panel, the text with a
+// dark halo.
 func drawHUD(dc *gg.Context, lines []string, b box, lead float64, face font.Face, scale float64) {
 	if len(lines) == 0 {
 		return
@@ -166,7 +269,9 @@ func drawHUD(dc *gg.Context, lines []string, b box, lead float64, face font.Face
 	asc := float64(face.Metrics().Ascent.Round())
 	pad := 6 * scale
 	for i, l := range lines {
+		x, y := b.x0+pad, b.y0+pad+asc+float64(i)*lead
+		drawHalo(dc, l, x, y, scale)
 		dc.SetRGBA(0.90, 0.93, 0.97, 0.97)
-		dc.DrawString(l, b.x0+pad, b.y0+pad+asc+float64(i)*lead)
+		dc.DrawString(l, x, y)
 	}
 }

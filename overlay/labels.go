@@ -91,9 +91,10 @@ type PlacedLabel struct {
 // placeLabels places each target's label greedily, in order, at the first
 // of eight positions around the star (right, upper right, lower right,
 // left, upper left, lower left, above, below; gap pixels from it) whose box
-// lies inside the w×h image and overlaps no placed label, no blocked box
-// and no labelled star's own dot. A label with no room is skipped.
-func placeLabels(targets []labelTarget, measure func(string) (float64, float64), w, h int, blocked []box, gap float64) []PlacedLabel {
+// passes room (inside the image, or a fisheye's circle) and overlaps no
+// placed label, no blocked box and no labelled star's own dot. A label
+// with no room is skipped.
+func placeLabels(targets []labelTarget, measure func(string) (float64, float64), room func(box) bool, blocked []box, gap float64) []PlacedLabel {
 	occupied := append([]box(nil), blocked...)
 	for _, t := range targets {
 		occupied = append(occupied, box{t.x - gap/2, t.y - gap/2, t.x + gap/2, t.y + gap/2})
@@ -108,7 +109,7 @@ func placeLabels(targets []labelTarget, measure func(string) (float64, float64),
 		}
 		for _, c := range cands {
 			b := box{c[0], c[1], c[0] + tw, c[1] + th}
-			if b.x0 < 0 || b.y0 < 0 || b.x1 > float64(w) || b.y1 > float64(h) {
+			if !room(b) {
 				continue
 			}
 			free := true
@@ -241,7 +242,8 @@ func newFace(f *opentype.Font, size float64) (font.Face, error) {
 }
 
 // drawLabels draws placed labels: a short leader tick toward the star and
-// the text in pale grey over a soft dark shadow.
+// the text in pale grey in a dark halo. scale converts overlay points to
+// pixels for this text size.
 func drawLabels(dc *gg.Context, labels []PlacedLabel, face font.Face, scale float64) {
 	dc.SetFontFace(face)
 	asc := float64(face.Metrics().Ascent.Round())
@@ -253,9 +255,20 @@ func drawLabels(dc *gg.Context, labels []PlacedLabel, face font.Face, scale floa
 		dc.MoveTo(mx, my)
 		dc.LineTo(l.StarX+(bx-l.StarX)*0.8, l.StarY+(by-l.StarY)*0.8)
 		dc.Stroke()
-		dc.SetRGBA(0, 0, 0, 0.7)
-		dc.DrawString(l.Text, l.X0+scale, l.Y0+asc+scale)
+		drawHalo(dc, l.Text, l.X0, l.Y0+asc, scale)
 		dc.SetRGBA(0.88, 0.90, 0.94, 0.95)
 		dc.DrawString(l.Text, l.X0, l.Y0+asc)
+	}
+}
+
+// drawHalo draws s in translucent black at eight points on a circle of
+// 1.2 overlay points around (x, y), a dark halo that keeps the text drawn
+// there next readable over bright stars and lines.
+func drawHalo(dc *gg.Context, s string, x, y, scale float64) {
+	r := math.Max(1, 1.2*scale)
+	dc.SetRGBA(0, 0, 0, 0.45)
+	for k := 0; k < 8; k++ {
+		sn, cs := math.Sincos(float64(k) * math.Pi / 4)
+		dc.DrawString(s, x+r*cs, y+r*sn)
 	}
 }

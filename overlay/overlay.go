@@ -10,6 +10,7 @@ import (
 	"git.sr.ht/~sbinet/gg"
 	"gonum.org/v1/gonum/spatial/r3"
 
+	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/render"
 )
@@ -43,9 +44,29 @@ type Options struct {
 	Lattice LatticeOptions
 	// Labels name stars.
 	Labels LabelOptions
-	// HUD, when not nil, is shown in HUDCorner.
+	// HUD, when not nil, is shown in HUDCorner. In a fisheye frame it
+	// goes into the front safe area instead (FrontSafeArea): bottom
+	// corners low, top corners high on the dome, left and right turned
+	// from the front meridian toward that side.
 	HUD       *HUDValues
 	HUDCorner Corner
+	// TextSize is the size of label and HUD text in overlay points (see
+	// the package doc); 0 means DefaultTextSize. At most MaxTextSize.
+	TextSize float64
+}
+
+// DefaultTextSize is the label and HUD text size, in overlay points, when
+// Options.TextSize is 0; MaxTextSize is the largest accepted.
+const (
+	DefaultTextSize = 11.0
+	MaxTextSize     = 200.0
+)
+
+func (l Options) textSize() float64 {
+	if l.TextSize == 0 {
+		return DefaultTextSize
+	}
+	return l.TextSize
 }
 
 // ErrOverlay reports an overlay that cannot be drawn on the given image.
@@ -79,6 +100,9 @@ func (l Options) Validate() error {
 	if l.HUDCorner < TopLeft || l.HUDCorner > BottomRight {
 		return fmt.Errorf("%w: HUD corner %d", ErrOverlay, int(l.HUDCorner))
 	}
+	if !(l.TextSize >= 0 && l.TextSize <= MaxTextSize) {
+		return fmt.Errorf("%w: text size %g, want 0 < size ≤ %g points (0 for %g)", ErrOverlay, l.TextSize, MaxTextSize, DefaultTextSize)
+	}
 	return nil
 }
 
@@ -88,12 +112,13 @@ func (l Options) overlays() bool {
 		l.Lattice.PerSide > 0 || l.Labels.Brightest > 0 || len(l.Labels.Stars) > 0 || l.HUD != nil
 }
 
-// Draw draws the overlays of l (see Options for the order)
-// onto img, the tone-mapped frame f (same size as f's projection), seen by
-// f.Options.Observer through f.Options.Projection. stars is the star list
-// f was rendered from; it is needed only to look up Labels.Stars. Nothing
-// is drawn when l selects no overlay. Bad options and unknown label names
-// are errors, and then img is left unchanged.
+// Draw draws the overlays of l (see Options for the order) onto img, the
+// tone-mapped frame f (same size as f's projection), seen by
+// f.Options.Observer through f.Options.Projection: it composites Layer over
+// img. stars is the star list f was rendered from; it is needed only to
+// look up Labels.Stars. Nothing is drawn when l selects no overlay. Bad
+// options, unknown label names and a HUD that does not fit (ErrHUDFit) are
+// errors, and then img is left unchanged.
 func Draw(img draw.Image, f *render.Frame, stars *catalog.Stars, l Options) error {
 	if err := l.Validate(); err != nil {
 		return err
@@ -104,62 +129,69 @@ func Draw(img draw.Image, f *render.Frame, stars *catalog.Stars, l Options) erro
 	if f == nil || img == nil {
 		return fmt.Errorf("%w: nil frame or image", ErrOverlay)
 	}
-	p := f.Options.Projection
-	if err := p.Prepare(); err != nil {
+	bnd := img.Bounds()
+	if p := f.Options.Projection; bnd.Dx() != p.Width || bnd.Dy() != p.Height {
+		return fmt.Errorf("%w: image %d×%d, projection %d×%d", ErrOverlay, bnd.Dx(), bnd.Dy(), p.Width, p.Height)
+	}
+	over, err := Layer(f, stars, l)
+	if err != nil {
 		return err
 	}
-	bnd := img.Bounds()
-	if bnd.Dx() != p.Width || bnd.Dy() != p.Height {
-		return fmt.Errorf("%w: image %d×%d, projection %d×%d", ErrOverlay, bnd.Dx(), bnd.Dy(), p.Width, p.Height)
+	draw.Draw(img, bnd, over, image.Point{}, draw.Over)
+	return nil
+}
+
+// Layer returns the overlays of l for frame f alone, on a transparent
+// image of the frame's size: alpha-premultiplied RGBA whose colours are
+// sRGB-encoded like the frame's PNG, ready to be composited "over" it
+// (Porter–Duff) — as Draw does — or written as a separate layer. In a
+// fisheye frame nothing is drawn outside the image circle (its rim is
+// anti-aliased as render.CircleCoverage describes). When l selects no
+// overlay the image is fully transparent. Errors are those of Draw.
+func Layer(f *render.Frame, stars *catalog.Stars, l Options) (*image.RGBA, error) {
+	if err := l.Validate(); err != nil {
+		return nil, err
+	}
+	if f == nil {
+		return nil, fmt.Errorf("%w: nil frame", ErrOverlay)
+	}
+	p := f.Options.Projection
+	if err := p.Prepare(); err != nil {
+		return nil, err
+	}
+	over := image.NewRGBA(image.Rect(0, 0, p.Width, p.Height))
+	if !l.overlays() {
+		return over, nil
 	}
 	obs := f.Options.Observer
 	// Compute everything that can fail before drawing.
 	lines, err := GraticuleLines(p, obs.Boost, l.Graticule)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	var unity []Polyline
 	if l.UnityCircle {
 		if unity, err = UnityCircle(p, obs.Boost); err != nil {
-			return err
+			return nil, err
 		}
 	}
 	beacons, err := LatticeBeacons(p, obs, l.Lattice)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	targets, err := labelTargets(f, stars, l.Labels)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	if err := loadFonts(); err != nil {
-		return err
+		return nil, err
 	}
 	scale := overlayScale(p.Width, p.Height)
-	over := image.NewRGBA(image.Rect(0, 0, p.Width, p.Height))
 	dc := gg.NewContextForRGBA(over)
-
-	var hudLines []string
-	var hudBox box
-	var hudLead float64
-	hudFace, err := newFace(fontMon, 11*scale)
-	if err != nil {
-		return err
-	}
-	hudScale := scale
+	var hud *hudPlan
 	if l.HUD != nil {
-		dc.SetFontFace(hudFace)
-		hudLines, hudBox, hudLead = hudLayout(*l.HUD, l.HUDCorner, p.Width, p.Height, dc.MeasureString, scale)
-		// On a small frame, shrink the display to at most hudMaxHeight of
-		// the height and hudMaxWidth of the width, but not below half size.
-		fit := math.Min(hudMaxHeight*float64(p.Height)/(hudBox.y1-hudBox.y0), hudMaxWidth*float64(p.Width)/(hudBox.x1-hudBox.x0))
-		if fit < 1 {
-			hudScale = scale * math.Max(fit, 0.5)
-			if hudFace, err = newFace(fontMon, 11*hudScale); err != nil {
-				return err
-			}
-			dc.SetFontFace(hudFace)
-			hudLines, hudBox, hudLead = hudLayout(*l.HUD, l.HUDCorner, p.Width, p.Height, dc.MeasureString, hudScale)
+		if hud, err = planHUD(p, *l.HUD, l.HUDCorner, l.textSize(), scale, dc.MeasureString, dc.SetFontFace); err != nil {
+			return nil, err
 		}
 	}
 
@@ -169,8 +201,8 @@ func Draw(img draw.Image, f *render.Frame, stars *catalog.Stars, l Options) erro
 	strokeLines(dc, unity, styleUnity, scale)
 	drawBeacons(dc, beacons, l.Lattice.Spacing, scale)
 	var blocked []box
-	if len(hudLines) > 0 {
-		blocked = append(blocked, hudBox)
+	if hud != nil && len(hud.lines) > 0 {
+		blocked = append(blocked, hud.bound)
 	}
 	if l.Markers.Motion && obs.Boost.Beta() > 0 {
 		if x, y, ok := projectVisible(&p, obs.Boost.Dir()); ok {
@@ -186,16 +218,63 @@ func Draw(img draw.Image, f *render.Frame, stars *catalog.Stars, l Options) erro
 		}
 	}
 	if len(targets) > 0 {
-		face, err := newFace(fontSans, 11*scale)
+		ts := l.textSize() / DefaultTextSize * scale
+		face, err := newFace(fontSans, DefaultTextSize*ts)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		dc.SetFontFace(face)
-		placed := placeLabels(targets, dc.MeasureString, p.Width, p.Height, blocked, 4*scale)
-		drawLabels(dc, placed, face, scale)
+		placed := placeLabels(targets, dc.MeasureString, labelRoom(p, 2*scale), blocked, 4*ts)
+		drawLabels(dc, placed, face, ts)
 	}
-	drawHUD(dc, hudLines, hudBox, hudLead, hudFace, hudScale)
+	if hud != nil {
+		hud.draw(dc, p)
+	}
+	if cx, cy, r, ok := p.ImageCircle(); ok {
+		clipCircle(over, cx, cy, r)
+	}
+	return over, nil
+}
 
-	draw.Draw(img, bnd, over, image.Point{}, draw.Over)
-	return nil
+// labelRoom returns the test a label box must pass: inside the frame, and
+// for a fisheye inside the image circle with margin pixels to spare.
+func labelRoom(p camera.Projection, margin float64) func(box) bool {
+	w, h := float64(p.Width), float64(p.Height)
+	cx, cy, r, fish := p.ImageCircle()
+	return func(b box) bool {
+		if b.x0 < 0 || b.y0 < 0 || b.x1 > w || b.y1 > h {
+			return false
+		}
+		if !fish {
+			return true
+		}
+		for _, q := range [4][2]float64{{b.x0, b.y0}, {b.x1, b.y0}, {b.x0, b.y1}, {b.x1, b.y1}} {
+			if math.Hypot(q[0]-cx, q[1]-cy) > r-margin {
+				return false
+			}
+		}
+		return true
+	}
+}
+
+// clipCircle scales every pixel of the premultiplied layer by its coverage
+// by the image circle, so nothing is left outside it.
+func clipCircle(img *image.RGBA, cx, cy, r float64) {
+	b := img.Rect
+	for j := 0; j < b.Dy(); j++ {
+		row := img.Pix[j*img.Stride : j*img.Stride+4*b.Dx()]
+		for i := 0; i < b.Dx(); i++ {
+			px := row[4*i : 4*i+4 : 4*i+4]
+			if px[3] == 0 {
+				continue
+			}
+			c := render.CircleCoverage(cx, cy, r, i, j)
+			if c >= 1 {
+				continue
+			}
+			for k := range px {
+				px[k] = uint8(float64(px[k])*c + 0.5)
+			}
+		}
+	}
 }

@@ -35,6 +35,10 @@ func layerCases() []layerCase {
 		{"lattice", camera.Pinhole, 160, 90, 100, 0.8, Options{Lattice: LatticeOptions{PerSide: 5, Spacing: 1}}},
 		{"labels", camera.Pinhole, 160, 90, 60, 0.3, Options{Labels: LabelOptions{Brightest: 4, Stars: []string{"Zeta"}}}},
 		{"hud", camera.Pinhole, 320, 180, 60, 0.6, Options{HUD: &hud, HUDCorner: BottomRight}},
+		{"dome", camera.Fisheye, 400, 400, 180, 0.6, Options{Graticule: GraticuleOptions{Frame: GraticuleEquatorial, Step: 20},
+			Markers: MarkerOptions{Motion: true}, Labels: LabelOptions{Brightest: 8}, HUD: &hud, HUDCorner: BottomLeft}},
+		{"dome_large_text", camera.Fisheye, 600, 600, 180, 0.6, Options{Labels: LabelOptions{Brightest: 8}, HUD: &hud,
+			HUDCorner: TopRight, TextSize: 16}},
 	}
 }
 
@@ -158,8 +162,9 @@ func TestPlaceLabels(t *testing.T) {
 		targets = append(targets, labelTarget{strings.Repeat("x", 1+i%5), 20 + float64(i%6)*22, 15 + float64(i/6)*15})
 	}
 	blocked := []box{{100, 0, 160, 30}}
-	a := placeLabels(targets, measure, 160, 90, blocked, 3)
-	b := placeLabels(targets, measure, 160, 90, blocked, 3)
+	room := labelRoom(looking(t, camera.Pinhole, 160, 90, 60, axisX), 0)
+	a := placeLabels(targets, measure, room, blocked, 3)
+	b := placeLabels(targets, measure, room, blocked, 3)
 	if len(a) == 0 || len(a) == len(targets) {
 		t.Fatalf("placed %d of %d labels, want some but not all", len(a), len(targets))
 	}

@@ -5,6 +5,7 @@ import (
 
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/flight"
+	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 )
 
@@ -15,5 +16,5 @@ func isInputError(err error) bool {
 	var ple *flight.PlanError
 	var le *flight.LegError
 	return errors.As(err, &pe) || errors.As(err, &ple) || errors.As(err, &le) ||
-		errors.Is(err, render.ErrNotRegular)
+		errors.Is(err, render.ErrNotRegular) || errors.Is(err, overlay.ErrHUDFit)
 }

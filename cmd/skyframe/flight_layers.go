@@ -63,3 +63,10 @@ func (j *flightJob) frameLayers(fs flight.FrameState, obs camera.Observer) layer
 	_ = obs
 	return l
 }
+
+// wideHUDValues stand for a flight's heads-up display when checking that it
+// fits: every line present, with values as wide as a flight shows.
+func wideHUDValues(title string) overlay.HUDValues {
+	return overlay.HUDValues{Beta: 0.99999999, Gamma: 7071.07, TauYears: 1234.5, TYears: 12345.6, TravelledLy: 12345.6,
+		RemainingLy: 12345.6, RateHome: 1.2345e-4, RateDest: 14142.1, Title: title}
+}

@@ -217,6 +217,13 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 	if job.layers, err = planLayers(plan, index); err != nil {
 		return nil, err
 	}
+	if fs0, err := plan.FrameState(0); err == nil {
+		if p0, err := job.projection(fs0); err == nil {
+			if err := job.layers.checkHUDFit(p0, wideHUDValues(plan.Title), planPath+": overlays.hud"); err != nil {
+				return nil, err
+			}
+		}
+	}
 	if !*plan.Output.PNG && !plan.Output.FITS {
 		return nil, usagef("%s: output: png = false and fits = false: nothing to write", planPath)
 	}

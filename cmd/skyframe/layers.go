@@ -5,6 +5,7 @@ import (
 
 	"gonum.org/v1/gonum/spatial/r3"
 
+	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
@@ -108,6 +109,7 @@ func frameLayers(o *frameopt.Options, sc *scene, opt *render.Options) (layerSet,
 		}
 		l.HUD = &v
 	}
+	l.TextSize = o.TextSize
 	return l, nil
 }
 
@@ -119,4 +121,17 @@ func labelStars(values []string) []string {
 		out[k], _ = splitLabel(v)
 	}
 	return out
+}
+
+// checkHUDFit refuses, before anything renders, a heads-up display that
+// has no room in the front safe area of fisheye projection p (exit
+// status 2, naming where it came from). v stands for the display's values.
+func (l layerSet) checkHUDFit(p camera.Projection, v overlay.HUDValues, where string) error {
+	if l.HUD == nil {
+		return nil
+	}
+	if err := overlay.CheckHUDFit(p, v, l.HUDCorner, l.TextSize); err != nil {
+		return usagef("%s: %v", where, err)
+	}
+	return nil
 }

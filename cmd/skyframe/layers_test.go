@@ -70,6 +70,9 @@ func TestLayerFlagsErrors(t *testing.T) {
 		{[]string{"--hud", "centre"}, "--hud"},
 		{[]string{"--hud-title", "x"}, "--hud"},
 		{[]string{"--mark-destination", "Nosuch"}, "--mark-destination"},
+		{[]string{"--text-size", "0"}, "--text-size"},
+		{[]string{"--text-size", "-4"}, "--text-size"},
+		{[]string{"--text-size", "1000"}, "--text-size"},
 	}
 	for _, c := range cases {
 		_, err := parseLayerFlags(t, c.args...).layers(layerScene(t), nil)

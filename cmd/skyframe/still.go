@@ -44,7 +44,10 @@ Give square sizes; the convention's standard ones include 2048x2048,
 4096x4096 and 8192x8192. The view direction (--look) is at the centre;
 --tilt DEG turns the dome's axis from it toward --up, so the view direction
 appears DEG below the centre, toward the front (the convention suggests a
-nominal camera tilt of 15°).
+nominal camera tilt of 15°). Outside the circle the frame is black. The
+overlays stay inside the circle, and the heads-up display sits in the
+convention's front safe area (±50° azimuth from the front, 10–60° altitude),
+its text level along the dome; a display with no room there is refused.
 
 Examples:
   skyframe still
@@ -260,6 +263,11 @@ func runStill(e *env, args []string) error {
 		return err
 	}
 	spec.credit = namesCredit(sc.index, spec.layers.Labels)
+	if spec.layers.HUD != nil {
+		if err := spec.layers.checkHUDFit(spec.proj, *spec.layers.HUD, "--hud"); err != nil {
+			return err
+		}
+	}
 	start := time.Now()
 	var frame *render.Frame
 	if p.stream != nil {

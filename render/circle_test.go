@@ -1,0 +1,114 @@
+package render
+
+import (
+	"math"
+	"testing"
+
+	"gonum.org/v1/gonum/spatial/r3"
+
+	"github.com/skyframe/skyframe/camera"
+)
+
+// A fisheye frame is black outside its image circle in both encodings (a
+// domemaster projects nothing there [pub: Dome Master Show File Format
+// 1.0, sec. II, fulldome.org]), even where a star on the rim spreads its
+// PSF across it; pixels at least one pixel inside keep their value; the
+// linear buffer is not masked; other projections are not masked.
+func TestFisheyeMaskedOutsideCircle(t *testing.T) {
+	p := proj(t, camera.Fisheye, 64, 64)
+	// A bright star 89.5° from the axis toward the upper right (Right is
+	// −Y, Up is +Z): its PSF crosses the rim into the frame's corner.
+	s := math.Sin(89.5*math.Pi/180) / math.Sqrt2
+	rim := r3.Vec{X: math.Cos(89.5 * math.Pi / 180), Y: -s, Z: s}
+	f, err := Render(one(rim, -3, 6000), Options{Projection: p, FWHM: 3, Exposure: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	plain, img, img16 := f.Buffer.ToNRGBA(ToneShoulder), f.ToNRGBA(ToneShoulder), f.ToNRGBA64(ToneShoulder)
+	spill, lit := 0, 0
+	for j := 0; j < 64; j++ {
+		for i := 0; i < 64; i++ {
+			d := math.Hypot(float64(i)+0.5-32, float64(j)+0.5-32)
+			o := plain.NRGBAAt(i, j)
+			c, c16 := img.NRGBAAt(i, j), img16.NRGBA64At(i, j)
+			if c.A != 255 || c16.A != 0xffff {
+				t.Fatalf("(%d, %d): alpha %d, %d, want opaque", i, j, c.A, c16.A)
+			}
+			switch {
+			case d > 32:
+				if o.R+o.G+o.B > 0 {
+					spill++
+				}
+				if c.R+c.G+c.B > 0 || c16.R+c16.G+c16.B > 0 {
+					t.Errorf("(%d, %d), %.2f px from the centre: lit %v %v", i, j, d, c, c16)
+				}
+			case d <= 31:
+				if c != o {
+					t.Errorf("(%d, %d) inside: have %v, want %v", i, j, c, o)
+				}
+				if o.R > 0 {
+					lit++
+				}
+			}
+		}
+	}
+	if spill == 0 || lit == 0 {
+		t.Fatalf("the test star should light pixels on both sides of the rim (outside %d, inside %d)", spill, lit)
+	}
+	if r, g, b := f.Sum(); !(r+g+b > 0) {
+		t.Error("buffer empty")
+	}
+	// The coverage ramps over the last pixel inside the rim.
+	for _, k := range []struct {
+		i    int
+		want float64
+	}{{0, 0}, {31, 1}, {62, 1}, {63, 0}} {
+		// pixel centres at x = 0.5, 31.5, 62.5, 63.5 on the row through
+		// the centre (y = 31.5 ≈ centre): distance 31.5, 0.5, 30.5, 31.5.
+		if c := CircleCoverage(32, 31.5, 32, k.i, 31); math.Abs(c-math.Max(0, math.Min(1, 32-math.Abs(float64(k.i)+0.5-32)))) > 1e-12 {
+			t.Errorf("coverage of pixel %d: %g", k.i, c)
+		}
+	}
+	if c := CircleCoverage(32, 32, 32, 63, 31); !(c > 0 && c < 1) {
+		t.Errorf("rim pixel coverage %g, want between 0 and 1", c)
+	}
+	// Other projections keep every pixel.
+	q := proj(t, camera.Pinhole, 32, 18)
+	g, err := Render(one(axisX, 0, 6000), Options{Projection: q, FWHM: 3, Exposure: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a, b := g.Buffer.ToNRGBA(ToneShoulder), g.ToNRGBA(ToneShoulder); string(a.Pix) != string(b.Pix) {
+		t.Error("pinhole frame masked")
+	}
+}
+
+// BenchmarkFisheyeToNRGBA: tone mapping, encoding and the circle mask of a
+// 2048² fisheye frame (the mask touches only the pixels near and outside
+// the rim).
+func BenchmarkFisheyeToNRGBA(b *testing.B) {
+	p := proj(b, camera.Fisheye, 2048, 2048)
+	f, err := Render(randomStars(100000, -1, 8, 3), Options{Projection: p, Exposure: 1})
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.Run("masked", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			f.ToNRGBA(ToneShoulder)
+		}
+	})
+	b.Run("mask-only", func(b *testing.B) {
+		img := f.Buffer.ToNRGBA(ToneShoulder)
+		b.ReportAllocs()
+		for b.Loop() {
+			maskNRGBA(img, 1024, 1024, 1024)
+		}
+	})
+	b.Run("unmasked", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			f.Buffer.ToNRGBA(ToneShoulder)
+		}
+	})
+}
