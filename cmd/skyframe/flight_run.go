@@ -109,6 +109,10 @@ func (j *flightJob) render(e *env, resume bool) error {
 // meanLuminance), which catches a flash confined to part of the frame that
 // the whole-frame mean dilutes below threshold.
 func (j *flightJob) flashWarning(w io.Writer, lum map[int]frameLum) {
+	if j.every > 1 {
+		fmt.Fprintf(w, "skyframe: flash check skipped: --every %d renders every %dth frame, not a sequence at the plan's frame rate\n", j.every, j.every)
+		return
+	}
 	seq, first := contiguous(j.frames, lum)
 	if len(seq) < 2 {
 		return

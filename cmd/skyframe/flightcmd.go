@@ -1,10 +1,15 @@
 package main
 
 import (
+	"os"
+
 	"context"
 	"fmt"
+	"github.com/dustin/go-humanize"
 	"io"
+	"math"
 	"path/filepath"
+	"slices"
 	"strings"
 	"time"
 
@@ -15,6 +20,7 @@ import (
 	"github.com/skyframe/skyframe/flight"
 	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/names"
+	"github.com/skyframe/skyframe/render"
 )
 
 const flightHelp = `Usage: skyframe flight PLAN.toml [options]
@@ -68,6 +74,7 @@ Examples:
   skyframe flight samples/plan.toml --frames 0-29 --out /tmp/preview
   skyframe flight samples/plan.toml --shard 2/8 --resume
   skyframe flight samples/plan.toml --verify
+  skyframe flight samples/plan.toml --preview 0.25 --every 10   # into samples/out-preview/
 
 Options:
 `
@@ -80,6 +87,8 @@ type flightFlags struct {
 	verify  bool
 	out     string
 	workers int
+	preview float64
+	every   int
 }
 
 func (f *flightFlags) register(fs *pflag.FlagSet) {
@@ -90,6 +99,8 @@ func (f *flightFlags) register(fs *pflag.FlagSet) {
 	fs.BoolVar(&f.verify, "verify", false, "check the output directory for missing or corrupt frames instead of rendering (exit 1 if any)")
 	fs.StringVar(&f.out, "out", "", "output directory, replacing the plan's output.dir")
 	fs.IntVar(&f.workers, "workers", 0, "goroutines per frame for rendering and PNG compression (0: all CPUs; output does not depend on it)")
+	fs.Float64Var(&f.preview, "preview", 1, "render a preview at this scale of the frame size (0 < SCALE ≤ 1) into OUTPUT-preview (or --out), never touching the real frames")
+	fs.IntVar(&f.every, "every", 1, "render every Nth frame only (N ≥ 1; frames keep their numbers); with N > 1 the output goes to OUTPUT-preview (or --out)")
 }
 
 // flightJob is a parsed, bound and checked plan with everything a render,
@@ -102,7 +113,9 @@ type flightJob struct {
 	outDir  string
 	frames  []int // the frames this invocation handles, ascending
 	shard   flight.Shard
-	frame   frameopt.Frame // the plan's frame options, parsed
+	frame   frameopt.Frame // the plan's frame options, parsed (a preview's size)
+	preview bool           // a reduced render (--preview, --every)
+	every   int            // --every
 	workers int
 	// layers are the plan's overlays (frameLayers specialises them).
 	layers layerSet
@@ -134,6 +147,12 @@ func runFlight(e *env, args []string) error {
 	if f.dryRun && f.verify {
 		return usagef("give only one of --dry-run and --verify")
 	}
+	if !(f.preview > 0 && f.preview <= 1) {
+		return usagef("--preview %v: want a scale 0 < SCALE ≤ 1", f.preview)
+	}
+	if f.every < 1 {
+		return usagef("--every %d: want N ≥ 1", f.every)
+	}
 	job, err := loadFlightJob(e, fs.Arg(0), &f)
 	if err != nil {
 		return err
@@ -147,7 +166,10 @@ func runFlight(e *env, args []string) error {
 		if err := flight.WriteDryRunCSV(e.stdout, job.plan, r); err != nil {
 			return err
 		}
-		return job.comfortWarning(e.stderr, r)
+		if err := job.comfortWarning(e.stderr, r); err != nil {
+			return err
+		}
+		return job.estimate(e)
 	case f.verify:
 		return job.verify(e)
 	}
@@ -185,6 +207,11 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 	if !filepath.IsAbs(job.outDir) {
 		job.outDir = filepath.Join(base, job.outDir)
 	}
+	job.preview = f.preview != 1 || f.every != 1
+	job.every = f.every
+	if job.preview && f.out == "" {
+		job.outDir = filepath.Clean(job.outDir) + "-preview"
+	}
 	if f.out != "" {
 		job.outDir = f.out
 	}
@@ -211,8 +238,23 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 		}
 	}
 	job.frames = job.shard.Frames(total, rng)
+	if f.every > 1 {
+		job.frames = slices.DeleteFunc(job.frames, func(i int) bool { return i%f.every != 0 })
+	}
 	if err := job.checkCamera(); err != nil {
 		return nil, err
+	}
+	if job.preview {
+		fr := &job.frame
+		fr.Width = max(1, int(math.Round(float64(fr.Width)*f.preview)))
+		fr.Height = max(1, int(math.Round(float64(fr.Height)*f.preview)))
+		if fr.Kind == camera.Cube {
+			fr.Width = 6 * fr.Height
+		}
+		// A preview's sidecars record their own hash, so --resume and
+		// --verify in the preview directory never take a preview frame for
+		// a full one, or one preview for another.
+		job.hash = sha256Hex([]byte(fmt.Sprintf("%s preview scale %v every %d", job.hash, f.preview, f.every)))
 	}
 	if job.layers, err = planLayers(plan, index); err != nil {
 		return nil, err
@@ -338,5 +380,50 @@ func (j *flightJob) comfortWarning(w io.Writer, r flight.Range) error {
 		fmt.Fprintf(w, "warning: frames %d-%d: camera motion above the comfort limit (up to %.3g°/s, limit %g°/s; up to %.3g px/frame at the centre, limit %.3g px/frame = the frame width in %g s)\n",
 			s.First, s.Last, s.MaxRateDegS, flight.ComfortDegPerSec, s.MaxScreenPx, limitPx, flight.ComfortCrossingSec)
 	}
+	return nil
+}
+
+// estimate renders one representative frame (the middle one of the job)
+// into a temporary directory, removed afterwards, and prints on e.stderr
+// the measured render time per frame and the disk the job's frames take.
+func (j *flightJob) estimate(e *env) error {
+	if len(j.frames) == 0 {
+		return nil
+	}
+	i := j.frames[len(j.frames)/2]
+	tmp, err := os.MkdirTemp("", "skyframe-estimate-")
+	if err != nil {
+		return err
+	}
+	defer os.RemoveAll(tmp)
+	probe := *j
+	probe.outDir = tmp
+	t0 := time.Now()
+	prep, err := render.Prepare(j.stars)
+	if err != nil {
+		return err
+	}
+	t1 := time.Now()
+	if _, err := probe.renderFrame(prep, &render.PNGEncoder{Workers: j.workers}, i); err != nil {
+		return err
+	}
+	per := time.Since(t1)
+	var bytes int64
+	err = filepath.WalkDir(tmp, func(_ string, d os.DirEntry, err error) error {
+		if err == nil && d.Type().IsRegular() {
+			if info, err := d.Info(); err == nil {
+				bytes += info.Size()
+			}
+		}
+		return err
+	})
+	if err != nil {
+		return err
+	}
+	n := len(j.frames)
+	total := time.Duration(n)*per + t1.Sub(t0)
+	fmt.Fprintf(e.stderr, "estimate: frame %d (%dx%d) rendered and written in %v here (the catalogue prepared once in %v): %d frames ≈ %v; disk ≈ %s (%s for frame %d)\n",
+		i, j.frame.Width, j.frame.Height, per.Round(time.Millisecond), t1.Sub(t0).Round(time.Millisecond), n, fmtDuration(total),
+		humanize.IBytes(uint64(bytes)*uint64(n)), humanize.IBytes(uint64(bytes)), i)
 	return nil
 }

@@ -220,3 +220,58 @@ func TestPlanFrameOptionErrors(t *testing.T) {
 		}
 	}
 }
+
+// --preview and --every render a reduced flight into OUTPUT-preview and
+// never touch the real output; bad values exit 2 and write nothing; the
+// dry run prints a measured estimate.
+func TestFlightPreview(t *testing.T) {
+	dir := t.TempDir()
+	plan := writePlan(t, dir, voyagePlan(12))
+	code, _, errs := runIn(t, "flight", plan, "--preview", "0.5", "--every", "4")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "out")); !os.IsNotExist(err) {
+		t.Errorf("a preview created the real output directory (%v)", err)
+	}
+	ents, err := os.ReadDir(filepath.Join(dir, "out-preview", "frames"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var names []string
+	for _, e := range ents {
+		names = append(names, e.Name())
+	}
+	if want := "00000.json 00000.png 00004.json 00004.png 00008.json 00008.png"; strings.Join(names, " ") != want {
+		t.Errorf("preview files %v, want %s", names, want)
+	}
+	img := decodePNG(t, filepath.Join(dir, "out-preview", "frames", "00004.png"))
+	if b := img.Bounds(); b.Dx() != 32 || b.Dy() != 18 {
+		t.Errorf("preview size %v, want 32x18 (half of 64x36)", b)
+	}
+	// The preview verifies as itself, and the real run is unaffected.
+	if code, _, errs := runIn(t, "flight", plan, "--preview", "0.5", "--every", "4", "--verify"); code != 0 {
+		t.Errorf("verify preview: exit %d: %s", code, errs)
+	}
+	if code, _, _ := runIn(t, "flight", plan, "--verify"); code != 1 {
+		t.Errorf("verify of the unrendered real output: exit %d, want 1", code)
+	}
+	for _, args := range [][]string{{"--preview", "0"}, {"--preview", "1.5"}, {"--preview", "-0.5"}, {"--preview", "NaN"}, {"--every", "0"}, {"--every", "-3"}} {
+		d := t.TempDir()
+		p := writePlan(t, d, voyagePlan(12))
+		code, _, errs := runIn(t, append([]string{"flight", p}, args...)...)
+		if code != 2 || !strings.Contains(errs, args[0]) {
+			t.Errorf("%v: exit %d, %q; want 2 naming %s", args, code, errs, args[0])
+		}
+		if ents, _ := os.ReadDir(d); len(ents) != 1 {
+			t.Errorf("%v: wrote files", args)
+		}
+	}
+	code, out, errs := runIn(t, "flight", plan, "--dry-run")
+	if code != 0 || !strings.Contains(errs, "estimate: frame 6 (64x36) rendered and written in") || !strings.Contains(errs, "12 frames ≈") {
+		t.Errorf("dry run: exit %d, stderr %q", code, errs)
+	}
+	if strings.Contains(out, "estimate") {
+		t.Errorf("the estimate went to stdout (the CSV)")
+	}
+}
