@@ -510,6 +510,20 @@ func (x *Index) Label(i int) string {
 	return LabelText(x.stars.Format, x.stars.ID[i], x.stars.Names[i])
 }
 
+// Name returns the name of row i for tables: its proper name, else its
+// Bayer or Flamsteed designation, else a name the catalogue gives; "" when
+// it has only a catalogue number.
+func (x *Index) Name(i int) string {
+	if p := x.Proper(i); p != "" {
+		return p
+	}
+	nm := x.stars.Names[i]
+	if d, ok := ParseDesignation(nm); ok {
+		return d.String()
+	}
+	return strings.Join(strings.Fields(nm), " ")
+}
+
 // LabelText is Label for a star known only by its catalogue format, id and
 // catalogue name (no proper name): Bayer, else Flamsteed, else the name,
 // else CatalogueID.

@@ -218,7 +218,7 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum.mean, RegionLuminance: lum.regions,
 	}
 	spec := &frameSpec{proj: proj, opt: frame.Options, tone: fr.Tone, depth: fr.Depth, lookDesc: fs.Look.Look, source: "skyframe flight",
-		credit: namesCredit(j.index, lay.Labels)}
+		credit: namesCredit(j.index, labelsShown(lay.Labels))}
 	sc := &scene{stars: j.stars, index: j.index, observer: obs, heading: fs.State.Dir}
 	ff := j.files(i)
 	if ff.png != "" {

@@ -67,11 +67,14 @@ func splitLabel(v string) (star, text string) {
 	return strings.TrimSpace(star), strings.TrimSpace(text)
 }
 
-// namesCredit is the attribution a frame's metadata carries when its
-// labels may show names from the IAU table: names.Credit, else "".
-func namesCredit(x *names.Index, l overlay.LabelOptions) string {
-	if x == nil || x.Table() == nil || (l.Brightest == 0 && len(l.Stars) == 0) {
+// namesCredit is the attribution an output carries when it may show names
+// from the IAU table (shown: it prints names at all): names.Credit, else "".
+func namesCredit(x *names.Index, shown bool) string {
+	if x == nil || x.Table() == nil || !shown {
 		return ""
 	}
 	return names.Credit
 }
+
+// labelsShown reports whether label options draw any label.
+func labelsShown(l overlay.LabelOptions) bool { return l.Brightest > 0 || len(l.Stars) > 0 }

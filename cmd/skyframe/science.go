@@ -255,6 +255,22 @@ func writeFigure(e *env, f *analysis.Figure, path string, sz analysis.Size, svg 
 	return nil
 }
 
+// rangeSpeed is the i-th of n evenly spaced speeds from from to to,
+// rounded to 12 significant digits so that a range reads as people write
+// it (0.27, not 0.26999999999999996, for the 4th of 12 from 0 to 0.99);
+// the last is to exactly.
+func rangeSpeed(from, to float64, i, n int) float64 {
+	if i == n-1 {
+		return to
+	}
+	b := from + (to-from)*float64(i)/float64(n-1)
+	r, err := strconv.ParseFloat(strconv.FormatFloat(b, 'g', 12, 64), 64)
+	if err != nil || !(r >= 0 && r < 1) {
+		return b
+	}
+	return r
+}
+
 func runCensus(e *env, args []string) error {
 	fs := pflag.NewFlagSet("census", pflag.ContinueOnError)
 	fs.SetOutput(e.stderr)
@@ -274,6 +290,7 @@ func runCensus(e *env, args []string) error {
 	steps := fs.Int("steps", 12, "number of speeds in the range (≥ 2)")
 	limit := fs.Float64("limit-mag", analysis.DefaultLimitMag, "limiting magnitude: count stars with observed V′ ≤ this")
 	csvPath := fs.String("csv", "-", "CSV output file ('-': standard output)")
+	pqPath := fs.String("parquet", "", "also write the census as Apache Parquet to this file (same columns)")
 	plotPath := fs.String("plot", "", "also draw the census to this file (.png or .svg)")
 	dpi := fs.Int("dpi", analysis.DefaultDPI, "PNG resolution of --plot, dots per inch")
 	size := fs.String("size", "", "plot size WIDTHxHEIGHT in inches (default 10x7.2)")
@@ -302,11 +319,7 @@ func runCensus(e *env, args []string) error {
 			return usagef("--steps %d: want 2..10000", *steps)
 		}
 		for i := range *steps {
-			b := *from + (*to-*from)*float64(i)/float64(*steps-1)
-			if i == *steps-1 {
-				b = *to
-			}
-			sp = append(sp, analysis.Speed{Beta: b})
+			sp = append(sp, analysis.Speed{Beta: rangeSpeed(*from, *to, i, *steps)})
 		}
 	} else {
 		var err error
@@ -316,6 +329,11 @@ func runCensus(e *env, args []string) error {
 	}
 	if math.IsNaN(*limit) || math.IsInf(*limit, 0) {
 		return usagef("--limit-mag %v: want a finite magnitude", *limit)
+	}
+	if *pqPath != "" {
+		if err := checkWritable("parquet", *pqPath); err != nil {
+			return err
+		}
 	}
 	if *plotPath != "" {
 		switch strings.ToLower(filepath.Ext(*plotPath)) {
@@ -357,6 +375,11 @@ func runCensus(e *env, args []string) error {
 			return usageError{err}
 		}
 		return err
+	}
+	if *pqPath != "" {
+		if err := render.WriteFileAtomic(*pqPath, tab.WriteParquet); err != nil {
+			return err
+		}
 	}
 	if *csvPath == "-" {
 		if err := tab.WriteCSV(e.stdout); err != nil {

@@ -262,7 +262,7 @@ func runStill(e *env, args []string) error {
 	if err := checkMemory(need, budget, "reduce --size, --grid-step or --lattice"); err != nil {
 		return err
 	}
-	spec.credit = namesCredit(sc.index, spec.layers.Labels)
+	spec.credit = namesCredit(sc.index, labelsShown(spec.layers.Labels))
 	if spec.layers.HUD != nil {
 		if err := spec.layers.checkHUDFit(spec.proj, *spec.layers.HUD, "--hud"); err != nil {
 			return err
