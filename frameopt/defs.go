@@ -8,6 +8,8 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/exr"
+	"github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/spectrum"
@@ -113,6 +115,31 @@ var Defs = []Def{
 			return nil
 		},
 		ptr: func(o *Options) any { return &o.Depth }},
+	{Name: "exr-type", Table: CameraTable, Type: Text, Arg: "TYPE", Default: "half",
+		Help: "OpenEXR sample type: half (16-bit float) or float (32-bit; the doppler channel is always float)",
+		Check: func(o *Options) error {
+			if _, err := exr.ParsePixelType(o.EXRType); err != nil {
+				return fmt.Errorf("%q: want half or float", o.EXRType)
+			}
+			return nil
+		},
+		ptr: func(o *Options) any { return &o.EXRType }},
+	{Name: "exr-compression", Table: CameraTable, Type: Text, Arg: "KIND", Default: "zip",
+		Help: "OpenEXR compression: zip (lossless, blocks of 16 lines) or none",
+		Check: func(o *Options) error {
+			if _, err := exr.ParseCompression(o.EXRCompression); err != nil {
+				return fmt.Errorf("%q: want zip or none", o.EXRCompression)
+			}
+			return nil
+		},
+		ptr: func(o *Options) any { return &o.EXRCompression }},
+	{Name: "exr-layers", Table: CameraTable, Type: Text, Arg: "LIST", Default: "all",
+		Help: "OpenEXR layers beside the combined RGB: all (every layer the frame has), none, or a comma-separated list of " + strings.Join(frame.EXRLayerNames, ", "),
+		Check: func(o *Options) error {
+			_, err := frame.ParseEXRLayers(o.EXRLayers)
+			return err
+		},
+		ptr: func(o *Options) any { return &o.EXRLayers }},
 	{Name: "beaming", Table: CameraTable, Type: Text, Arg: "RULE", Default: "exact",
 		Help: "point-source beaming convention: exact (flux ∝ D²), d3, d4 (moving-source conventions of published figures)",
 		Check: func(o *Options) error {

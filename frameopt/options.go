@@ -33,6 +33,11 @@ type Options struct {
 	Depth      int      // PNG bits per channel, 8 (0) or 16
 	Beaming    string   // exact (""), d3, d4
 
+	// OpenEXR output (when a file is asked for: still --exr, plan output.exr).
+	EXRType        string // half (""), float
+	EXRCompression string // zip (""), none
+	EXRLayers      string // all (""), none, or a comma-separated list
+
 	// Overlays ([overlays]).
 	CMB             bool
 	Unresolved      string   // auto (""), on, off

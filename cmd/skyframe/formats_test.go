@@ -1,14 +1,19 @@
 package main
 
 import (
+	"encoding/binary"
 	"encoding/json"
+	"maps"
+	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
 
+	"github.com/skyframe/skyframe/imgfile"
 	"github.com/skyframe/skyframe/internal/extools"
 )
 
@@ -55,5 +60,158 @@ print(repr(str(c.unit)), repr(float(c.header["LUXSCALE"])), c.header["WHITEPT"],
 	}
 	if f[2] != "d50" || f[3] != "stars,cmb,unresolved" { // the built-in sky draws its unresolved light by default
 		t.Errorf("WHITEPT %s, LAYERS %s; want d50, stars,cmb,unresolved", f[2], f[3])
+	}
+}
+
+// oiioChannels reads every channel of an image file with OpenImageIO
+// (Debian python3-openimageio), an independent reader, as float32.
+func oiioChannels(t *testing.T, path string) (map[string][]float32, int, int) {
+	t.Helper()
+	py := extools.Python(t, "python3-openimageio", "OpenImageIO", "numpy")
+	raw := path + ".f32"
+	script := `
+import sys, OpenImageIO as oiio, numpy as np
+inp = oiio.ImageInput.open(sys.argv[1])
+if inp is None:
+    sys.exit("open: " + oiio.geterror())
+spec = inp.spec()
+px = inp.read_image(oiio.FLOAT)
+inp.close()
+print(spec.width, spec.height, " ".join(spec.channelnames))
+np.ascontiguousarray(px, dtype="<f4").tofile(sys.argv[2])
+`
+	out, err := exec.Command(py, "-c", script, path, raw).Output()
+	if err != nil {
+		t.Fatalf("OpenImageIO: %v", err)
+	}
+	f := strings.Fields(string(out))
+	w, _ := strconv.Atoi(f[0])
+	h, _ := strconv.Atoi(f[1])
+	names := f[2:]
+	data, err := os.ReadFile(raw)
+	if err != nil {
+		t.Fatal(err)
+	}
+	nc := len(names)
+	if len(data) != 4*nc*w*h {
+		t.Fatalf("OpenImageIO returned %d bytes for %d×%d×%d", len(data), w, h, nc)
+	}
+	ch := map[string][]float32{}
+	for c, name := range names {
+		v := make([]float32, w*h)
+		for i := range v {
+			v[i] = math.Float32frombits(binary.LittleEndian.Uint32(data[4*(i*nc+c):]))
+		}
+		ch[name] = v
+	}
+	return ch, w, h
+}
+
+// A still's OpenEXR file, read by OpenImageIO: R, G, B equal the FITS
+// data to half-float rounding (IEEE 754 binary16, round to nearest: within
+// 2⁻¹¹ relative, or 2⁻²⁵ absolute below the normal range), the stars and
+// CMB layers sum to them, the Doppler channel is the buffer's, the overlay
+// has alpha where the graticule is drawn; exrheader (Debian openexr) lists
+// the required, standard and skyframe attributes.
+func TestStillEXR(t *testing.T) {
+	exrheader := extools.Command(t, "exrheader", "openexr")
+	dir := t.TempDir()
+	png, fits, exrPath := filepath.Join(dir, "a.png"), filepath.Join(dir, "a.fits"), filepath.Join(dir, "a.exr")
+	if _, errs, code := runCmd(t, "still", "--size", "96x64", "--cmb", "--grid", "radec", "--speed", "0.95",
+		"-o", png, "--fits", fits, "--exr", exrPath); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	ff, err := os.Open(fits)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer ff.Close()
+	fi, err := imgfile.ReadFITS(ff)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ch, w, h := oiioChannels(t, exrPath)
+	if w != fi.Width || h != fi.Height {
+		t.Fatalf("EXR %d×%d, FITS %d×%d", w, h, fi.Width, fi.Height)
+	}
+	for _, name := range []string{"R", "G", "B", "stars.R", "stars.G", "stars.B", "cmb.R", "cmb.G", "cmb.B",
+		"overlay.R", "overlay.G", "overlay.B", "overlay.A", "doppler.D"} {
+		if ch[name] == nil {
+			t.Fatalf("no channel %s in %v", name, slices.Collect(maps.Keys(ch)))
+		}
+	}
+	halfClose := func(got, want float32) bool {
+		d := math.Abs(float64(got) - float64(want))
+		return d <= math.Max(math.Abs(float64(want))/2048, 1.0/(1<<25))
+	}
+	lit, alpha := 0, 0
+	for i := range w * h {
+		for c, name := range []string{"R", "G", "B"} {
+			want := fi.Pix[3*i+c]
+			if got := ch[name][i]; !halfClose(got, want) {
+				t.Fatalf("pixel %d %s: EXR %g, FITS %g", i, name, got, want)
+			}
+			// Each layer is rounded to half on its own.
+			if s := ch["stars."+name][i] + ch["cmb."+name][i]; math.Abs(float64(s-want)) > 2*math.Max(math.Abs(float64(want))/2048, 1.0/(1<<25)) {
+				t.Fatalf("pixel %d %s: stars + cmb = %g, FITS %g", i, name, s, want)
+			}
+		}
+		if d := ch["doppler.D"][i]; d > 0 {
+			lit++
+			if d < 0.05 || d > 40 { // 0.95 c: D from √(0.05/1.95) = 0.16 to √(1.95/0.05) = 6.2
+				t.Fatalf("pixel %d: D = %g", i, d)
+			}
+		}
+		if ch["overlay.A"][i] > 0 {
+			alpha++
+			if ch["overlay.R"][i] > ch["overlay.A"][i]+1e-3 {
+				t.Fatalf("pixel %d: overlay not premultiplied (R %g > A %g)", i, ch["overlay.R"][i], ch["overlay.A"][i])
+			}
+		}
+	}
+	if lit == 0 || alpha == 0 {
+		t.Errorf("%d pixels with a Doppler factor, %d with overlay alpha", lit, alpha)
+	}
+	out, err := exec.Command(exrheader, exrPath).CombinedOutput()
+	if err != nil {
+		t.Fatalf("exrheader: %v\n%s", err, out)
+	}
+	for _, want := range []string{
+		"compression (type compression): zip", "dataWindow (type box2i): (0 0) - (95 63)", "lineOrder (type lineOrder): increasing y",
+		"pixelAspectRatio (type float): 1", "screenWindowCenter (type v2f): (0 0)", "screenWindowWidth (type float): 1",
+		"chromaticities (type chromaticities):", "red   (0.64 0.33)", "white (0.3127 0.329)",
+		"skyframe:beta (type double): 0.95", "skyframe:scalePerLux (type double):", "skyframe:whitePoint (type string): \"d65\"",
+		"skyframe:layers (type stringvector):", "\"cmb\"", "skyframe:beaming (type string): \"exact\"",
+	} {
+		if !strings.Contains(string(out), want) {
+			t.Errorf("exrheader output lacks %q:\n%s", want, out)
+		}
+	}
+}
+
+// Bad EXR options: exit status 2 naming the option, and nothing written.
+func TestStillEXRBadInput(t *testing.T) {
+	dir := t.TempDir()
+	png := filepath.Join(dir, "a.png")
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--exr", png}, "--exr"},
+		{[]string{"--exr", filepath.Join(dir, "a.json")}, "--sidecar"},
+		{[]string{"--exr", filepath.Join(dir, "a.exr"), "--exr-layers", "stars,nebula"}, "--exr-layers"},
+		{[]string{"--exr", filepath.Join(dir, "a.exr"), "--exr-layers", "cmb"}, "--exr-layers"},
+		{[]string{"--exr", filepath.Join(dir, "a.exr"), "--exr-layers", "overlay"}, "--exr-layers"},
+		{[]string{"--exr", filepath.Join(dir, "a.exr"), "--exr-type", "double"}, "--exr-type"},
+		{[]string{"--exr", filepath.Join(dir, "a.exr"), "--exr-compression", "piz"}, "--exr-compression"},
+	} {
+		args := append([]string{"still", "--size", "32x24", "-o", png}, c.args...)
+		_, errs, code := runCmd(t, args...)
+		if code != 2 || !strings.Contains(errs, c.want) {
+			t.Errorf("%v: exit %d, %q; want 2 naming %s", c.args, code, errs, c.want)
+		}
+		if ents, _ := os.ReadDir(dir); len(ents) != 0 {
+			t.Errorf("%v: left %d files", c.args, len(ents))
+		}
 	}
 }

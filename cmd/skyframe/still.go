@@ -8,6 +8,7 @@ import (
 	"io"
 	"math"
 	"path/filepath"
+	"slices"
 	"strings"
 	"time"
 
@@ -16,6 +17,8 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/exr"
+	framefiles "github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
@@ -65,6 +68,7 @@ Options:
 type stillFlags struct {
 	frame                 frameopt.Options
 	output, fits, sidecar string
+	exr                   string
 	noSidecar             bool
 	memory                string
 }
@@ -73,6 +77,7 @@ func (f *stillFlags) register(fs *pflag.FlagSet) {
 	frameopt.Register(fs, &f.frame)
 	fs.StringVarP(&f.output, "output", "o", "sky.png", "PNG file to write")
 	fs.StringVar(&f.fits, "fits", "", "also write the linear buffer as 32-bit float FITS with WCS to this file")
+	fs.StringVar(&f.exr, "exr", "", "also write the linear frame as OpenEXR (scanline; the combined RGB plus the layers of --exr-layers) to this file")
 	fs.StringVar(&f.sidecar, "sidecar", "", "JSON sidecar file (default: the PNG name with .json)")
 	fs.BoolVar(&f.noSidecar, "no-sidecar", false, "do not write the JSON sidecar")
 	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget for the render; a cache-file catalogue (skyframe catalog pack) with more stars than one chunk this budget allows is read from disk chunk by chunk instead of loaded whole, with the same result")
@@ -88,6 +93,7 @@ type frameSpec struct {
 	source   string // command recorded in the PNG "Source" chunk; empty: "skyframe still"
 	layers   layerSet
 	credit   string // attribution of the star names in the labels; empty: none shown
+	exr      framefiles.EXROptions
 }
 
 // checkFrameFlags checks every frame option given on the command line
@@ -211,7 +217,7 @@ func runStill(e *env, args []string) error {
 	if err := checkFrameFlags(fs, &f.frame); err != nil {
 		return err
 	}
-	outputs := outputPaths{png: f.output, fits: f.fits, sidecar: f.sidecar}
+	outputs := outputPaths{png: f.output, fits: f.fits, sidecar: f.sidecar, exr: f.exr}
 	if !f.noSidecar && outputs.sidecar == "" {
 		outputs.sidecar = strings.TrimSuffix(f.output, filepath.Ext(f.output)) + ".json"
 	}
@@ -253,6 +259,12 @@ func runStill(e *env, args []string) error {
 	if spec.layers, err = frameLayers(&f.frame, sc, &spec.opt); err != nil {
 		return err
 	}
+	if outputs.exr != "" {
+		if spec.exr, err = exrOptions(&f.frame); err != nil {
+			return err
+		}
+		spec.opt.Doppler = spec.exr.Layers == nil || slices.Contains(spec.exr.Layers, framefiles.EXRDoppler)
+	}
 	rows := sc.stars.Len()
 	if p.stream != nil {
 		rows = p.stream.Len()
@@ -283,14 +295,20 @@ func runStill(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	if err := spec.layers.AddLinear(frame); err != nil {
+	var kept []render.Contribution
+	if outputs.exr != "" {
+		kept, err = spec.layers.AddLinearKept(frame)
+	} else {
+		err = spec.layers.AddLinear(frame)
+	}
+	if err != nil {
 		return err
 	}
 	took := time.Since(start)
 	if err := e.ctx.Err(); err != nil {
 		return context.Cause(e.ctx)
 	}
-	if err := writeFrame(e.ctx, frame, sc, spec, outputs); err != nil {
+	if err := writeFrame(e.ctx, frame, kept, sc, spec, outputs); err != nil {
 		return err
 	}
 	total := time.Since(start)
@@ -303,14 +321,14 @@ func runStill(e *env, args []string) error {
 }
 
 // outputPaths are the files one frame writes; empty means not written.
-type outputPaths struct{ png, fits, sidecar string }
+type outputPaths struct{ png, fits, sidecar, exr string }
 
 func (o outputPaths) check() error {
 	if o.png == "" {
 		return usagef("--output: a PNG file name is required")
 	}
 	seen := map[string]string{}
-	for _, c := range []struct{ flag, path string }{{"output", o.png}, {"fits", o.fits}, {"sidecar", o.sidecar}} {
+	for _, c := range []struct{ flag, path string }{{"output", o.png}, {"fits", o.fits}, {"exr", o.exr}, {"sidecar", o.sidecar}} {
 		if c.path == "" {
 			continue
 		}
@@ -328,7 +346,7 @@ func (o outputPaths) check() error {
 // writeFrame writes the PNG, FITS and sidecar of a frame as one set: each
 // to a temporary file, and all renamed into place only when every one was
 // written, so a failure never leaves a new image beside an old sidecar.
-func writeFrame(ctx context.Context, frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths) error {
+func writeFrame(ctx context.Context, frame *render.Frame, kept []render.Contribution, sc *scene, spec *frameSpec, out outputPaths) error {
 	side := frame.Sidecar("skyframe", version, sc.stars, spec.tone)
 	spec.layers.sidecarInfo(&side)
 	meta := pngMeta(side, spec)
@@ -356,6 +374,18 @@ func writeFrame(ctx context.Context, frame *render.Frame, sc *scene, spec *frame
 		}
 		if err := set.Add(out.fits, func(w io.Writer) error {
 			return render.WriteFITS(ctxWriter{ctx, w}, frame.W, frame.H, frame.Pix, cards)
+		}); err != nil {
+			return err
+		}
+	}
+	if out.exr != "" {
+		img, err := stillEXR(frame, kept, side, sc, spec)
+		if err != nil {
+			return err
+		}
+		enc := exr.Encoder{Compression: spec.exr.Compression}
+		if err := set.Add(out.exr, func(w io.Writer) error {
+			return enc.Encode(ctxWriter{ctx, w}, img)
 		}); err != nil {
 			return err
 		}
@@ -417,7 +447,7 @@ func printSummary(w io.Writer, frame *render.Frame, sc *scene, spec *frameSpec, 
 		fmt.Fprintf(w, "brightest: %s at V′ = %.2f (D = %.4g, T′ = %.0f K, apparent RA %.3f° Dec %+.3f°)\n", name, s.V, s.D, s.T, s.RA, s.Dec)
 	}
 	files := out.png
-	for _, f := range []string{out.fits, out.sidecar} {
+	for _, f := range []string{out.fits, out.exr, out.sidecar} {
 		if f != "" {
 			files += ", " + f
 		}
