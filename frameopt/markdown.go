@@ -21,6 +21,7 @@ var Elsewhere = []struct{ Flag, Plan string }{
 	{"position", "[start] position or star"},
 	{"output", "output.dir, output.frames, output.png"},
 	{"fits", "output.fits"},
+	{"exr", "— (still only for now)"},
 	{"sidecar", "output.sidecar"},
 	{"no-sidecar", "output.sidecar = false"},
 	{"memory", "— (still only: flights hold the catalogue in memory)"},
