@@ -391,7 +391,7 @@ func readCacheSized(r io.Reader, maxRows int, avail int64) (*Stars, error) {
 			if err != nil {
 				return nil, err
 			}
-			s.Names[int(row)] = nm
+			s.Names[int(row)] = CleanName(nm)
 		}
 	}
 	sum := c.crc

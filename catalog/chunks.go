@@ -181,7 +181,7 @@ func openChunks(f *os.File, path string, chunkRows int) (*ChunkReader, error) {
 		if err != nil {
 			return nil, err
 		}
-		c.names[prev] = nm
+		c.names[prev] = CleanName(nm)
 		c.nameRows = append(c.nameRows, prev)
 	}
 	var one [1]byte

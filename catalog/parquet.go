@@ -1,7 +1,6 @@
 package catalog
 
 import (
-	"bytes"
 	"encoding/binary"
 	"errors"
 	"fmt"
@@ -437,7 +436,7 @@ func readParquetStars(f *parquet.File, labels []string, name string, opt ReadOpt
 			s.Flags = append(s.Flags, Flag(v.Int32()))
 			if s.Names != nil {
 				if nm := vals[used[12]][r].ByteArray(); len(nm) > 0 {
-					s.Names[len(s.ID)-1] = string(bytes.Clone(nm))
+					s.Names[len(s.ID)-1] = CleanName(string(nm))
 				}
 			}
 		}

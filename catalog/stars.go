@@ -3,6 +3,9 @@ package catalog
 import (
 	"fmt"
 	"math"
+	"strings"
+	"unicode"
+	"unicode/utf8"
 )
 
 // Flag records facts about a star that a renderer or a report should know:
@@ -143,8 +146,32 @@ func (s *Stars) Append(st Star) {
 		if s.Names == nil {
 			s.Names = map[int]string{}
 		}
-		s.Names[n] = st.Name
+		s.Names[n] = CleanName(st.Name)
 	}
+}
+
+// CleanName makes a star name safe to print: invalid UTF-8 and control
+// characters (C0 and C1, DEL: Unicode category Cc), which could drive a
+// terminal through escape sequences, become U+FFFD; surrounding blanks are
+// trimmed. Every reader applies it to the names it loads.
+func CleanName(s string) string {
+	clean := true
+	for _, r := range s {
+		if r == utf8.RuneError || unicode.IsControl(r) {
+			clean = false
+			break
+		}
+	}
+	if clean {
+		return strings.TrimSpace(s)
+	}
+	s = strings.ToValidUTF8(s, "\uFFFD")
+	return strings.TrimSpace(strings.Map(func(r rune) rune {
+		if unicode.IsControl(r) {
+			return '\uFFFD'
+		}
+		return r
+	}, s))
 }
 
 // Validate checks that all columns have consistent lengths and that every

@@ -143,9 +143,16 @@ const (
 // found is false when none of these is set. Arrays given as arbitrary index
 // lists (which no K/N can describe) are reported as errors.
 func ShardFromEnv(getenv func(string) string) (sh Shard, found bool, err error) {
-	if v := getenv(EnvShard); v != "" {
+	sh, _, found, err = shardFromEnv(getenv)
+	return sh, found, err
+}
+
+// shardFromEnv is ShardFromEnv that also says which variables gave the
+// shard.
+func shardFromEnv(getenv func(string) string) (sh Shard, src string, found bool, err error) {
+	if v := getenv(EnvShard); v != "" && v != "auto" {
 		sh, err = ParseShard(v)
-		return sh, true, err
+		return sh, EnvShard + "=" + v, true, err
 	}
 	num := func(name string, def int) (int, error) {
 		v := strings.TrimSpace(getenv(name))
@@ -161,63 +168,120 @@ func ShardFromEnv(getenv func(string) string) (sh Shard, found bool, err error) 
 	if getenv("JOB_COMPLETION_INDEX") != "" {
 		k, err := num("JOB_COMPLETION_INDEX", 0)
 		if err != nil {
-			return Shard{}, true, err
+			return Shard{}, "", true, err
 		}
 		n, err := num(EnvShards, -1)
 		if err != nil {
-			return Shard{}, true, err
+			return Shard{}, "", true, err
 		}
 		if n < 0 {
 			if n, err = num("JOB_COMPLETIONS", -1); err != nil {
-				return Shard{}, true, err
+				return Shard{}, "", true, err
 			}
 		}
 		if n < 0 {
-			return Shard{}, true, fmt.Errorf("%w: JOB_COMPLETION_INDEX=%d but neither %s nor JOB_COMPLETIONS gives the shard count",
+			return Shard{}, "", true, fmt.Errorf("%w: JOB_COMPLETION_INDEX=%d but neither %s nor JOB_COMPLETIONS gives the shard count",
 				ErrShard, k, EnvShards)
 		}
 		sh = Shard{k, n}
-		return sh, true, sh.Validate()
+		return sh, fmt.Sprintf("JOB_COMPLETION_INDEX=%d of %d", k, n), true, sh.Validate()
 	}
 	if getenv("SLURM_ARRAY_TASK_ID") != "" {
 		id, err := num("SLURM_ARRAY_TASK_ID", 0)
 		if err != nil {
-			return Shard{}, true, err
+			return Shard{}, "", true, err
 		}
 		lo, err := num("SLURM_ARRAY_TASK_MIN", 0)
 		if err != nil {
-			return Shard{}, true, err
+			return Shard{}, "", true, err
 		}
 		step, err := num("SLURM_ARRAY_TASK_STEP", 1)
 		if err != nil {
-			return Shard{}, true, err
+			return Shard{}, "", true, err
 		}
 		if step < 1 {
-			return Shard{}, true, fmt.Errorf("%w: SLURM_ARRAY_TASK_STEP=%d", ErrShard, step)
+			return Shard{}, "", true, fmt.Errorf("%w: SLURM_ARRAY_TASK_STEP=%d", ErrShard, step)
 		}
 		n, err := num("SLURM_ARRAY_TASK_COUNT", -1)
 		if err != nil {
-			return Shard{}, true, err
+			return Shard{}, "", true, err
 		}
 		if n < 0 {
 			hi, err := num("SLURM_ARRAY_TASK_MAX", -1)
 			if err != nil {
-				return Shard{}, true, err
+				return Shard{}, "", true, err
 			}
 			if hi < lo {
-				return Shard{}, true, fmt.Errorf("%w: SLURM_ARRAY_TASK_ID=%d without SLURM_ARRAY_TASK_COUNT or a valid SLURM_ARRAY_TASK_MAX",
+				return Shard{}, "", true, fmt.Errorf("%w: SLURM_ARRAY_TASK_ID=%d without SLURM_ARRAY_TASK_COUNT or a valid SLURM_ARRAY_TASK_MAX",
 					ErrShard, id)
 			}
 			n = (hi-lo)/step + 1
 		}
 		if (id-lo)%step != 0 {
-			return Shard{}, true, fmt.Errorf("%w: SLURM_ARRAY_TASK_ID=%d is not MIN=%d plus a multiple of STEP=%d", ErrShard, id, lo, step)
+			return Shard{}, "", true, fmt.Errorf("%w: SLURM_ARRAY_TASK_ID=%d is not MIN=%d plus a multiple of STEP=%d", ErrShard, id, lo, step)
 		}
 		sh = Shard{(id - lo) / step, n}
 		if err := sh.Validate(); err != nil {
-			return Shard{}, true, fmt.Errorf("%w (from SLURM_ARRAY_TASK_ID=%d, MIN=%d, STEP=%d: index lists are not supported)", err, id, lo, step)
+			return Shard{}, "", true, fmt.Errorf("%w (from SLURM_ARRAY_TASK_ID=%d, MIN=%d, STEP=%d: index lists are not supported)", err, id, lo, step)
 		}
-		return sh, true, nil
+		return sh, fmt.Sprintf("SLURM_ARRAY_TASK_ID=%d (MIN %d, STEP %d, %d tasks)", id, lo, step, n), true, nil
 	}
-	return Shard{}, false, nil
+	return Shard{}, "", false, nil
+}
+
+// SelectShard decides which shard a run renders, and says why (for the
+// log). Scheduler variables shard a run only when it asks for it, since
+// they are also set for jobs that run skyframe once per task:
+//
+//   - flag "K/N" (--shard): that shard;
+//   - flag "auto", or SKYFRAME_SHARD=auto: the first of SKYFRAME_SHARD,
+//     a Kubernetes Indexed Job, a Slurm array (see ShardFromEnv); none
+//     set is the whole job;
+//   - no flag: SKYFRAME_SHARD="K/N", or JOB_COMPLETION_INDEX when
+//     SKYFRAME_SHARDS gives the count (the Indexed Job set up for
+//     skyframe); otherwise the whole job, and a generic
+//     JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID is ignored and named in
+//     why.
+func SelectShard(flag string, getenv func(string) string) (sh Shard, why string, err error) {
+	whole := Shard{K: 0, N: 1}
+	auto := flag == "auto" || (flag == "" && getenv(EnvShard) == "auto")
+	switch {
+	case flag != "" && flag != "auto":
+		sh, err = ParseShard(flag)
+		return sh, "--shard " + flag, err
+	case auto:
+		how := "--shard auto"
+		if flag == "" {
+			how = EnvShard + "=auto"
+		}
+		sh, src, found, err := shardFromEnv(getenv)
+		if err != nil {
+			return Shard{}, "", err
+		}
+		if !found {
+			return whole, how + ": no scheduler variables set, the whole job", nil
+		}
+		return sh, src + ", " + how, nil
+	}
+	if v := getenv(EnvShard); v != "" {
+		sh, err = ParseShard(v)
+		return sh, EnvShard + "=" + v, err
+	}
+	if getenv(EnvShards) != "" && getenv("JOB_COMPLETION_INDEX") != "" {
+		sh, src, _, err := shardFromEnv(getenv)
+		if err != nil {
+			return Shard{}, "", err
+		}
+		return sh, src + ", " + EnvShards + " set", nil
+	}
+	var ignored []string
+	for _, k := range []string{"JOB_COMPLETION_INDEX", "SLURM_ARRAY_TASK_ID"} {
+		if v := getenv(k); v != "" {
+			ignored = append(ignored, k+"="+v)
+		}
+	}
+	if len(ignored) > 0 {
+		return whole, fmt.Sprintf("the whole job: %s ignored (shard by it with --shard auto or %s=auto)", strings.Join(ignored, ", "), EnvShard), nil
+	}
+	return whole, "", nil
 }

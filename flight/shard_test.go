@@ -2,6 +2,7 @@ package flight
 
 import (
 	"errors"
+	"strings"
 	"testing"
 
 	"pgregory.net/rapid"
@@ -48,6 +49,48 @@ func TestParseShard(t *testing.T) {
 		s, err := ParseShard(c.in)
 		if (err == nil) != c.ok || (c.ok && s != c.want) {
 			t.Errorf("ParseShard(%q) = %v, %v; want %v ok=%v", c.in, s, err, c.want, c.ok)
+		}
+	}
+}
+
+// TestSelectShard: scheduler variables shard a run only when it opts in
+// (--shard auto, SKYFRAME_SHARD=auto, or SKYFRAME_SHARDS for an Indexed
+// Job); a generic SLURM_ARRAY_TASK_ID or JOB_COMPLETION_INDEX alone leaves
+// the whole job and is named in the reason (issue: they used to shard a
+// run that did not ask).
+func TestSelectShard(t *testing.T) {
+	slurm := map[string]string{"SLURM_ARRAY_TASK_ID": "5", "SLURM_ARRAY_TASK_MIN": "1", "SLURM_ARRAY_TASK_COUNT": "10"}
+	with := func(m map[string]string, k, v string) map[string]string {
+		out := map[string]string{k: v}
+		for a, b := range m {
+			out[a] = b
+		}
+		return out
+	}
+	for _, c := range []struct {
+		name, flag string
+		env        map[string]string
+		want       Shard
+		why        string
+		ok         bool
+	}{
+		{"nothing", "", nil, Shard{0, 1}, "", true},
+		{"generic slurm ignored", "", slurm, Shard{0, 1}, "SLURM_ARRAY_TASK_ID=5 ignored", true},
+		{"generic k8s ignored", "", map[string]string{"JOB_COMPLETION_INDEX": "2", "JOB_COMPLETIONS": "4"}, Shard{0, 1}, "JOB_COMPLETION_INDEX=2 ignored", true},
+		{"--shard auto, slurm", "auto", slurm, Shard{4, 10}, "SLURM_ARRAY_TASK_ID=5 (MIN 1, STEP 1, 10 tasks), --shard auto", true},
+		{"SKYFRAME_SHARD=auto, slurm", "", with(slurm, EnvShard, "auto"), Shard{4, 10}, "SKYFRAME_SHARD=auto", true},
+		{"k8s with SKYFRAME_SHARDS", "", map[string]string{"JOB_COMPLETION_INDEX": "2", EnvShards: "4"}, Shard{2, 4}, "JOB_COMPLETION_INDEX=2 of 4", true},
+		{"--shard auto, nothing set", "auto", nil, Shard{0, 1}, "no scheduler variables", true},
+		{"explicit flag wins", "1/2", slurm, Shard{1, 2}, "--shard 1/2", true},
+		{"SKYFRAME_SHARD", "", with(slurm, EnvShard, "3/7"), Shard{3, 7}, "SKYFRAME_SHARD=3/7", true},
+		{"bad flag", "9/2", nil, Shard{}, "", false},
+	} {
+		sh, why, err := SelectShard(c.flag, func(k string) string { return c.env[k] })
+		if (err == nil) != c.ok || (c.ok && (sh != c.want || !strings.Contains(why, c.why))) {
+			t.Errorf("%s: have %v %q %v; want %v containing %q ok=%v", c.name, sh, why, err, c.want, c.why, c.ok)
+		}
+		if c.ok && c.why == "" && why != "" {
+			t.Errorf("%s: reason %q, want none", c.name, why)
 		}
 	}
 }

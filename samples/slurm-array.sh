@@ -1,6 +1,6 @@
 #!/bin/bash
 # Render samples/plan.toml as a Slurm job array: task K of N renders the K-th
-# contiguous block of frames. skyframe reads SLURM_ARRAY_TASK_ID and
+# contiguous block of frames. With --shard auto, skyframe reads SLURM_ARRAY_TASK_ID and
 # SLURM_ARRAY_TASK_COUNT (with SLURM_ARRAY_TASK_MIN/STEP) itself, so the
 # array size is the only place N is given. Frames go to a shared file system;
 # each file is written atomically, and --resume makes a requeued task skip the
@@ -19,4 +19,4 @@
 #SBATCH --requeue
 
 set -euo pipefail
-srun skyframe flight samples/plan.toml --resume --workers "${SLURM_CPUS_PER_TASK:-0}"
+srun skyframe flight samples/plan.toml --shard auto --resume --workers "${SLURM_CPUS_PER_TASK:-0}"

@@ -176,6 +176,20 @@ func printNamed(w io.Writer, x *names.Index) {
 	}
 }
 
+// printSkipped tells, on w (stderr), how many rows of a catalogue were
+// skipped and why, so that no command drops rows without a word; catalog
+// inspect prints the same on stdout as part of its report.
+func printSkipped(w io.Writer, r *catalog.Report) {
+	if r == nil || r.Skipped == 0 {
+		return
+	}
+	var parts []string
+	for _, sk := range r.Skips {
+		parts = append(parts, fmt.Sprintf("%d %s (first at line %d)", sk.Count, sk.Reason, sk.FirstLine))
+	}
+	fmt.Fprintf(w, "skyframe: %s: %d rows skipped: %s\n", r.Source, r.Skipped, strings.Join(parts, ", "))
+}
+
 func printReport(w io.Writer, s *catalog.Stars, r *catalog.Report, took time.Duration) {
 	fmt.Fprintf(w, "file:        %s\n", r.Source)
 	comp := ""
@@ -255,6 +269,7 @@ func catalogPack(e *env, args []string) error {
 		return err
 	}
 	fmt.Fprintf(e.stdout, "%s: %d stars from %s (%s, %d rows skipped)\n", *out, stars.Len(), rep.Source, rep.Format, rep.Skipped)
+	printSkipped(e.stderr, rep)
 	return nil
 }
 

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/binary"
+	"fmt"
 	"hash/crc32"
 	"math"
 	"net/http"
@@ -16,6 +17,7 @@ import (
 	"testing"
 
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/flight"
 )
 
 // Regression tests for the defects of the second robustness audit, one per
@@ -368,5 +370,77 @@ func TestCatalogueMessagesAndStrictness(t *testing.T) {
 			code, msg := hostileRun(t, args...)
 			hostileExpect(t, code, msg, c.want, dir, c.file)
 		})
+	}
+}
+
+// TestSkippedRowsReported (item 11): every command that reads a catalogue
+// says on stderr how many rows it skipped and why (stars used to drop them
+// silently); the output itself is unchanged.
+func TestSkippedRowsReported(t *testing.T) {
+	dir := t.TempDir()
+	cat := hostileFile(t, dir, "gaps.csv", []byte("ra,dec,vmag\n10,20,3\n11,21,\n12,22,4\n"))
+	plan := writePlan(t, dir, fmt.Sprintf("[catalogue]\npath = %q\n", cat)+hostileBasePlan)
+	for _, args := range [][]string{
+		{"stars", "--catalog", cat},
+		{"still", "--size", "16x16", "--catalog", cat, "-o", filepath.Join(dir, "x.png")},
+		{"census", "--catalog", cat, "--speeds", "0", "--csv", filepath.Join(dir, "c.csv")},
+		{"catalog", "pack", cat, "-o", filepath.Join(dir, "c.skyc")},
+		{"flight", plan, "--dry-run"},
+	} {
+		code, _, errs := runIn(t, args...)
+		if code != exitOK {
+			t.Errorf("%s: status %d: %s", args[0], code, errs)
+		}
+		if !strings.Contains(errs, "gaps.csv: 1 rows skipped: 1 no V magnitude (first at line 3)") {
+			t.Errorf("%s: stderr does not report the skipped row:\n%s", args[0], errs)
+		}
+	}
+}
+
+// TestEscapeSequencesInNames (item 11): a star name carrying terminal
+// control sequences (ESC, BEL: ECMA-48 C0 controls) is never printed raw;
+// readers turn control characters into U+FFFD when they load names.
+func TestEscapeSequencesInNames(t *testing.T) {
+	dir := t.TempDir()
+	cat := hostileFile(t, dir, "esc.csv", []byte("ra,dec,vmag,name\n10,20,-1,\"\x1b]0;owned\x07Evil\x1b[2J\"\n30,40,5,Plain\n"))
+	cache := filepath.Join(dir, "esc.skyc")
+	for _, args := range [][]string{
+		{"still", "--size", "64x64", "--speed", "0", "--catalog", cat, "--look", "10,20", "--labels", "2", "-o", filepath.Join(dir, "x.png")},
+		{"catalog", "pack", cat, "-o", cache},
+		{"still", "--size", "64x64", "--speed", "0", "--catalog", cache, "--look", "10,20", "-o", filepath.Join(dir, "y.png")},
+		{"stars", "--catalog", cat, "--format", "tsv"},
+	} {
+		code, out, errs := runIn(t, args...)
+		if code != exitOK {
+			t.Fatalf("%v: status %d: %s", args, code, errs)
+		}
+		if strings.ContainsAny(out+errs, "\x1b\x07") {
+			t.Errorf("%s printed a control character:\n%q", args[0], out+errs)
+		}
+		if args[0] == "still" && !strings.Contains(out, "Evil") {
+			t.Errorf("still does not name the star:\n%s", out)
+		}
+	}
+}
+
+// TestGenericSchedulerVariablesNeedOptIn (item 11): SLURM_ARRAY_TASK_ID or
+// JOB_COMPLETION_INDEX alone no longer shard a flight (they are set for
+// any job in an array); the log says they were ignored and how to use
+// them, and with --shard auto it says which shard was taken and why.
+func TestGenericSchedulerVariablesNeedOptIn(t *testing.T) {
+	dir := t.TempDir()
+	plan := writePlan(t, dir, hostileBasePlan)
+	t.Setenv("SLURM_ARRAY_TASK_ID", "1")
+	t.Setenv("SLURM_ARRAY_TASK_COUNT", "2")
+	t.Setenv(flight.EnvShard, "")
+	t.Setenv(flight.EnvShards, "")
+	t.Setenv("JOB_COMPLETION_INDEX", "")
+	code, out, errs := runIn(t, "flight", plan, "--dry-run")
+	if code != exitOK || strings.Count(out, "\n") != 3 || !strings.Contains(errs, "SLURM_ARRAY_TASK_ID=1 ignored") {
+		t.Errorf("no opt-in: status %d, %d lines, stderr %q", code, strings.Count(out, "\n"), errs)
+	}
+	code, out, errs = runIn(t, "flight", plan, "--dry-run", "--shard", "auto")
+	if code != exitOK || strings.Count(out, "\n") != 2 || !strings.Contains(errs, "shard 1/2: SLURM_ARRAY_TASK_ID=1") {
+		t.Errorf("--shard auto: status %d, %d lines, stderr %q", code, strings.Count(out, "\n"), errs)
 	}
 }

@@ -181,8 +181,9 @@ func TestFlightShardsByteIdentical(t *testing.T) {
 		skyframeProc(t, nil, "flight", plan, "--out", out, "--shard", "0/3"),
 		// Shard 1 from a Kubernetes Indexed Job's environment.
 		skyframeProc(t, []string{"JOB_COMPLETION_INDEX=1", flight.EnvShards + "=3"}, "flight", plan, "--out", out),
-		// Shard 2 from a Slurm job array's environment (--array=0-2).
-		skyframeProc(t, []string{"SLURM_ARRAY_TASK_ID=2", "SLURM_ARRAY_TASK_COUNT=3"}, "flight", plan, "--out", out),
+		// Shard 2 from a Slurm job array's environment (--array=0-2),
+		// opted into with SKYFRAME_SHARD=auto.
+		skyframeProc(t, []string{"SLURM_ARRAY_TASK_ID=2", "SLURM_ARRAY_TASK_COUNT=3", flight.EnvShard + "=auto"}, "flight", plan, "--out", out),
 	}
 	outputs := make([]*bytes.Buffer, len(cmds))
 	for i, c := range cmds {

@@ -95,7 +95,7 @@ func (f *flightFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&f.frames, "frames", "", "frame range A-B (0-based, inclusive), A- (to the end) or A (one frame); default all")
 	fs.BoolVar(&f.dryRun, "dry-run", false, "print the per-frame state as CSV ("+strings.Join(flight.DryRunColumns, ", ")+") and render nothing")
 	fs.BoolVar(&f.resume, "resume", false, "skip frames already rendered intact for this plan")
-	fs.StringVar(&f.shard, "shard", "", "render shard K/N (0-based K); default from the environment, else the whole job")
+	fs.StringVar(&f.shard, "shard", "", "render shard K/N (0-based K), or auto: from a scheduler's variables (Kubernetes Indexed Job, Slurm array); default SKYFRAME_SHARD, else the whole job")
 	fs.BoolVar(&f.verify, "verify", false, "check the output directory for missing or corrupt frames instead of rendering (exit 1 if any)")
 	fs.StringVar(&f.out, "out", "", "output directory, replacing the plan's output.dir")
 	fs.IntVar(&f.workers, "workers", 0, "goroutines per frame for rendering and PNG compression (0: all CPUs; output does not depend on it)")
@@ -187,7 +187,7 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 		return nil, err
 	}
 	base := filepath.Dir(planPath)
-	stars, err := planStars(e.ctx, plan, base)
+	stars, err := planStars(e.ctx, e.stderr, plan, base)
 	if err != nil {
 		return nil, err
 	}
@@ -224,17 +224,17 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 		return nil, usagef("--frames %s: the plan has frames 0-%d", f.frames, total-1)
 	}
 	job.shard = flight.Shard{K: 0, N: 1}
-	if f.shard != "" {
-		if job.shard, err = flight.ParseShard(f.shard); err != nil {
-			return nil, usagef("--shard: %v", err)
-		}
-	} else if !f.verify {
-		sh, found, err := flight.ShardFromEnv(e.getenv)
+	if f.shard != "" || !f.verify {
+		sh, why, err := flight.SelectShard(f.shard, e.getenv)
 		if err != nil {
+			if f.shard != "" {
+				return nil, usagef("--shard %s: %v", f.shard, err)
+			}
 			return nil, usagef("shard from the environment: %v", err)
 		}
-		if found {
-			job.shard = sh
+		job.shard = sh
+		if why != "" {
+			fmt.Fprintf(e.stderr, "skyframe: shard %d/%d: %s\n", sh.K, sh.N, why)
 		}
 	}
 	job.frames = job.shard.Frames(total, rng)
@@ -299,7 +299,7 @@ func planNames(plan *flight.Plan, base string, stars *catalog.Stars) (*names.Ind
 
 // planStars opens the plan's catalogue (relative to the plan's directory)
 // or returns the built-in sky.
-func planStars(ctx context.Context, plan *flight.Plan, base string) (*catalog.Stars, error) {
+func planStars(ctx context.Context, warn io.Writer, plan *flight.Plan, base string) (*catalog.Stars, error) {
 	c := plan.Catalogue
 	if c.Path == "" || c.Path == "builtin" {
 		if c.Format != "" || len(c.Columns) > 0 {
@@ -329,10 +329,11 @@ func planStars(ctx context.Context, plan *flight.Plan, base string) (*catalog.St
 	if !filepath.IsAbs(path) {
 		path = filepath.Join(base, path)
 	}
-	stars, _, err := catalog.OpenContext(ctx, path, opt)
+	stars, rep, err := catalog.OpenContext(ctx, path, opt)
 	if err != nil {
 		return nil, usageError{err}
 	}
+	printSkipped(warn, rep)
 	return stars, nil
 }
 

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"image"
 	"image/png"
+	"io"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -137,7 +138,7 @@ fits = true
 				if err := pl.Bind(nil); err == nil {
 					t.Fatal("bound a plan naming a star without a resolver")
 				}
-				stars, _ := planStars(context.Background(), pl, dir)
+				stars, _ := planStars(context.Background(), io.Discard, pl, dir)
 				if err := pl.Bind(flight.StarsResolver(stars, stars.Find)); err != nil {
 					t.Fatal(err)
 				}

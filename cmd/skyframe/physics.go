@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"io"
 	"math"
 	"strings"
 
@@ -81,7 +82,7 @@ type scene struct {
 	heading  r3.Vec // unit direction of motion (ICRS)
 }
 
-func (p *physicsFlags) resolve(ctx context.Context, fs *pflag.FlagSet) (*scene, error) {
+func (p *physicsFlags) resolve(e *env, fs *pflag.FlagSet) (*scene, error) {
 	if err := checkFinite("epoch", p.epoch); err != nil {
 		return nil, err
 	}
@@ -96,7 +97,7 @@ func (p *physicsFlags) resolve(ctx context.Context, fs *pflag.FlagSet) (*scene, 
 		}
 		stars, err = referencedStars(p.stream, p.refs, table)
 	} else {
-		stars, err = loadStars(ctx, p.catalog, p.catalogFormat, p.columns, p.epoch)
+		stars, err = loadStars(e.ctx, e.stderr, p.catalog, p.catalogFormat, p.columns, p.epoch)
 	}
 	if err != nil {
 		return nil, err
@@ -151,7 +152,7 @@ func (p *physicsFlags) resolve(ctx context.Context, fs *pflag.FlagSet) (*scene, 
 	return sc, nil
 }
 
-func loadStars(ctx context.Context, path, format string, columns []string, epoch float64) (*catalog.Stars, error) {
+func loadStars(ctx context.Context, warn io.Writer, path, format string, columns []string, epoch float64) (*catalog.Stars, error) {
 	if path == "" {
 		if format != "" {
 			return nil, usagef("--catalog-format needs --catalog")
@@ -167,10 +168,11 @@ func loadStars(ctx context.Context, path, format string, columns []string, epoch
 		return nil, err
 	}
 	opt.Epoch = epoch
-	stars, _, err := catalog.OpenContext(ctx, path, opt)
+	stars, rep, err := catalog.OpenContext(ctx, path, opt)
 	if err != nil {
 		return nil, usageError{err}
 	}
+	printSkipped(warn, rep)
 	return stars, nil
 }
 

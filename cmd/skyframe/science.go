@@ -350,7 +350,7 @@ func runCensus(e *env, args []string) error {
 	if err != nil {
 		return usagef("--beaming: %v", err)
 	}
-	stars, err := loadStars(e.ctx, p.catalog, p.catalogFormat, p.columns, p.epoch)
+	stars, err := loadStars(e.ctx, e.stderr, p.catalog, p.catalogFormat, p.columns, p.epoch)
 	if err != nil {
 		return err
 	}

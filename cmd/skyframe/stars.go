@@ -135,7 +135,7 @@ func runStars(e *env, args []string) error {
 			return err
 		}
 	}
-	sc, err := p.resolve(e.ctx, fs)
+	sc, err := p.resolve(e, fs)
 	if err != nil {
 		return err
 	}

@@ -248,7 +248,7 @@ func runStill(e *env, args []string) error {
 		defer p.stream.Close()
 		p.refs = append([]string{f.frame.Look, p.toward, p.position, f.frame.MarkDestination}, labelStars(f.frame.Label)...)
 	}
-	sc, err := p.resolve(e.ctx, fs)
+	sc, err := p.resolve(e, fs)
 	if err != nil {
 		return err
 	}
