@@ -444,3 +444,36 @@ func TestGenericSchedulerVariablesNeedOptIn(t *testing.T) {
 		t.Errorf("--shard auto: status %d, %d lines, stderr %q", code, strings.Count(out, "\n"), errs)
 	}
 }
+
+// TestFlightOutNotADirectory (item 11): --out naming a file is refused
+// with status 2 naming the flag (it used to fail with a bare "mkdir ...:
+// not a directory" and status 1).
+func TestFlightOutNotADirectory(t *testing.T) {
+	dir := t.TempDir()
+	plan := writePlan(t, dir, hostileBasePlan)
+	f := hostileFile(t, dir, "afile", []byte("x"))
+	code, msg := hostileRun(t, "flight", plan, "--out", f)
+	hostileExpect(t, code, msg, []string{"--out", "afile", "not a directory"}, dir, "afile", "plan.toml")
+}
+
+// TestRepositoryPlansRun (item 11): every plan the repository ships
+// (samples and test fixtures not named bad_*) passes the dry run; each
+// bad_* fixture is refused with status 2. testdata/plans/voyage.toml used
+// to fail (labels = "named").
+func TestRepositoryPlansRun(t *testing.T) {
+	plans, _ := filepath.Glob("../../testdata/plans/*.toml")
+	samples, _ := filepath.Glob("../../samples/*.toml")
+	if len(plans) == 0 || len(samples) == 0 {
+		t.Fatal("no plans found")
+	}
+	for _, p := range append(plans, samples...) {
+		code, _, errs := runIn(t, "flight", p, "--dry-run", "--frames", "0-1")
+		want := exitOK
+		if strings.HasPrefix(filepath.Base(p), "bad_") {
+			want = exitUsage
+		}
+		if code != want {
+			t.Errorf("%s: status %d, want %d\n%s", p, code, want, errs)
+		}
+	}
+}

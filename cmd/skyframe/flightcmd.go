@@ -215,6 +215,12 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 	if f.out != "" {
 		job.outDir = f.out
 	}
+	if fi, err := os.Stat(job.outDir); err == nil && !fi.IsDir() {
+		if f.out != "" {
+			return nil, usagef("--out %s: exists and is not a directory", f.out)
+		}
+		return nil, usagef("%s: output.dir %s: exists and is not a directory", planPath, job.outDir)
+	}
 	rng, err := flight.ParseRange(f.frames)
 	if err != nil {
 		return nil, usagef("--frames: %v", err)
