@@ -832,13 +832,17 @@ func parseFramePattern(s string) (frameFormat, error) {
 }
 
 // FrameName returns the file name of frame i relative to the output
-// directory (slash-separated), with its extension replaced by ext (such as
-// ".fits") when ext is not empty.
+// directory (slash-separated), with the extension of its last element
+// replaced by ext (such as ".fits") when ext is not empty: for
+// "{frame:05}/img.png" that is 00000/img.fits. Names of different
+// extensions can still coincide ("frames/{frame}.json" names the PNG
+// 00000.json, the sidecar's name); callers check the set of names a frame
+// writes.
 func (p *Plan) FrameName(i int, ext string) string {
 	ff := p.frameFmt
-	suffix := ff.suffix
-	if ext != "" && !strings.Contains(suffix, "/") {
-		suffix = strings.TrimSuffix(suffix, path.Ext(suffix)) + ext
+	name := ff.prefix + fmt.Sprintf("%0*d", ff.width, i) + ff.suffix
+	if ext != "" {
+		name = strings.TrimSuffix(name, path.Ext(name)) + ext
 	}
-	return ff.prefix + fmt.Sprintf("%0*d", ff.width, i) + suffix
+	return name
 }

@@ -477,3 +477,38 @@ func TestRepositoryPlansRun(t *testing.T) {
 		}
 	}
 }
+
+// TestFlightOutputNamesDistinct (item 1): frame-name patterns under which
+// two outputs share a path are refused with status 2 naming
+// output.frames, before anything renders; they used to write the PNG, FITS
+// and sidecar to one path (the sidecar last) and exit 0. A pattern whose
+// frame number is a directory ("{frame:05}/img.png") gets one file per
+// writer in it.
+func TestFlightOutputNamesDistinct(t *testing.T) {
+	for _, c := range []struct{ name, keys string }{
+		{"sidecar's extension", `frames = "frames/{frame}.json"`},
+		{"double extension", `frames = "frames/{frame}.png.json"`},
+		{"FITS extension with fits", "frames = \"frames/{frame}.fits\"\nfits = true"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			dir := t.TempDir()
+			plan := writePlan(t, dir, hostileBasePlan+c.keys+"\n")
+			code, msg := hostileRun(t, "flight", plan)
+			hostileExpect(t, code, msg, []string{"output.frames", "would both be"}, dir, "plan.toml")
+		})
+	}
+	dir := t.TempDir()
+	plan := writePlan(t, dir, hostileBasePlan+"frames = \"{frame:05}/img.png\"\nfits = true\n")
+	if code, _, errs := runIn(t, "flight", plan); code != exitOK {
+		t.Fatalf("status %d: %s", code, errs)
+	}
+	for _, n := range []string{"img.png", "img.fits", "img.json"} {
+		b, err := os.ReadFile(filepath.Join(dir, "out", "00001", n))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if kind := map[string]string{"img.png": "\x89PNG", "img.fits": "SIMPLE", "img.json": "{"}[n]; !bytes.HasPrefix(b, []byte(kind)) {
+			t.Errorf("%s does not hold its own format: %.20q", n, b)
+		}
+	}
+}

@@ -10,6 +10,7 @@ import (
 	"image/draw"
 	"io"
 	"os"
+	"path"
 	"path/filepath"
 	"strconv"
 
@@ -82,6 +83,48 @@ func (j *flightJob) files(i int) frameFiles {
 		f.sidecar = f.fits + ".json"
 	}
 	return f
+}
+
+// outFile is one file a frame writes: which writer, and where (relative
+// to the output directory, slash-separated).
+type outFile struct{ what, rel string }
+
+// list names every file of the frame, for every writer. A new writer adds
+// its file here so that checkOutputNames covers it.
+func (f frameFiles) list() []outFile {
+	var out []outFile
+	for _, c := range []outFile{{"PNG", f.png}, {"FITS", f.fits}, {"sidecar", f.sidecar}} {
+		if c.rel != "" {
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
+// checkOutputNames refuses, before anything renders, a frame-name pattern
+// under which two files would share a path: two writers of one frame
+// (output.frames = "frames/{frame}.json" names the PNG like the sidecar,
+// which would be written last over it) or files of different frames. It
+// compares the files of the first two and last two frames of the plan,
+// which any clash between frame numbers of different widths shows.
+func (j *flightJob) checkOutputNames(planPath string) error {
+	total := j.plan.Frames()
+	seen := map[string]string{}
+	for _, i := range []int{0, 1, total - 2, total - 1} {
+		if i < 0 || i >= total {
+			continue
+		}
+		for _, f := range j.files(i).list() {
+			key := path.Clean(f.rel)
+			this := fmt.Sprintf("frame %d's %s", i, f.what)
+			if prev, dup := seen[key]; dup && prev != this {
+				return usagef("%s: output.frames %q: %s and %s would both be %s; use a pattern whose extension no other output uses, such as \"frames/{frame:05}.png\"",
+					planPath, j.plan.Output.Frames, prev, this, f.rel)
+			}
+			seen[key] = this
+		}
+	}
+	return nil
 }
 
 func (j *flightJob) path(rel string) string { return filepath.Join(j.outDir, filepath.FromSlash(rel)) }

@@ -244,6 +244,9 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 		}
 	}
 	job.frames = job.shard.Frames(total, rng)
+	if err := job.checkOutputNames(planPath); err != nil {
+		return nil, err
+	}
 	if f.every > 1 {
 		job.frames = slices.DeleteFunc(job.frames, func(i int) bool { return i%f.every != 0 })
 	}
