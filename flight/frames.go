@@ -7,6 +7,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
 	"strconv"
 
 	"gonum.org/v1/gonum/spatial/r3"
@@ -60,13 +61,28 @@ func (p *Plan) Frames() int { return p.nHold0 + p.nFly + p.nHold1 }
 // (Show.Spacing), the first at the start and the last at the end of the
 // trajectory; hold frames repeat the start or end state.
 func (p *Plan) FrameState(i int) (FrameState, error) {
+	return p.FrameStateAt(i, 0)
+}
+
+// FrameStateAt is the state at dt frame intervals from frame i (|dt| ≤ ½:
+// within the frame's exposure), for motion blur: the video time is
+// (i + dt)/fps, the flight clock moves on by dt frame steps (held at the
+// trajectory's ends and during holds), and the camera keys are evaluated at
+// that time. FrameStateAt(i, 0) is FrameState(i), to the bit.
+func (p *Plan) FrameStateAt(i int, dt float64) (FrameState, error) {
 	if p.traj == nil {
 		return FrameState{}, ErrUnbound
 	}
 	if i < 0 || i >= p.Frames() {
 		return FrameState{}, fmt.Errorf("%w: frame %d of %d", ErrRange, i, p.Frames())
 	}
+	if !(dt >= -0.5 && dt <= 0.5) {
+		return FrameState{}, fmt.Errorf("%w: frame offset %v outside [-0.5, 0.5]", ErrRange, dt)
+	}
 	fs := FrameState{Index: i, Seconds: float64(i) / p.Show.FPS}
+	if dt != 0 {
+		fs.Seconds = (float64(i) + dt) / p.Show.FPS
+	}
 	tr := p.traj
 	switch k := i - p.nHold0; {
 	case k < 0:
@@ -75,13 +91,14 @@ func (p *Plan) FrameState(i int) (FrameState, error) {
 		fs.Phase, fs.State = PhaseHoldEnd, tr.End()
 	default:
 		fs.Phase = PhaseFlight
+		kf := float64(k) + dt
 		u := 0.0
 		if p.nFly > 1 {
-			u = float64(k) / float64(p.nFly-1)
+			u = math.Max(0, math.Min(1, kf/float64(p.nFly-1)))
 		}
 		s0, s1 := tr.Start(), tr.End()
 		switch {
-		case k == p.nFly-1 && p.nFly > 1:
+		case (k == p.nFly-1 && dt >= 0 || u == 1) && p.nFly > 1:
 			fs.State = s1
 		case p.spacing == SpacingCatalogue:
 			fs.State = tr.AtT(s0.T + u*(s1.T-s0.T))

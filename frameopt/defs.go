@@ -21,6 +21,10 @@ const (
 	OverlaysTable = "overlays"
 )
 
+// DefaultShutter is the shutter angle in degrees when none is given: half
+// the frame interval, the film convention (common practice).
+const DefaultShutter = 180.0
+
 // Defs is the table of every frame option, in help order.
 var Defs = []Def{
 	{Name: "look", Table: CameraTable, Type: Text, Arg: "DIR", Default: "ahead", Dirs: AnyDir, Keyed: true,
@@ -150,6 +154,15 @@ var Defs = []Def{
 		},
 		ptr: func(o *Options) any { return &o.Beaming }},
 
+	{Name: "shutter", Table: CameraTable, Type: Magnitude, Arg: "DEG", Default: strconv.FormatFloat(DefaultShutter, 'g', -1, 64),
+		Help: "shutter angle in degrees of the frame interval (0 off, 360 the whole interval): a flight frame integrates the sky over that part of the interval around its time, so moving stars streak (motion blur); a still is one instant and does not move",
+		Check: func(o *Options) error {
+			if o.Shutter == nil {
+				return nil
+			}
+			return inRange(*o.Shutter, 0, 360)
+		},
+		ptr: func(o *Options) any { return &o.Shutter }},
 	{Name: "cmb", Table: OverlaysTable, Type: Switch, Default: "false",
 		Help: "add the cosmic microwave background at its true surface brightness (in the PNG and the FITS)",
 		ptr:  func(o *Options) any { return &o.CMB }},

@@ -32,6 +32,7 @@ type Options struct {
 	FWHM       float64  // pixels; 0: render.DefaultFWHM
 	Depth      int      // PNG bits per channel, 8 (0) or 16
 	Beaming    string   // exact (""), d3, d4
+	Shutter    *float64 // degrees of the frame interval; nil: DefaultShutter
 
 	// OpenEXR output (when a file is asked for: still --exr, plan output.exr).
 	EXRType        string // half (""), float
@@ -67,7 +68,7 @@ const (
 	Text                  // string
 	Switch                // bool
 	List                  // []string (repeatable flag, TOML array of strings)
-	Magnitude             // *float64, nil meaning "not set"
+	Magnitude             // *float64, nil meaning "not set" (any optional number)
 )
 
 var typeNames = [...]string{"number", "integer", "text", "true/false", "list of text", "number"}

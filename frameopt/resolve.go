@@ -20,6 +20,7 @@ type Frame struct {
 	White         spectrum.WhitePoint
 	Beaming       spectrum.Beaming
 	Depth         int
+	Shutter       float64 // degrees of the frame interval
 }
 
 // Check validates every option; given reports which were set explicitly
@@ -52,6 +53,10 @@ func (o *Options) Frame() Frame {
 		f.Exposure = *o.Exposure
 	} else {
 		f.Exposure, _ = presetExposure(o.Preset)
+	}
+	f.Shutter = DefaultShutter
+	if o.Shutter != nil {
+		f.Shutter = *o.Shutter
 	}
 	if f.FWHM == 0 {
 		f.FWHM = render.DefaultFWHM

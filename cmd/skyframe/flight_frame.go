@@ -9,6 +9,7 @@ import (
 	"image"
 	"image/draw"
 	"io"
+	"math"
 	"os"
 	"path"
 	"path/filepath"
@@ -16,6 +17,7 @@ import (
 
 	"gonum.org/v1/gonum/spatial/r3"
 
+	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/flight"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
@@ -50,8 +52,12 @@ type flightInfo struct {
 	MeanLuminance float64 `json:"mean_luminance"`
 	// RegionLuminance holds the mean relative luminance of each of the
 	// flashRegions² overlapping windows (see regionLuminance), row by row.
-	RegionLuminance []float64    `json:"region_luminance,omitempty"`
-	Files           []fileRecord `json:"files"`
+	RegionLuminance []float64 `json:"region_luminance,omitempty"`
+	// Shutter is the shutter angle in degrees; BlurSamples the sub-frames
+	// integrated over the exposure (1: the frame's instant only).
+	Shutter     float64      `json:"shutter_deg"`
+	BlurSamples int          `json:"blur_samples"`
+	Files       []fileRecord `json:"files"`
 }
 
 // fileRecord names an image file of the frame (relative to the output
@@ -232,14 +238,8 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	fr := j.frame
-	opt := render.Options{Projection: proj, Observer: obs, Beaming: fr.Beaming, FWHM: fr.FWHM,
-		Exposure: fs.Camera.Exposure, Limit: fr.Limit, Color: spectrum.ColorOptions{White: fr.White}, Workers: j.workers}
-	frame, err := prep.Render(opt)
+	frame, lay, blur, err := j.renderLinear(prep, fs, obs, proj)
 	if err != nil {
-		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
-	}
-	lay := j.frameLayers(fs, obs)
-	if err := lay.AddLinear(frame); err != nil {
 		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	side := frame.Sidecar("skyframe", version, j.stars, fr.Tone)
@@ -259,6 +259,7 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 		VideoSeconds: fs.Seconds, ShipYears: fs.State.Tau, CatalogueYrs: fs.State.T,
 		RateHome: home, RateDest: dest, TravelledPc: fs.State.Travelled, RemainingPc: fs.State.Remaining,
 		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum.mean, RegionLuminance: lum.regions,
+		Shutter: fr.Shutter, BlurSamples: len(blur),
 	}
 	spec := &frameSpec{proj: proj, opt: frame.Options, tone: fr.Tone, depth: fr.Depth, lookDesc: fs.Look.Look, source: "skyframe flight",
 		credit: namesCredit(j.index, labelsShown(lay.Labels))}
@@ -421,4 +422,77 @@ func globEscape(s string) string {
 		b.WriteRune(r)
 	}
 	return b.String()
+}
+
+// renderLinear renders the linear buffer of frame state fs (observer obs,
+// projection proj) with its layers, integrated over the shutter: the mean
+// of the sub-frames flight.Plan.BlurSamples asks for, each a full render of
+// its instant (stars and diffuse layers), summed in a fixed order so the
+// result depends only on the plan and the frame. The frame's options,
+// projection and observer are those of the frame's own instant, and its
+// star statistics those of the sub-frame nearest to it.
+func (j *flightJob) renderLinear(prep *render.Prepared, fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, layerSet, []float64, error) {
+	fr := j.frame
+	one := func(fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, layerSet, error) {
+		opt := render.Options{Projection: proj, Observer: obs, Beaming: fr.Beaming, FWHM: fr.FWHM,
+			Exposure: fs.Camera.Exposure, Limit: fr.Limit, Color: spectrum.ColorOptions{White: fr.White}, Workers: j.workers}
+		frame, err := prep.Render(opt)
+		if err != nil {
+			return nil, layerSet{}, err
+		}
+		lay := j.frameLayers(fs, obs)
+		if err := lay.AddLinear(frame); err != nil {
+			return nil, layerSet{}, err
+		}
+		return frame, lay, nil
+	}
+	offsets, _, err := j.plan.BlurSamples(fs.Index, fr.Shutter, fr.FWHM, j.projection)
+	if err != nil {
+		return nil, layerSet{}, nil, err
+	}
+	if len(offsets) == 1 && offsets[0] == 0 {
+		frame, lay, err := one(fs, obs, proj)
+		return frame, lay, offsets, err
+	}
+	var acc []float32
+	var nearest *render.Frame
+	best := math.Inf(1)
+	for _, dt := range offsets {
+		fsk, err := j.plan.FrameStateAt(fs.Index, dt)
+		if err != nil {
+			return nil, layerSet{}, nil, err
+		}
+		obsk, err := flight.Observer(fsk.State)
+		if err != nil {
+			return nil, layerSet{}, nil, err
+		}
+		projk, err := j.projection(fsk)
+		if err != nil {
+			return nil, layerSet{}, nil, err
+		}
+		fk, _, err := one(fsk, obsk, projk)
+		if err != nil {
+			return nil, layerSet{}, nil, err
+		}
+		if acc == nil {
+			acc = fk.Pix
+		} else {
+			for p, v := range fk.Pix {
+				acc[p] += v
+			}
+		}
+		if math.Abs(dt) < best {
+			best, nearest = math.Abs(dt), fk
+		}
+	}
+	inv := float32(1 / float64(len(offsets)))
+	for p := range acc {
+		acc[p] *= inv
+	}
+	frame := nearest
+	frame.Pix = acc
+	frame.Doppler = nil
+	frame.Options.Projection, frame.Options.Observer, frame.Options.Exposure = proj, obs, fs.Camera.Exposure
+	lay := j.frameLayers(fs, obs)
+	return frame, lay, offsets, nil
 }

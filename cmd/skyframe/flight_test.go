@@ -60,13 +60,21 @@ func runIn(t *testing.T, args ...string) (int, string, string) {
 	return code, out.String(), errb.String()
 }
 
-// tinyCamera keeps frames at 64×36 so a test renders in milliseconds.
+// tinyCamera keeps frames at 64×36 so a test renders in milliseconds, with
+// the shutter closed (the swings of these plans are fast: blurring them
+// takes many sub-frames); blurTinyCamera opens it to 45°.
 const tinyCamera = `
 [camera]
 width = 64
 height = 36
 fov = 70
+shutter = 0
 `
+
+var blurTinyCamera = strings.Replace(tinyCamera, "shutter = 0", "shutter = 45", 1)
+
+// blurred is a plan with the shutter opened.
+func blurred(plan string) string { return strings.Replace(plan, tinyCamera, blurTinyCamera, 1) }
 
 // writePlan writes a plan file into dir and returns its path.
 func writePlan(t *testing.T, dir, body string) string {
@@ -171,7 +179,7 @@ func reference(t *testing.T, plan string) string {
 // produce the one-process result byte for byte.
 func TestFlightShardsByteIdentical(t *testing.T) {
 	dir := t.TempDir()
-	plan := writePlan(t, dir, voyagePlan(14))
+	plan := writePlan(t, dir, blurred(voyagePlan(14))) // motion-blurred frames too
 	ref := reference(t, plan)
 	if n := len(tree(t, ref)); n != 28 {
 		t.Fatalf("reference run wrote %d files, want 28 (14 frames × PNG + sidecar)", n)
@@ -223,7 +231,7 @@ func waitForFrames(t *testing.T, dir string, n int, deadline time.Duration) {
 // removes stale temporary files.
 func TestFlightResumeAfterKill(t *testing.T) {
 	dir := t.TempDir()
-	plan := writePlan(t, dir, voyagePlan(40))
+	plan := writePlan(t, dir, blurred(voyagePlan(40)))
 	ref := reference(t, plan)
 	out := filepath.Join(dir, "killed")
 	c := skyframeProc(t, []string{envTestPace + "=40ms"}, "flight", plan, "--out", out)

@@ -208,6 +208,8 @@ func TestPlanFrameOptionErrors(t *testing.T) {
 		{"[[camera.look]]\nat = 0\ndepth = 16\n", ":9: camera.look[0].depth: unknown key"},
 		{"[[camera.look]]\nat = 2\n[[camera.look]]\nat = 1\n", ":10: camera.look[1].at:"},
 		{"[[camera.look]]\nat = 0\nexposure = nan\n", ":9: camera.look[0].exposure: is NaN"},
+		{"[camera]\nshutter = 400\n", ":8: camera.shutter: 400: want 0 to 360"},
+		{"[camera]\nshutter = -1\n", ":8: camera.shutter: -1: want 0 to 360"},
 	}
 	for _, c := range cases {
 		dir := t.TempDir()
