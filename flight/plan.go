@@ -186,6 +186,10 @@ type OutputSpec struct {
 	PNG     *bool  `toml:"png"`
 	FITS    bool   `toml:"fits"`
 	Sidecar *bool  `toml:"sidecar"`
+	// OverlayLayer writes each frame's overlays alone to their own RGBA
+	// PNG (the frame's name with .overlay.png), and the frame's PNG
+	// without them.
+	OverlayLayer bool `toml:"overlay_layer"`
 }
 
 // planFile is the whole file.

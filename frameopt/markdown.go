@@ -24,6 +24,7 @@ var Elsewhere = []struct{ Flag, Plan string }{
 	{"exr", "— (still only for now)"},
 	{"sidecar", "output.sidecar"},
 	{"no-sidecar", "output.sidecar = false"},
+	{"overlay-layer", "output.overlay_layer = true"},
 	{"memory", "— (still only: flights hold the catalogue in memory)"},
 }
 

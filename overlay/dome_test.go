@@ -285,3 +285,29 @@ func BenchmarkLayerDome(b *testing.B) {
 		}
 	}
 }
+
+// Straight undoes premultiplication as PNG wants it (W3C PNG, 2nd ed.,
+// §12.4: stored alpha is not premultiplied): c = round(c′·255/α), clamped,
+// transparent pixels zero; and Layer's output is premultiplied (no colour
+// above its alpha).
+func TestStraight(t *testing.T) {
+	src := image.NewRGBA(image.Rect(0, 0, 4, 1))
+	copy(src.Pix, []uint8{100, 50, 0, 200, 9, 9, 9, 0, 10, 20, 30, 255, 129, 0, 0, 128})
+	d := Straight(src)
+	want := []uint8{128, 64, 0, 200, 0, 0, 0, 0, 10, 20, 30, 255, 255, 0, 0, 128}
+	for i := range want {
+		if d.Pix[i] != want[i] {
+			t.Fatalf("have %v, want %v", d.Pix, want)
+		}
+	}
+	f := domeFrame(t, 256, 0)
+	l, err := Layer(f, handmade(), Options{Graticule: GraticuleOptions{Frame: GraticuleGalactic}, Labels: LabelOptions{Brightest: 5}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := 0; i < len(l.Pix); i += 4 {
+		if a := l.Pix[i+3]; l.Pix[i] > a || l.Pix[i+1] > a || l.Pix[i+2] > a {
+			t.Fatalf("pixel %d: %v not premultiplied", i/4, l.Pix[i:i+4])
+		}
+	}
+}

@@ -106,6 +106,9 @@ func (l Options) Validate() error {
 	return nil
 }
 
+// Any reports whether l selects any overlay.
+func (l Options) Any() bool { return l.overlays() }
+
 // overlays reports whether any overlay layer is selected.
 func (l Options) overlays() bool {
 	return l.Graticule.Frame != GraticuleNone || l.UnityCircle || l.Markers.Motion || l.Markers.Destination != nil ||
@@ -277,4 +280,31 @@ func clipCircle(img *image.RGBA, cx, cy, r float64) {
 			}
 		}
 	}
+}
+
+// Straight converts a premultiplied layer (as Layer returns) to straight
+// (non-premultiplied) alpha, as PNG stores it (W3C PNG Specification,
+// Second Edition, §12.4: PNG alpha is not premultiplied). Each colour is
+// rounded from c·255/α; fully transparent pixels become (0, 0, 0, 0).
+func Straight(src *image.RGBA) *image.NRGBA {
+	b := src.Rect
+	dst := image.NewNRGBA(b)
+	for j := 0; j < b.Dy(); j++ {
+		s := src.Pix[j*src.Stride : j*src.Stride+4*b.Dx()]
+		d := dst.Pix[j*dst.Stride : j*dst.Stride+4*b.Dx()]
+		for i := 0; i < len(s); i += 4 {
+			a := uint32(s[i+3])
+			switch a {
+			case 0:
+			case 255:
+				copy(d[i:i+4], s[i:i+4])
+			default:
+				for k := 0; k < 3; k++ {
+					d[i+k] = uint8(min(255, (uint32(s[i+k])*255+a/2)/a))
+				}
+				d[i+3] = uint8(a)
+			}
+		}
+	}
+	return dst
 }

@@ -14,6 +14,7 @@ import (
 	"path"
 	"path/filepath"
 	"strconv"
+	"strings"
 
 	"gonum.org/v1/gonum/spatial/r3"
 
@@ -63,15 +64,15 @@ type flightInfo struct {
 // fileRecord names an image file of the frame (relative to the output
 // directory, slash-separated) with its size and SHA-256.
 type fileRecord struct {
-	Kind   string `json:"kind"` // "png" or "fits"
+	Kind   string `json:"kind"` // "png", "fits" or "overlay"
 	Name   string `json:"name"`
 	Bytes  int64  `json:"bytes"`
 	SHA256 string `json:"sha256"`
 }
 
 // frameFiles are the paths of one frame's files, relative to the output
-// directory; empty when not written.
-type frameFiles struct{ png, fits, sidecar string }
+// directory; empty when not written. overlay is the overlay layer's PNG.
+type frameFiles struct{ png, fits, sidecar, overlay string }
 
 func (j *flightJob) files(i int) frameFiles {
 	var f frameFiles
@@ -87,6 +88,22 @@ func (j *flightJob) files(i int) frameFiles {
 	}
 	if f.png == "" && f.fits != "" && f.sidecar == f.fits {
 		f.sidecar = f.fits + ".json"
+	}
+	// A pattern whose file part is fixed ("{frame:05}/sky.png") ignores
+	// the extension: there the FITS, sidecar and overlay layer take the
+	// PNG's name with their own extension, so no two files of a frame
+	// share a name.
+	base := j.plan.FrameName(i, "")
+	own := func(name, ext string) string {
+		if name != "" && name == base && (f.png != "" || ext == ".overlay.png") {
+			return strings.TrimSuffix(base, path.Ext(base)) + ext
+		}
+		return name
+	}
+	f.fits = own(f.fits, ".fits")
+	f.sidecar = own(f.sidecar, ".json")
+	if o.OverlayLayer {
+		f.overlay = own(j.plan.FrameName(i, ".overlay.png"), ".overlay.png")
 	}
 	return f
 }
@@ -250,7 +267,15 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 	if fr.Depth == 16 {
 		img = frame.ToNRGBA64(fr.Tone)
 	}
-	if err := overlay.Draw(img, frame, j.stars, lay.Options); err != nil {
+	ff := j.files(i)
+	var layer image.Image
+	if ff.overlay != "" {
+		over, err := overlay.Layer(frame, j.stars, lay.Options)
+		if err != nil {
+			return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		}
+		layer = overlay.Straight(over)
+	} else if err := overlay.Draw(img, frame, j.stars, lay.Options); err != nil {
 		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	home, dest := signalRates(j.plan.Trajectory(), fs.State)
@@ -264,7 +289,6 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 	spec := &frameSpec{proj: proj, opt: frame.Options, tone: fr.Tone, depth: fr.Depth, lookDesc: fs.Look.Look, source: "skyframe flight",
 		credit: namesCredit(j.index, labelsShown(lay.Labels))}
 	sc := &scene{stars: j.stars, index: j.index, observer: obs, heading: fs.State.Dir}
-	ff := j.files(i)
 	if ff.png != "" {
 		meta := append(pngMeta(side, spec),
 			render.KV{Key: "frame", Value: strconv.Itoa(i)},
@@ -277,6 +301,20 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 			return frameLum{}, err
 		}
 		info.Files = append(info.Files, fileRecord{Kind: "png", Name: ff.png, Bytes: int64(buf.Len()), SHA256: sha256Hex(buf.Bytes())})
+	}
+	if layer != nil {
+		meta := append(pngMeta(side, spec),
+			render.KV{Key: "frame", Value: strconv.Itoa(i)},
+			render.KV{Key: "plan_hash", Value: j.hash},
+			render.KV{Key: "Description", Value: "skyframe overlays alone (sRGB, straight alpha)"})
+		var buf bytes.Buffer
+		if err := enc.Encode(&buf, layer, meta); err != nil {
+			return frameLum{}, fmt.Errorf("flight: frame %d: overlay layer: %w", i, err)
+		}
+		if err := j.writeFile(ff.overlay, buf.Bytes()); err != nil {
+			return frameLum{}, err
+		}
+		info.Files = append(info.Files, fileRecord{Kind: "overlay", Name: ff.overlay, Bytes: int64(buf.Len()), SHA256: sha256Hex(buf.Bytes())})
 	}
 	if ff.fits != "" {
 		cards, err := fitsCards(frame, sc, spec)
@@ -351,7 +389,7 @@ func (j *flightJob) checkFrame(i int) (frameStatus, frameLum, string) {
 	if fl.Frame != i {
 		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: records frame %d", ff.sidecar, fl.Frame)
 	}
-	want := map[string]string{"png": ff.png, "fits": ff.fits}
+	want := map[string]string{"png": ff.png, "fits": ff.fits, "overlay": ff.overlay}
 	seen := 0
 	for _, rec := range fl.Files {
 		name, ok := want[rec.Kind]
@@ -370,7 +408,7 @@ func (j *flightJob) checkFrame(i int) (frameStatus, frameLum, string) {
 			return frameCorrupt, frameLum{}, fmt.Sprintf("%s: %d bytes, SHA-256 does not match the sidecar", name, len(b))
 		}
 	}
-	if n := btoi(ff.png != "") + btoi(ff.fits != ""); seen != n {
+	if n := btoi(ff.png != "") + btoi(ff.fits != "") + btoi(ff.overlay != ""); seen != n {
 		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: lists %d image files, the plan writes %d", ff.sidecar, seen, n)
 	}
 	regions := fl.RegionLuminance
@@ -393,7 +431,7 @@ func btoi(b bool) int {
 // remove each other's files in flight.
 func (j *flightJob) removeStaleTemps(i int) error {
 	ff := j.files(i)
-	for _, rel := range []string{ff.png, ff.fits, ff.sidecar} {
+	for _, rel := range []string{ff.png, ff.fits, ff.sidecar, ff.overlay} {
 		if rel == "" {
 			continue
 		}

@@ -230,6 +230,12 @@ func (j *flightJob) frameBytes() uint64 {
 	if *o.Sidecar {
 		n += sidecarBytes
 	}
+	if o.OverlayLayer {
+		// Mostly transparent RGBA: about a fiftieth of the raw size, as
+		// for a star field, at most the raw size.
+		raw := w * h * 4
+		n += raw/50 + pngOverhead
+	}
 	return n
 }
 

@@ -275,6 +275,9 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 			}
 		}
 	}
+	if plan.Output.OverlayLayer && !job.layers.Options.Any() {
+		return nil, usagef("%s: output.overlay_layer: no overlay is selected (add overlays.grid, labels, hud, …)", planPath)
+	}
 	if !*plan.Output.PNG && !plan.Output.FITS {
 		return nil, usagef("%s: output: png = false and fits = false: nothing to write", planPath)
 	}

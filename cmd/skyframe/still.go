@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"image"
 	"image/draw"
 	"io"
 	"math"
@@ -69,6 +70,7 @@ type stillFlags struct {
 	frame                 frameopt.Options
 	output, fits, sidecar string
 	exr                   string
+	overlayLayer          string
 	noSidecar             bool
 	memory                string
 }
@@ -79,6 +81,7 @@ func (f *stillFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&f.fits, "fits", "", "also write the linear buffer as 32-bit float FITS with WCS to this file")
 	fs.StringVar(&f.exr, "exr", "", "also write the linear frame as OpenEXR (scanline; the combined RGB plus the layers of --exr-layers) to this file")
 	fs.StringVar(&f.sidecar, "sidecar", "", "JSON sidecar file (default: the PNG name with .json)")
+	fs.StringVar(&f.overlayLayer, "overlay-layer", "", "write the overlays alone to this file as an RGBA PNG with a transparent background (sRGB, straight alpha), for a compositor; the --output PNG then holds the sky without them")
 	fs.BoolVar(&f.noSidecar, "no-sidecar", false, "do not write the JSON sidecar")
 	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget for the render; a cache-file catalogue (skyframe catalog pack) with more stars than one chunk this budget allows is read from disk chunk by chunk instead of loaded whole, with the same result")
 }
@@ -217,7 +220,7 @@ func runStill(e *env, args []string) error {
 	if err := checkFrameFlags(fs, &f.frame); err != nil {
 		return err
 	}
-	outputs := outputPaths{png: f.output, fits: f.fits, sidecar: f.sidecar, exr: f.exr}
+	outputs := outputPaths{png: f.output, fits: f.fits, sidecar: f.sidecar, exr: f.exr, overlay: f.overlayLayer}
 	if !f.noSidecar && outputs.sidecar == "" {
 		outputs.sidecar = strings.TrimSuffix(f.output, filepath.Ext(f.output)) + ".json"
 	}
@@ -264,6 +267,9 @@ func runStill(e *env, args []string) error {
 			return err
 		}
 		spec.opt.Doppler = spec.exr.Layers == nil || slices.Contains(spec.exr.Layers, framefiles.EXRDoppler)
+	}
+	if outputs.overlay != "" && !spec.layers.Options.Any() {
+		return usagef("--overlay-layer %s: no overlay is selected (add --grid, --labels, --hud, …)", outputs.overlay)
 	}
 	rows := sc.stars.Len()
 	if p.stream != nil {
@@ -321,14 +327,16 @@ func runStill(e *env, args []string) error {
 }
 
 // outputPaths are the files one frame writes; empty means not written.
-type outputPaths struct{ png, fits, sidecar, exr string }
+// With overlay set, the overlays go there alone and png holds the sky
+// without them.
+type outputPaths struct{ png, fits, sidecar, exr, overlay string }
 
 func (o outputPaths) check() error {
 	if o.png == "" {
 		return usagef("--output: a PNG file name is required")
 	}
 	seen := map[string]string{}
-	for _, c := range []struct{ flag, path string }{{"output", o.png}, {"fits", o.fits}, {"exr", o.exr}, {"sidecar", o.sidecar}} {
+	for _, c := range []struct{ flag, path string }{{"output", o.png}, {"fits", o.fits}, {"exr", o.exr}, {"sidecar", o.sidecar}, {"overlay-layer", o.overlay}} {
 		if c.path == "" {
 			continue
 		}
@@ -356,7 +364,14 @@ func writeFrame(ctx context.Context, frame *render.Frame, kept []render.Contribu
 	} else {
 		img = frame.ToNRGBA(spec.tone)
 	}
-	if err := overlay.Draw(img, frame, sc.stars, spec.layers.Options); err != nil {
+	var layer *image.NRGBA
+	if out.overlay != "" {
+		over, err := overlay.Layer(frame, sc.stars, spec.layers.Options)
+		if err != nil {
+			return err
+		}
+		layer = overlay.Straight(over)
+	} else if err := overlay.Draw(img, frame, sc.stars, spec.layers.Options); err != nil {
 		return err
 	}
 	var set render.FileSet
@@ -366,6 +381,14 @@ func writeFrame(ctx context.Context, frame *render.Frame, kept []render.Contribu
 	})
 	if err != nil {
 		return err
+	}
+	if layer != nil {
+		lmeta := append([]render.KV{{Key: "Description", Value: "skyframe overlays alone (sRGB, straight alpha) for " + filepath.Base(out.png)}}, meta...)
+		if err := set.Add(out.overlay, func(w io.Writer) error {
+			return render.WritePNG(ctxWriter{ctx, w}, layer, lmeta)
+		}); err != nil {
+			return err
+		}
 	}
 	if out.fits != "" {
 		cards, err := fitsCards(frame, sc, spec)
@@ -447,7 +470,7 @@ func printSummary(w io.Writer, frame *render.Frame, sc *scene, spec *frameSpec, 
 		fmt.Fprintf(w, "brightest: %s at V′ = %.2f (D = %.4g, T′ = %.0f K, apparent RA %.3f° Dec %+.3f°)\n", name, s.V, s.D, s.T, s.RA, s.Dec)
 	}
 	files := out.png
-	for _, f := range []string{out.fits, out.exr, out.sidecar} {
+	for _, f := range []string{out.overlay, out.fits, out.exr, out.sidecar} {
 		if f != "" {
 			files += ", " + f
 		}
