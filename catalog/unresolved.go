@@ -374,3 +374,34 @@ func (t *unresTables) flux(g *synthGen, depth float64, out []float64) {
 	}
 	copy(out, acc[:])
 }
+
+// ModelSky returns the synthetic sky model's expected whole-sky number of
+// stars with V ≤ v (outside 5 pc; the invented nearby stars are not
+// counted) and their V-band light in units of a V = 0 star: the
+// expectation Synthetic samples, integrated over the sampling grid's
+// cells. It takes some tens of milliseconds.
+func ModelSky(v float64, opt SynthOptions) (n, light float64) {
+	g := newSynthGenLimit(opt, unresVLim)
+	tab := newUnresTables(opt)
+	dOmega := 4 * math.Pi / synthCells
+	var faint, all [len(unresTempEdges) - 1]float64
+	for c := 0; c < synthCells; c++ {
+		s0, s1, l0, l1 := synthCellGeom(c)
+		sb := 0.5 * (s0 + s1)
+		cb := math.Sqrt(1 - sb*sb)
+		lc := 0.5 * (l0 + l1) * math.Pi / 180
+		g.lineOfSight(cb*math.Cos(lc), sb)
+		for i := range g.comps {
+			cp := &g.comps[i]
+			m := synthPhiMMin + (float64(cp.mBin)+0.5)*synthDM
+			k, f := g.limit(v - m)
+			n += cp.w * dOmega * g.cumAt(cp.geom, k, f)
+		}
+		tab.flux(g, v, faint[:])
+		tab.flux(g, MinUnresolvedDepth, all[:])
+		for k := range all {
+			light += (all[k] - faint[k]) * dOmega
+		}
+	}
+	return n, light
+}

@@ -247,3 +247,18 @@ func BenchmarkUnresolvedBuild(b *testing.B) {
 		}
 	}
 }
+
+// TestModelSky: the model's expected counts match the sampled sky's (within
+// 3 %, the sample's Poisson scatter being far smaller) and its light to
+// V = 10 matches the map: whole model minus the unresolved part.
+func TestModelSky(t *testing.T) {
+	n, light := ModelSky(9, SynthOptions{})
+	s := Synthetic(SynthOptions{MagLimit: 9, NoNearby: true})
+	if math.Abs(n/float64(s.Len())-1) > 0.03 {
+		t.Errorf("ModelSky(9): %.0f stars expected, the sampled sky has %d", n, s.Len())
+	}
+	want := unresMust(t, MinUnresolvedDepth).AllSkyV() - unresMust(t, 9).AllSkyV()
+	if math.Abs(light/want-1) > 0.02 {
+		t.Errorf("ModelSky(9): light %.2f V=0 stars, the maps give %.2f", light, want)
+	}
+}

@@ -13,6 +13,7 @@ var Elsewhere = []struct{ Flag, Plan string }{
 	{"catalog-format", "catalogue.format"},
 	{"column", "catalogue.columns"},
 	{"names", "catalogue.names"},
+	{"sky-depth", "— (flights draw the built-in sky to its default depth)"},
 	{"epoch", "— (proper motions: still only)"},
 	{"speed", "[start] speed and the [[leg]] tables"},
 	{"gamma", "[[leg]] gamma_cap and accelerations"},

@@ -184,3 +184,66 @@ func NeededDepth(opt Options, tmin, tmax float64) (Depth, error) {
 	dv, T, D := MaxBrightening(tmin, tmax, dmin, dmax, opt.Beaming)
 	return Depth{Needed: lim - dv, DeltaV: dv, T: T, D: D, DMin: dmin, DMax: dmax}, nil
 }
+
+// DepthProfile answers, for the frame it was made for, how deep a catalogue
+// must go for stars whose Doppler factor lies in a given range (a patch of
+// sky): the frame's limit minus the largest brightening over the
+// temperature range and the part of that range in view.
+type DepthProfile struct {
+	Depth              // the frame's bound
+	limit      float64 // the frame's limit
+	ld0, ld1   float64 // ln D range in view
+	minDV      []float64
+	tmin, tmax float64
+}
+
+// NewDepthProfile tabulates min over T of ΔV on 257 values of ln D over the
+// frame's range of Doppler factors; see NeededDepth for the arguments.
+func NewDepthProfile(opt Options, tmin, tmax float64) (*DepthProfile, error) {
+	dep, err := NeededDepth(opt, tmin, tmax)
+	if err != nil {
+		return nil, err
+	}
+	p := &DepthProfile{Depth: dep, limit: dep.Needed + dep.DeltaV, ld0: math.Log(dep.DMin), ld1: math.Log(dep.DMax), tmin: tmin, tmax: tmax}
+	const n = 256
+	p.minDV = make([]float64, n+1)
+	for i := range p.minDV {
+		ld := p.ld0 + (p.ld1-p.ld0)*float64(i)/n
+		best := math.Inf(1)
+		for j := 0; j <= 64; j++ {
+			T := tmin * math.Pow(tmax/tmin, float64(j)/64)
+			best = math.Min(best, BrighteningV(T, math.Exp(ld), opt.Beaming))
+		}
+		p.minDV[i] = best
+	}
+	return p, nil
+}
+
+// NeededFor returns the catalogue depth needed for sources whose Doppler
+// factors lie in [dmin, dmax]: the frame's limit minus the largest
+// brightening over the part of the range in view (tabulated nodes around
+// it, less 0.02 mag for the temperature and D grids, and never shallower
+// than the frame's own bound allows at its extreme). −Inf when no part of
+// the range is in view.
+func (p *DepthProfile) NeededFor(dmin, dmax float64) float64 {
+	a, b := math.Log(dmin), math.Log(dmax)
+	a, b = math.Max(a, p.ld0), math.Min(b, p.ld1)
+	if !(a <= b) {
+		return math.Inf(-1)
+	}
+	n := len(p.minDV) - 1
+	if p.ld1 == p.ld0 {
+		return p.Needed
+	}
+	i0 := int(math.Floor((a - p.ld0) / (p.ld1 - p.ld0) * float64(n)))
+	i1 := int(math.Ceil((b - p.ld0) / (p.ld1 - p.ld0) * float64(n)))
+	i0, i1 = max(0, i0), min(n, i1)
+	best := math.Inf(1)
+	for i := i0; i <= i1; i++ {
+		best = math.Min(best, p.minDV[i])
+	}
+	if i1 == n {
+		best = math.Min(best, p.DeltaV)
+	}
+	return p.limit - best + 0.02
+}

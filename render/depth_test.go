@@ -165,3 +165,34 @@ func BenchmarkNeededDepth(b *testing.B) {
 		}
 	}
 }
+
+// TestDepthProfile: over the whole range in view the profile gives the
+// frame's bound (to its 0.02 mag margin), over sub-ranges never less than a
+// brute force over that range, and −Inf outside the view.
+func TestDepthProfile(t *testing.T) {
+	b, _ := camera.NewBoost(r3.Vec{X: 1}, 0.9)
+	p := looking(t, camera.Pinhole, 192, 108, 60, r3.Vec{X: 1})
+	opt := Options{Projection: p, Observer: camera.Observer{Boost: b}, Limit: 10}
+	prof, err := NewDepthProfile(opt, 2500, 40000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if v := prof.NeededFor(0.01, 100); math.Abs(v-prof.Needed) > 0.021 {
+		t.Errorf("whole range: %.3f, want the bound %.3f", v, prof.Needed)
+	}
+	if v := prof.NeededFor(0.01, 0.5); !math.IsInf(v, -1) {
+		t.Errorf("D < 0.5 is not in view (D ≥ %.2f): %v, want −Inf", prof.DMin, v)
+	}
+	for _, r := range [][2]float64{{1.8, 2.2}, {2.5, 3}, {3.5, 4.4}} {
+		best := math.Inf(1)
+		for i := 0; i <= 50; i++ {
+			D := r[0] + (math.Min(r[1], prof.DMax)-r[0])*float64(i)/50
+			for j := 0; j <= 100; j++ {
+				best = math.Min(best, bruteDeltaV(t, 2500*math.Pow(16, float64(j)/100), D, spectrum.BeamingExact))
+			}
+		}
+		if v := prof.NeededFor(r[0], r[1]); v < 10-best-1e-9 || v > 10-best+0.05 {
+			t.Errorf("D in %v: %.3f, brute force %.3f", r, v, 10-best)
+		}
+	}
+}

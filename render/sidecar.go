@@ -90,6 +90,12 @@ type CatalogInfo struct {
 	Format string  `json:"format"`
 	Rows   int     `json:"rows"`
 	Epoch  float64 `json:"epoch"`
+	// DepthV is the catalogue's completeness limit (estimated from its
+	// magnitude counts, or the depth the built-in sky was drawn to) and
+	// NeededV the frame's completeness bound (NeededDepth); absent when not
+	// known.
+	DepthV  *float64 `json:"depth_v,omitempty"`
+	NeededV *float64 `json:"needed_v,omitempty"`
 }
 
 // Counts are the frame's star counts (see Stats).

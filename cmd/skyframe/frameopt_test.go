@@ -152,7 +152,9 @@ fits = true
 			fits := filepath.Join(dir, "still.fits")
 			code, _, errs = runIn(t, "still", "--position", "0.5,-0.25,0.1", "--rapidity", phi, "--toward", "30,10",
 				"--size", "160x90", "--fov", "50", "--depth", "16", "--fwhm", "2.5", "--white", "d50", "--limit", "9",
-				"--beaming", "d4", "--up", "100,40", "--look", look, "--exposure", "3", "-o", out, "--fits", fits)
+				"--beaming", "d4", "--up", "100,40", "--look", look, "--exposure", "3", "-o", out, "--fits", fits,
+				// Flights draw the built-in sky at its default depth.
+				"--sky-depth", "8")
 			if code != 0 {
 				t.Fatalf("still: exit %d: %s", code, errs)
 			}

@@ -39,7 +39,7 @@ func frameLayers(o *frameopt.Options, sc *scene, opt *render.Options) (layerSet,
 	var l layerSet
 	l.CMB = o.CMB
 	var err error
-	if l.Unresolved, l.unresolvedDepth, err = unresolvedLayer(sc.stars, o.Unresolved, o.UnresolvedDepth); err != nil {
+	if l.Unresolved, l.unresolvedDepth, err = unresolvedLayer(sc.stars, o.Unresolved, o.UnresolvedDepth, sc.depthV); err != nil {
 		return l, err
 	}
 	g, _ := overlay.ParseGraticuleFrame(o.Grid)

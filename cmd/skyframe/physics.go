@@ -30,6 +30,7 @@ type physicsFlags struct {
 	epoch         float64
 	columns       []string
 	names         string
+	skyDepth      skyDepthFlag
 
 	// stream, when set, is the cache file the frame is rendered from in
 	// chunks; the scene's stars then hold only the rows refs name (see
@@ -56,6 +57,7 @@ func (p *physicsFlags) register(fs *pflag.FlagSet, defaultSpeed float64) {
 	fs.StringSliceVar(&p.columns, "column", nil, "generic CSV/TSV column map, FIELD=NAME, repeatable (fields: "+strings.Join(columnFields, ", ")+"; add ra-hours if RA is in hours)")
 	fs.Float64Var(&p.epoch, "epoch", 0, "propagate positions by proper motion to this Julian epoch (e.g. 2100); 0 keeps the catalogue epoch")
 	registerNames(fs, &p.names)
+	registerSkyDepth(fs, &p.skyDepth)
 }
 
 func formatNames() string {
@@ -75,8 +77,13 @@ func formatNames() string {
 
 // scene is the resolved physical state of one observation.
 type scene struct {
-	stars    *catalog.Stars
-	index    *names.Index // star lookup and label text over stars
+	stars *catalog.Stars
+	index *names.Index // star lookup and label text over stars
+	table *names.Table // the names table index was built with
+	// depthV is the depth (V) to which the catalogue resolves stars, when
+	// known (frameDepth): the built-in sky's drawn depth, or a catalogue's
+	// estimated completeness; 0 when not known.
+	depthV   float64
 	observer camera.Observer
 	beaming  spectrum.Beaming
 	heading  r3.Vec // unit direction of motion (ICRS)
@@ -85,6 +92,9 @@ type scene struct {
 func (p *physicsFlags) resolve(e *env, fs *pflag.FlagSet) (*scene, error) {
 	if err := checkFinite("epoch", p.epoch); err != nil {
 		return nil, err
+	}
+	if fs.Changed("sky-depth") && p.catalog != "" {
+		return nil, usagef("--sky-depth: only for the built-in sky, not with --catalog")
 	}
 	var stars *catalog.Stars
 	table, err := loadNames(p.names)
@@ -102,7 +112,7 @@ func (p *physicsFlags) resolve(e *env, fs *pflag.FlagSet) (*scene, error) {
 	if err != nil {
 		return nil, err
 	}
-	sc := &scene{stars: stars, index: names.NewIndex(stars, table)}
+	sc := &scene{stars: stars, index: names.NewIndex(stars, table), table: table}
 	beaming := p.beaming
 	if f := fs.Lookup("beaming"); f != nil {
 		beaming = f.Value.String()

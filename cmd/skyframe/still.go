@@ -97,6 +97,7 @@ type frameSpec struct {
 	layers   layerSet
 	credit   string // attribution of the star names in the labels; empty: none shown
 	exr      framefiles.EXROptions
+	depthRep *depthReport // completeness of the catalogue for the frame; nil: not known
 }
 
 // checkFrameFlags checks every frame option given on the command line
@@ -259,6 +260,9 @@ func runStill(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
+	if err := frameDepth(e.stderr, "still", sc, spec, p.skyDepth.v, p.stream != nil); err != nil {
+		return err
+	}
 	if spec.layers, err = frameLayers(&f.frame, sc, &spec.opt); err != nil {
 		return err
 	}
@@ -357,6 +361,9 @@ func (o outputPaths) check() error {
 func writeFrame(ctx context.Context, frame *render.Frame, kept []render.Contribution, sc *scene, spec *frameSpec, out outputPaths) error {
 	side := frame.Sidecar("skyframe", version, sc.stars, spec.tone)
 	spec.layers.sidecarInfo(&side)
+	if d := spec.depthRep; d != nil {
+		side.Catalog.DepthV, side.Catalog.NeededV = finitePtr(d.have), finitePtr(d.needed.Needed)
+	}
 	meta := pngMeta(side, spec)
 	var img draw.Image
 	if spec.depth == 16 {

@@ -18,8 +18,9 @@ const (
 	unresolvedOff  = "off"
 )
 
-// builtInDepth is the resolved depth (V) of the built-in sky: the map of
-// unresolved light starts where its sampled stars stop.
+// builtInDepth is the resolved depth (V) of the built-in sky when nothing
+// drew it deeper (flights): the map of unresolved light starts where its
+// sampled stars stop.
 const builtInDepth = catalog.DefaultSynthMagLimit
 
 // unresolvedMaps caches the built maps by depth: a map takes a few tenths of
@@ -39,10 +40,12 @@ func v0Dilution(T float64) float64 {
 // unresolvedLayer resolves the unresolved-light options (frameopt
 // unresolved and unresolved-depth) for stars: mode is auto (""), on or off;
 // depthOpt (nil: not given) is the V magnitude where the catalogue stops
-// resolving stars, and giving it turns auto into on. It returns nil when
+// resolving stars, and giving it turns auto into on; without it, knownV
+// (the built-in sky's drawn depth, or a catalogue's estimated completeness;
+// 0 when not known) is used. It returns nil when
 // the layer is off, and the depth used. Messages name the flags, as the
 // other frame layers do (a flight prefixes the plan and "overlays").
-func unresolvedLayer(stars *catalog.Stars, mode string, depthOpt *float64) (render.UnresolvedSky, float64, error) {
+func unresolvedLayer(stars *catalog.Stars, mode string, depthOpt *float64, knownV float64) (render.UnresolvedSky, float64, error) {
 	const what = "--unresolved"
 	builtIn := stars != nil && stars.Source == catalog.SyntheticSource
 	depth := math.NaN()
@@ -59,6 +62,9 @@ func unresolvedLayer(stars *catalog.Stars, mode string, depthOpt *float64) (rend
 	case m == unresolvedOn || m == unresolvedAuto || m == "":
 	default:
 		return nil, 0, usagef("%s %q: want auto, on or off", what, mode)
+	}
+	if math.IsNaN(depth) && knownV != 0 {
+		depth = knownV
 	}
 	if math.IsNaN(depth) {
 		if !builtIn {

@@ -1,0 +1,88 @@
+package main
+
+import (
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/skyframe/skyframe/internal/sharedcat"
+)
+
+func readSidecarMap(t *testing.T, path string) map[string]any {
+	t.Helper()
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m map[string]any
+	if err := json.Unmarshal(data, &m); err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+// TestStillDepthWarning: the Bright Star Catalogue (complete to V ≈ 6.5,
+// Hoffleit & Warren 1991 [mem]) at 0.9 c looking ahead falls far short of
+// the frame's bound; still says so on stderr with both magnitudes and
+// mentions the unresolved-light option, and the sidecar records both.
+func TestStillDepthWarning(t *testing.T) {
+	bsc := sharedcat.BSC5(t)
+	dir := t.TempDir()
+	png := filepath.Join(dir, "a.png")
+	_, errs, code := runCmd(t, "still", "--catalog", bsc, "--size", "64x36", "-o", png)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{"warning", "complete to V ≈ 6.5", "catalogue V ≤ 13", "missing", "unresolved"} {
+		if !strings.Contains(errs, want) {
+			t.Errorf("stderr lacks %q: %s", want, errs)
+		}
+	}
+	side := readSidecarMap(t, filepath.Join(dir, "a.json"))
+	c := side["catalog"].(map[string]any)
+	if d, n := c["depth_v"].(float64), c["needed_v"].(float64); d != 6.5 || !(n > 13 && n < 14.5) {
+		t.Errorf("sidecar depth_v %v, needed_v %v; want 6.5 and the 0.9 c bound (13–14.5)", d, n)
+	}
+	// At rest the catalogue is deep enough: no warning.
+	_, errs, code = runCmd(t, "still", "--catalog", bsc, "--speed", "0", "--limit", "6", "--size", "64x36", "-o", png)
+	if code != 0 || strings.Contains(errs, "warning") {
+		t.Errorf("at rest with limit 6: exit %d, stderr %q; want no warning", code, errs)
+	}
+}
+
+// TestStillBuiltInDepth: the default still draws the built-in sky as deep as
+// its image can show (no warning), records the depths in the sidecar, and
+// bad --sky-depth values are refused with exit 2 naming the flag, writing
+// nothing.
+func TestStillBuiltInDepth(t *testing.T) {
+	dir := t.TempDir()
+	png := filepath.Join(dir, "a.png")
+	_, errs, code := runCmd(t, "still", "--size", "96x54", "-o", png)
+	if code != 0 || strings.Contains(errs, "warning") {
+		t.Fatalf("exit %d, stderr %q; want success without a warning", code, errs)
+	}
+	c := readSidecarMap(t, filepath.Join(dir, "a.json"))["catalog"].(map[string]any)
+	// 0.9 c ahead, V′ = 6.5 just visible: about V = 10.4 needed (the coolest
+	// built-in stars, B−V = 2, brighten by 3.9 mag at D = 4.36).
+	if d := c["depth_v"].(float64); !(d >= 10.2 && d <= 10.6) || c["rows"].(float64) < 2e5 {
+		t.Errorf("sidecar catalog %v: want depth_v ≈ 10.4 and a few 10⁵ rows", c)
+	}
+	// --sky-depth 8 at 0.9 c: short of what the image shows, so a warning.
+	_, errs, code = runCmd(t, "still", "--size", "96x54", "--sky-depth", "8", "-o", png)
+	if code != 0 || !strings.Contains(errs, "warning: the built-in sky is complete to V ≈ 8.0") {
+		t.Errorf("--sky-depth 8: exit %d, stderr %q; want a warning", code, errs)
+	}
+	bad := filepath.Join(dir, "bad.png")
+	for _, args := range [][]string{{"--sky-depth", "nan"}, {"--sky-depth", "20"}, {"--sky-depth", "7"}, {"--sky-depth", "inf"},
+		{"--sky-depth", "9", "--catalog", "x.csv"}, {"--unresolved", "maybe"}} {
+		_, errs, code := runCmd(t, append([]string{"still", "--size", "32x18", "-o", bad}, args...)...)
+		if code != 2 || !strings.Contains(errs, args[0]) {
+			t.Errorf("%v: exit %d, %q; want 2 naming %s", args, code, errs, args[0])
+		}
+		if _, err := os.Stat(bad); err == nil {
+			t.Errorf("%v: wrote an output", args)
+		}
+	}
+}
