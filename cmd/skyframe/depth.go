@@ -191,7 +191,7 @@ func warnDepth(w io.Writer, cmd string, d depthReport, builtIn bool) {
 		cmd, what, d.have, need.Needed, need.T, -need.DeltaV, need.D,
 		100*(1-n1/n2), 100*(l2-l1)/l2, hint)
 	if !builtIn {
-		fmt.Fprintf(w, ", or add the galaxy model's light of the stars fainter than V ≈ %.1f with --unresolved on", d.have)
+		fmt.Fprintf(w, ", or add the galaxy model's light of the stars fainter than the catalogue with --unresolved on --unresolved-depth %.1f", d.have)
 	}
 	fmt.Fprintln(w)
 }
@@ -224,7 +224,7 @@ func frameDepth(w io.Writer, cmd string, sc *scene, spec *frameSpec, skyDepth fl
 	}
 	rep.builtIn = builtIn
 	spec.depthRep = &rep
-	if !math.IsNaN(rep.have) {
+	if builtIn {
 		sc.depthV = rep.have
 	}
 	warnDepth(w, cmd, rep, builtIn)

@@ -80,9 +80,8 @@ type scene struct {
 	stars *catalog.Stars
 	index *names.Index // star lookup and label text over stars
 	table *names.Table // the names table index was built with
-	// depthV is the depth (V) to which the catalogue resolves stars, when
-	// known (frameDepth): the built-in sky's drawn depth, or a catalogue's
-	// estimated completeness; 0 when not known.
+	// depthV is the depth (V) to which the built-in sky was drawn for the
+	// frame (frameDepth); 0 when not known or another catalogue.
 	depthV   float64
 	observer camera.Observer
 	beaming  spectrum.Beaming

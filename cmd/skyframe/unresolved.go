@@ -41,8 +41,8 @@ func v0Dilution(T float64) float64 {
 // unresolved and unresolved-depth) for stars: mode is auto (""), on or off;
 // depthOpt (nil: not given) is the V magnitude where the catalogue stops
 // resolving stars, and giving it turns auto into on; without it, knownV
-// (the built-in sky's drawn depth, or a catalogue's estimated completeness;
-// 0 when not known) is used. It returns nil when
+// (the depth the built-in sky was drawn to for the frame; 0 when not known)
+// is used. It returns nil when
 // the layer is off, and the depth used. Messages name the flags, as the
 // other frame layers do (a flight prefixes the plan and "overlays").
 func unresolvedLayer(stars *catalog.Stars, mode string, depthOpt *float64, knownV float64) (render.UnresolvedSky, float64, error) {
