@@ -25,6 +25,18 @@
 //     spectrum.GamutMap for out-of-gamut colours), multiplies by the
 //     exposure scale and deposits the star with the PSF.
 //
+// # Stars as discs
+//
+// A star whose apparent angular radius ρ′ (ρ = asin √W from its rest
+// dilution at the observer, W = (R/r)², R from its luminosity and
+// temperature through the catalogue V; ρ′ ≈ ρ/D) exceeds DiscThreshold =
+// half a pixel of the image centre's scale is not splatted: after the
+// point stars it is drawn as a disc, pixel by pixel through the exact
+// inverse aberration, each point a blackbody at D·T limb-darkened by the
+// linear law with u = LimbDarkening (0.6, Eddington), with the star's flux
+// (drawDiscs in disc.go). An observer inside a star's radius, or at its
+// centre, is an *InsideStarError naming the star.
+//
 // # Units
 //
 // Buffer values are linear sRGB in units of full scale. The exposure is

@@ -226,9 +226,14 @@ func (p *Prepared) Render(opt Options) (*Frame, error) {
 		t.run(lo, hi, recs[lo:hi], &chunks[c])
 	})
 	var best []StarInfo
+	var discs []discStar
 	for c := range chunks {
 		r := &chunks[c]
-		f.Stats.Drawn += r.n
+		if r.inside > 0 {
+			return nil, insideError(p, r.inside-1, r.inside-1, opt.Observer.Position)
+		}
+		discs = append(discs, r.discs...)
+		f.Stats.Drawn += r.n + len(r.discs)
 		f.Stats.Culled += r.culled
 		f.Stats.OffFrame += r.off
 		f.Stats.Invalid += r.invalid
@@ -255,6 +260,9 @@ func (p *Prepared) Render(opt Options) (*Frame, error) {
 	var pool sync.Pool
 	addTiles(&f.Buffer, g, &psf, workers, &pool)
 	finishFrame(&f.Buffer, workers)
+	if err := drawDiscs(f, discs, workers); err != nil {
+		return nil, err
+	}
 	return f, nil
 }
 
@@ -301,6 +309,11 @@ func newTransformer(p *Prepared, opt *Options, psf *PSF, scale float64) *transfo
 		beamExp: float64(opt.Beaming.FluxExponent() - 4),
 		w:       float64(opt.Projection.Width), h: float64(opt.Projection.Height)}
 	t.rFish = math.Min(t.w, t.h) / 2
+	t.lnDisc = lnDiscThreshold(&t.proj)
+	// ln W′ = ln W + beamExp·ln D and ln ρ′² = ln W − 2 ln D: below
+	// lnDisc − 40 neither a disc (any D within e^±10) nor an observer
+	// inside the star (ln W ≥ 0) is possible.
+	t.lnDiscPre = min(t.lnDisc, 0) - 40
 	if psf != nil {
 		t.margin = psf.Radius() + 1
 	}
@@ -311,6 +324,11 @@ func newTransformer(p *Prepared, opt *Options, psf *PSF, scale float64) *transfo
 type chunkResult struct {
 	n, culled, off, invalid int
 	best                    []StarInfo
+	// discs are the stars drawn as discs (catalogue order); inside is
+	// one more than the row of the first star the observer is inside of
+	// (0: none).
+	discs  []discStar
+	inside int
 }
 
 // transformer holds one chunk's per-star state.
@@ -324,7 +342,11 @@ type transformer struct {
 	w, h    float64 // image size, px
 	margin  float64 // PSF radius + 1 px: how far outside the image a star may still light it
 	rFish   float64 // fisheye circle radius, px
-	geom    geomBlock
+	// lnDisc is ln of the smallest apparent dilution ρ′² of a disc star;
+	// lnDiscPre a bound below every disc's or inside star's ln W′, for
+	// a one-comparison test per star.
+	lnDisc, lnDiscPre float64
+	geom              geomBlock
 }
 
 // Per-star outcomes of transformer.see.
@@ -487,6 +509,11 @@ func (t *transformer) run(lo, hi int, out []splatRec, res *chunkResult) {
 // star finishes star i (index j of block gb): when the star is drawn it
 // fills rec and returns 1, otherwise it counts why not and returns 0.
 func (t *transformer) star(i, j int, gb *geomBlock, rec *splatRec, res *chunkResult) int {
+	if gb.bad[j] || gb.lnW[j] > t.lnDiscPre {
+		if done, k := t.disc(i, j, gb, res); done {
+			return k
+		}
+	}
 	switch t.see(j, gb) {
 	case seeCulled:
 		res.culled++
@@ -521,6 +548,49 @@ func (t *transformer) star(i, j int, gb *geomBlock, rec *splatRec, res *chunkRes
 			T: d * float64(t.p.Stars.Teff[i]), X: x, Y: y}, nb)
 	}
 	return 1
+}
+
+// disc handles the rare star that is near enough to be a disc, or that the
+// observer is inside of (at its centre the geometry marks it bad). It
+// reports whether the star is dealt with; such a star is never splatted.
+func (t *transformer) disc(i, j int, gb *geomBlock, res *chunkResult) (bool, int) {
+	lnW := gb.lnW[j] - t.beamExp*gb.lnD[j] // rest dilution at the observer
+	if gb.bad[j] || lnW >= 0 {
+		if res.inside == 0 {
+			res.inside = i + 1
+		}
+		return true, 0
+	}
+	if !(lnW-2*gb.lnD[j] > t.lnDisc) || !(gb.d[j] > 0) {
+		return false, 0
+	}
+	n := r3.Vec{X: gb.x[j], Y: gb.y[j], Z: gb.z[j]}
+	res.discs = append(res.discs, discStar{row: i, app: n, lnW: lnW, teff: float64(t.p.Stars.Teff[i])})
+	// Listed among the brightest when its centre is in the image.
+	x, y := gb.px[j], gb.py[j]
+	inImage := x >= 0 && x <= t.w && y >= 0 && y <= t.h
+	if nb := t.opt.Brightest; nb > 0 && inImage && (len(res.best) < nb || gb.vObs[j] < res.best[len(res.best)-1].V) {
+		ra, dec := camera.RADec(n)
+		d := gb.d[j]
+		res.best = insertBest(res.best, StarInfo{Row: i, RA: ra, Dec: dec, V: gb.vObs[j], D: d,
+			T: d * float64(t.p.Stars.Teff[i]), X: x, Y: y}, nb)
+	}
+	return true, 0
+}
+
+// insideError returns the error for the observer inside star row of s.
+func insideError(p *Prepared, row, gRow int, pos r3.Vec) error {
+	s := p.Stars
+	e := &InsideStarError{Row: gRow, ID: s.ID[row], Name: s.Names[row]}
+	dist := float64(s.Dist[row])
+	u := unit32(s.X[row], s.Y[row], s.Z[row])
+	c := r3.Scale(dist, u)
+	e.DistP = r3.Norm(r3.Sub(c, pos))
+	// R = d⊙·√W₀, W₀ the dilution seen from the Sun.
+	lnV0 := spectrum.Lookup(math.Log(float64(s.Teff[row]))).LnV
+	lnW0 := lnV0Flux - magToLn*float64(s.Vmag[row]) - lnV0
+	e.RadiusP = dist * math.Exp(lnW0/2)
+	return e
 }
 
 // tristimulus returns X, Y, Z from ln Y and the chromaticity (x, y):

@@ -127,6 +127,7 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 	var chunks []chunkResult
 	g := newGrid(f.W, f.H, psf.Radius(), opt.Projection.Kind)
 	var best []StarInfo
+	var discs []discStar
 	base := 0
 	got := false
 	for {
@@ -156,7 +157,7 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 		}
 		chunks = chunks[:nChunks]
 		for c := range chunks {
-			chunks[c] = chunkResult{best: chunks[c].best[:0]}
+			chunks[c] = chunkResult{best: chunks[c].best[:0], discs: chunks[c].discs[:0]}
 		}
 		parallel(workers, nChunks, func(c int) {
 			lo := c * chunkSize
@@ -166,7 +167,15 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 		})
 		for c := range chunks {
 			r := &chunks[c]
-			f.Stats.Drawn += r.n
+			if r.inside > 0 {
+				return nil, insideError(p, r.inside-1, base+r.inside-1, opt.Observer.Position)
+			}
+			for _, d := range r.discs {
+				// Discs are drawn after the last chunk: keep what they need.
+				d.gRow = base + d.row
+				discs = append(discs, d)
+			}
+			f.Stats.Drawn += r.n + len(r.discs)
 			f.Stats.Culled += r.culled
 			f.Stats.OffFrame += r.off
 			f.Stats.Invalid += r.invalid
@@ -198,6 +207,9 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 	}
 	f.Stats.Brightest = best
 	finishFrame(&f.Buffer, workers)
+	if err := drawDiscs(f, discs, workers); err != nil {
+		return nil, err
+	}
 	return f, nil
 }
 

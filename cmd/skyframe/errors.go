@@ -10,11 +10,13 @@ import (
 )
 
 // isInputError reports whether err is about the user's input (a catalogue or
-// plan file, or an output path naming a device, FIFO or directory), which exits with status 2 like a usage error.
+// plan file, an output path naming a device, FIFO or directory, or an
+// observer placed inside a star), which exits with status 2 like a usage
+// error.
 func isInputError(err error) bool {
 	var pe *catalog.ParseError
 	var ple *flight.PlanError
 	var le *flight.LegError
 	return errors.As(err, &pe) || errors.As(err, &ple) || errors.As(err, &le) ||
-		errors.Is(err, render.ErrNotRegular) || errors.Is(err, overlay.ErrHUDFit)
+		errors.Is(err, render.ErrNotRegular) || errors.Is(err, overlay.ErrHUDFit) || errors.Is(err, render.ErrInsideStar)
 }
