@@ -20,6 +20,7 @@ var (
 	ErrDirection          = errors.New("flight: bad direction")
 	ErrNotCollinear       = errors.New("flight: velocity not along the leg's axis")
 	ErrCannotStop         = errors.New("flight: too fast to stop at the destination")
+	ErrStandOff           = errors.New("flight: bad stand-off")
 	ErrTooFast            = errors.New("flight: rapidity beyond the supported range")
 	ErrNoLegs             = errors.New("flight: trajectory has no legs")
 	ErrBadStart           = errors.New("flight: bad start state")
@@ -168,6 +169,9 @@ func checkStart(start State) error {
 type leg struct {
 	kind LegKind
 	segs []segment
+	// target is a voyage's destination (a star's position), which a
+	// stand-off keeps the leg's end short of; nil for other legs.
+	target *r3.Vec
 }
 
 func (l *leg) Kind() LegKind { return l.kind }
@@ -368,9 +372,13 @@ func (b BoostSpec) Build(start State, _ Resolver) (Leg, error) {
 // (γ > 1) set the speed cap; zero means none. The ship's velocity at the
 // start must lie along the line to the destination. From checks the start.
 type VoyageSpec struct {
-	Accel    float64
-	To       *r3.Vec
-	Star     string
+	Accel float64
+	To    *r3.Vec
+	Star  string
+	// StandOff is how far short of the destination the voyage stops, pc:
+	// 0 arrives at it. Negative means the star's default, to be filled in
+	// by Plan.Bind (Plan.StandOff); Build refuses it.
+	StandOff float64
 	BetaCap  float64
 	GammaCap float64
 	From     *r3.Vec
@@ -432,6 +440,19 @@ func (v VoyageSpec) Build(start State, resolve Resolver) (Leg, error) {
 		return nil, fmt.Errorf("%w: destination %v is the start point", ErrUnknownDestination, dest)
 	}
 	u := r3.Scale(1/d, delta)
+	target := dest
+	switch so := v.StandOff; {
+	case !isFinite(so) || so < 0:
+		return nil, fmt.Errorf("%w: %v pc (want a finite distance ≥ 0)", ErrStandOff, so)
+	case so >= d:
+		return nil, fmt.Errorf("%w: %.4g pc is not short of the destination, %.4g pc away", ErrStandOff, so, d)
+	case so > 0:
+		// Stop short along the line of flight: the leg ends at the
+		// stand-off point, the target stays the destination.
+		d -= so
+		dest = r3.Add(start.Pos, r3.Scale(d, u))
+		delta = r3.Sub(dest, start.Pos)
+	}
 	phiS, err := signedRapidity(start, u)
 	if err != nil {
 		return nil, err
@@ -471,6 +492,7 @@ func (v VoyageSpec) Build(start State, resolve Resolver) (Leg, error) {
 	last.phi1 = 0
 	last.pos1 = dest
 	l.finish(start, u, phiS)
+	l.target = &target
 	return l, nil
 }
 

@@ -104,7 +104,9 @@ type StartSpec struct {
 // Acceleration is AccelG (in g₀) or Accel (m/s²). Durations: ShipYears or
 // CatalogueYears (boost, cruise) or a distance DistancePc / DistanceLy
 // (cruise). A voyage goes to ToStar or ToPosition ([x, y, z] pc) with an
-// optional SpeedCap (β) or GammaCap. RA/Dec (degrees) give a boost's thrust
+// optional SpeedCap (β) or GammaCap, and ends StandOffAU au short of its
+// destination (a star by default: where it is as bright as the Sun from
+// Earth, √(L/L☉) au; a position: 0). RA/Dec (degrees) give a boost's thrust
 // direction or a cruise heading; Speed (β) and From ([x, y, z] pc) are checks
 // that the leg starts as the previous one ended.
 type LegEntry struct {
@@ -117,6 +119,7 @@ type LegEntry struct {
 	DistanceLy     *float64  `toml:"distance_ly"`
 	ToStar         string    `toml:"to_star"`
 	ToPosition     []float64 `toml:"to_position"`
+	StandOffAU     *float64  `toml:"standoff_au"`
 	SpeedCap       *float64  `toml:"speed_cap"`
 	GammaCap       *float64  `toml:"gamma_cap"`
 	RA             *float64  `toml:"ra"`
@@ -218,6 +221,9 @@ type Plan struct {
 	// options as still's flags, frameopt.Defs); Given lists the keys set.
 	Frame frameopt.Options
 	Given []string
+	// StandOff gives the default stand-off, pc, of a voyage to a star
+	// (StarsStandOff); Bind uses it.
+	StandOff func(star string) (pc float64, ok bool)
 
 	spacing      Spacing
 	nHold0, nFly int
@@ -671,6 +677,15 @@ func (p *Plan) legSpec(e *LegEntry, i int, c *checker) LegSpec {
 		set["to_star"] = true
 		c.str(e.ToStar, sub("to_star")...)
 	}
+	standOff := -1.0 // the default
+	if e.StandOffAU != nil {
+		set["standoff_au"] = true
+		if v := *e.StandOffAU; !(v > 0) && !math.IsNaN(v) {
+			c.fail(fmt.Sprintf("stand-off %v au must be positive (the ship stops this far short of the destination)", v), sub("standoff_au")...)
+		} else if c.num(v, 0, 1e12, true, sub("standoff_au")...) {
+			standOff = v * AUPc
+		}
+	}
 	dir, hasDir := c.heading(e.RA, e.Dec, key...)
 	if hasDir {
 		set["ra"], set["dec"] = true, true
@@ -678,7 +693,7 @@ func (p *Plan) legSpec(e *LegEntry, i int, c *checker) LegSpec {
 	allowed := map[LegKind][]string{
 		LegCruise: {"ship_years", "catalogue_years", "distance_pc", "distance_ly", "speed", "ra", "dec", "from"},
 		LegBoost:  {"accel_g", "accel", "ship_years", "catalogue_years", "ra", "dec", "from"},
-		LegVoyage: {"accel_g", "accel", "to_star", "to_position", "speed_cap", "gamma_cap", "from"},
+		LegVoyage: {"accel_g", "accel", "to_star", "to_position", "standoff_au", "speed_cap", "gamma_cap", "from"},
 	}[kind]
 	for name := range set {
 		ok := false
@@ -733,17 +748,39 @@ func (p *Plan) legSpec(e *LegEntry, i int, c *checker) LegSpec {
 	case LegBoost:
 		return BoostSpec{Accel: accel, Dir: dir, ShipYears: ship, CatalogueYears: cat, From: from}
 	default:
-		return VoyageSpec{Accel: accel, To: to, Star: e.ToStar, BetaCap: capB, GammaCap: capG, From: from}
+		if standOff < 0 && e.ToStar == "" {
+			standOff = 0 // a position: arrive at it
+		}
+		return VoyageSpec{Accel: accel, To: to, Star: e.ToStar, StandOff: standOff, BetaCap: capB, GammaCap: capG, From: from}
 	}
 }
 
 // Bind builds the trajectory and resolves star look targets, looking star
 // names up with resolve (which may be nil for plans that name no stars).
 // Errors name the leg or key and its line.
+//
+// A voyage to a star without standoff_au stops at the star's default
+// stand-off, from p.StandOff (StarsStandOff); without that function, or
+// for a star it does not know, it arrives at the star's centre.
 func (p *Plan) Bind(resolve Resolver) error {
 	start, err := p.startState(resolve)
 	if err != nil {
 		return err
+	}
+	for i, sp := range p.specs {
+		v, ok := sp.(VoyageSpec)
+		if !ok || v.StandOff >= 0 || v.Star == "" {
+			continue
+		}
+		so, ok := 0.0, false
+		if p.StandOff != nil {
+			so, ok = p.StandOff(v.Star)
+		}
+		if !ok {
+			so = 0 // arrive at the star; an unknown one is reported below
+		}
+		v.StandOff = so
+		p.specs[i] = v
 	}
 	tr, err := NewTrajectory(start, p.specs, resolve)
 	if err != nil {

@@ -120,8 +120,14 @@ func (tr *Trajectory) End() State {
 // Home returns the start position (pc).
 func (tr *Trajectory) Home() r3.Vec { return tr.home }
 
-// Destination returns the end position (pc).
-func (tr *Trajectory) Destination() r3.Vec { return tr.segs[len(tr.segs)-1].pos1 }
+// Destination returns the end position (pc); for a final voyage that stops
+// short of its destination (a stand-off), the destination itself.
+func (tr *Trajectory) Destination() r3.Vec {
+	if t := tr.legs[len(tr.legs)-1].target; t != nil {
+		return *t
+	}
+	return tr.segs[len(tr.segs)-1].pos1
+}
 
 // Length returns the total path length in parsecs.
 func (tr *Trajectory) Length() float64 { return tr.segs[0].s0 + tr.segs[0].length + tr.segs[0].after }

@@ -23,6 +23,8 @@ const (
 	CPcPerYr = C * JulianYear / Parsec
 	// LightYearPc is one light-year in parsecs.
 	LightYearPc = LightYear / Parsec
+	// AUPc is one astronomical unit in parsecs, π/648000.
+	AUPc = AU / Parsec
 )
 
 // rapidityRate converts a proper acceleration in m/s² into the rate of change

@@ -199,6 +199,7 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 		i, err := index.Find(q)
 		return i, err == nil
 	}
+	plan.StandOff = flight.StarsStandOff(stars, find)
 	if err := plan.Bind(flight.StarsResolver(stars, find)); err != nil {
 		return nil, err
 	}
