@@ -98,7 +98,7 @@ func Census(stars *catalog.Stars, speeds []Speed, opt CensusOptions) (*CensusTab
 
 	n := stars.Len()
 	w := newCensusWork(stars)
-	tab := &CensusTable{Source: stars.Source, Stars: len(w.idx), Skipped: n - len(w.idx), Options: opt}
+	tab := &CensusTable{Source: stars.SourceName(), Stars: len(w.idx), Skipped: n - len(w.idx), Options: opt}
 	for _, s := range speeds {
 		b, err := s.Boost(opt.Heading)
 		if err != nil {

@@ -3,6 +3,7 @@ package catalog
 import (
 	"fmt"
 	"math"
+	"path/filepath"
 	"strings"
 	"unicode"
 	"unicode/utf8"
@@ -59,6 +60,7 @@ type Stars struct {
 	// Epoch is the Julian epoch of the positions (2000.0 for J2000).
 	Epoch float64
 	// Source names where the stars came from (a file name, "built-in sky").
+	// Files written for others record SourceName instead.
 	Source string
 	// Format is the catalogue format the reader detected or was told.
 	Format string
@@ -239,4 +241,13 @@ const unitTol = 1e-4
 // all set), without converting to float64.
 func finite32(v float32) bool {
 	return math.Float32bits(v)&0x7f800000 != 0x7f800000
+}
+
+// SourceName is Source without its directory: what output files record,
+// so that no file carries a path of the machine it was made on.
+func (s *Stars) SourceName() string {
+	if s == nil || s.Source == "" {
+		return ""
+	}
+	return filepath.Base(s.Source)
 }

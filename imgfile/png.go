@@ -269,7 +269,7 @@ func pngMetaChunks(meta []KV) ([]byte, error) {
 		if !utf8.ValidString(kv.Value) || strings.IndexByte(kv.Value, 0) >= 0 {
 			return nil, fmt.Errorf("%w for key %q: value %q is not NUL-free UTF-8", ErrPNGText, kv.Key, kv.Value)
 		}
-		if text, ok := latin1(kv.Value); ok {
+		if text, ok := latin1(kv.Value); ok && kv.Key != XMPKeyword {
 			data := append(append(key, 0), text...)
 			b = appendChunk(b, "tEXt", data)
 			continue

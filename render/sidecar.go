@@ -147,7 +147,7 @@ func (f *Frame) Sidecar(tool, version string, stars *catalog.Stars, tone ToneMod
 		s.LimitV = &l
 	}
 	if stars != nil {
-		s.Catalog = CatalogInfo{Source: stars.Source, Format: stars.Format, Rows: f.Stats.Total, Epoch: stars.Epoch}
+		s.Catalog = CatalogInfo{Source: stars.SourceName(), Format: stars.Format, Rows: f.Stats.Total, Epoch: stars.Epoch}
 	}
 	return s
 }

@@ -291,8 +291,8 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 	sc := &scene{stars: j.stars, index: j.index, observer: obs, heading: fs.State.Dir}
 	if ff.png != "" {
 		meta := append(pngMeta(side, spec),
-			render.KV{Key: "frame", Value: strconv.Itoa(i)},
-			render.KV{Key: "plan_hash", Value: j.hash})
+			render.KV{Key: "skyframe:frame", Value: strconv.Itoa(i)},
+			render.KV{Key: "skyframe:plan_hash", Value: j.hash})
 		var buf bytes.Buffer
 		if err := enc.Encode(&buf, img, meta); err != nil {
 			return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)

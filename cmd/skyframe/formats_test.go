@@ -223,3 +223,110 @@ func TestStillEXRBadInput(t *testing.T) {
 		}
 	}
 }
+
+// pngTextChunks returns the keyword → text of every tEXt and iTXt chunk and
+// the gAMA value of a PNG, decoded by hand from the chunk layout (W3C PNG
+// Specification 2nd ed. §5.3 chunk layout, §11.3.3.2 gAMA, §11.3.4.3 tEXt,
+// §11.3.4.5 iTXt).
+func pngTextChunks(t *testing.T, b []byte) (map[string]string, map[string]string, uint32) {
+	t.Helper()
+	text, itxt := map[string]string{}, map[string]string{}
+	var gama uint32
+	if len(b) < 8 || string(b[:8]) != "\x89PNG\r\n\x1a\n" {
+		t.Fatal("not a PNG")
+	}
+	for p := 8; p+12 <= len(b); {
+		n := int(binary.BigEndian.Uint32(b[p:]))
+		typ := string(b[p+4 : p+8])
+		data := b[p+8 : p+8+n]
+		switch typ {
+		case "gAMA":
+			gama = binary.BigEndian.Uint32(data)
+		case "tEXt":
+			k, v, _ := strings.Cut(string(data), "\x00")
+			text[k] = v
+		case "iTXt":
+			k, rest, _ := strings.Cut(string(data), "\x00")
+			// compression flag, method, language tag NUL, translated keyword NUL
+			rest = rest[2:]
+			_, rest, _ = strings.Cut(rest, "\x00")
+			_, rest, _ = strings.Cut(rest, "\x00")
+			itxt[k] = rest
+		}
+		p += 12 + n
+	}
+	return text, itxt, gama
+}
+
+// PNG text keys: no key with a standard or widely read meaning holds our
+// values (the Lorentz factor is skyframe:lorentz_factor, not "gamma"; the
+// gAMA chunk says 1/2.2 as the sRGB chunk requires, PNG spec §11.3.3.5);
+// white point, layers and scale are recorded; equirectangular frames carry
+// the GPano XMP in an iTXt chunk keyed XML:com.adobe.xmp (Adobe XMP
+// Specification Part 3); and no output file contains the absolute
+// directory of the catalogue it was made from.
+func TestStillMetadata(t *testing.T) {
+	dir := t.TempDir()
+	cat, err := filepath.Abs(filepath.Join("..", "..", "testdata", "catalogs", "bsc5_good.dat"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	png, fits, exrPath := filepath.Join(dir, "a.png"), filepath.Join(dir, "a.fits"), filepath.Join(dir, "a.exr")
+	if _, errs, code := runCmd(t, "still", "--catalog", cat, "--size", "64x32", "--projection", "equirect", "--gamma", "7",
+		"--white", "sun", "--cmb", "-o", png, "--fits", fits, "--exr", exrPath); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	b, err := os.ReadFile(png)
+	if err != nil {
+		t.Fatal(err)
+	}
+	text, itxt, gama := pngTextChunks(t, b)
+	if gama != 45455 {
+		t.Errorf("gAMA %d, want 45455 (1/2.2, sRGB)", gama)
+	}
+	standard := []string{"Title", "Author", "Description", "Copyright", "Creation Time", "Software", "Disclaimer", "Warning", "Source", "Comment"}
+	for k := range text {
+		if !slices.Contains(standard, k) && !strings.HasPrefix(k, "skyframe:") {
+			t.Errorf("PNG text key %q is neither standard nor skyframe:", k)
+		}
+	}
+	for k, want := range map[string]string{"skyframe:lorentz_factor": "7", "skyframe:white_point": "sun", "skyframe:layers": "stars,cmb", "skyframe:catalog": "bsc5_good.dat"} {
+		if text[k] != want {
+			t.Errorf("PNG %s = %q, want %q", k, text[k], want)
+		}
+	}
+	xmp := itxt["XML:com.adobe.xmp"]
+	for _, want := range []string{"<GPano:ProjectionType>equirectangular</GPano:ProjectionType>",
+		"<GPano:FullPanoWidthPixels>64</GPano:FullPanoWidthPixels>", "<GPano:FullPanoHeightPixels>32</GPano:FullPanoHeightPixels>",
+		"<GPano:CroppedAreaImageWidthPixels>64<", "<GPano:CroppedAreaLeftPixels>0<", `xmlns:GPano="http://ns.google.com/photos/1.0/panorama/"`} {
+		if !strings.Contains(xmp, want) {
+			t.Errorf("XMP lacks %q:\n%s", want, xmp)
+		}
+	}
+	catDir := filepath.Dir(cat)
+	for _, p := range []string{png, fits, exrPath, filepath.Join(dir, "a.json")} {
+		b, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if strings.Contains(string(b), catDir) {
+			t.Errorf("%s contains the catalogue's directory %s", filepath.Base(p), catDir)
+		}
+	}
+
+	// Pillow (Debian python3-pil), a widely used reader, reports the display
+	// gamma from gAMA and sees the XMP.
+	py := extools.Python(t, "python3-pil", "PIL")
+	out, err := exec.Command(py, "-c", `
+import sys
+from PIL import Image
+im = Image.open(sys.argv[1])
+print(im.info.get("gamma"), "GPano:ProjectionType" in (im.info.get("XML:com.adobe.xmp") or ""))
+`, png).CombinedOutput()
+	if err != nil {
+		t.Fatalf("Pillow: %v\n%s", err, out)
+	}
+	if got := strings.TrimSpace(string(out)); got != "0.45455 True" {
+		t.Errorf("Pillow reports gamma, XMP = %q; want 0.45455 True", got)
+	}
+}

@@ -21,6 +21,7 @@ import (
 	"github.com/skyframe/skyframe/exr"
 	framefiles "github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/frameopt"
+	"github.com/skyframe/skyframe/imgfile"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/spectrum"
@@ -443,7 +444,7 @@ func fitsCards(frame *render.Frame, sc *scene, spec *frameSpec) ([]render.Card, 
 		Beta: b.Beta(), Gamma: b.Gamma(), MotionRA: ra, MotionDec: dec,
 		Position: [3]float64{pos.X, pos.Y, pos.Z}, Exposure: frame.Options.Exposure, Limit: limit,
 		FWHM: frame.Options.FWHM, Beaming: sc.beaming.String(), Projection: spec.proj.Kind.String(),
-		FOV: spec.proj.FieldOfView(), Tilt: spec.proj.Tilt, Catalog: sc.stars.Source, Stars: frame.Stats.Drawn,
+		FOV: spec.proj.FieldOfView(), Tilt: spec.proj.Tilt, Catalog: sc.stars.SourceName(), Stars: frame.Stats.Drawn,
 		ScalePerLux: frame.Scale, White: frame.Options.Color.White.String(), Layers: spec.layers.Layers.Names(),
 	}
 	cards, err := meta.Cards()
@@ -485,34 +486,49 @@ func printSummary(w io.Writer, frame *render.Frame, sc *scene, spec *frameSpec, 
 	fmt.Fprintf(w, "wrote %s in %v (render %v)\n", files, total.Round(time.Millisecond), took.Round(time.Millisecond))
 }
 
-// pngMeta records the frame's parameters as PNG text chunks.
+// pngMeta records the frame's parameters as PNG text chunks. Besides the
+// standard keywords (Software, Source, Comment; PNG spec §11.3.4.2) every
+// key is prefixed "skyframe:" so that none takes a standard or widely read
+// meaning (Pillow, for one, would report a text chunk named "gamma" as the
+// display gamma instead of the gAMA chunk's). Equirectangular frames carry
+// the GPano panorama XMP (imgfile.GPanoXMP) so viewers show them as a sphere.
 func pngMeta(s render.Sidecar, spec *frameSpec) []render.KV {
 	source := spec.source
 	if source == "" {
 		source = "skyframe still"
 	}
 	m := map[string]string{
-		"Software":    "skyframe " + version,
-		"Source":      source,
-		"Comment":     "Simulated sky: blackbody stars, no extinction; see the JSON sidecar for the full state.",
-		"beta":        fmtFloat(s.Beta),
-		"gamma":       fmtFloat(s.Gamma),
-		"rapidity":    fmtFloat(s.Rapidity),
-		"position_pc": fmt.Sprintf("%g,%g,%g", s.PositionPC[0], s.PositionPC[1], s.PositionPC[2]),
-		"projection":  spec.proj.Kind.String(),
-		"fov_deg":     fmtFloat(spec.proj.FieldOfView()),
-		"exposure_v":  fmtFloat(s.ExposureV),
-		"tone":        s.Tone,
-		"beaming":     s.Beaming,
-		"catalog":     s.Catalog.Source,
-		"look":        spec.lookDesc,
-		"stars_drawn": fmt.Sprint(s.Counts.Drawn),
+		"Software": "skyframe " + version,
+		"Source":   source,
+		"Comment":  "Simulated sky: blackbody stars, no extinction; see the JSON sidecar for the full state.",
+	}
+	for k, v := range map[string]string{
+		"beta":           fmtFloat(s.Beta),
+		"lorentz_factor": fmtFloat(s.Gamma),
+		"rapidity":       fmtFloat(s.Rapidity),
+		"position_pc":    fmt.Sprintf("%g,%g,%g", s.PositionPC[0], s.PositionPC[1], s.PositionPC[2]),
+		"projection":     spec.proj.Kind.String(),
+		"fov_deg":        fmtFloat(spec.proj.FieldOfView()),
+		"exposure_v":     fmtFloat(s.ExposureV),
+		"scale_per_lux":  fmtFloat(s.Scale),
+		"tone":           s.Tone,
+		"beaming":        s.Beaming,
+		"white_point":    s.White,
+		"layers":         strings.Join(spec.layers.Layers.Names(), ","),
+		"catalog":        s.Catalog.Source,
+		"look":           spec.lookDesc,
+		"stars_drawn":    fmt.Sprint(s.Counts.Drawn),
+	} {
+		m["skyframe:"+k] = v
 	}
 	if s.Heading != nil {
-		m["heading"] = fmt.Sprintf("%+v", *s.Heading)
+		m["skyframe:heading"] = fmt.Sprintf("%+v", *s.Heading)
 	}
 	if spec.credit != "" {
-		m["star_names"] = spec.credit
+		m["skyframe:star_names"] = spec.credit
+	}
+	if spec.proj.Kind == camera.Equirect {
+		m[imgfile.XMPKeyword] = imgfile.GPanoXMP(spec.proj.Width, spec.proj.Height)
 	}
 	return render.SortedKV(m)
 }
