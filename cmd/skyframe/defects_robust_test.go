@@ -512,3 +512,67 @@ func TestFlightOutputNamesDistinct(t *testing.T) {
 		}
 	}
 }
+
+// TestFlightResumeNoticesChangedInputs (item 2): frames made from a
+// different catalogue are not accepted by --verify (status 1, naming the
+// catalogue as what changed) nor skipped by --resume; they used to pass,
+// since the hash covered the plan text only.
+func TestFlightResumeNoticesChangedInputs(t *testing.T) {
+	dir := t.TempDir()
+	cat := hostileFile(t, dir, "stars.csv", []byte("ra,dec,vmag\n0,0,1\n10,5,2\n350,-5,3\n"))
+	plan := writePlan(t, dir, "[catalogue]\npath = \"stars.csv\"\n"+hostileBasePlan)
+	if code, _, errs := runIn(t, "flight", plan); code != exitOK {
+		t.Fatalf("render: %d %s", code, errs)
+	}
+	if code, so, _ := runIn(t, "flight", plan, "--verify"); code != exitOK {
+		t.Fatalf("verify of a fresh render: %d\n%s", code, so)
+	}
+	hostileFile(t, dir, "stars.csv", []byte("ra,dec,vmag\n0,0,1\n10,5,2\n350,-5,2.5\n"))
+	_ = cat
+	code, so, _ := runIn(t, "flight", plan, "--verify")
+	if code != exitFailure || !strings.Contains(so, "catalogue changed") {
+		t.Errorf("verify after the catalogue changed: status %d\n%s", code, so)
+	}
+	code, _, se := runIn(t, "flight", plan, "--resume")
+	if code != exitOK || !strings.Contains(se, "0 of 2 frames already done") {
+		t.Errorf("resume after the catalogue changed: status %d\n%s", code, se)
+	}
+	if code, so, _ := runIn(t, "flight", plan, "--verify"); code != exitOK {
+		t.Errorf("verify after the re-render: %d\n%s", code, so)
+	}
+}
+
+// TestFlightSidecarSealed (item 8): a flipped digit in a sidecar (here the
+// stored mean luminance the flash check trusts) makes --verify report the
+// frame corrupt and --resume render it again; it used to pass both.
+func TestFlightSidecarSealed(t *testing.T) {
+	dir := t.TempDir()
+	plan := writePlan(t, dir, hostileBasePlan)
+	if code, _, errs := runIn(t, "flight", plan); code != exitOK {
+		t.Fatalf("render: %d %s", code, errs)
+	}
+	side := filepath.Join(dir, "out", "frames", "00001.json")
+	b, err := os.ReadFile(side)
+	if err != nil {
+		t.Fatal(err)
+	}
+	i := bytes.Index(b, []byte(`"mean_luminance": `))
+	if i < 0 {
+		t.Fatalf("no mean_luminance in %s", b)
+	}
+	j := i + len(`"mean_luminance": `)
+	for ; j < len(b) && (b[j] < '1' || b[j] > '8'); j++ {
+	}
+	b[j]++ // one digit up: still valid JSON, still a plausible value
+	if err := os.WriteFile(side, b, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, so, _ := runIn(t, "flight", plan, "--verify")
+	if code != exitFailure || !strings.Contains(so, "corrupt frame 1:") || !strings.Contains(so, "edited after it was written") {
+		t.Errorf("verify of an edited sidecar: status %d\n%s", code, so)
+	}
+	code, _, se := runIn(t, "flight", plan, "--resume")
+	if code != exitOK || !strings.Contains(se, "1 of 2 frames already done") {
+		t.Errorf("resume: status %d\n%s", code, se)
+	}
+}

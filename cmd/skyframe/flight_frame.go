@@ -36,21 +36,23 @@ type flightSidecar struct {
 // parsecs, rates received signals per emitted second (the Doppler factor
 // toward the trajectory's start and end points).
 type flightInfo struct {
-	Title         string  `json:"title,omitempty"`
-	PlanHash      string  `json:"plan_hash"`
-	Frame         int     `json:"frame"`
-	Frames        int     `json:"frames"`
-	Phase         string  `json:"phase"`
-	VideoSeconds  float64 `json:"video_s"`
-	ShipYears     float64 `json:"tau_yr"`
-	CatalogueYrs  float64 `json:"t_yr"`
-	RateHome      float64 `json:"rate_home"`
-	RateDest      float64 `json:"rate_dest"`
-	TravelledPc   float64 `json:"travelled_pc"`
-	RemainingPc   float64 `json:"remaining_pc"`
-	LookKey       string  `json:"look_key"`
-	RollDeg       float64 `json:"roll_deg"`
-	MeanLuminance float64 `json:"mean_luminance"`
+	Title    string `json:"title,omitempty"`
+	PlanHash string `json:"plan_hash"` // flightJob.hash: every input's identity
+	// Inputs are the identities PlanHash is made of (see flightInputs).
+	Inputs        map[string]string `json:"inputs,omitempty"`
+	Frame         int               `json:"frame"`
+	Frames        int               `json:"frames"`
+	Phase         string            `json:"phase"`
+	VideoSeconds  float64           `json:"video_s"`
+	ShipYears     float64           `json:"tau_yr"`
+	CatalogueYrs  float64           `json:"t_yr"`
+	RateHome      float64           `json:"rate_home"`
+	RateDest      float64           `json:"rate_dest"`
+	TravelledPc   float64           `json:"travelled_pc"`
+	RemainingPc   float64           `json:"remaining_pc"`
+	LookKey       string            `json:"look_key"`
+	RollDeg       float64           `json:"roll_deg"`
+	MeanLuminance float64           `json:"mean_luminance"`
 	// RegionLuminance holds the mean relative luminance of each of the
 	// flashRegions² overlapping windows (see regionLuminance), row by row.
 	RegionLuminance []float64 `json:"region_luminance,omitempty"`
@@ -280,7 +282,7 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 	}
 	home, dest := signalRates(j.plan.Trajectory(), fs.State)
 	info := flightInfo{
-		Title: j.plan.Title, PlanHash: j.hash, Frame: i, Frames: j.plan.Frames(), Phase: fs.Phase.String(),
+		Title: j.plan.Title, PlanHash: j.hash, Inputs: j.inputs, Frame: i, Frames: j.plan.Frames(), Phase: fs.Phase.String(),
 		VideoSeconds: fs.Seconds, ShipYears: fs.State.Tau, CatalogueYrs: fs.State.T,
 		RateHome: home, RateDest: dest, TravelledPc: fs.State.Travelled, RemainingPc: fs.State.Remaining,
 		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum.mean, RegionLuminance: lum.regions,
@@ -336,7 +338,7 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 		if err != nil {
 			return frameLum{}, fmt.Errorf("flight: frame %d: sidecar: %w", i, err)
 		}
-		if err := j.writeFile(ff.sidecar, append(data, '\n')); err != nil {
+		if err := j.writeFile(ff.sidecar, append(sealJSON(data), '\n')); err != nil {
 			return frameLum{}, err
 		}
 	}
@@ -378,13 +380,20 @@ func (j *flightJob) checkFrame(i int) (frameStatus, frameLum, string) {
 	if err != nil {
 		return frameCorrupt, frameLum{}, err.Error()
 	}
+	if err := checkSeal(data); err != nil {
+		return frameCorrupt, frameLum{}, ff.sidecar + ": " + err.Error()
+	}
 	var side flightSidecar
 	if err := json.Unmarshal(data, &side); err != nil {
 		return frameCorrupt, frameLum{}, ff.sidecar + ": " + err.Error()
 	}
 	fl := side.Flight
 	if fl.PlanHash != j.hash {
-		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: rendered for another plan (hash %.12s…, this plan %.12s…)", ff.sidecar, fl.PlanHash, j.hash)
+		why := j.inputs.changed(fl.Inputs)
+		if why == "" {
+			why = "another plan or preview setting"
+		}
+		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: made from different inputs: %s (hash %.12s…, now %.12s…)", ff.sidecar, why, fl.PlanHash, j.hash)
 	}
 	if fl.Frame != i {
 		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: records frame %d", ff.sidecar, fl.Frame)

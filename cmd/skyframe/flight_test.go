@@ -548,7 +548,7 @@ func TestFlightVerify(t *testing.T) {
 			t.Errorf("verify output lacks %q:\n%s", w, so)
 		}
 	}
-	// A sidecar from another plan is corrupt too.
+	// A sidecar from another plan (sealed as a real one is) is corrupt too.
 	side0 := filepath.Join(out, "frames", "00000.json")
 	var s flightSidecar
 	sb, _ := os.ReadFile(side0)
@@ -557,10 +557,10 @@ func TestFlightVerify(t *testing.T) {
 	}
 	s.Flight.PlanHash = strings.Repeat("0", 64)
 	sb2, _ := json.MarshalIndent(s, "", "  ")
-	if err := os.WriteFile(side0, append(sb2, '\n'), 0o644); err != nil {
+	if err := os.WriteFile(side0, append(sealJSON(sb2), '\n'), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if _, so, _ := runIn(t, "flight", plan, "--verify"); !strings.Contains(so, "corrupt frame 0:") || !strings.Contains(so, "another plan") {
+	if _, so, _ := runIn(t, "flight", plan, "--verify"); !strings.Contains(so, "corrupt frame 0:") || !strings.Contains(so, "different inputs") {
 		t.Errorf("verify did not flag a sidecar of another plan:\n%s", so)
 	}
 	code, _, se := runIn(t, "flight", plan, "--resume")

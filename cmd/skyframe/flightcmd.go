@@ -107,7 +107,8 @@ func (f *flightFlags) register(fs *pflag.FlagSet) {
 // resume or verification needs.
 type flightJob struct {
 	plan    *flight.Plan
-	hash    string
+	hash    string       // identity of everything that makes the frames (inputsOf, flightInputs.hash)
+	inputs  flightInputs // what went into hash, recorded in each sidecar
 	stars   *catalog.Stars
 	index   *names.Index
 	outDir  string
@@ -203,7 +204,11 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 	if err := plan.Bind(flight.StarsResolver(stars, find)); err != nil {
 		return nil, err
 	}
-	job := &flightJob{plan: plan, hash: plan.Hash(), stars: stars, index: index, workers: f.workers}
+	inputs, err := inputsOf(e.ctx, plan, base, index)
+	if err != nil {
+		return nil, err
+	}
+	job := &flightJob{plan: plan, hash: inputs.hash(), inputs: inputs, stars: stars, index: index, workers: f.workers}
 	job.outDir = plan.Output.Dir
 	if !filepath.IsAbs(job.outDir) {
 		job.outDir = filepath.Join(base, job.outDir)
@@ -296,6 +301,19 @@ func readPlanFile(ctx context.Context, path string) ([]byte, error) {
 	return data, nil
 }
 
+// cataloguePath is the plan's catalogue file (relative paths are taken
+// from the plan's directory), or "" for the built-in sky.
+func cataloguePath(plan *flight.Plan, base string) string {
+	p := plan.Catalogue.Path
+	if p == "" || p == "builtin" {
+		return ""
+	}
+	if !filepath.IsAbs(p) {
+		p = filepath.Join(base, p)
+	}
+	return p
+}
+
 // planNames reads the plan's catalogue.names (relative to the plan's
 // directory; see loadNames) and indexes stars with it.
 func planNames(plan *flight.Plan, base string, stars *catalog.Stars) (*names.Index, error) {
@@ -338,10 +356,7 @@ func planStars(ctx context.Context, warn io.Writer, plan *flight.Plan, base stri
 		}
 		*dst = v
 	}
-	path := c.Path
-	if !filepath.IsAbs(path) {
-		path = filepath.Join(base, path)
-	}
+	path := cataloguePath(plan, base)
 	stars, rep, err := catalog.OpenContext(ctx, path, opt)
 	if err != nil {
 		return nil, usageError{err}
