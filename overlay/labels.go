@@ -94,7 +94,7 @@ type PlacedLabel struct {
 // passes room (inside the image, or a fisheye's circle) and overlaps no
 // placed label, no blocked box and no labelled star's own dot. A label
 // with no room is skipped.
-func placeLabels(targets []labelTarget, measure func(string) (float64, float64), room func(box) bool, blocked []box, gap float64) []PlacedLabel {
+func placeLabels(targets []labelTarget, measure func(string) (float64, float64), room func(b box, sx, sy float64) bool, blocked []box, gap float64) []PlacedLabel {
 	occupied := append([]box(nil), blocked...)
 	for _, t := range targets {
 		occupied = append(occupied, box{t.x - gap/2, t.y - gap/2, t.x + gap/2, t.y + gap/2})
@@ -109,7 +109,7 @@ func placeLabels(targets []labelTarget, measure func(string) (float64, float64),
 		}
 		for _, c := range cands {
 			b := box{c[0], c[1], c[0] + tw, c[1] + th}
-			if !room(b) {
+			if !room(b, t.x, t.y) {
 				continue
 			}
 			free := true

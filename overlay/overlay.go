@@ -198,28 +198,25 @@ func Layer(f *render.Frame, stars *catalog.Stars, l Options) (*image.RGBA, error
 		}
 	}
 
-	if l.Graticule.Frame != GraticuleNone {
-		drawGraticule(dc, lines, l.Graticule.Frame, scale)
-	}
-	strokeLines(dc, unity, styleUnity, scale)
-	drawBeacons(dc, beacons, l.Lattice.Spacing, scale)
 	var blocked []box
 	if hud != nil && len(hud.lines) > 0 {
 		blocked = append(blocked, hud.bound)
 	}
+	var marks []mark
 	if l.Markers.Motion && obs.Boost.Beta() > 0 {
 		if x, y, ok := projectVisible(&p, obs.Boost.Dir()); ok {
-			drawMotionMarker(dc, x, y, scale)
+			marks = append(marks, mark{x, y, true})
 			blocked = append(blocked, box{x - 11*scale, y - 11*scale, x + 11*scale, y + 11*scale})
 		}
 	}
 	if d := l.Markers.Destination; d != nil && r3.Norm(*d) > 0 {
 		n, _ := obs.Boost.Apply(r3.Unit(*d))
 		if x, y, ok := projectVisible(&p, n); ok {
-			drawDestinationMarker(dc, x, y, scale)
+			marks = append(marks, mark{x, y, false})
 			blocked = append(blocked, box{x - 7*scale, y - 7*scale, x + 7*scale, y + 7*scale})
 		}
 	}
+	drawSky(dc, p, sky{lines: lines, frame: l.Graticule.Frame, unity: unity, beacons: beacons, spacing: l.Lattice.Spacing, marks: marks}, scale)
 	if len(targets) > 0 {
 		ts := l.textSize() / DefaultTextSize * scale
 		face, err := newFace(fontSans, DefaultTextSize*ts)
@@ -239,14 +236,102 @@ func Layer(f *render.Frame, stars *catalog.Stars, l Options) (*image.RGBA, error
 	return over, nil
 }
 
-// labelRoom returns the test a label box must pass: inside the frame, and
-// for a fisheye inside the image circle with margin pixels to spare.
-func labelRoom(p camera.Projection, margin float64) func(box) bool {
+// mark is a direction marker at pixel (x, y): the motion ring or the
+// destination diamond.
+type mark struct {
+	x, y   float64
+	motion bool
+}
+
+// sky holds the overlays attached to the sky.
+type sky struct {
+	lines   []Polyline
+	frame   GraticuleFrame
+	unity   []Polyline
+	beacons []Beacon
+	spacing float64
+	marks   []mark
+}
+
+// drawSky draws the graticule, the D = 1 circle, the beacons and the
+// markers. In a cube strip each is drawn clipped to the face it lies in,
+// so strokes and symbols never bleed into the neighbouring face.
+func drawSky(dc *gg.Context, p camera.Projection, s sky, scale float64) {
+	eachFace(dc, p, func(in func(x float64) bool) {
+		if s.frame != GraticuleNone {
+			drawGraticule(dc, onFace(s.lines, in), s.frame, scale)
+		}
+		strokeLines(dc, onFace(s.unity, in), styleUnity, scale)
+		var bs []Beacon
+		for _, b := range s.beacons {
+			if in(b.X) {
+				bs = append(bs, b)
+			}
+		}
+		drawBeacons(dc, bs, s.spacing, scale)
+		for _, m := range s.marks {
+			switch {
+			case !in(m.x):
+			case m.motion:
+				drawMotionMarker(dc, m.x, m.y, scale)
+			default:
+				drawDestinationMarker(dc, m.x, m.y, scale)
+			}
+		}
+	})
+}
+
+// eachFace calls draw once per face of a cube strip, with drawing clipped
+// to that face and in reporting whether an x coordinate lies on it; for
+// other projections once, unclipped, with in always true.
+func eachFace(dc *gg.Context, p camera.Projection, draw func(in func(x float64) bool)) {
+	if p.Kind != camera.Cube {
+		draw(func(float64) bool { return true })
+		return
+	}
+	f := float64(p.Height)
+	for k := 0; k < 6; k++ {
+		x0 := float64(k) * f
+		dc.DrawRectangle(x0, 0, f, f)
+		dc.Clip()
+		draw(func(x float64) bool { return cubeFace(x, f) == k })
+		dc.ResetClip()
+	}
+}
+
+// cubeFace is the face (0–5) of a cube strip with faces f pixels wide
+// that holds the x coordinate.
+func cubeFace(x, f float64) int {
+	return max(0, min(5, int(math.Floor(x/f))))
+}
+
+// onFace returns the polylines whose middle vertex passes in (a polyline
+// never crosses a face edge, the projection being discontinuous there,
+// but it may end on one).
+func onFace(lines []Polyline, in func(x float64) bool) []Polyline {
+	var out []Polyline
+	for _, l := range lines {
+		if len(l.Points) > 0 && in(l.Points[len(l.Points)/2].X) {
+			out = append(out, l)
+		}
+	}
+	return out
+}
+
+// labelRoom returns the test a label box for a star at (sx, sy) must
+// pass: inside the frame; for a fisheye inside the image circle with
+// margin pixels to spare; for a cube strip on the star's own face.
+func labelRoom(p camera.Projection, margin float64) func(b box, sx, sy float64) bool {
 	w, h := float64(p.Width), float64(p.Height)
 	cx, cy, r, fish := p.ImageCircle()
-	return func(b box) bool {
+	return func(b box, sx, sy float64) bool {
 		if b.x0 < 0 || b.y0 < 0 || b.x1 > w || b.y1 > h {
 			return false
+		}
+		if p.Kind == camera.Cube {
+			f := float64(p.Height)
+			k := cubeFace(sx, f)
+			return b.x0 >= float64(k)*f+margin && b.x1 <= float64(k+1)*f-margin
 		}
 		if !fish {
 			return true
