@@ -36,6 +36,9 @@ var builtInPrefixes = []struct {
 // which read "synth-N" (sampled stars) and "nearby-K" (the invented nearby
 // stars). Find accepts what it returns.
 func DisplayID(id int64) string {
+	if id == SunID {
+		return SunName
+	}
 	for i := len(builtInPrefixes) - 1; i >= 0; i-- {
 		if p := builtInPrefixes[i]; id >= p.base {
 			return p.prefix + strconv.FormatInt(id-p.base, 10)

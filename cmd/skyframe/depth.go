@@ -61,9 +61,6 @@ func builtInTemps() (tmin, tmax float64) {
 	return catalog.TeffFromBV(catalog.BVMax), catalog.TeffFromBV(catalog.BVMin)
 }
 
-// isBuiltIn reports whether s is the default built-in sky.
-func isBuiltIn(s *catalog.Stars) bool { return s == catalog.BuiltIn() }
-
 // depthReport is the completeness of one frame's catalogue.
 type depthReport struct {
 	needed  render.Depth
@@ -208,14 +205,16 @@ func frameDepth(w io.Writer, cmd string, sc *scene, spec *frameSpec, skyDepth fl
 	}
 	var rep depthReport
 	var err error
-	builtIn := isBuiltIn(sc.stars)
+	builtIn := sc.builtIn
 	if builtIn {
 		var s *catalog.Stars
 		s, rep, err = deepBuiltIn(spec.opt, skyDepth)
 		if err != nil {
 			return err
 		}
-		if s != sc.stars {
+		if s != catalog.BuiltIn() {
+			p := spec.opt.Observer.Position
+			s = catalog.WithSun(s, [3]float64{p.X, p.Y, p.Z})
 			sc.stars = s
 			sc.index = names.NewIndex(s, sc.table)
 		}

@@ -86,3 +86,33 @@ func TestStillBuiltInDepth(t *testing.T) {
 		}
 	}
 }
+
+// TestSunInEverySky: seen from 1 pc the Sun (M_V = 4.83 [cp], 5772 K, IAU
+// 2015 B3 [pub]) is a V′ ≈ −0.17 star toward the origin, in the built-in sky
+// and in a catalogue file; from the origin (inside the solar system) it is
+// not listed.
+func TestSunInEverySky(t *testing.T) {
+	for _, extra := range [][]string{nil, {"--catalog", "../../testdata/catalogs/bsc5_good.dat"}} {
+		out, errs, code := runCmd(t, append([]string{"stars", "--position", "1,0,0", "--speed", "0", "--limit", "5"}, extra...)...)
+		if code != 0 {
+			t.Fatalf("%v: exit %d: %s", extra, code, errs)
+		}
+		found := false
+		for _, line := range strings.Split(out, "\n") {
+			f := strings.Split(line, ",")
+			if len(f) > 13 && f[1] == "Sun" {
+				found = true
+				if f[5] != "5772" || !strings.HasPrefix(f[13], "-0.17") || !strings.HasPrefix(f[9], "180") {
+					t.Errorf("%v: Sun row %q: want 5772 K, V′ −0.17 at RA 180°", extra, line)
+				}
+			}
+		}
+		if !found {
+			t.Errorf("%v: no Sun in %q", extra, out)
+		}
+	}
+	out, _, _ := runCmd(t, "stars", "--speed", "0", "--limit", "5")
+	if strings.Contains(out, ",Sun,") {
+		t.Error("the Sun is listed for an observer at the origin")
+	}
+}

@@ -82,7 +82,9 @@ type scene struct {
 	table *names.Table // the names table index was built with
 	// depthV is the depth (V) to which the built-in sky was drawn for the
 	// frame (frameDepth); 0 when not known or another catalogue.
-	depthV   float64
+	depthV float64
+	// builtIn: the catalogue is the built-in sky (no --catalog).
+	builtIn  bool
 	observer camera.Observer
 	beaming  spectrum.Beaming
 	heading  r3.Vec // unit direction of motion (ICRS)
@@ -126,6 +128,13 @@ func (p *physicsFlags) resolve(e *env, fs *pflag.FlagSet) (*scene, error) {
 	sc.heading, err = resolveDirection(sc.index, "toward", p.toward, pos)
 	if err != nil {
 		return nil, err
+	}
+	sc.builtIn = p.catalog == "" && p.stream == nil
+	if p.stream == nil {
+		// The Sun is a star of every sky seen from outside the solar system.
+		if w := catalog.WithSun(sc.stars, [3]float64{pos.X, pos.Y, pos.Z}); w != sc.stars {
+			sc.stars, sc.index = w, names.NewIndex(w, table)
+		}
 	}
 	nset := 0
 	for _, name := range []string{"speed", "gamma", "rapidity"} {
