@@ -54,6 +54,15 @@ overlays stay inside the circle, and the heads-up display sits in the
 convention's front safe area (±50° azimuth from the front, 10–60° altitude),
 its text level along the dome; a display with no room there is refused.
 
+Directions mean the same here and in flight plans: RA,DEC is the apparent
+direction, where the audience sees it from the moving ship (ICRS axes,
+degrees); catalogue:RA,DEC is a direction in the catalogue (rest) frame,
+shown where it appears after aberration; a star id or name is where the
+star's light appears; ahead and behind follow the motion. --toward takes
+either spelling with one result (aberration keeps the axis of motion).
+Every frame option below is also a plan key of the same name ([camera] or
+[overlays], with _ for -), with the same default and checks.
+
 Examples:
   skyframe still
   skyframe still --speed 0.99 --projection fisheye --size 2048x2048 -o dome.png
