@@ -193,6 +193,9 @@ type OutputSpec struct {
 	// PNG (the frame's name with .overlay.png), and the frame's PNG
 	// without them.
 	OverlayLayer bool `toml:"overlay_layer"`
+	// EXR writes each frame as OpenEXR too (the frame's name with .exr;
+	// content per the camera.exr_* keys).
+	EXR bool `toml:"exr"`
 }
 
 // planFile is the whole file.

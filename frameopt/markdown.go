@@ -22,7 +22,7 @@ var Elsewhere = []struct{ Flag, Plan string }{
 	{"position", "[start] position or star"},
 	{"output", "output.dir, output.frames, output.png"},
 	{"fits", "output.fits"},
-	{"exr", "— (still only for now)"},
+	{"exr", "output.exr"},
 	{"sidecar", "output.sidecar"},
 	{"no-sidecar", "output.sidecar = false"},
 	{"overlay-layer", "output.overlay_layer = true"},

@@ -77,7 +77,7 @@ func renderPan(t *testing.T, shutter float64) (*render.Frame, int) {
 		t.Fatal(err)
 	}
 	obs, _ := flightObserver(t, fs)
-	f, _, blur, err := j.renderLinear(prep, fs, obs, proj)
+	f, _, _, blur, err := j.renderLinear(prep, fs, obs, proj)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -177,7 +177,7 @@ func BenchmarkFlightBlur(b *testing.B) {
 				b.ResetTimer()
 				var k int
 				for range b.N {
-					_, _, blur, err := j.renderLinear(prep, fs, obs, proj)
+					_, _, _, blur, err := j.renderLinear(prep, fs, obs, proj)
 					if err != nil {
 						b.Fatal(err)
 					}

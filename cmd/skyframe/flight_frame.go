@@ -13,13 +13,16 @@ import (
 	"os"
 	"path"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/exr"
 	"github.com/skyframe/skyframe/flight"
+	framefiles "github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/spectrum"
@@ -66,7 +69,7 @@ type flightInfo struct {
 // fileRecord names an image file of the frame (relative to the output
 // directory, slash-separated) with its size and SHA-256.
 type fileRecord struct {
-	Kind   string `json:"kind"` // "png", "fits" or "overlay"
+	Kind   string `json:"kind"` // "png", "fits", "exr" or "overlay"
 	Name   string `json:"name"`
 	Bytes  int64  `json:"bytes"`
 	SHA256 string `json:"sha256"`
@@ -74,7 +77,7 @@ type fileRecord struct {
 
 // frameFiles are the paths of one frame's files, relative to the output
 // directory; empty when not written. overlay is the overlay layer's PNG.
-type frameFiles struct{ png, fits, sidecar, overlay string }
+type frameFiles struct{ png, fits, sidecar, overlay, exr string }
 
 func (j *flightJob) files(i int) frameFiles {
 	var f frameFiles
@@ -107,6 +110,9 @@ func (j *flightJob) files(i int) frameFiles {
 	if o.OverlayLayer {
 		f.overlay = own(j.plan.FrameName(i, ".overlay.png"), ".overlay.png")
 	}
+	if o.EXR {
+		f.exr = own(j.plan.FrameName(i, ".exr"), ".exr")
+	}
 	return f
 }
 
@@ -118,7 +124,7 @@ type outFile struct{ what, rel string }
 // its file here so that checkOutputNames covers it.
 func (f frameFiles) list() []outFile {
 	var out []outFile
-	for _, c := range []outFile{{"PNG", f.png}, {"FITS", f.fits}, {"sidecar", f.sidecar}} {
+	for _, c := range []outFile{{"PNG", f.png}, {"FITS", f.fits}, {"EXR", f.exr}, {"sidecar", f.sidecar}} {
 		if c.rel != "" {
 			out = append(out, c)
 		}
@@ -257,7 +263,7 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	fr := j.frame
-	frame, lay, blur, err := j.renderLinear(prep, fs, obs, proj)
+	frame, lay, kept, blur, err := j.renderLinear(prep, fs, obs, proj)
 	if err != nil {
 		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
@@ -333,6 +339,16 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 		}
 		info.Files = append(info.Files, fileRecord{Kind: "fits", Name: ff.fits, Bytes: int64(buf.Len()), SHA256: sha256Hex(buf.Bytes())})
 	}
+	if ff.exr != "" {
+		b, err := j.frameEXR(frame, kept, side, lay, layer)
+		if err != nil {
+			return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		}
+		if err := j.writeFile(ff.exr, b); err != nil {
+			return frameLum{}, err
+		}
+		info.Files = append(info.Files, fileRecord{Kind: "exr", Name: ff.exr, Bytes: int64(len(b)), SHA256: sha256Hex(b)})
+	}
 	if ff.sidecar != "" {
 		data, err := json.MarshalIndent(flightSidecar{Sidecar: side, Flight: info}, "", "  ")
 		if err != nil {
@@ -398,7 +414,7 @@ func (j *flightJob) checkFrame(i int) (frameStatus, frameLum, string) {
 	if fl.Frame != i {
 		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: records frame %d", ff.sidecar, fl.Frame)
 	}
-	want := map[string]string{"png": ff.png, "fits": ff.fits, "overlay": ff.overlay}
+	want := map[string]string{"png": ff.png, "fits": ff.fits, "overlay": ff.overlay, "exr": ff.exr}
 	seen := 0
 	for _, rec := range fl.Files {
 		name, ok := want[rec.Kind]
@@ -417,7 +433,7 @@ func (j *flightJob) checkFrame(i int) (frameStatus, frameLum, string) {
 			return frameCorrupt, frameLum{}, fmt.Sprintf("%s: %d bytes, SHA-256 does not match the sidecar", name, len(b))
 		}
 	}
-	if n := btoi(ff.png != "") + btoi(ff.fits != "") + btoi(ff.overlay != ""); seen != n {
+	if n := btoi(ff.png != "") + btoi(ff.fits != "") + btoi(ff.overlay != "") + btoi(ff.exr != ""); seen != n {
 		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: lists %d image files, the plan writes %d", ff.sidecar, seen, n)
 	}
 	regions := fl.RegionLuminance
@@ -440,7 +456,7 @@ func btoi(b bool) int {
 // remove each other's files in flight.
 func (j *flightJob) removeStaleTemps(i int) error {
 	ff := j.files(i)
-	for _, rel := range []string{ff.png, ff.fits, ff.sidecar, ff.overlay} {
+	for _, rel := range []string{ff.png, ff.fits, ff.sidecar, ff.overlay, ff.exr} {
 		if rel == "" {
 			continue
 		}
@@ -478,28 +494,38 @@ func globEscape(s string) string {
 // result depends only on the plan and the frame. The frame's options,
 // projection and observer are those of the frame's own instant, and its
 // star statistics those of the sub-frame nearest to it.
-func (j *flightJob) renderLinear(prep *render.Prepared, fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, layerSet, []float64, error) {
+func (j *flightJob) renderLinear(prep *render.Prepared, fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, layerSet, []render.Contribution, []float64, error) {
 	fr := j.frame
-	one := func(fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, layerSet, error) {
+	// keep: an unblurred frame with an EXR file keeps its linear
+	// contributions apart and its Doppler channel (a blurred frame's EXR
+	// has the combined light only).
+	one := func(fs flight.FrameState, obs camera.Observer, proj camera.Projection, keep bool) (*render.Frame, layerSet, []render.Contribution, error) {
 		opt := render.Options{Projection: proj, Observer: obs, Beaming: fr.Beaming, FWHM: fr.FWHM,
-			Exposure: fs.Camera.Exposure, Limit: fr.Limit, Color: spectrum.ColorOptions{White: fr.White}, Workers: j.workers}
+			Exposure: fs.Camera.Exposure, Limit: fr.Limit, Color: spectrum.ColorOptions{White: fr.White}, Workers: j.workers,
+			Doppler: keep && (j.exr.Layers == nil || slices.Contains(j.exr.Layers, framefiles.EXRDoppler))}
 		frame, err := prep.Render(opt)
 		if err != nil {
-			return nil, layerSet{}, err
+			return nil, layerSet{}, nil, err
 		}
 		lay := j.frameLayers(fs, obs)
-		if err := lay.AddLinear(frame); err != nil {
-			return nil, layerSet{}, err
+		var kept []render.Contribution
+		if keep {
+			kept, err = lay.AddLinearKept(frame)
+		} else {
+			err = lay.AddLinear(frame)
 		}
-		return frame, lay, nil
+		if err != nil {
+			return nil, layerSet{}, nil, err
+		}
+		return frame, lay, kept, nil
 	}
 	offsets, _, err := j.plan.BlurSamples(fs.Index, fr.Shutter, fr.FWHM, j.projection)
 	if err != nil {
-		return nil, layerSet{}, nil, err
+		return nil, layerSet{}, nil, nil, err
 	}
 	if len(offsets) == 1 && offsets[0] == 0 {
-		frame, lay, err := one(fs, obs, proj)
-		return frame, lay, offsets, err
+		frame, lay, kept, err := one(fs, obs, proj, j.plan.Output.EXR)
+		return frame, lay, kept, offsets, err
 	}
 	var acc []float32
 	var nearest *render.Frame
@@ -507,19 +533,19 @@ func (j *flightJob) renderLinear(prep *render.Prepared, fs flight.FrameState, ob
 	for _, dt := range offsets {
 		fsk, err := j.plan.FrameStateAt(fs.Index, dt)
 		if err != nil {
-			return nil, layerSet{}, nil, err
+			return nil, layerSet{}, nil, nil, err
 		}
 		obsk, err := flight.Observer(fsk.State)
 		if err != nil {
-			return nil, layerSet{}, nil, err
+			return nil, layerSet{}, nil, nil, err
 		}
 		projk, err := j.projection(fsk)
 		if err != nil {
-			return nil, layerSet{}, nil, err
+			return nil, layerSet{}, nil, nil, err
 		}
-		fk, _, err := one(fsk, obsk, projk)
+		fk, _, _, err := one(fsk, obsk, projk, false)
 		if err != nil {
-			return nil, layerSet{}, nil, err
+			return nil, layerSet{}, nil, nil, err
 		}
 		if acc == nil {
 			acc = fk.Pix
@@ -541,5 +567,36 @@ func (j *flightJob) renderLinear(prep *render.Prepared, fs flight.FrameState, ob
 	frame.Doppler = nil
 	frame.Options.Projection, frame.Options.Observer, frame.Options.Exposure = proj, obs, fs.Camera.Exposure
 	lay := j.frameLayers(fs, obs)
-	return frame, lay, offsets, nil
+	return frame, lay, nil, offsets, nil
+}
+
+// frameEXR encodes a flight frame's OpenEXR file: the frame, its kept
+// linear contributions, the overlays alone (the overlay layer when the plan
+// writes one, else drawn here on a transparent image) and the physical
+// state, at the plan's frame rate.
+func (j *flightJob) frameEXR(f *render.Frame, kept []render.Contribution, side render.Sidecar, lay layerSet, layer image.Image) ([]byte, error) {
+	in := framefiles.EXRInput{Frame: f, Contributions: kept, Sidecar: side}
+	ov, ok := layer.(*image.NRGBA)
+	if !ok {
+		ov = image.NewNRGBA(image.Rect(0, 0, f.W, f.H))
+		if err := overlay.Draw(ov, f, j.stars, lay.Options); err != nil {
+			return nil, err
+		}
+	}
+	for i := 3; i < len(ov.Pix); i += 4 {
+		if ov.Pix[i] != 0 {
+			in.Overlay = ov
+			break
+		}
+	}
+	img, err := framefiles.EXRImage(in, j.exr)
+	if err != nil {
+		return nil, fmt.Errorf("camera.exr_layers: %w", err)
+	}
+	enc := exr.Encoder{Compression: j.exr.Compression, Workers: j.workers}
+	var buf bytes.Buffer
+	if err := enc.Encode(&buf, img); err != nil {
+		return nil, err
+	}
+	return buf.Bytes(), nil
 }

@@ -230,6 +230,13 @@ func (j *flightJob) frameBytes() uint64 {
 	if *o.Sidecar {
 		n += sidecarBytes
 	}
+	if o.EXR {
+		// ZIP-compressed half RGB and up to four layers: black sky
+		// compresses like the PNG's; allow a fiftieth of 16 half channels
+		// raw, at most the raw size of the combined RGB.
+		raw := w * h * 2 * 16
+		n += raw/50 + uint64(j.stars.Len())*pngBytesPerStar + pngOverhead
+	}
 	if o.OverlayLayer {
 		// Mostly transparent RGBA: about a fiftieth of the raw size, as
 		// for a star field, at most the raw size.

@@ -18,6 +18,7 @@ import (
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/flight"
+	framefiles "github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/render"
@@ -120,6 +121,8 @@ type flightJob struct {
 	workers int
 	// layers are the plan's overlays (frameLayers specialises them).
 	layers layerSet
+	// exr is the OpenEXR content of each frame (output.exr).
+	exr framefiles.EXROptions
 }
 
 func runFlight(e *env, args []string) error {
@@ -369,6 +372,14 @@ func planStars(ctx context.Context, warn io.Writer, plan *flight.Plan, base stri
 // plan's values cannot make is reported before anything renders.
 func (j *flightJob) checkCamera() error {
 	j.frame = j.plan.Frame.Frame()
+	if j.plan.Output.EXR {
+		x, err := exrOptions(&j.plan.Frame)
+		if err != nil {
+			return usagef("%s: camera.exr_*: %v", j.plan.Name, err)
+		}
+		x.FPS = j.plan.Show.FPS
+		j.exr = x
+	}
 	fsx, err := j.plan.FrameState(0)
 	if err != nil {
 		return err

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"encoding/binary"
 	"encoding/json"
 	"maps"
@@ -13,6 +14,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/skyframe/skyframe/exr"
 	"github.com/skyframe/skyframe/imgfile"
 	"github.com/skyframe/skyframe/internal/extools"
 )
@@ -328,5 +330,79 @@ print(im.info.get("gamma"), "GPano:ProjectionType" in (im.info.get("XML:com.adob
 	}
 	if got := strings.TrimSpace(string(out)); got != "0.45455 True" {
 		t.Errorf("Pillow reports gamma, XMP = %q; want 0.45455 True", got)
+	}
+}
+
+// A flight with output.exr and output.fits and 16-bit PNG writes every
+// file per frame, each recorded with its SHA-256 in the sidecar, so
+// --verify checks the EXR too; the EXR holds the frame rate as
+// framesPerSecond and R, G, B equal to the FITS data to half rounding.
+func TestFlightEXR(t *testing.T) {
+	plan, err := os.ReadFile("../../testdata/plans/voyage.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := strings.Replace(string(plan), "sidecar = true", "sidecar = true\nexr = true", 1)
+	text = strings.Replace(text, "fits = false", "fits = true", 1)
+	text = strings.Replace(text, "width = 640\nheight = 360", "width = 160\nheight = 90\ndepth = 16", 1)
+	dir := t.TempDir()
+	path := filepath.Join(dir, "plan.toml")
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, stderr, code := runCmd(t, "flight", path, "--frames", "0-1"); code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	out := filepath.Join(dir, "out", "frames")
+	for _, ext := range []string{".png", ".fits", ".exr", ".json"} {
+		if _, err := os.Stat(filepath.Join(out, "00001"+ext)); err != nil {
+			t.Fatalf("frame 1 %s: %v", ext, err)
+		}
+	}
+	b, err := os.ReadFile(filepath.Join(out, "00000.exr"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	d, err := exr.Decode(bytes.NewReader(b))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if v, ok := d.Attr("framesPerSecond"); !ok || v.(exr.Rational).D == 0 {
+		t.Errorf("framesPerSecond %v", v)
+	}
+	ff, err := os.Open(filepath.Join(out, "00000.fits"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer ff.Close()
+	fi, err := imgfile.ReadFITS(ff)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := d.Channel("R")
+	if r == nil || d.Width != fi.Width || d.Height != fi.Height {
+		t.Fatalf("EXR %d×%d R %v, FITS %d×%d", d.Width, d.Height, r != nil, fi.Width, fi.Height)
+	}
+	for i, v := range r.Pix {
+		want := fi.Pix[3*i]
+		if math.Abs(float64(v-want)) > math.Max(math.Abs(float64(want))/2048, 1.0/(1<<25)) {
+			t.Fatalf("pixel %d: EXR R %g, FITS %g", i, v, want)
+		}
+	}
+	side, err := os.ReadFile(filepath.Join(out, "00000.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(side), `"kind": "exr"`) {
+		t.Error("the sidecar does not record the EXR file")
+	}
+	if _, stderr, code := runCmd(t, "flight", path, "--frames", "0-1", "--verify"); code != 0 {
+		t.Errorf("verify: exit %d: %s", code, stderr)
+	}
+	if err := os.WriteFile(filepath.Join(out, "00001.exr"), []byte("not an exr"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, _, code := runCmd(t, "flight", path, "--frames", "0-1", "--verify"); code != 1 {
+		t.Errorf("verify after damaging the EXR: exit %d, want 1", code)
 	}
 }
