@@ -15,6 +15,7 @@ import (
 	"strings"
 	"syscall"
 	"testing"
+	"time"
 
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/flight"
@@ -574,5 +575,57 @@ func TestFlightSidecarSealed(t *testing.T) {
 	code, _, se := runIn(t, "flight", plan, "--resume")
 	if code != exitOK || !strings.Contains(se, "1 of 2 frames already done") {
 		t.Errorf("resume: status %d\n%s", code, se)
+	}
+}
+
+// TestFlightOutputLock (item 5): a second run rendering the same frames
+// into a directory while the first is at work is refused with status 2
+// naming the other run (two such runs used to delete each other's
+// temporary files, and one died at random); a shard with other frames
+// runs beside it; a lock left by a process that no longer runs is removed
+// with a note.
+func TestFlightOutputLock(t *testing.T) {
+	if testing.Short() {
+		t.Skip("runs a paced flight in a real process; not in -short")
+	}
+	dir := t.TempDir()
+	plan := writePlan(t, dir, voyagePlan(40))
+	out := filepath.Join(dir, "out")
+	first := skyframeProc(t, []string{envTestPace + "=50ms"}, "flight", plan, "--out", out, "--frames", "0-29")
+	var firstErr bytes.Buffer
+	first.Stderr = &firstErr
+	if err := first.Start(); err != nil {
+		t.Fatal(err)
+	}
+	waitForFrames(t, out, 2, 20*time.Second)
+	code, msg := hostileRun(t, "flight", plan, "--out", out, "--frames", "20-39")
+	if code != exitUsage || !strings.Contains(msg, "another run is rendering frames 20-29") || !strings.Contains(msg, fmt.Sprintf("pid %d", first.Process.Pid)) {
+		t.Errorf("overlapping run: status %d: %s", code, msg)
+	}
+	if code, _, errs := runIn(t, "flight", plan, "--out", out, "--frames", "30-39"); code != exitOK {
+		t.Errorf("disjoint frames beside the running one: status %d: %s", code, errs)
+	}
+	if err := first.Wait(); err != nil {
+		t.Fatalf("first run: %v\n%s", err, firstErr.String())
+	}
+	// A stale lock: a process of this host that has ended.
+	gone := exec.Command("true")
+	if err := gone.Run(); err != nil {
+		t.Fatal(err)
+	}
+	host, _ := os.Hostname()
+	stale := filepath.Join(out, fmt.Sprintf(".skyframe-%d.lock", gone.Process.Pid))
+	if err := os.WriteFile(stale, []byte(fmt.Sprintf("host=%s\npid=%d\nframes=0-39\nstarted=then\n", host, gone.Process.Pid)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, errs := runIn(t, "flight", plan, "--out", out, "--resume")
+	if code != exitOK || !strings.Contains(errs, "removed a stale lock") {
+		t.Errorf("stale lock: status %d: %s", code, errs)
+	}
+	if ents, _ := filepath.Glob(filepath.Join(out, ".skyframe-*.lock")); len(ents) != 0 {
+		t.Errorf("locks left: %v", ents)
+	}
+	if code, so, _ := runIn(t, "flight", plan, "--out", out, "--verify"); code != exitOK {
+		t.Errorf("verify: %d\n%s", code, so)
 	}
 }

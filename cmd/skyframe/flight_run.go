@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"slices"
 	"syscall"
 	"time"
 
@@ -27,6 +28,22 @@ const envTestPace = "SKYFRAME_TEST_PACE"
 // render renders the job's frames, skipping intact ones with resume.
 func (j *flightJob) render(e *env, resume bool) error {
 	todo := j.frames
+	// The lock is taken before the resume check when the directory exists
+	// (another run may be writing there), else once it is created, after
+	// the free-space check (which must not create it).
+	var lock *dirLock
+	defer func() { lock.release() }()
+	takeLock := func() (err error) {
+		if lock == nil && len(j.frames) > 0 {
+			lock, err = j.lockFrames(e.stderr, slices.Min(j.frames), slices.Max(j.frames), time.Now())
+		}
+		return err
+	}
+	if fi, err := os.Stat(j.outDir); err == nil && fi.IsDir() {
+		if err := takeLock(); err != nil {
+			return err
+		}
+	}
 	lum := make(map[int]frameLum, len(j.frames))
 	if resume {
 		todo = todo[:0:0]
@@ -51,6 +68,9 @@ func (j *flightJob) render(e *env, resume bool) error {
 		pace = d
 	}
 	if err := os.MkdirAll(j.outDir, 0o755); err != nil {
+		return err
+	}
+	if err := takeLock(); err != nil {
 		return err
 	}
 	start := time.Now()

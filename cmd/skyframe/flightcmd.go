@@ -42,17 +42,24 @@ direction shown where it appears, a star where its light appears.
 A frame depends only on the plan and its index, so a render can be split
 and resumed:
   --shard K/N       render the K-th (0-based) of N equal contiguous blocks;
-                    without it the shard comes from SKYFRAME_SHARD=K/N, a
-                    Kubernetes Indexed Job (JOB_COMPLETION_INDEX with
-                    SKYFRAME_SHARDS=N) or a Slurm job array
-                    (SLURM_ARRAY_TASK_ID, SLURM_ARRAY_TASK_COUNT).
-  --resume          skip frames whose sidecar records this plan's hash and
-                    whose image files match the SHA-256 recorded there.
+                    --shard auto takes it from a Kubernetes Indexed Job
+                    (JOB_COMPLETION_INDEX with SKYFRAME_SHARDS=N) or a Slurm
+                    job array (SLURM_ARRAY_TASK_ID, SLURM_ARRAY_TASK_COUNT);
+                    without it, SKYFRAME_SHARD=K/N or =auto, else the whole
+                    job (the log says which shard and why).
+  --resume          skip frames whose sidecar is intact (its sidecar_sha256
+                    seal checks), records the same inputs (plan text, tool
+                    version, catalogue and names file contents) and whose
+                    image files match the SHA-256 recorded there.
   --verify          render nothing: check that the output holds every
-                    selected frame intact (sidecar present, same plan hash,
-                    image SHA-256 as recorded); list missing and corrupt
-                    frames; exit status 1 if any, 0 if all are intact. It
-                    also runs the flash check over the whole sequence.
+                    selected frame intact (as for --resume); list missing
+                    and corrupt frames and why (e.g. "catalogue changed");
+                    exit status 1 if any, 0 if all are intact. It also runs
+                    the flash check over the whole sequence.
+A rendering run holds a lock file (.skyframe-PID.lock: host, pid, frames) in
+the output directory; a run whose frames overlap those of a running one is
+refused, shards with other frames share the directory, and a lock left by a
+process of this host that has ended is removed.
 
 Before rendering, the plan is checked (legs connect, accelerations are
 positive, destinations are known, speed caps are below c) and the output
