@@ -54,6 +54,18 @@ type CensusRow struct {
 	HalfAngle float64
 	// Brightest is the smallest observed V′; NaN when no star is counted.
 	Brightest float64
+	// NeededV is the catalogue depth this speed needs to count every star
+	// that can reach LimitMag (the completeness bound over the whole sky,
+	// set by the caller); 0 when not known.
+	NeededV float64
+}
+
+// Incomplete reports whether the catalogue (depth t.DepthV) is shallower
+// than speed row i needs (NeededV), by more than 0.05 mag; false when
+// either is not known.
+func (t *CensusTable) Incomplete(i int) bool {
+	r := t.Rows[i]
+	return t.DepthV != 0 && r.NeededV != 0 && t.DepthV < r.NeededV-0.05
 }
 
 // CensusTable is the census of one catalogue against speed.
@@ -66,6 +78,9 @@ type CensusTable struct {
 	// Options as used (Heading normalised, defaults filled in).
 	Options CensusOptions
 	Rows    []CensusRow
+	// DepthV is the catalogue's completeness limit (V), set by the caller;
+	// 0 when not known.
+	DepthV float64
 }
 
 // Census counts and measures the sky seen from the ship for each speed.
@@ -216,7 +231,7 @@ func halfCountRadius(a []float64) float64 {
 // CensusColumns are the CSV header of CensusTable.WriteCSV, in order.
 var CensusColumns = []string{"beta", "gamma", "visible", "forward", "rear",
 	"illuminance_lux", "visible_illuminance_lux", "cie_x", "cie_y",
-	"half_angle_deg", "brightest_vmag"}
+	"half_angle_deg", "brightest_vmag", "needed_v", "complete"}
 
 // WriteCSV writes one row per speed under the CensusColumns header.
 func (t *CensusTable) WriteCSV(w io.Writer) error {
@@ -224,11 +239,18 @@ func (t *CensusTable) WriteCSV(w io.Writer) error {
 	if err := cw.Write(CensusColumns); err != nil {
 		return err
 	}
-	for _, r := range t.Rows {
+	for i, r := range t.Rows {
+		need, complete := "", ""
+		if r.NeededV != 0 {
+			need = fmtNum(r.NeededV)
+		}
+		if t.DepthV != 0 && r.NeededV != 0 {
+			complete = fmt.Sprint(!t.Incomplete(i))
+		}
 		rec := []string{fmtNum(r.Beta), fmtNum(r.Gamma),
 			fmt.Sprint(r.Visible), fmt.Sprint(r.Forward), fmt.Sprint(r.Rear),
 			fmtNum(r.Illuminance), fmtNum(r.VisibleIlluminance),
-			fmtNum(r.CIEx), fmtNum(r.CIEy), fmtNum(r.HalfAngle), fmtNum(r.Brightest)}
+			fmtNum(r.CIEx), fmtNum(r.CIEy), fmtNum(r.HalfAngle), fmtNum(r.Brightest), need, complete}
 		if err := cw.Write(rec); err != nil {
 			return err
 		}

@@ -388,6 +388,23 @@ func (t *CensusTable) Figure() (*Figure, error) {
 	}
 	p1.Legend.YOffs = 0.3 * vg.Inch // above the rear count, below the forward one
 	p1.Y.Min = 0
+	// Speeds at which the catalogue is too shallow: open red rings on the
+	// whole-sky count, and the title says from which depth.
+	var inc plotter.XYs
+	for i := range t.Rows {
+		if t.Incomplete(i) {
+			inc = append(inc, plotter.XY{X: x[i], Y: vis[i]})
+		}
+	}
+	if len(inc) > 0 {
+		if s, err := plotter.NewScatter(inc); err == nil {
+			s.GlyphStyle.Radius = vg.Points(5)
+			s.GlyphStyle.Shape = draw.RingGlyph{}
+			s.GlyphStyle.Color = color.RGBA{R: 200, A: 255}
+			p1.Add(s)
+			p1.Legend.Add(fmt.Sprintf("incomplete: catalogue to V ≈ %.1f", t.DepthV), s)
+		}
+	}
 	p2, err := mk("illuminance from starlight", "illuminance (lux, log scale)", axisLog, []Column{
 		{Label: "all stars", Y: lux}, {Label: "stars with V′ ≤ " + lim, Y: vlux}})
 	if err != nil {

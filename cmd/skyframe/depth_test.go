@@ -116,3 +116,23 @@ func TestSunInEverySky(t *testing.T) {
 		t.Error("the Sun is listed for an observer at the origin")
 	}
 }
+
+// TestCensusCompleteness: a BSC5 census (complete to V ≈ 6.5) is marked
+// incomplete at 0.9 c in its CSV and warned about; the built-in sky is drawn
+// deep enough for every speed.
+func TestCensusCompleteness(t *testing.T) {
+	bsc := sharedcat.BSC5(t)
+	out, errs, code := runCmd(t, "census", "--catalog", bsc, "--speeds", "0,0.9")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	lines := strings.Split(strings.TrimSpace(out), "\n")
+	if len(lines) != 3 || !strings.HasSuffix(lines[0], "needed_v,complete") || !strings.HasSuffix(lines[1], ",6.5,true") ||
+		!strings.HasSuffix(lines[2], ",false") || !strings.Contains(errs, "β = 0.9") {
+		t.Errorf("BSC5 census: %q, stderr %q; want 0 complete, 0.9 incomplete, a warning", out, errs)
+	}
+	out, errs, code = runCmd(t, "census", "--speeds", "0.99")
+	if code != 0 || strings.Contains(errs, "warning") || !strings.HasSuffix(strings.TrimSpace(out), ",true") {
+		t.Errorf("built-in census at 0.99 c: exit %d, %q, stderr %q; want complete", code, out, errs)
+	}
+}

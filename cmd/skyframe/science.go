@@ -14,9 +14,11 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"github.com/skyframe/skyframe/analysis"
+	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/spectrum"
+	"gonum.org/v1/gonum/spatial/r3"
 )
 
 const curvesHelp = `Usage: skyframe curves [options]
@@ -367,6 +369,19 @@ func runCensus(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
+	builtIn := p.catalog == ""
+	need, err := censusNeeds(stars, sp, heading, *limit, beam, builtIn)
+	if err != nil {
+		return err
+	}
+	depthV := catalog.EstimateDepth(stars).V
+	if builtIn {
+		// The built-in sky is drawn as deep as the fastest speed needs.
+		depthV = censusSkyDepth(need)
+		if depthV > catalog.DefaultSynthMagLimit {
+			stars = catalog.Synthetic(catalog.SynthOptions{MagLimit: depthV})
+		}
+	}
 	tab, err := analysis.Census(stars, sp, analysis.CensusOptions{
 		Heading: heading, Position: pos, LimitMag: *limit, Beaming: beam,
 	})
@@ -375,6 +390,24 @@ func runCensus(e *env, args []string) error {
 			return usageError{err}
 		}
 		return err
+	}
+	if !math.IsNaN(depthV) {
+		tab.DepthV = depthV
+	}
+	var incomplete []string
+	for i := range tab.Rows {
+		tab.Rows[i].NeededV = need[i]
+		if tab.Incomplete(i) {
+			incomplete = append(incomplete, fmtBeta(tab.Rows[i].Beta))
+		}
+	}
+	if len(incomplete) > 0 {
+		what := "the catalogue"
+		if builtIn {
+			what = "the built-in sky"
+		}
+		fmt.Fprintf(e.stderr, "skyframe census: warning: %s is complete to V ≈ %.1f, but at β = %s the census needs stars to V ≈ %.1f (the CSV's complete column and the plot mark those speeds); use a deeper catalogue\n",
+			what, depthV, strings.Join(incomplete, ", "), need[len(need)-1])
 	}
 	if *pqPath != "" {
 		if err := render.WriteFileAtomic(*pqPath, tab.WriteParquet); err != nil {
@@ -409,3 +442,46 @@ func runCensus(e *env, args []string) error {
 	}
 	return nil
 }
+
+// censusNeeds returns, for each speed, the catalogue depth a whole-sky
+// census to limit needs (render.MaxBrightening over the catalogue's
+// temperatures and the Doppler factors γ(1 ± β) of the whole sky).
+func censusNeeds(stars *catalog.Stars, sp []analysis.Speed, heading r3.Vec, limit float64, beam spectrum.Beaming, builtIn bool) ([]float64, error) {
+	tmin, tmax := builtInTemps()
+	if !builtIn {
+		d := catalog.EstimateDepth(stars)
+		tmin, tmax = d.TMin, d.TMax
+		if !(tmin > 0 && tmax >= tmin) {
+			tmin, tmax = catalog.DefaultTeff, catalog.DefaultTeff
+		}
+	}
+	out := make([]float64, len(sp))
+	for i, s := range sp {
+		b, err := s.Boost(heading)
+		if err != nil {
+			return nil, usageError{err}
+		}
+		g := b.Gamma()
+		dmax := g + b.GammaBeta()
+		dmin := 1 / dmax
+		dv, _, _ := render.MaxBrightening(tmin, tmax, dmin, dmax, beam)
+		out[i] = limit - dv
+	}
+	return out, nil
+}
+
+// censusSkyDepth is the depth the built-in sky is drawn to for a census:
+// the deepest speed's need, between the default depth and censusMaxDepth.
+func censusSkyDepth(need []float64) float64 {
+	v := catalog.DefaultSynthMagLimit
+	for _, n := range need {
+		v = math.Max(v, n)
+	}
+	return math.Min(censusMaxDepth, math.Ceil(v*10)/10)
+}
+
+// censusMaxDepth caps the built-in sky of a census: the whole sky to
+// V = 13 is about 5·10⁶ stars, enough for V′ ≤ 6.5 at 0.99 c.
+const censusMaxDepth = 13.0
+
+func fmtBeta(b float64) string { return strconv.FormatFloat(b, 'g', 6, 64) }
