@@ -42,8 +42,12 @@ func TestFetch(t *testing.T) {
 	dir := t.TempDir()
 	dst := filepath.Join(dir, "cache", "iau-csn.txt")
 	src := Source{URL: srv.URL + "/IAU-CSN.txt", File: "iau-csn.txt", Size: int64(len(good)), SHA256: hex.EncodeToString(sum[:])}
-	if err := Fetch(context.Background(), srv.Client(), src, "", dst); err != nil {
+	digest, err := Fetch(context.Background(), srv.Client(), src, "", dst)
+	if err != nil {
 		t.Fatal(err)
+	}
+	if digest != src.SHA256 {
+		t.Errorf("digest %s, want %s", digest, src.SHA256)
 	}
 	if tab, err := ReadFile(dst); err != nil || len(tab.Entries) != 335 {
 		t.Fatalf("fetched table: %v", err)
@@ -61,7 +65,7 @@ func TestFetch(t *testing.T) {
 		{"missing", Source{}, srv.URL + "/none"},
 	} {
 		before, _ := os.ReadFile(dst)
-		err := Fetch(context.Background(), srv.Client(), c.src, c.url, dst)
+		_, err := Fetch(context.Background(), srv.Client(), c.src, c.url, dst)
 		if err == nil {
 			t.Errorf("%s: accepted", c.name)
 		} else if c.name != "missing" && !errors.Is(err, ErrVerify) {

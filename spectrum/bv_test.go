@@ -93,3 +93,41 @@ func TestBVProperties(t *testing.T) {
 		}
 	}
 }
+
+// The table against the direct integrals at points between its nodes
+// (and at them), and its derivative against a finite difference of the
+// integrals, over its whole range.
+func TestBVTable(t *testing.T) {
+	BV(1000)
+	worst := 0.0
+	for lt := bvLogLo; lt < bvLogHi; lt += 0.0123 {
+		T := math.Pow(10, lt)
+		want, _ := bvDirectLn(math.Log(T))
+		if e := math.Abs(BV(T)-want) / math.Max(1, math.Abs(want)); e > worst {
+			worst = e
+			t.Logf("T = %.4g K: B−V %.6g, error %.3g", T, want, e)
+		}
+	}
+	if worst > 1e-9 {
+		t.Errorf("table vs integrals: worst %.3g (mag, relative above 1 mag), want ≤ 1e-9", worst)
+	}
+	for _, lnT := range []float64{3, 8, 12, 18} {
+		_, d := bvDirectLn(lnT)
+		p, _ := bvDirectLn(lnT + 1e-5)
+		m, _ := bvDirectLn(lnT - 1e-5)
+		if fd := (p - m) / 2e-5; math.Abs(fd-d) > 1e-6*math.Max(1, math.Abs(d)) {
+			t.Errorf("ln T %v: d(B−V)/d ln T %v, finite difference %v", lnT, d, fd)
+		}
+	}
+}
+
+// BenchmarkBV: one B−V from the table (the stars table calls it once
+// per row).
+func BenchmarkBV(b *testing.B) {
+	b.ReportAllocs()
+	T := 3000.0
+	for b.Loop() {
+		BV(T)
+		T += 1
+	}
+}

@@ -289,7 +289,10 @@ func catalogFetch(e *env, args []string) error {
 		return usagef("catalog fetch: want one NAME (%s)", sourceNames())
 	}
 	if fs.Arg(0) == "names" {
-		return fetchNames(e, *url, *out)
+		if *size < 0 {
+			return usagef("--size %d: want a length in bytes", *size)
+		}
+		return fetchNames(e, *url, *out, *size, *sum)
 	}
 	src, ok := catalog.KnownSources[fs.Arg(0)]
 	if !ok {
@@ -415,7 +418,7 @@ var _ = math.Inf
 
 // fetchNames downloads the IAU Catalog of Star Names into the user cache
 // (or out), where --names finds it by default.
-func fetchNames(e *env, url, out string) error {
+func fetchNames(e *env, url, out string, size int64, sum string) error {
 	dst := out
 	if dst == "" {
 		dir, err := catalog.CacheDir()
@@ -431,10 +434,14 @@ func fetchNames(e *env, url, out string) error {
 		return err
 	}
 	client := &http.Client{Timeout: 5 * time.Minute}
-	if err := names.Fetch(e.ctx, client, names.Published, url, dst); err != nil {
+	src := names.Published
+	src.Size, src.SHA256 = size, sum
+	digest, err := names.Fetch(e.ctx, client, src, url, dst)
+	if err != nil {
 		return err
 	}
 	fmt.Fprintln(e.stdout, dst)
 	fmt.Fprintln(e.stderr, names.Credit)
+	fmt.Fprintf(e.stderr, "sha256 %s (pin it with --sha256 for later fetches)\n", digest)
 	return nil
 }

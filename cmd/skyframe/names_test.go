@@ -142,7 +142,7 @@ func TestNamesCLI(t *testing.T) {
 	}))
 	defer srv.Close()
 	stdout, errs, code := runCmd(t, "catalog", "fetch", "names", "--url", srv.URL+"/IAU-CSN.txt")
-	if code != 0 || !strings.Contains(errs, "WGSN") {
+	if code != 0 || !strings.Contains(errs, "WGSN") || !strings.Contains(errs, "sha256 ") {
 		t.Fatalf("fetch: exit %d: %s", code, errs)
 	}
 	if want := filepath.Join(dir, "cache", "skyframe", "iau-csn.txt"); strings.TrimSpace(stdout) != want {

@@ -1,12 +1,13 @@
 package main
 
 import (
+	"cmp"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"io"
 	"math"
-	"sort"
+	"slices"
 	"strconv"
 
 	"github.com/parquet-go/parquet-go"
@@ -234,13 +235,26 @@ func observeStars(sc *scene, obs camera.Observer) []starRow {
 		}
 		rows = append(rows, row)
 	}
-	sort.SliceStable(rows, func(a, b int) bool {
-		if rows[a].VmagObs != rows[b].VmagObs {
-			return rows[a].VmagObs < rows[b].VmagObs
+	// Sort an index, not the 170-byte rows (moving them was most of the
+	// time); ties in V′ by id, then by catalogue order.
+	idx := make([]int, len(rows))
+	for k := range idx {
+		idx[k] = k
+	}
+	slices.SortFunc(idx, func(a, b int) int {
+		if c := cmp.Compare(rows[a].VmagObs, rows[b].VmagObs); c != 0 {
+			return c
 		}
-		return rows[a].ID < rows[b].ID
+		if c := cmp.Compare(rows[a].ID, rows[b].ID); c != 0 {
+			return c
+		}
+		return cmp.Compare(a, b)
 	})
-	return rows
+	out := make([]starRow, len(rows))
+	for k, i := range idx {
+		out[k] = rows[i]
+	}
+	return out
 }
 
 // angleDeg is the angle between unit vectors a and b in degrees, from

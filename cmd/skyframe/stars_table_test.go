@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"encoding/csv"
 	"encoding/json"
 	"math"
@@ -12,6 +13,7 @@ import (
 	"testing"
 
 	"github.com/parquet-go/parquet-go"
+	"github.com/spf13/pflag"
 
 	"github.com/skyframe/skyframe/internal/sharedcat"
 	"github.com/skyframe/skyframe/spectrum"
@@ -244,4 +246,21 @@ func TestCensusCleanAndConsistent(t *testing.T) {
 	if err != nil || len(f) != 2 || f[1].Beta != 0.5 || f[0].Visible != 2 {
 		t.Errorf("census parquet: %+v %v", f, err)
 	}
+}
+
+// BenchmarkObserveStars: the stars table's per-star loop over the built-in
+// sky at 0.9 c.
+func BenchmarkObserveStars(b *testing.B) {
+	var p physicsFlags
+	fs := pflag.NewFlagSet("b", pflag.ContinueOnError)
+	p.register(fs, 0.9)
+	sc, err := p.resolve(context.Background(), fs)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		observeStars(sc, sc.observer)
+	}
+	b.ReportMetric(float64(sc.stars.Len())*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mstars/s")
 }
