@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -254,7 +255,7 @@ func BenchmarkObserveStars(b *testing.B) {
 	var p physicsFlags
 	fs := pflag.NewFlagSet("b", pflag.ContinueOnError)
 	p.register(fs, 0.9)
-	sc, err := p.resolve(context.Background(), fs)
+	sc, err := p.resolve(&env{ctx: context.Background(), stdout: io.Discard, stderr: io.Discard, getenv: os.Getenv}, fs)
 	if err != nil {
 		b.Fatal(err)
 	}
