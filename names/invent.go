@@ -2,15 +2,17 @@ package names
 
 import (
 	"math/rand/v2"
-	"sort"
 	"strings"
 
 	"github.com/skyframe/skyframe/catalog"
 )
 
-// InventedCount is how many of the built-in sky's brightest sampled stars
-// get an invented name (the invented nearby stars have theirs already).
-const InventedCount = 24
+// InventedVLimit: the built-in sky's sampled stars with catalogue V at or
+// brighter than this get an invented name (24 in the default sky; the
+// invented nearby stars have theirs already). A threshold rather than a
+// count, so that a star's name does not depend on which other rows are at
+// hand (a deeper sky, a chunk of a streamed cache).
+const InventedVLimit = 1.6
 
 // inventStream is the PCG stream of the name generator, so that the names
 // do not share a random sequence with the sky sampler that uses the same seed.
@@ -32,11 +34,28 @@ var (
 func Invent(seed uint64, n int) []string {
 	rng := rand.New(rand.NewPCG(seed, inventStream))
 	seen := map[string]bool{}
-	for _, s := range catalog.NearbyStars() {
-		seen[foldName(s.Name)] = true
-	}
 	out := make([]string, 0, n)
 	for len(out) < n {
+		w := inventOne(rng)
+		if seen[w] {
+			continue
+		}
+		seen[w] = true
+		out = append(out, w)
+	}
+	return out
+}
+
+// InventName returns the invented name of the star with catalogue id in a
+// sky of the given seed: a function of the two only, like Invent's names.
+func InventName(seed uint64, id int64) string {
+	return inventOne(rand.New(rand.NewPCG(seed^inventStream, uint64(id))))
+}
+
+// inventOne draws names from rng until one is 5–11 letters, pronounceable
+// and not a name of the invented nearby stars.
+func inventOne(rng *rand.Rand) string {
+	for {
 		var b strings.Builder
 		syl := 2 + rng.IntN(2)
 		for k := 0; k < syl; k++ {
@@ -47,33 +66,31 @@ func Invent(seed uint64, n int) []string {
 			}
 		}
 		w := b.String()
-		if len(w) < 5 || len(w) > 11 || seen[w] || !pronounceable(w) {
+		if len(w) < 5 || len(w) > 11 || !pronounceable(w) || isNearbyName(w) {
 			continue
 		}
-		seen[w] = true
-		out = append(out, strings.ToUpper(w[:1])+w[1:])
+		return strings.ToUpper(w[:1]) + w[1:]
 	}
-	return out
 }
 
-// inventBuiltIn names the InventedCount brightest sampled stars of a
-// built-in sky (ids from catalog.SyntheticIDBase up to, not including,
-// catalog.NearbyIDBase), brightest first, with Invent(catalog.DefaultSynthSeed).
-func inventBuiltIn(s *catalog.Stars) map[int]string {
-	var rows []int
-	for i, id := range s.ID {
-		if id >= catalog.SyntheticIDBase && id < catalog.NearbyIDBase {
-			rows = append(rows, i)
+func isNearbyName(w string) bool {
+	for _, s := range catalog.NearbyStars() {
+		if foldName(s.Name) == w {
+			return true
 		}
 	}
-	sort.SliceStable(rows, func(a, b int) bool { return s.Vmag[rows[a]] < s.Vmag[rows[b]] })
-	if len(rows) > InventedCount {
-		rows = rows[:InventedCount]
-	}
-	nm := Invent(catalog.DefaultSynthSeed, len(rows))
-	out := make(map[int]string, len(rows))
-	for k, i := range rows {
-		out[i] = nm[k]
+	return false
+}
+
+// inventBuiltIn names the sampled stars of a built-in sky (ids from
+// catalog.SyntheticIDBase up to, not including, catalog.NearbyIDBase) with
+// V ≤ InventedVLimit: InventName(catalog.DefaultSynthSeed, id).
+func inventBuiltIn(s *catalog.Stars) map[int]string {
+	out := map[int]string{}
+	for i, id := range s.ID {
+		if id >= catalog.SyntheticIDBase && id < catalog.NearbyIDBase && s.Vmag[i] <= InventedVLimit {
+			out[i] = InventName(catalog.DefaultSynthSeed, id)
+		}
 	}
 	return out
 }

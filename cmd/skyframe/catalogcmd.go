@@ -165,14 +165,14 @@ func printNamed(w io.Writer, x *names.Index) {
 	}
 	sort.Ints(nearby)
 	sort.SliceStable(named, func(a, b int) bool { return s.Vmag[named[a]] < s.Vmag[named[b]] })
-	fmt.Fprintf(w, "named stars: %d invented nearby stars and the %d brightest sampled stars (invented names; no real star is meant)\n", len(nearby), len(named))
+	fmt.Fprintf(w, "named stars: %d invented nearby stars and the %d sampled stars of V ≤ %g (invented names; no real star is meant)\n", len(nearby), len(named), names.InventedVLimit)
 	for _, i := range append(nearby, named...) {
 		st := s.At(i)
 		dist := "—"
 		if !math.IsInf(st.Dist, 0) {
 			dist = strconv.FormatFloat(st.Dist, 'g', 4, 64) + " pc"
 		}
-		fmt.Fprintf(w, "  %-14s %-14s V = %5.2f  RA %7.3f°  Dec %+7.3f°  %s\n", x.Label(i), catalog.DisplayID(st.ID), st.Vmag, st.RA, st.Dec, dist)
+		fmt.Fprintf(w, "  %-14s %-17s V = %5.2f  RA %7.3f°  Dec %+7.3f°  %s\n", x.Label(i), catalog.DisplayID(st.ID), st.Vmag, st.RA, st.Dec, dist)
 	}
 }
 
