@@ -629,3 +629,55 @@ func TestFlightOutputLock(t *testing.T) {
 		t.Errorf("verify: %d\n%s", code, so)
 	}
 }
+
+// TestFlightSpaceCheckedFromWrittenFrames (item 9): the free-space check
+// does not rest on the up-front model alone (which was low: 58 KiB
+// estimated against 78–200 KB written): after each frame the remaining
+// frames, at the largest size written so far times 1.5, must fit, else the
+// run stops with status 1 before the disk fills, the frames written intact,
+// and --resume finishes the job. Free space is faked: plenty for the
+// up-front check, then too little.
+func TestFlightSpaceCheckedFromWrittenFrames(t *testing.T) {
+	dir := t.TempDir()
+	plan := writePlan(t, dir, voyagePlan(6))
+	old := freeSpace
+	defer func() { freeSpace = old }()
+	calls := 0
+	freeSpace = func(string) (uint64, error) {
+		calls++
+		if calls == 1 {
+			return 1 << 40, nil
+		}
+		return 4096, nil
+	}
+	code, _, errs := runIn(t, "flight", plan)
+	if code != exitFailure || !strings.Contains(errs, "stopping after frame 0") || !strings.Contains(errs, "--resume") {
+		t.Fatalf("status %d: %s", code, errs)
+	}
+	freeSpace = old
+	if code, so, _ := runIn(t, "flight", plan, "--verify", "--frames", "0-0"); code != exitOK {
+		t.Errorf("frame 0 not intact: %s", so)
+	}
+	if code, _, errs := runIn(t, "flight", plan, "--resume"); code != exitOK || !strings.Contains(errs, "1 of 6 frames already done") {
+		t.Errorf("resume: status %d: %s", code, errs)
+	}
+}
+
+// TestFlightResumeRemovesStaleTemps (item 11): temporary files that a
+// killed run left beside frames that are intact are removed by --resume
+// (they used to survive, since only frames being rendered were cleaned).
+func TestFlightResumeRemovesStaleTemps(t *testing.T) {
+	dir := t.TempDir()
+	plan := writePlan(t, dir, hostileBasePlan)
+	if code, _, errs := runIn(t, "flight", plan); code != exitOK {
+		t.Fatalf("render: %s", errs)
+	}
+	frames := filepath.Join(dir, "out", "frames")
+	stale := hostileFile(t, frames, ".00000.png.tmp-999999-1", []byte("half a frame"))
+	if code, _, errs := runIn(t, "flight", plan, "--resume"); code != exitOK || !strings.Contains(errs, "2 of 2 frames already done") {
+		t.Fatalf("resume: status %d: %s", code, errs)
+	}
+	if _, err := os.Stat(stale); !os.IsNotExist(err) {
+		t.Errorf("stale temporary file survived --resume (%v)", err)
+	}
+}
