@@ -2,7 +2,6 @@ package exr
 
 import (
 	"bytes"
-	"compress/zlib"
 	"encoding/binary"
 	"errors"
 	"fmt"
@@ -12,6 +11,8 @@ import (
 	"slices"
 	"strings"
 	"sync"
+
+	"github.com/klauspost/compress/zlib"
 )
 
 // Magic is the OpenEXR magic number (the first four bytes of every file).
@@ -156,8 +157,11 @@ func Encode(w io.Writer, img *Image) error {
 }
 
 // zipLevel is the zlib level of ZIP blocks (speed against size; any level
-// is valid zlib).
-const zipLevel = 4
+// is valid zlib). The klauspost/compress encoder (already in the module
+// graph) at level 1 encodes a 4096² half RGB star field in about a third of
+// the time of compress/zlib at level 4, for a 1.5× larger file (0.99 against
+// 0.64 MB; BenchmarkEncode4096HalfZIP); the reader side is plain zlib.
+const zipLevel = 1
 
 // Encode writes img to w as a single-part scan-line OpenEXR file
 // (increasing y). Attributes and channels are written in name order, as
