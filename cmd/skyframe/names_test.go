@@ -174,3 +174,46 @@ func TestInspectBuiltin(t *testing.T) {
 		}
 	}
 }
+
+// The plan key catalogue.names: a flight starting at a star named by its
+// proper name (Rigil Kentaurus, HR 5459, which has a BSC5 parallax) plans
+// with the table and is refused without it or with a broken one (exit 2,
+// naming the key).
+func TestFlightPlanNames(t *testing.T) {
+	bsc, csn := sharedcat.BSC5(t), sharedcat.IAUCSN(t)
+	dir := t.TempDir()
+	t.Setenv("XDG_CACHE_HOME", filepath.Join(dir, "cache"))
+	bad := filepath.Join(dir, "bad.txt")
+	os.WriteFile(bad, []byte("not a names table\n"), 0o644)
+	plan := func(names string) string {
+		return writePlan(t, dir, `
+[catalogue]
+path = "`+bsc+`"
+names = "`+names+`"
+
+[start]
+star = "Rigil Kentaurus"
+speed = 0.5
+ra = 0
+dec = 0
+
+[[leg]]
+kind = "cruise"
+ship_years = 1
+
+[show]
+fps = 4
+seconds = 1
+`+tinyCamera)
+	}
+	if code, _, errs := runIn(t, "flight", plan(csn), "--dry-run"); code != exitOK {
+		t.Fatalf("with names: status %d: %s", code, errs)
+	}
+	if code, _, errs := runIn(t, "flight", plan("none"), "--dry-run"); code != 2 {
+		t.Errorf("without names: status %d, want 2: %s", code, errs)
+	}
+	code, _, errs := runIn(t, "flight", plan(bad), "--dry-run")
+	if code != 2 || !strings.Contains(errs, "catalogue.names") || !strings.Contains(errs, "bad.txt") {
+		t.Errorf("broken names file: status %d: %s", code, errs)
+	}
+}
