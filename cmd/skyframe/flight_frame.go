@@ -124,7 +124,7 @@ type outFile struct{ what, rel string }
 // its file here so that checkOutputNames covers it.
 func (f frameFiles) list() []outFile {
 	var out []outFile
-	for _, c := range []outFile{{"PNG", f.png}, {"FITS", f.fits}, {"EXR", f.exr}, {"sidecar", f.sidecar}} {
+	for _, c := range []outFile{{"PNG", f.png}, {"FITS", f.fits}, {"EXR", f.exr}, {"overlay layer", f.overlay}, {"sidecar", f.sidecar}} {
 		if c.rel != "" {
 			out = append(out, c)
 		}
