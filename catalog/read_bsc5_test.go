@@ -12,7 +12,8 @@ import (
 )
 
 // sharedBSC5 finds ../shared/catalogs/bsc5.dat by walking up from the
-// package directory, or skips the test.
+// package directory (sharedcat.BSC5: fails under CI=true when absent, skips
+// elsewhere).
 func sharedBSC5(t testing.TB) string {
 	return sharedcat.BSC5(t)
 }
