@@ -2,8 +2,6 @@ package main
 
 import (
 	"bytes"
-	"crypto/sha256"
-	"encoding/hex"
 	"encoding/json"
 	"fmt"
 	"image"
@@ -23,6 +21,7 @@ import (
 	"github.com/skyframe/skyframe/exr"
 	"github.com/skyframe/skyframe/flight"
 	framefiles "github.com/skyframe/skyframe/frame"
+	flightjob "github.com/skyframe/skyframe/job"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/spectrum"
@@ -175,102 +174,33 @@ func signalRates(tr *flight.Trajectory, s flight.State) (home, dest float64) {
 	return home, dest
 }
 
-// srgbToLinear decodes 8-bit sRGB code values (IEC 61966-2-1).
-var srgbToLinear = func() (t [256]float64) {
-	for i := range t {
-		t[i] = spectrum.DecodeSRGB(float64(i) / 255)
-	}
-	return t
-}()
-
-// frameLum is what the flash check needs of one frame.
-type frameLum struct {
-	mean    float64   // whole-frame mean relative luminance
-	regions []float64 // regionLuminance; nil for frames recorded without it
-}
-
-// flashRegions is the number of windows per axis of the regional flash
-// check. WCAG 2.1 (understanding document of success criterion 2.3.1)
-// estimates a 10° visual field as 341 × 256 pixels of a 1024 × 768 screen,
-// a third of the screen each way; windows of a third of the frame each way,
-// at steps of a sixth, give 5 × 5 overlapping windows.
-const flashRegions = 5
-
-// meanLuminance returns the mean relative luminance of an 8-bit sRGB image
-// (each pixel decoded to linear sRGB and weighted Y = 0.2126 R + 0.7152 G +
-// 0.0722 B, IEC 61966-2-1; 0 black, 1 white) and that of each window of the
-// regional flash check: window (a, b), a the column, is the image's
-// columns [a·W/6, (a+2)·W/6) and rows [b·H/6, (b+2)·H/6), at index
-// b·flashRegions + a.
-func meanLuminance(img *image.NRGBA) frameLum {
-	b := img.Bounds()
-	w, h := b.Dx(), b.Dy()
-	if w*h == 0 {
-		return frameLum{}
-	}
-	// Sums over a 6 × 6 grid of cells; a window is 2 × 2 cells.
-	const cells = flashRegions + 1
-	var cell [cells][cells]float64
-	var cnt [cells][cells]int
-	var sum float64
-	for y := 0; y < h; y++ {
-		cy := y * cells / h
-		row := img.Pix[y*img.Stride : y*img.Stride+4*w]
-		for cx := 0; cx < cells; cx++ {
-			x0, x1 := (cx*w+cells-1)/cells, ((cx+1)*w+cells-1)/cells // first x with x·6/w ≥ cx
-			var s float64
-			for x := 4 * x0; x < 4*x1; x += 4 {
-				v := 0.2126*srgbToLinear[row[x]] + 0.7152*srgbToLinear[row[x+1]] + 0.0722*srgbToLinear[row[x+2]]
-				sum += v
-				s += v
-			}
-			cell[cy][cx] += s
-			cnt[cy][cx] += x1 - x0
-		}
-	}
-	out := frameLum{mean: sum / float64(w*h), regions: make([]float64, flashRegions*flashRegions)}
-	for by := 0; by < flashRegions; by++ {
-		for bx := 0; bx < flashRegions; bx++ {
-			s := cell[by][bx] + cell[by][bx+1] + cell[by+1][bx] + cell[by+1][bx+1]
-			n := cnt[by][bx] + cnt[by][bx+1] + cnt[by+1][bx] + cnt[by+1][bx+1]
-			if n > 0 {
-				out.regions[by*flashRegions+bx] = s / float64(n)
-			}
-		}
-	}
-	return out
-}
-
-func sha256Hex(b []byte) string {
-	h := sha256.Sum256(b)
-	return hex.EncodeToString(h[:])
-}
+func sha256Hex(b []byte) string { return flightjob.SHA256(b) }
 
 // renderFrame renders frame i and writes its files, each atomically, the
 // sidecar last so that its presence marks a complete frame. It returns the
 // frame's luminance for the flash check.
-func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i int) (frameLum, error) {
+func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i int) (flightjob.Lum, error) {
 	fs, err := j.plan.FrameState(i)
 	if err != nil {
-		return frameLum{}, err
+		return flightjob.Lum{}, err
 	}
 	obs, err := flight.Observer(fs.State)
 	if err != nil {
-		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		return flightjob.Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	proj, err := j.projection(fs)
 	if err != nil {
-		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		return flightjob.Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	fr := j.frame
 	frame, lay, kept, blur, err := j.renderLinear(prep, fs, obs, proj)
 	if err != nil {
-		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		return flightjob.Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	side := frame.Sidecar("skyframe", version, j.stars, fr.Tone)
 	lay.sidecarInfo(&side)
 	img8 := frame.ToNRGBA(fr.Tone)
-	lum := meanLuminance(img8)
+	lum := flightjob.MeanLuminance(img8)
 	var img draw.Image = img8
 	if fr.Depth == 16 {
 		img = frame.ToNRGBA64(fr.Tone)
@@ -280,18 +210,18 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 	if ff.overlay != "" {
 		over, err := overlay.Layer(frame, j.stars, lay.Options)
 		if err != nil {
-			return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+			return flightjob.Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
 		layer = overlay.Straight(over)
 	} else if err := overlay.Draw(img, frame, j.stars, lay.Options); err != nil {
-		return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		return flightjob.Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	home, dest := signalRates(j.plan.Trajectory(), fs.State)
 	info := flightInfo{
 		Title: j.plan.Title, PlanHash: j.hash, Inputs: j.inputs, Frame: i, Frames: j.plan.Frames(), Phase: fs.Phase.String(),
 		VideoSeconds: fs.Seconds, ShipYears: fs.State.Tau, CatalogueYrs: fs.State.T,
 		RateHome: home, RateDest: dest, TravelledPc: fs.State.Travelled, RemainingPc: fs.State.Remaining,
-		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum.mean, RegionLuminance: lum.regions,
+		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum.Mean, RegionLuminance: lum.Regions,
 		Shutter: fr.Shutter, BlurSamples: len(blur),
 	}
 	spec := &frameSpec{proj: proj, opt: frame.Options, tone: fr.Tone, depth: fr.Depth, lookDesc: fs.Look.Look, source: "skyframe flight",
@@ -303,10 +233,10 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 			render.KV{Key: "skyframe:plan_hash", Value: j.hash})
 		var buf bytes.Buffer
 		if err := enc.Encode(&buf, img, meta); err != nil {
-			return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+			return flightjob.Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
 		if err := j.writeFile(ff.png, buf.Bytes()); err != nil {
-			return frameLum{}, err
+			return flightjob.Lum{}, err
 		}
 		info.Files = append(info.Files, fileRecord{Kind: "png", Name: ff.png, Bytes: int64(buf.Len()), SHA256: sha256Hex(buf.Bytes())})
 	}
@@ -317,45 +247,45 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 			render.KV{Key: "Description", Value: "skyframe overlays alone (sRGB, straight alpha)"})
 		var buf bytes.Buffer
 		if err := enc.Encode(&buf, layer, meta); err != nil {
-			return frameLum{}, fmt.Errorf("flight: frame %d: overlay layer: %w", i, err)
+			return flightjob.Lum{}, fmt.Errorf("flight: frame %d: overlay layer: %w", i, err)
 		}
 		if err := j.writeFile(ff.overlay, buf.Bytes()); err != nil {
-			return frameLum{}, err
+			return flightjob.Lum{}, err
 		}
 		info.Files = append(info.Files, fileRecord{Kind: "overlay", Name: ff.overlay, Bytes: int64(buf.Len()), SHA256: sha256Hex(buf.Bytes())})
 	}
 	if ff.fits != "" {
 		cards, err := fitsCards(frame, sc, spec)
 		if err != nil {
-			return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+			return flightjob.Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
 		cards = append(cards, render.Card{Key: "FRAME", Value: i, Comment: "frame index in the flight"})
 		var buf bytes.Buffer
 		if err := render.WriteFITS(&buf, frame.W, frame.H, frame.Pix, cards); err != nil {
-			return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+			return flightjob.Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
 		if err := j.writeFile(ff.fits, buf.Bytes()); err != nil {
-			return frameLum{}, err
+			return flightjob.Lum{}, err
 		}
 		info.Files = append(info.Files, fileRecord{Kind: "fits", Name: ff.fits, Bytes: int64(buf.Len()), SHA256: sha256Hex(buf.Bytes())})
 	}
 	if ff.exr != "" {
 		b, err := j.frameEXR(frame, kept, side, lay, layer)
 		if err != nil {
-			return frameLum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+			return flightjob.Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
 		if err := j.writeFile(ff.exr, b); err != nil {
-			return frameLum{}, err
+			return flightjob.Lum{}, err
 		}
 		info.Files = append(info.Files, fileRecord{Kind: "exr", Name: ff.exr, Bytes: int64(len(b)), SHA256: sha256Hex(b)})
 	}
 	if ff.sidecar != "" {
 		data, err := json.MarshalIndent(flightSidecar{Sidecar: side, Flight: info}, "", "  ")
 		if err != nil {
-			return frameLum{}, fmt.Errorf("flight: frame %d: sidecar: %w", i, err)
+			return flightjob.Lum{}, fmt.Errorf("flight: frame %d: sidecar: %w", i, err)
 		}
 		if err := j.writeFile(ff.sidecar, append(sealJSON(data), '\n')); err != nil {
-			return frameLum{}, err
+			return flightjob.Lum{}, err
 		}
 	}
 	return lum, nil
@@ -387,21 +317,21 @@ const (
 // parses, records this plan's hash and frame index, and every image file it
 // lists exists with the recorded size and SHA-256. It returns the recorded
 // mean luminance and, when not intact, the reason.
-func (j *flightJob) checkFrame(i int) (frameStatus, frameLum, string) {
+func (j *flightJob) checkFrame(i int) (frameStatus, flightjob.Lum, string) {
 	ff := j.files(i)
 	data, err := os.ReadFile(j.path(ff.sidecar))
 	if os.IsNotExist(err) {
-		return frameMissing, frameLum{}, "no sidecar " + ff.sidecar
+		return frameMissing, flightjob.Lum{}, "no sidecar " + ff.sidecar
 	}
 	if err != nil {
-		return frameCorrupt, frameLum{}, err.Error()
+		return frameCorrupt, flightjob.Lum{}, err.Error()
 	}
 	if err := checkSeal(data); err != nil {
-		return frameCorrupt, frameLum{}, ff.sidecar + ": " + err.Error()
+		return frameCorrupt, flightjob.Lum{}, ff.sidecar + ": " + err.Error()
 	}
 	var side flightSidecar
 	if err := json.Unmarshal(data, &side); err != nil {
-		return frameCorrupt, frameLum{}, ff.sidecar + ": " + err.Error()
+		return frameCorrupt, flightjob.Lum{}, ff.sidecar + ": " + err.Error()
 	}
 	fl := side.Flight
 	if fl.PlanHash != j.hash {
@@ -409,38 +339,38 @@ func (j *flightJob) checkFrame(i int) (frameStatus, frameLum, string) {
 		if why == "" {
 			why = "another plan or preview setting"
 		}
-		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: made from different inputs: %s (hash %.12s…, now %.12s…)", ff.sidecar, why, fl.PlanHash, j.hash)
+		return frameCorrupt, flightjob.Lum{}, fmt.Sprintf("%s: made from different inputs: %s (hash %.12s…, now %.12s…)", ff.sidecar, why, fl.PlanHash, j.hash)
 	}
 	if fl.Frame != i {
-		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: records frame %d", ff.sidecar, fl.Frame)
+		return frameCorrupt, flightjob.Lum{}, fmt.Sprintf("%s: records frame %d", ff.sidecar, fl.Frame)
 	}
 	want := map[string]string{"png": ff.png, "fits": ff.fits, "overlay": ff.overlay, "exr": ff.exr}
 	seen := 0
 	for _, rec := range fl.Files {
 		name, ok := want[rec.Kind]
 		if !ok || name == "" || rec.Name != name {
-			return frameCorrupt, frameLum{}, fmt.Sprintf("%s: unexpected file record %s %q", ff.sidecar, rec.Kind, rec.Name)
+			return frameCorrupt, flightjob.Lum{}, fmt.Sprintf("%s: unexpected file record %s %q", ff.sidecar, rec.Kind, rec.Name)
 		}
 		seen++
 		b, err := os.ReadFile(j.path(name))
 		if os.IsNotExist(err) {
-			return frameMissing, frameLum{}, "no " + name
+			return frameMissing, flightjob.Lum{}, "no " + name
 		}
 		if err != nil {
-			return frameCorrupt, frameLum{}, err.Error()
+			return frameCorrupt, flightjob.Lum{}, err.Error()
 		}
 		if int64(len(b)) != rec.Bytes || sha256Hex(b) != rec.SHA256 {
-			return frameCorrupt, frameLum{}, fmt.Sprintf("%s: %d bytes, SHA-256 does not match the sidecar", name, len(b))
+			return frameCorrupt, flightjob.Lum{}, fmt.Sprintf("%s: %d bytes, SHA-256 does not match the sidecar", name, len(b))
 		}
 	}
 	if n := btoi(ff.png != "") + btoi(ff.fits != "") + btoi(ff.overlay != "") + btoi(ff.exr != ""); seen != n {
-		return frameCorrupt, frameLum{}, fmt.Sprintf("%s: lists %d image files, the plan writes %d", ff.sidecar, seen, n)
+		return frameCorrupt, flightjob.Lum{}, fmt.Sprintf("%s: lists %d image files, the plan writes %d", ff.sidecar, seen, n)
 	}
 	regions := fl.RegionLuminance
-	if len(regions) != flashRegions*flashRegions {
+	if len(regions) != flightjob.Regions*flightjob.Regions {
 		regions = nil // recorded without it, or damaged: whole-frame check only
 	}
-	return frameIntact, frameLum{mean: fl.MeanLuminance, regions: regions}, ""
+	return frameIntact, flightjob.Lum{Mean: fl.MeanLuminance, Regions: regions}, ""
 }
 
 func btoi(b bool) int {
@@ -451,40 +381,12 @@ func btoi(b bool) int {
 }
 
 // removeStaleTemps deletes temporary files that an interrupted writer of
-// frame i left behind (".<base>.tmp-*", render.WriteFileAtomic's names).
-// Only this frame's names are touched, so shards sharing a directory never
-// remove each other's files in flight.
+// frame i left behind (see flightjob.RemoveStaleTemps). Only this frame's
+// names are touched, so shards sharing a directory never remove each
+// other's files in flight.
 func (j *flightJob) removeStaleTemps(i int) error {
 	ff := j.files(i)
-	for _, rel := range []string{ff.png, ff.fits, ff.sidecar, ff.overlay, ff.exr} {
-		if rel == "" {
-			continue
-		}
-		p := j.path(rel)
-		matches, err := filepath.Glob(filepath.Join(filepath.Dir(p), "."+globEscape(filepath.Base(p))+".tmp-*"))
-		if err != nil {
-			return err
-		}
-		for _, m := range matches {
-			if err := os.Remove(m); err != nil && !os.IsNotExist(err) {
-				return err
-			}
-		}
-	}
-	return nil
-}
-
-// globEscape quotes the metacharacters of filepath.Match.
-func globEscape(s string) string {
-	var b bytes.Buffer
-	for _, r := range s {
-		switch r {
-		case '*', '?', '[', ']', '\\':
-			b.WriteByte('\\')
-		}
-		b.WriteRune(r)
-	}
-	return b.String()
+	return flightjob.RemoveStaleTemps(j.outDir, ff.png, ff.fits, ff.sidecar, ff.overlay, ff.exr)
 }
 
 // renderLinear renders the linear buffer of frame state fs (observer obs,

@@ -3,17 +3,16 @@ package main
 import (
 	"errors"
 	"fmt"
+	"github.com/dustin/go-humanize"
 	"io"
 	"os"
-	"path/filepath"
 	"slices"
-	"syscall"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
 	"golang.org/x/term"
 
-	"github.com/skyframe/skyframe/flight"
+	flightjob "github.com/skyframe/skyframe/job"
 	"github.com/skyframe/skyframe/render"
 )
 
@@ -44,7 +43,7 @@ func (j *flightJob) render(e *env, resume bool) error {
 			return err
 		}
 	}
-	lum := make(map[int]frameLum, len(j.frames))
+	lum := make(map[int]flightjob.Lum, len(j.frames))
 	if resume {
 		todo = todo[:0:0]
 		for _, i := range j.frames {
@@ -142,142 +141,23 @@ func (j *flightJob) render(e *env, resume bool) error {
 // whole-frame mean, and on each window of the regional check (see
 // meanLuminance), which catches a flash confined to part of the frame that
 // the whole-frame mean dilutes below threshold.
-func (j *flightJob) flashWarning(w io.Writer, lum map[int]frameLum) {
+func (j *flightJob) flashWarning(w io.Writer, lum map[int]flightjob.Lum) {
 	if j.every > 1 {
 		fmt.Fprintf(w, "skyframe: flash check skipped: --every %d renders every %dth frame, not a sequence at the plan's frame rate\n", j.every, j.every)
 		return
 	}
-	seq, first := contiguous(j.frames, lum)
-	if len(seq) < 2 {
-		return
-	}
-	means := make([]float64, len(seq))
-	for k, l := range seq {
-		means[k] = l.mean
-	}
-	rep := flight.FlashCheck(means, j.plan.Show.FPS)
-	if rep.Err != nil {
-		fmt.Fprintf(w, "skyframe: flash check: %v\n", rep.Err)
-		return
-	}
-	where := "the whole frame"
-	if rep.Pass {
-		worst, at := flashRegionCheck(seq, j.plan.Show.FPS)
-		if worst.Pass {
-			return
-		}
-		rep = worst
-		where = fmt.Sprintf("the window at column %d, row %d of a %d×%d grid of overlapping thirds of the frame (WCAG's 10° field)",
-			at%flashRegions+1, at/flashRegions+1, flashRegions, flashRegions)
-	}
-	fmt.Fprintf(w, "skyframe: warning: photosensitivity: frames %d-%d exceed the WCAG 2.3.1 / ITU-R BT.1702 general flash threshold in %s: %d flashes in one second from frame %d (limit %d); %d flashes in all\n",
-		first, first+len(seq)-1, where, rep.MaxPerSecond, first+rep.WorstFrame, flight.FlashMaxPerSecond, rep.Flashes)
-}
-
-// flashRegionCheck runs the flash check on each window's luminance and
-// returns the report with the most flashes in one second, and the window's
-// index. When a frame of seq lacks window luminances it returns a passing
-// report: there is nothing to check.
-func flashRegionCheck(seq []frameLum, fps float64) (flight.FlashReport, int) {
-	best, at := flight.FlashReport{Pass: true}, -1
-	for _, l := range seq {
-		if l.regions == nil {
-			return best, at
-		}
-	}
-	v := make([]float64, len(seq))
-	for r := 0; r < flashRegions*flashRegions; r++ {
-		for k, l := range seq {
-			v[k] = l.regions[r]
-		}
-		if rep := flight.FlashCheck(v, fps); rep.Err == nil && !rep.Pass && (at < 0 || rep.MaxPerSecond > best.MaxPerSecond) {
-			best, at = rep, r
-		}
-	}
-	return best, at
-}
-
-// contiguous returns the luminances of frames in order, stopping at the
-// first frame without one, and the index of the first frame.
-func contiguous(frames []int, lum map[int]frameLum) ([]frameLum, int) {
-	if len(frames) == 0 {
-		return nil, 0
-	}
-	seq := make([]frameLum, 0, len(frames))
-	for _, i := range frames {
-		l, ok := lum[i]
-		if !ok {
-			break
-		}
-		seq = append(seq, l)
-	}
-	return seq, frames[0]
-}
-
-// freeSpace reports the bytes available to an unprivileged user on the file
-// system holding dir (or its nearest existing ancestor). Tests replace it.
-var freeSpace = func(dir string) (uint64, error) {
-	for {
-		var st syscall.Statfs_t
-		err := syscall.Statfs(dir, &st)
-		if err == nil {
-			return st.Bavail * uint64(st.Bsize), nil
-		}
-		parent := filepath.Dir(dir)
-		if !errors.Is(err, syscall.ENOENT) || parent == dir {
-			return 0, err
-		}
-		dir = parent
+	if msg := flightjob.FlashWarning(j.frames, lum, j.plan.Show.FPS); msg != "" {
+		fmt.Fprintf(w, "skyframe: %s\n", msg)
 	}
 }
 
-// Per-frame size estimates. A PNG of a star field is black sky, which
-// deflates to almost nothing, plus the stars' blobs, which hardly compress.
-// Frames of the built-in sky (41 713 stars) measured up to 29 bytes per
-// drawn star (647 KB for a dense 1920×1080 frame with 22 070 stars drawn,
-// 10 % of raw) and, at 480×270, up to 58 % of raw where blobs overlap. The
-// estimate allows raw/50 for the background plus 48 bytes per catalogue
-// star, capped at the raw size plus deflate's stored-block overhead; FITS is
-// exact (2880-byte blocks); a sidecar with its ten brightest stars is about
-// 5 KB.
-const (
-	pngBytesPerStar = 48
-	pngOverhead     = 2048
-	sidecarBytes    = 8192
-	fitsHeaderMax   = 4 * 2880
-)
+// freeSpace reports the bytes free on the file system holding a directory
+// (flightjob.FreeSpace). Tests replace it.
+var freeSpace = flightjob.FreeSpace
 
 // frameBytes estimates the bytes one frame writes.
 func (j *flightJob) frameBytes() uint64 {
-	w, h := uint64(j.frame.Width), uint64(j.frame.Height)
-	var n uint64
-	o := j.plan.Output
-	if *o.PNG {
-		raw := w * h * 3
-		est := min(raw/50+uint64(j.stars.Len())*pngBytesPerStar, raw+raw/1000)
-		n += est + pngOverhead
-	}
-	if o.FITS {
-		data := (w*h*3*4 + 2879) / 2880 * 2880
-		n += data + fitsHeaderMax
-	}
-	if *o.Sidecar {
-		n += sidecarBytes
-	}
-	if o.EXR {
-		// ZIP-compressed half RGB and up to four layers: black sky
-		// compresses like the PNG's; allow a fiftieth of 16 half channels
-		// raw, at most the raw size of the combined RGB.
-		raw := w * h * 2 * 16
-		n += raw/50 + uint64(j.stars.Len())*pngBytesPerStar + pngOverhead
-	}
-	if o.OverlayLayer {
-		// Mostly transparent RGBA: about a fiftieth of the raw size, as
-		// for a star field, at most the raw size.
-		raw := w * h * 4
-		n += raw/50 + pngOverhead
-	}
-	return n
+	return flightjob.FrameBytes(j.plan.Output, j.frame.Width, j.frame.Height, j.stars.Len())
 }
 
 // checkSpace refuses a render whose estimated output exceeds the free space.
@@ -330,23 +210,12 @@ func (j *flightJob) checkSpaceLeft(i, remaining int, biggest *int64) error {
 	return nil
 }
 
-func humanBytes(n uint64) string {
-	const unit = 1024
-	if n < unit {
-		return fmt.Sprintf("%d B", n)
-	}
-	v, exp := float64(n), 0
-	for v >= unit && exp < 5 {
-		v /= unit
-		exp++
-	}
-	return fmt.Sprintf("%.1f %ciB", v, "KMGTP"[exp-1])
-}
+func humanBytes(n uint64) string { return humanize.IBytes(n) }
 
 // verify checks every selected frame and lists the missing and corrupt ones.
 func (j *flightJob) verify(e *env) error {
 	var missing, corrupt int
-	lum := make(map[int]frameLum, len(j.frames))
+	lum := make(map[int]flightjob.Lum, len(j.frames))
 	for _, i := range j.frames {
 		st, l, why := j.checkFrame(i)
 		switch st {

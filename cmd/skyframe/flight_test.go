@@ -497,7 +497,7 @@ unresolved_depth = 99
 			t.Fatalf("status %d, want %d\n%s", code, exitUsage, errs)
 		}
 		// 20 frames × (64·36·3 raw + 6 + 2048 + 8192 bytes) = 343 KB > 100 KiB.
-		if !strings.Contains(errs, "20 frames need about") || !strings.Contains(errs, "100.0 KiB free") {
+		if !strings.Contains(errs, "20 frames need about") || !strings.Contains(errs, "100 KiB free") {
 			t.Errorf("message %q does not give the need and the free space", errs)
 		}
 		if asked != filepath.Join(dir, "out") {

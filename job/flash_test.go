@@ -1,14 +1,11 @@
-package main
+package job
 
 import (
-	"bytes"
 	"image"
 	"image/color"
 	"math"
 	"strings"
 	"testing"
-
-	"github.com/skyframe/skyframe/flight"
 )
 
 // TestMeanLuminanceRegions: a white block exactly filling the top-left
@@ -26,20 +23,20 @@ func TestMeanLuminanceRegions(t *testing.T) {
 			img.SetNRGBA(x, y, c)
 		}
 	}
-	l := meanLuminance(img)
-	if len(l.regions) != flashRegions*flashRegions {
-		t.Fatalf("%d regions", len(l.regions))
+	l := MeanLuminance(img)
+	if len(l.Regions) != Regions*Regions {
+		t.Fatalf("%d regions", len(l.Regions))
 	}
 	for _, c := range []struct {
 		i    int
 		want float64
-	}{{0, 1}, {1, 0.5}, {flashRegions, 0.5}, {flashRegions + 1, 0.25}, {2, 0}, {flashRegions*flashRegions - 1, 0}} {
-		if have := l.regions[c.i]; math.Abs(have-c.want) > 1e-12 {
+	}{{0, 1}, {1, 0.5}, {Regions, 0.5}, {Regions + 1, 0.25}, {2, 0}, {Regions*Regions - 1, 0}} {
+		if have := l.Regions[c.i]; math.Abs(have-c.want) > 1e-12 {
 			t.Errorf("window %d: %v, want %v", c.i, have, c.want)
 		}
 	}
-	if math.Abs(l.mean-1.0/9) > 1e-12 {
-		t.Errorf("mean %v, want 1/9", l.mean)
+	if math.Abs(l.Mean-1.0/9) > 1e-12 {
+		t.Errorf("mean %v, want 1/9", l.Mean)
 	}
 }
 
@@ -48,41 +45,38 @@ func TestMeanLuminanceRegions(t *testing.T) {
 // is reported, naming the window; without window data, or with the flash
 // too slow, nothing is.
 func TestFlashWarningRegional(t *testing.T) {
-	j := &flightJob{plan: &flight.Plan{Show: flight.ShowSpec{FPS: 30}}}
-	lum := map[int]frameLum{}
+	var frames []int
+	lum := map[int]Lum{}
 	mk := func(withRegions bool, period int) {
-		j.frames = j.frames[:0]
+		frames = frames[:0]
 		for i := 0; i < 60; i++ {
-			j.frames = append(j.frames, i)
+			frames = append(frames, i)
 			on := (i/period)%2 == 1
-			l := frameLum{mean: 0.01}
+			l := Lum{Mean: 0.01}
 			if on {
-				l.mean = 0.06
+				l.Mean = 0.06
 			}
 			if withRegions {
-				l.regions = make([]float64, flashRegions*flashRegions)
+				l.Regions = make([]float64, Regions*Regions)
 				if on {
-					l.regions[12] = 0.45
+					l.Regions[12] = 0.45
 				}
 			}
 			lum[i] = l
 		}
 	}
-	var w bytes.Buffer
 	mk(true, 3) // 5 flashes per second
-	j.flashWarning(&w, lum)
-	if !strings.Contains(w.String(), "column 3, row 3") || !strings.Contains(w.String(), "photosensitivity") {
-		t.Errorf("regional flash not reported: %q", w.String())
+	w := FlashWarning(frames, lum, 30)
+	if !strings.Contains(w, "column 3, row 3") || !strings.Contains(w, "photosensitivity") {
+		t.Errorf("regional flash not reported: %q", w)
 	}
 	for _, c := range []struct {
 		regions bool
 		period  int
 	}{{false, 3}, {true, 15}} {
-		w.Reset()
 		mk(c.regions, c.period)
-		j.flashWarning(&w, lum)
-		if w.Len() != 0 {
-			t.Errorf("regions %v, period %d: unexpected warning %q", c.regions, c.period, w.String())
+		if w := FlashWarning(frames, lum, 30); w != "" {
+			t.Errorf("regions %v, period %d: unexpected warning %q", c.regions, c.period, w)
 		}
 	}
 }

@@ -1,0 +1,149 @@
+package job
+
+import (
+	"fmt"
+	"image"
+
+	"github.com/skyframe/skyframe/flight"
+	"github.com/skyframe/skyframe/spectrum"
+)
+
+// Lum is what the flash check needs of one frame.
+type Lum struct {
+	Mean    float64   // whole-frame mean relative luminance
+	Regions []float64 // see MeanLuminance; nil for frames recorded without it
+}
+
+// Regions is the number of windows per axis of the regional flash check.
+// WCAG 2.1 (understanding document of success criterion 2.3.1) estimates a
+// 10° visual field as 341 × 256 pixels of a 1024 × 768 screen, a third of
+// the screen each way; windows of a third of the frame each way, at steps
+// of a sixth, give 5 × 5 overlapping windows.
+const Regions = 5
+
+// srgbToLinear decodes 8-bit sRGB code values (IEC 61966-2-1).
+var srgbToLinear = func() (t [256]float64) {
+	for i := range t {
+		t[i] = spectrum.DecodeSRGB(float64(i) / 255)
+	}
+	return t
+}()
+
+// MeanLuminance returns the mean relative luminance of an 8-bit sRGB image
+// (each pixel decoded to linear sRGB and weighted Y = 0.2126 R + 0.7152 G +
+// 0.0722 B, IEC 61966-2-1; 0 black, 1 white) and that of each window of the
+// regional flash check: window (a, b), a the column, is the image's
+// columns [a·W/6, (a+2)·W/6) and rows [b·H/6, (b+2)·H/6), at index
+// b·Regions + a.
+func MeanLuminance(img *image.NRGBA) Lum {
+	b := img.Bounds()
+	w, h := b.Dx(), b.Dy()
+	if w*h == 0 {
+		return Lum{}
+	}
+	// Sums over a 6 × 6 grid of cells; a window is 2 × 2 cells.
+	const cells = Regions + 1
+	var cell [cells][cells]float64
+	var cnt [cells][cells]int
+	var sum float64
+	for y := 0; y < h; y++ {
+		cy := y * cells / h
+		row := img.Pix[y*img.Stride : y*img.Stride+4*w]
+		for cx := 0; cx < cells; cx++ {
+			x0, x1 := (cx*w+cells-1)/cells, ((cx+1)*w+cells-1)/cells // first x with x·6/w ≥ cx
+			var s float64
+			for x := 4 * x0; x < 4*x1; x += 4 {
+				v := 0.2126*srgbToLinear[row[x]] + 0.7152*srgbToLinear[row[x+1]] + 0.0722*srgbToLinear[row[x+2]]
+				sum += v
+				s += v
+			}
+			cell[cy][cx] += s
+			cnt[cy][cx] += x1 - x0
+		}
+	}
+	out := Lum{Mean: sum / float64(w*h), Regions: make([]float64, Regions*Regions)}
+	for by := 0; by < Regions; by++ {
+		for bx := 0; bx < Regions; bx++ {
+			s := cell[by][bx] + cell[by][bx+1] + cell[by+1][bx] + cell[by+1][bx+1]
+			n := cnt[by][bx] + cnt[by][bx+1] + cnt[by+1][bx] + cnt[by+1][bx+1]
+			if n > 0 {
+				out.Regions[by*Regions+bx] = s / float64(n)
+			}
+		}
+	}
+	return out
+}
+
+// FlashWarning runs the general flash check over frames (ascending) shown
+// at fps frames per second, on the luminances found in lum (the contiguous
+// block from the first frame), and returns a warning when they fail, or "":
+// on the whole-frame mean, and on each window of the regional check (see
+// MeanLuminance), which catches a flash confined to part of the frame that
+// the whole-frame mean dilutes below threshold. A check that cannot run
+// (bad fps or luminance) is reported as "flash check: …".
+func FlashWarning(frames []int, lum map[int]Lum, fps float64) string {
+	seq, first := contiguous(frames, lum)
+	if len(seq) < 2 {
+		return ""
+	}
+	means := make([]float64, len(seq))
+	for k, l := range seq {
+		means[k] = l.Mean
+	}
+	rep := flight.FlashCheck(means, fps)
+	if rep.Err != nil {
+		return fmt.Sprintf("flash check: %v", rep.Err)
+	}
+	where := "the whole frame"
+	if rep.Pass {
+		worst, at := regionCheck(seq, fps)
+		if worst.Pass {
+			return ""
+		}
+		rep = worst
+		where = fmt.Sprintf("the window at column %d, row %d of a %d×%d grid of overlapping thirds of the frame (WCAG's 10° field)",
+			at%Regions+1, at/Regions+1, Regions, Regions)
+	}
+	return fmt.Sprintf("warning: photosensitivity: frames %d-%d exceed the WCAG 2.3.1 / ITU-R BT.1702 general flash threshold in %s: %d flashes in one second from frame %d (limit %d); %d flashes in all",
+		first, first+len(seq)-1, where, rep.MaxPerSecond, first+rep.WorstFrame, flight.FlashMaxPerSecond, rep.Flashes)
+}
+
+// regionCheck runs the flash check on each window's luminance and returns
+// the report with the most flashes in one second, and the window's index.
+// When a frame of seq lacks window luminances it returns a passing report:
+// there is nothing to check.
+func regionCheck(seq []Lum, fps float64) (flight.FlashReport, int) {
+	best, at := flight.FlashReport{Pass: true}, -1
+	for _, l := range seq {
+		if l.Regions == nil {
+			return best, at
+		}
+	}
+	v := make([]float64, len(seq))
+	for r := 0; r < Regions*Regions; r++ {
+		for k, l := range seq {
+			v[k] = l.Regions[r]
+		}
+		if rep := flight.FlashCheck(v, fps); rep.Err == nil && !rep.Pass && (at < 0 || rep.MaxPerSecond > best.MaxPerSecond) {
+			best, at = rep, r
+		}
+	}
+	return best, at
+}
+
+// contiguous returns the luminances of frames in order, stopping at the
+// first frame without one, and the index of the first frame.
+func contiguous(frames []int, lum map[int]Lum) ([]Lum, int) {
+	if len(frames) == 0 {
+		return nil, 0
+	}
+	seq := make([]Lum, 0, len(frames))
+	for _, i := range frames {
+		l, ok := lum[i]
+		if !ok {
+			break
+		}
+		seq = append(seq, l)
+	}
+	return seq, frames[0]
+}
