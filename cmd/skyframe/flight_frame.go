@@ -225,7 +225,7 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 		Shutter: fr.Shutter, BlurSamples: len(blur),
 	}
 	spec := &frameSpec{proj: proj, opt: frame.Options, tone: fr.Tone, depth: fr.Depth, lookDesc: fs.Look.Look, source: "skyframe flight",
-		credit: namesCredit(j.index, labelsShown(lay.Labels))}
+		credit: namesCredit(j.index, labelsShown(lay.Labels)), layers: lay}
 	sc := &scene{stars: j.stars, index: j.index, observer: obs, heading: fs.State.Dir}
 	if ff.png != "" {
 		meta := append(pngMeta(side, spec),
@@ -242,8 +242,8 @@ func (j *flightJob) renderFrame(prep *render.Prepared, enc *render.PNGEncoder, i
 	}
 	if layer != nil {
 		meta := append(pngMeta(side, spec),
-			render.KV{Key: "frame", Value: strconv.Itoa(i)},
-			render.KV{Key: "plan_hash", Value: j.hash},
+			render.KV{Key: "skyframe:frame", Value: strconv.Itoa(i)},
+			render.KV{Key: "skyframe:plan_hash", Value: j.hash},
 			render.KV{Key: "Description", Value: "skyframe overlays alone (sRGB, straight alpha)"})
 		var buf bytes.Buffer
 		if err := enc.Encode(&buf, layer, meta); err != nil {

@@ -370,6 +370,17 @@ func TestFlightEXR(t *testing.T) {
 	if v, ok := d.Attr("framesPerSecond"); !ok || v.(exr.Rational).D == 0 {
 		t.Errorf("framesPerSecond %v", v)
 	}
+	// The flight's FITS header names the layers summed in its data, as a
+	// still's does (FITS 4.0 §4.1: 80-character keyword cards).
+	raw, err := os.ReadFile(filepath.Join(out, "00000.fits"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if i := bytes.Index(raw[:min(len(raw), 2880*4)], []byte("LAYERS  = ")); i < 0 {
+		t.Errorf("flight FITS header lacks LAYERS")
+	} else if card := string(raw[i : i+80]); !strings.HasPrefix(card, "LAYERS  = 'stars,unresolved'") {
+		t.Errorf("flight FITS %q, want LAYERS = 'stars,unresolved' (the plan has cmb = false)", card)
+	}
 	ff, err := os.Open(filepath.Join(out, "00000.fits"))
 	if err != nil {
 		t.Fatal(err)
