@@ -83,6 +83,12 @@ type FetchOptions struct {
 	// Digest, when not nil, receives the hex SHA-256 of the accepted file,
 	// so that a caller can record or print it for later pinning.
 	Digest *string
+	// MaxBytes, when > 0, bounds the download below MaxDownloadBytes.
+	MaxBytes int64
+	// Check, when not nil, replaces the catalogue check: it is given the
+	// complete temporary file (path) and must return nil for the file to
+	// be renamed into place. Other kinds of table (the star names) use it.
+	Check func(ctx context.Context, path string) error
 }
 
 // ErrUnverifiable is returned when a download's completeness cannot be
@@ -90,6 +96,11 @@ type FetchOptions struct {
 // (RFC 9112 §6.3: the body then ends when the connection closes, which a
 // connection cut short does too) and no expected Size was given.
 var ErrUnverifiable = errors.New("cannot tell whether the download is complete")
+
+// ErrVerify is wrapped by every error that refuses a downloaded file for
+// its content: a length or SHA-256 other than expected, a body cut short
+// (also ErrTruncated), or a failed Check or catalogue read.
+var ErrVerify = errors.New("download failed verification")
 
 // Fetch downloads url to dst (the cache directory and the URL's base name
 // when dst is ""). It writes to a temporary file beside dst, checks that the
@@ -160,7 +171,7 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 		return fmt.Errorf("catalog: fetch %s: %w: the server sent no Content-Length and the body is not chunked; give the expected size", url, ErrUnverifiable)
 	}
 	if total >= 0 && opt.Size > 0 && total != opt.Size {
-		return fmt.Errorf("catalog: fetch %s: the server announces %d bytes, the file has %d", url, total, opt.Size)
+		return fmt.Errorf("catalog: fetch %s: %w: the server announces %d bytes, the file has %d", url, ErrVerify, total, opt.Size)
 	}
 	if total < 0 && opt.Size > 0 {
 		total = opt.Size
@@ -175,6 +186,10 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 			os.Remove(tmp.Name())
 		}
 	}()
+	limit := int64(MaxDownloadBytes)
+	if opt.MaxBytes > 0 && opt.MaxBytes < limit {
+		limit = opt.MaxBytes
+	}
 	h := sha256.New()
 	var done int64
 	buf := make([]byte, 64<<10)
@@ -182,8 +197,11 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 		n, rerr := resp.Body.Read(buf)
 		if n > 0 {
 			done += int64(n)
-			if done > MaxDownloadBytes || (total >= 0 && done > total) {
-				return fmt.Errorf("catalog: fetch %s: more than the %d bytes expected", url, min(total, MaxDownloadBytes))
+			if done > limit || (total >= 0 && done > total) {
+				if total < 0 {
+					total = limit
+				}
+				return fmt.Errorf("catalog: fetch %s: %w: more than the %d bytes expected", url, ErrVerify, min(total, limit))
 			}
 			h.Write(buf[:n])
 			if _, werr := tmp.Write(buf[:n]); werr != nil {
@@ -197,15 +215,15 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 			break
 		}
 		if rerr != nil {
-			return fmt.Errorf("catalog: fetch %s: %w: %w after %d bytes", url, ErrTruncated, rerr, done)
+			return fmt.Errorf("catalog: fetch %s: %w: %w: %w after %d bytes", url, ErrVerify, ErrTruncated, rerr, done)
 		}
 	}
 	if total >= 0 && done != total {
-		return fmt.Errorf("catalog: fetch %s: %w: got %d of %d bytes", url, ErrTruncated, done, total)
+		return fmt.Errorf("catalog: fetch %s: %w: %w: got %d of %d bytes", url, ErrVerify, ErrTruncated, done, total)
 	}
 	digest := hex.EncodeToString(h.Sum(nil))
 	if want != "" && digest != want {
-		return fmt.Errorf("catalog: fetch %s: SHA-256 %s, want %s", url, digest, want)
+		return fmt.Errorf("catalog: fetch %s: %w: SHA-256 %s, want %s", url, ErrVerify, digest, want)
 	}
 	if err := tmp.Sync(); err != nil {
 		return fmt.Errorf("catalog: fetch: %w", err)
@@ -213,12 +231,18 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 	if err := tmp.Close(); err != nil {
 		return fmt.Errorf("catalog: fetch: %w", err)
 	}
-	_, rep, verr := OpenContext(ctx, tmp.Name(), ReadOptions{Format: opt.Format})
-	if verr != nil {
-		return fmt.Errorf("catalog: fetch %s: downloaded file does not read as a catalogue: %w", url, verr)
-	}
-	if opt.Format != FormatAuto && rep.Format != opt.Format {
-		return fmt.Errorf("catalog: fetch %s: got format %v, want %v", url, rep.Format, opt.Format)
+	if opt.Check != nil {
+		if err := opt.Check(ctx, tmp.Name()); err != nil {
+			return fmt.Errorf("catalog: fetch %s: %w: %w", url, ErrVerify, err)
+		}
+	} else {
+		_, rep, verr := OpenContext(ctx, tmp.Name(), ReadOptions{Format: opt.Format})
+		if verr != nil {
+			return fmt.Errorf("catalog: fetch %s: %w: downloaded file does not read as a catalogue: %w", url, ErrVerify, verr)
+		}
+		if opt.Format != FormatAuto && rep.Format != opt.Format {
+			return fmt.Errorf("catalog: fetch %s: %w: got format %v, want %v", url, ErrVerify, rep.Format, opt.Format)
+		}
 	}
 	if err := os.Rename(tmp.Name(), dst); err != nil {
 		return fmt.Errorf("catalog: fetch: %w", err)

@@ -1,17 +1,11 @@
 package names
 
 import (
-	"bytes"
 	"context"
-	"crypto/sha256"
-	"encoding/hex"
-	"errors"
 	"fmt"
-	"io"
 	"net/http"
-	"os"
-	"path/filepath"
-	"strings"
+
+	"github.com/skyframe/skyframe/catalog"
 )
 
 // Source is where the names table is published.
@@ -37,8 +31,9 @@ var Published = Source{
 // MaxFetchBytes bounds a download; the 2018 table is about 40 kB.
 const MaxFetchBytes = 4 << 20
 
-// ErrVerify: the downloaded file is not the names table it should be.
-var ErrVerify = errors.New("names: fetch: download failed verification")
+// ErrVerify: the downloaded file is not the names table it should be
+// (the downloader's catalog.ErrVerify).
+var ErrVerify = catalog.ErrVerify
 
 // checkValues are entries every published version of the table holds
 // (names adopted in 2016, never withdrawn), as shared/catalogs/README.md
@@ -49,87 +44,42 @@ var checkValues = []struct {
 }{{"Betelgeuse", 2061}, {"Sirius", 2491}, {"Vega", 7001}, {"Rigil Kentaurus", 5459}}
 
 // Fetch downloads src.URL (url, when not empty, instead: a mirror) into
-// dst. The body is held in memory (at most MaxFetchBytes), must be as long
-// as the server's Content-Length, match src.Size and src.SHA256 when they
-// are set, read as an IAU-CSN table (Read) and hold the check values
+// dst with the catalogue downloader (catalog.FetchWith: complete by the
+// server's length or a chunked end, at most MaxFetchBytes, src.Size and
+// src.SHA256 when set, written to a temporary file beside dst). The file
+// must then read as an IAU-CSN table (Read) and hold the check values
 // (Betelgeuse HR 2061, Sirius HR 2491, Vega HR 7001, Rigil Kentaurus
-// HR 5459); only then is it written to a temporary file beside dst and
-// renamed into place, so dst is either the old file or a verified new one.
-// It returns the hex SHA-256 of the accepted file, which a caller can pin
-// as src.SHA256 for later fetches. client nil means http.DefaultClient.
+// HR 5459); only then is it renamed into place, so dst is either the old
+// file or a verified new one. It returns the hex SHA-256 of the accepted
+// file, which a caller can pin as src.SHA256 for later fetches. Every
+// refusal of the file's content wraps ErrVerify. client nil means
+// http.DefaultClient.
 func Fetch(ctx context.Context, client *http.Client, src Source, url, dst string) (digest string, err error) {
-	if client == nil {
-		client = http.DefaultClient
-	}
 	if url == "" {
 		url = src.URL
 	}
-	req, err := http.NewRequestWithContext(ctx, http.MethodGet, url, nil)
-	if err != nil {
-		return "", fmt.Errorf("names: fetch: %w", err)
-	}
-	resp, err := client.Do(req)
-	if err != nil {
-		return "", fmt.Errorf("names: fetch: %w", err)
-	}
-	defer resp.Body.Close()
-	if resp.StatusCode != http.StatusOK {
-		return "", fmt.Errorf("names: fetch %s: HTTP status %s", url, resp.Status)
-	}
-	body, err := io.ReadAll(io.LimitReader(resp.Body, MaxFetchBytes+1))
-	if err != nil {
-		return "", fmt.Errorf("%w: %s: %w", ErrVerify, url, err)
-	}
-	if len(body) > MaxFetchBytes {
-		return "", fmt.Errorf("%w: %s: more than %d bytes", ErrVerify, url, MaxFetchBytes)
-	}
-	if resp.ContentLength >= 0 && int64(len(body)) != resp.ContentLength {
-		return "", fmt.Errorf("%w: %s: got %d of %d bytes", ErrVerify, url, len(body), resp.ContentLength)
-	}
-	if src.Size > 0 && int64(len(body)) != src.Size {
-		return "", fmt.Errorf("%w: %s: %d bytes, want %d", ErrVerify, url, len(body), src.Size)
-	}
-	sum := sha256.Sum256(body)
-	digest = hex.EncodeToString(sum[:])
-	if want := strings.ToLower(strings.TrimSpace(src.SHA256)); want != "" {
-		if h := digest; h != want {
-			return "", fmt.Errorf("%w: %s: SHA-256 %s, want %s", ErrVerify, url, h, src.SHA256)
+	check := func(ctx context.Context, path string) error {
+		t, err := ReadFile(path)
+		if err != nil {
+			return err
 		}
-	}
-	t, rerr := Read(bytes.NewReader(body), url)
-	if rerr != nil {
-		return "", fmt.Errorf("%w: %v", ErrVerify, rerr)
-	}
-	byName := map[string]Entry{}
-	for _, e := range t.Entries {
-		byName[e.Name] = e
-	}
-	for _, c := range checkValues {
-		if e, ok := byName[c.name]; !ok || e.HR != c.hr {
-			return "", fmt.Errorf("%w: %s: no entry %s (HR %d); not the IAU Catalog of Star Names", ErrVerify, url, c.name, c.hr)
+		byName := map[string]Entry{}
+		for _, e := range t.Entries {
+			byName[e.Name] = e
 		}
+		for _, c := range checkValues {
+			if e, ok := byName[c.name]; !ok || e.HR != c.hr {
+				return fmt.Errorf("no entry %s (HR %d); not the IAU Catalog of Star Names", c.name, c.hr)
+			}
+		}
+		return nil
 	}
-	dir := filepath.Dir(dst)
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return "", fmt.Errorf("names: fetch: %w", err)
-	}
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(dst)+".*.part")
+	err = catalog.FetchWith(ctx, client, url, dst, nil, catalog.FetchOptions{
+		Size: src.Size, SHA256: src.SHA256, Digest: &digest,
+		MaxBytes: MaxFetchBytes, Check: check,
+	})
 	if err != nil {
-		return "", fmt.Errorf("names: fetch: %w", err)
-	}
-	_, werr := tmp.Write(body)
-	if werr == nil {
-		werr = tmp.Sync()
-	}
-	if cerr := tmp.Close(); werr == nil {
-		werr = cerr
-	}
-	if werr == nil {
-		werr = os.Rename(tmp.Name(), dst)
-	}
-	if werr != nil {
-		os.Remove(tmp.Name())
-		return "", fmt.Errorf("names: fetch: %w", werr)
+		return "", fmt.Errorf("names: %w", err)
 	}
 	return digest, nil
 }

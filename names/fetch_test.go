@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"testing"
 
 	"github.com/skyframe/skyframe/internal/sharedcat"
@@ -61,7 +62,7 @@ func TestFetch(t *testing.T) {
 		{"half without length", Source{}, srv.URL + "/half.txt"},
 		{"not the table", Source{}, srv.URL + "/junk.txt"},
 		{"wrong size", Source{Size: 5}, srv.URL + "/IAU-CSN.txt"},
-		{"wrong hash", Source{SHA256: "00"}, srv.URL + "/IAU-CSN.txt"},
+		{"wrong hash", Source{SHA256: strings.Repeat("0", 64)}, srv.URL + "/IAU-CSN.txt"},
 		{"missing", Source{}, srv.URL + "/none"},
 	} {
 		before, _ := os.ReadFile(dst)
