@@ -66,6 +66,8 @@ var roleLabels = [nRoles]string{"id", "ra", "dec", "vmag", "bv", "teff", "parall
 // teff_gspphot is given.
 func readDelimited(lr *lineReader, b *builder, f Format) error {
 	var header []byte
+	ecsv := false
+	var ecsvDelim byte
 	for {
 		line, err := lr.next()
 		if err == io.EOF {
@@ -75,6 +77,19 @@ func readDelimited(lr *lineReader, b *builder, f Format) error {
 			return err
 		}
 		if isBlank(line) {
+			continue
+		}
+		if lr.line == 1 && bytes.HasPrefix(line, ecsvMagic) {
+			ecsv = true
+			ecsvDelim = ' ' // the ECSV default
+			continue
+		}
+		if ecsv && line[0] == '#' {
+			if d, ok, err := ecsvDelimiter(line); err != nil {
+				return &ParseError{File: b.file, Line: lr.line, Field: "delimiter", Value: shortValue(line), Err: err}
+			} else if ok {
+				ecsvDelim = d
+			}
 			continue
 		}
 		if line[0] == '#' {
@@ -97,6 +112,18 @@ func readDelimited(lr *lineReader, b *builder, f Format) error {
 	delim := pickDelimiter(header)
 	if f == FormatTSV {
 		delim = '\t'
+	}
+	if ecsv {
+		delim = ecsvDelim
+	}
+	if f == FormatCSV && b.detected && b.opt.Columns == (ColumnMap{}) && headerFormatDelim(header, delim) == FormatGaiaCSV {
+		// A generic table detected as such only because its header
+		// lies beyond the sniffed bytes (an ECSV's long YAML header)
+		// or its extension decided: its column names say Gaia.
+		f = FormatGaiaCSV
+		b.rep.Format = f
+		b.s.Format = f.String()
+		b.setEpoch(2016.0)
 	}
 	names, err := splitFields(header, delim, nil)
 	if err != nil {
@@ -436,12 +463,19 @@ func splitFields(line []byte, delim byte, out [][]byte) ([][]byte, error) {
 		}
 	}
 	for {
-		t := bytes.TrimLeft(line, " ")
+		t := line
+		if delim != ' ' {
+			t = bytes.TrimLeft(line, " ")
+		}
 		if len(t) > 0 && t[0] == '"' {
 			var field []byte
 			i := 1
 			closed := false
-			for i < len(t) {
+			if j := bytes.IndexByte(t[1:], '"'); j >= 0 && (j+2 >= len(t) || t[j+2] != '"') {
+				// No doubled quote inside: the field is a sub-slice.
+				field, i, closed = t[1:1+j], j+2, true
+			}
+			for !closed && i < len(t) {
 				if t[i] == '"' {
 					if i+1 < len(t) && t[i+1] == '"' {
 						field = append(field, '"')
@@ -458,7 +492,10 @@ func splitFields(line []byte, delim byte, out [][]byte) ([][]byte, error) {
 			if !closed {
 				return out, fmt.Errorf("%w: unterminated quoted field", ErrFieldCount)
 			}
-			rest := bytes.TrimLeft(t[i:], " ")
+			rest := t[i:]
+			if delim != ' ' {
+				rest = bytes.TrimLeft(rest, " ")
+			}
 			out = append(out, field)
 			if len(rest) == 0 {
 				return out, nil
@@ -476,4 +513,21 @@ func splitFields(line []byte, delim byte, out [][]byte) ([][]byte, error) {
 		out = append(out, line[:i])
 		line = line[i+1:]
 	}
+}
+
+// ecsvDelimiter recognises the ECSV header key "delimiter" ("# delimiter:
+// ','"): ECSV 1.0 allows a space (the default) or a comma.
+func ecsvDelimiter(line []byte) (byte, bool, error) {
+	t := strings.TrimSpace(strings.TrimPrefix(string(line), "#"))
+	v, ok := strings.CutPrefix(t, "delimiter:")
+	if !ok {
+		return 0, false, nil
+	}
+	switch strings.Trim(strings.TrimSpace(v), "'\"") {
+	case ",":
+		return ',', true, nil
+	case " ", "":
+		return ' ', true, nil
+	}
+	return 0, false, fmt.Errorf("%w: ECSV delimiter %s: ECSV 1.0 allows a space or a comma", ErrUnknownFormat, strings.TrimSpace(v))
 }

@@ -27,6 +27,26 @@
 // rules as CSV, or the exact Stars layout of WriteParquet; see parquet.go).
 // OpenChunks reads a cache in row chunks for catalogues larger than memory.
 //
+// ECSV (Astropy APE 6, version 1.0), the layout of the Gaia archive's bulk
+// gaia_source files, is read as a delimited table: the "# %ECSV" line and
+// the YAML header in "# " lines (only its delimiter key matters: a comma,
+// or a space by default), then the column names and the rows, "null" for a
+// missing value, quoted text (the "Gaia DR3 n" designations) kept whole.
+// The column names decide Gaia or generic, however long the YAML header.
+//
+// # Many files
+//
+// ExpandInputs turns arguments — files, directories (their files, by
+// name), glob patterns (matches by name) — into a list of files; a pattern
+// or directory naming no file is an error (ErrNoMatch). OpenFiles reads the
+// list as one catalogue, in list order whatever its worker count (files are
+// read in parallel, each decompressed and parsed on one goroutine, so many
+// gzipped shards use every core), refusing a file whose format differs
+// from the others' (ErrMixedFormats) and naming the file and line of any
+// bad row. ReadOptions.MaxV cuts stars fainter than a V while each file is
+// read. Readers parse every field of a row only to count fields; numbers
+// are parsed only in the columns the reader uses.
+//
 // Each read returns a Report: format, lines, rows kept, rows skipped by
 // reason with the line of the first one, declared row count, V, B−V and
 // distance ranges, and counts of flags.

@@ -96,6 +96,11 @@ func ParseFormat(s string) (Format, error) {
 
 var cacheMagic = []byte("SKYFCAT")
 
+// ecsvMagic starts an ECSV table (Astropy APE 6, "Enhanced Character
+// Separated Values", version 1.0): "# %ECSV 1.0", then "# ---" and a YAML
+// header in lines starting "# ", then the column-name line and the data.
+var ecsvMagic = []byte("# %ECSV ")
+
 func detectFormat(br *bufio.Reader, name string, gz bool) (Format, error) {
 	head, err := br.Peek(sniffBytes)
 	if err != nil && err != io.EOF && err != bufio.ErrBufferFull {
@@ -108,6 +113,12 @@ func detectFormat(br *bufio.Reader, name string, gz bool) (Format, error) {
 	}
 	if bytes.HasPrefix(head, parquetMagic) {
 		return FormatParquet, nil
+	}
+	if bytes.HasPrefix(head, ecsvMagic) {
+		// An ECSV table (its YAML header may be longer than the sniffed
+		// bytes): readDelimited reads the header and decides between
+		// Gaia and a generic table from the column names.
+		return FormatCSV, nil
 	}
 	var first []byte
 	rest := head
@@ -167,9 +178,11 @@ func looksLikeHeader(ln []byte) bool {
 	return c == '_' || (c|0x20 >= 'a' && c|0x20 <= 'z')
 }
 
-func headerFormat(ln []byte) Format {
+func headerFormat(ln []byte) Format { return headerFormatDelim(ln, pickDelimiter(ln)) }
+
+// headerFormatDelim is headerFormat with the delimiter known.
+func headerFormatDelim(ln []byte, delim byte) Format {
 	lower := strings.ToLower(string(ln))
-	delim := pickDelimiter(ln)
 	names := map[string]bool{}
 	for _, f := range strings.Split(lower, string(delim)) {
 		names[strings.Trim(strings.TrimSpace(f), "\"'")] = true

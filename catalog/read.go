@@ -73,6 +73,10 @@ type ReadOptions struct {
 	// MaxCompressionRatio limits inflated/compressed size once more than
 	// 8 MiB have been inflated (default DefaultMaxCompressionRatio).
 	MaxCompressionRatio float64
+	// MaxV, when non-zero, is a magnitude cut: stars with catalogue V
+	// fainter than it are dropped as they are read (counted among the
+	// skipped rows as "fainter than the V cut"). Zero keeps every star.
+	MaxV float64
 	// Epoch, when non-zero, is the Julian epoch (e.g. 2000.0) to which
 	// positions are propagated by proper motion with the linear model
 	// u(t) = normalise(u₀ + (t − t₀)(μα* ê_α + μδ ê_δ)), ê_α, ê_δ the local
@@ -121,7 +125,8 @@ func (r *Range) add(v float64) {
 type Skip struct {
 	Reason    string // e.g. "no position", "no V magnitude"
 	Count     int
-	FirstLine int // 1-based line number of the first such row
+	FirstLine int    // 1-based line number of the first such row (0: not known)
+	File      string // file of FirstLine when several files were read, else ""
 }
 
 // Report summarises one read: what was found, what was kept, what was
@@ -140,6 +145,9 @@ type Report struct {
 	NoDistance, NoColour, TeffFromCatalogue, TeffExtrapolated int
 	Epoch                                                     float64 // Julian epoch of the returned positions
 	Propagated                                                bool    // positions were moved to ReadOptions.Epoch
+	// Files holds each file's own Report when several were read
+	// (OpenFiles), in order; nil for one file.
+	Files []*Report
 }
 
 // Open reads the catalogue in the named file. See Read, and OpenContext
@@ -181,6 +189,9 @@ func Read(r io.Reader, name string, opt ReadOptions) (*Stars, *Report, error) {
 	opt = opt.withDefaults()
 	if math.IsNaN(opt.Epoch) || math.IsInf(opt.Epoch, 0) || math.Abs(opt.Epoch) > 1e5 {
 		return nil, nil, fmt.Errorf("catalog: epoch %v out of range", opt.Epoch)
+	}
+	if math.IsNaN(opt.MaxV) {
+		return nil, nil, fmt.Errorf("catalog: V cut is NaN")
 	}
 	rep := &Report{Source: name, DeclaredRows: -1}
 	avail := remaining(r) // bytes left in a file or in-memory reader, else -1
@@ -246,6 +257,7 @@ func Read(r io.Reader, name string, opt ReadOptions) (*Stars, *Report, error) {
 		return readParquet(bytes.NewReader(data), int64(len(data)), name, opt, rep)
 	}
 	b := newBuilder(name, format, opt, rep)
+	b.detected = opt.Format == FormatAuto
 	var err error
 	switch format {
 	case FormatBSC5:
@@ -379,6 +391,7 @@ type builder struct {
 	file      string
 	catEpoch  float64
 	propagate bool
+	detected  bool // the format was detected, not forced
 }
 
 func newBuilder(file string, f Format, opt ReadOptions, rep *Report) *builder {
@@ -442,6 +455,10 @@ func (b *builder) declare(n int64, line int) error {
 func (b *builder) add(st Star, line int) error {
 	if b.s.Len() >= b.opt.MaxRows {
 		return &ParseError{File: b.file, Line: line, Err: fmt.Errorf("%w: more than %d", ErrTooManyRows, b.opt.MaxRows)}
+	}
+	if b.opt.MaxV != 0 && st.Vmag > b.opt.MaxV {
+		b.skip(skipCut, line)
+		return nil
 	}
 	if b.propagate && (st.PMRA != 0 || st.PMDec != 0) {
 		st.RA, st.Dec = propagateRADec(st.RA, st.Dec, st.PMRA, st.PMDec, b.opt.Epoch-b.catEpoch)

@@ -66,7 +66,7 @@ func TestFixturesGood(t *testing.T) {
 	}{
 		{
 			file: "bsc5_good.dat", format: FormatBSC5, epoch: 2000,
-			skips: []Skip{{"no position", 1, 3}, {"no V magnitude", 1, 4}},
+			skips: []Skip{{Reason: "no position", Count: 1, FirstLine: 3}, {Reason: "no V magnitude", Count: 1, FirstLine: 4}},
 			stars: []wantStar{
 				// 12h34m56.7s = 188.73625°, +01°23′45″ = 1.395833° [cp: sexagesimal]; parallax 0.050″ → 20 pc [cp];
 				// pm arcsec/yr × 1000 [cp]; Teff by Ballesteros [pub].
@@ -78,7 +78,7 @@ func TestFixturesGood(t *testing.T) {
 		},
 		{
 			file: "hip_main_good.dat", format: FormatHipparcos, epoch: 1991.25,
-			skips: []Skip{{"no V magnitude", 1, 3}},
+			skips: []Skip{{Reason: "no V magnitude", Count: 1, FirstLine: 3}},
 			stars: []wantStar{
 				// Plx 25.00 mas → 40 pc [cp].
 				{130001, "", 123.45678901, -12.3456789, 40, 5.67, 0.48, TeffFromBV(0.48), 100, -50, nan, 0},
@@ -88,7 +88,7 @@ func TestFixturesGood(t *testing.T) {
 		},
 		{
 			file: "hip2_good.dat", format: FormatHipparcos2007, epoch: 1991.25,
-			skips: []Skip{{"no Hp magnitude", 1, 2}},
+			skips: []Skip{{Reason: "no Hp magnitude", Count: 1, FirstLine: 2}},
 			stars: []wantStar{
 				// 1.2345678901 rad = 70.735421°, −0.3456789012 rad = −19.805871° [cp]; Plx 10 mas → 100 pc;
 				// V = Hp − 0.134 at B−V 0.674 [pub Bessell 2000 Table 2].
@@ -97,7 +97,7 @@ func TestFixturesGood(t *testing.T) {
 		},
 		{
 			file: "gaia_good.csv", format: FormatGaiaCSV, epoch: 2016,
-			skips: []Skip{{"no position", 1, 5}},
+			skips: []Skip{{Reason: "no position", Count: 1, FirstLine: 5}},
 			stars: []wantStar{
 				// Parallax 5 mas → 200 pc; V from Riello 2021 [mem]; Teff from MB20 [mem].
 				{1000000000000000001, "", 10.5, -20.25, 200, 12.21414, nan, 5213.074058750517, 1.5, -2.5, nan, 0},
@@ -108,7 +108,7 @@ func TestFixturesGood(t *testing.T) {
 		{
 			file: "generic_good.csv", format: FormatCSV, epoch: 2000,
 			opt:   ReadOptions{Columns: ColumnMap{ID: "star", RA: "alpha_h", RAHours: true, Dec: "delta", Vmag: "mag", BV: "colour", Parallax: "plx_mas", Name: "label"}},
-			skips: []Skip{{"no V magnitude", 1, 4}},
+			skips: []Skip{{Reason: "no V magnitude", Count: 1, FirstLine: 4}},
 			stars: []wantStar{
 				// 6 h = 90°; 100 mas → 10 pc [cp].
 				{1, "Test One", 90, -10, 10, 3.5, 0.30, TeffFromBV(0.30), 0, 0, nan, 0},
