@@ -1,20 +1,16 @@
 package overlay
 
 import (
-	"bytes"
 	"flag"
-	"fmt"
 	"image"
-	"image/png"
 	"math"
-	"os"
-	"path/filepath"
 	"testing"
 
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/internal/golden"
 )
 
 // regen rewrites the golden images instead of comparing with them:
@@ -89,61 +85,5 @@ func observer(t testing.TB, dir r3.Vec, beta float64) camera.Observer {
 // 2/255 per channel and a mean of 0.1/255, or rewrites it under -regen.
 func checkGolden(t *testing.T, name string, img *image.NRGBA) {
 	t.Helper()
-	path := filepath.Join(goldenDir, name+"_golden.png")
-	if *regen {
-		var buf bytes.Buffer
-		if err := png.Encode(&buf, img); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return
-	}
-	fh, err := os.Open(path)
-	if err != nil {
-		t.Fatalf("%v (run with -regen to create)", err)
-	}
-	defer fh.Close()
-	want, err := png.Decode(fh)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if msg := compareImages(img, want, 2, 0.1); msg != "" {
-		t.Errorf("%s differs from %s: %s", name, path, msg)
-	}
-}
-
-// compareImages returns "" when have and want agree within maxDiff per
-// channel (8-bit units) and mean absolute difference meanDiff, otherwise a
-// description of the worst difference.
-func compareImages(have *image.NRGBA, want image.Image, maxDiff int, meanDiff float64) string {
-	if have.Bounds() != want.Bounds() {
-		return fmt.Sprintf("bounds %v, want %v", have.Bounds(), want.Bounds())
-	}
-	var sum float64
-	worst, wx, wy, n := 0, 0, 0, 0
-	b := have.Bounds()
-	for y := b.Min.Y; y < b.Max.Y; y++ {
-		for x := b.Min.X; x < b.Max.X; x++ {
-			h := have.NRGBAAt(x, y)
-			r, g, bl, _ := want.At(x, y).RGBA()
-			for _, d := range []int{int(h.R) - int(r>>8), int(h.G) - int(g>>8), int(h.B) - int(bl>>8)} {
-				if d < 0 {
-					d = -d
-				}
-				sum += float64(d)
-				n++
-				if d > worst {
-					worst, wx, wy = d, x, y
-				}
-			}
-		}
-	}
-	mean := sum / float64(n)
-	if worst <= maxDiff && mean <= meanDiff {
-		return ""
-	}
-	return fmt.Sprintf("max diff %d/255 at (%d,%d) (have %v, want %v), mean %.4f/255", worst, wx, wy,
-		have.NRGBAAt(wx, wy), want.At(wx, wy), mean)
+	golden.Check(t, goldenDir, name, img, *regen, 2, 0.1)
 }
