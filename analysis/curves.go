@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/spatial/r3"
 
+	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/spectrum"
 )
 
@@ -170,28 +171,40 @@ func dirAt(thetaDeg float64) r3.Vec {
 // Aberration tabulates the apparent angle θ′ against the rest angle θ
 // (0..180°, n samples) for each speed, from camera.Boost.Apply.
 func Aberration(speeds []Speed, n int) (*Table, error) {
-	if err := validateSpeeds(speeds); err != nil {
-		return nil, err
-	}
-	if err := checkPoints(n); err != nil {
-		return nil, err
-	}
 	t := &Table{
 		Name:   "aberration",
 		Title:  "Aberration: cos θ′ = (cos θ + β)/(1 + β cos θ)",
 		XName:  "theta_deg",
 		XLabel: "rest-frame angle from the direction of motion θ (deg)",
 		YLabel: "apparent angle θ′ (deg)",
-		X:      angleGrid(n),
 	}
+	return angleTable(t, speeds, n, "theta_obs_", func(b camera.Boost) func(th float64) float64 {
+		return func(th float64) float64 {
+			np, _ := b.Apply(dirAt(th))
+			return angleTo(np, axis)
+		}
+	})
+}
+
+// angleTable fills t (its header set) with the angle grid of n samples
+// and one column per speed, named prefix+speedName, whose values are
+// column(boost along the axis)(angle).
+func angleTable(t *Table, speeds []Speed, n int, prefix string, column func(camera.Boost) func(float64) float64) (*Table, error) {
+	if err := validateSpeeds(speeds); err != nil {
+		return nil, err
+	}
+	if err := checkPoints(n); err != nil {
+		return nil, err
+	}
+	t.X = angleGrid(n)
 	for _, s := range speeds {
 		b, _ := s.Boost(axis)
+		f := column(b)
 		y := make([]float64, n)
 		for i, th := range t.X {
-			np, _ := b.Apply(dirAt(th))
-			y[i] = angleTo(np, axis)
+			y[i] = f(th)
 		}
-		t.Columns = append(t.Columns, Column{Name: "theta_obs_" + speedName(s), Label: s.Label(), Y: y})
+		t.Columns = append(t.Columns, Column{Name: prefix + speedName(s), Label: s.Label(), Y: y})
 	}
 	return t, nil
 }
@@ -214,30 +227,17 @@ func dopplerAtObs(inv interface{ Doppler(r3.Vec) float64 }, thetaObsDeg float64)
 // DopplerCurve tabulates the Doppler factor D = 1/(γ(1 − β cos θ′)) of a star
 // against its apparent angle θ′ (0..180°, n samples) for each speed.
 func DopplerCurve(speeds []Speed, n int) (*Table, error) {
-	if err := validateSpeeds(speeds); err != nil {
-		return nil, err
-	}
-	if err := checkPoints(n); err != nil {
-		return nil, err
-	}
 	t := &Table{
 		Name:   "doppler",
 		Title:  "Doppler factor D = 1/(γ(1 − β cos θ′)) = ν_obs/ν_emit",
 		XName:  "theta_obs_deg",
 		XLabel: "apparent angle from the direction of motion θ′ (deg)",
 		YLabel: "Doppler factor D",
-		X:      angleGrid(n),
 	}
-	for _, s := range speeds {
-		b, _ := s.Boost(axis)
+	return angleTable(t, speeds, n, "doppler_", func(b camera.Boost) func(th float64) float64 {
 		inv := b.Inverse()
-		y := make([]float64, n)
-		for i, th := range t.X {
-			y[i] = dopplerAtObs(inv, th)
-		}
-		t.Columns = append(t.Columns, Column{Name: "doppler_" + speedName(s), Label: s.Label(), Y: y})
-	}
-	return t, nil
+		return func(th float64) float64 { return dopplerAtObs(inv, th) }
+	})
 }
 
 // deltaV returns V′ − V of a blackbody of temperature T seen with Doppler
