@@ -225,6 +225,30 @@ func (p *Prepared) Render(opt Options) (*Frame, error) {
 		t := newTransformer(p, &f.Options, &psf, f.Scale)
 		t.run(lo, hi, recs[lo:hi], &chunks[c])
 	})
+	discs, err := p.gather(f, chunks)
+	if err != nil {
+		return nil, err
+	}
+
+	// Phase 2: bin into tiles.
+	g := newGrid(f.W, f.H, psf.Radius(), opt.Projection.Kind)
+	g.binAll(recs, chunks, workers)
+
+	// Phase 3: accumulate tiles.
+	var pool sync.Pool
+	addTiles(&f.Buffer, g, &psf, workers, &pool)
+	finishFrame(&f.Buffer, workers)
+	if err := drawDiscs(f, discs, workers); err != nil {
+		return nil, err
+	}
+	return f, nil
+}
+
+// gather merges the transform chunks' results into f's Stats (counts and
+// the brightest stars, named) and returns the stars to draw as discs, or
+// the error for an observer inside a star.
+func (p *Prepared) gather(f *Frame, chunks []chunkResult) ([]discStar, error) {
+	opt := &f.Options
 	var best []StarInfo
 	var discs []discStar
 	for c := range chunks {
@@ -251,19 +275,7 @@ func (p *Prepared) Render(opt Options) (*Frame, error) {
 		best[i].ID = p.Stars.ID[best[i].Row]
 	}
 	f.Stats.Brightest = best
-
-	// Phase 2: bin into tiles.
-	g := newGrid(f.W, f.H, psf.Radius(), opt.Projection.Kind)
-	g.binAll(recs, chunks, workers)
-
-	// Phase 3: accumulate tiles.
-	var pool sync.Pool
-	addTiles(&f.Buffer, g, &psf, workers, &pool)
-	finishFrame(&f.Buffer, workers)
-	if err := drawDiscs(f, discs, workers); err != nil {
-		return nil, err
-	}
-	return f, nil
+	return discs, nil
 }
 
 // ExposureScale returns the buffer units per lux for the given exposure:
@@ -522,7 +534,6 @@ func (t *transformer) star(i, j int, gb *geomBlock, rec *splatRec, res *chunkRes
 		res.invalid++
 		return 0
 	}
-	n := r3.Vec{X: gb.x[j], Y: gb.y[j], Z: gb.z[j]}
 	x, y := gb.px[j], gb.py[j] // NaN where the projection is undefined
 	if !(x > -t.margin && x < t.w+t.margin && y > -t.margin && y < t.h+t.margin) {
 		res.off++
@@ -532,6 +543,15 @@ func (t *transformer) star(i, j int, gb *geomBlock, rec *splatRec, res *chunkRes
 		res.off++
 		return 0
 	}
+	return t.record(i, j, gb, x, y, rec, res)
+}
+
+// record fills rec for star i (index j of block gb), to be drawn at pixel
+// (x, y), from its photometry: the colour on the exposure scale and the
+// Doppler factor; it lists the star among the brightest and returns 1, or
+// counts it invalid and returns 0 when its colour is not finite.
+func (t *transformer) record(i, j int, gb *geomBlock, x, y float64, rec *splatRec, res *chunkResult) int {
+	n := r3.Vec{X: gb.x[j], Y: gb.y[j], Z: gb.z[j]}
 	vObs, cx, cy := gb.vObs[j], gb.cx[j], gb.cy[j]
 	xl, yl, zl := tristimulus(gb.lnW[j]+gb.lnY[j]+t.lnScale, cx, cy)
 	r, g, b := spectrum.XYZToLinearSRGB(xl, yl, zl, t.opt.Color)
