@@ -134,15 +134,15 @@ type censusWork struct {
 	x, y, z, dist []float32
 	vmag          []float64
 	lnT, lnV0     []float64 // ln T, ln(V flux per unit W at T)
-	lnW0          []float64 // ln W fixed by the catalogue V
 	nx, ny, nz    []float64
 	d, dil, r     []float64
+	lnD, lnDil    []float64
+	obs           spectrum.ObservedBatch // per-star photometry at one speed
 	angles        []float64
 }
 
 func newCensusWork(s *catalog.Stars) *censusWork {
 	w := &censusWork{}
-	lnV0flux := math.Log(spectrum.V0FluxLambda)
 	for i := 0; i < s.Len(); i++ {
 		v, T := float64(s.Vmag[i]), float64(s.Teff[i])
 		if math.IsNaN(v) || math.IsInf(v, 0) || !(T > 0) || math.IsInf(T, 0) {
@@ -158,20 +158,26 @@ func newCensusWork(s *catalog.Stars) *censusWork {
 		lnV := spectrum.Lookup(lnT).LnV
 		w.lnT = append(w.lnT, lnT)
 		w.lnV0 = append(w.lnV0, lnV)
-		w.lnW0 = append(w.lnW0, lnV0flux-0.4*math.Ln10*v-lnV)
 	}
 	m := len(w.idx)
-	w.nx, w.ny, w.nz = make([]float64, m), make([]float64, m), make([]float64, m)
-	w.d, w.dil, w.r = make([]float64, m), make([]float64, m), make([]float64, m)
+	col := func() []float64 { return make([]float64, m) }
+	w.nx, w.ny, w.nz = col(), col(), col()
+	w.d, w.dil, w.r = col(), col(), col()
+	w.lnD, w.lnDil = col(), col()
+	w.obs = spectrum.ObservedBatch{V: col(), LnW: col(), LnT: col(), LnY: col(), LnV: col(), X: col(), Y: col()}
 	w.angles = make([]float64, 0, m)
 	return w
 }
 
-// magPerLn converts a natural-log flux ratio into magnitudes.
-const magPerLn = 2.5 / math.Ln10
-
 func (w *censusWork) measure(obs camera.Observer, s Speed, opt CensusOptions) CensusRow {
 	obs.SeeBatch(w.x, w.y, w.z, w.dist, w.nx, w.ny, w.nz, w.d, w.dil, w.r)
+	for i, D := range w.d {
+		w.lnD[i], w.lnDil[i] = math.Log(D), math.Log(w.dil[i])
+	}
+	// The one per-star photometry (V′, W′, T′ and its colour); stars the
+	// ship sits on get meaningless values here and are skipped below.
+	spectrum.ObserveBatch(opt.Beaming, w.vmag, w.lnT, w.lnV0, w.lnD, w.lnDil, w.obs)
+	ph := &w.obs
 	b := obs.Boost
 	row := CensusRow{Speed: s, Beta: b.Beta(), Gamma: b.Gamma(), HalfAngle: math.NaN(), Brightest: math.NaN()}
 	h := opt.Heading
@@ -181,15 +187,12 @@ func (w *censusWork) measure(obs camera.Observer, s Speed, opt CensusOptions) Ce
 		if w.r[i] == 0 || !(w.d[i] > 0) {
 			continue // the ship is at this star
 		}
-		D := w.d[i]
-		lnScale := math.Log(w.dil[i] * opt.Beaming.WScale(D))
-		sm := spectrum.Lookup(w.lnT[i] + math.Log(D))
-		vObs := w.vmag[i] - magPerLn*(lnScale+sm.LnV-w.lnV0[i])
-		Y := math.Exp(w.lnW0[i] + lnScale + sm.LnY)
-		if Y > 0 && sm.Y > 0 {
-			sx += sm.X / sm.Y * Y
+		vObs, cx, cy := ph.V[i], ph.X[i], ph.Y[i]
+		Y := math.Exp(ph.LnW[i] + ph.LnY[i])
+		if Y > 0 && cy > 0 {
+			sx += cx / cy * Y
 			sy += Y
-			sz += (1 - sm.X - sm.Y) / sm.Y * Y
+			sz += (1 - cx - cy) / cy * Y
 		}
 		if !(vObs <= opt.LimitMag) {
 			continue

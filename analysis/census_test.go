@@ -41,6 +41,16 @@ func checkRestCensus(t *testing.T, stars *catalog.Stars, limits []float64) {
 		if want := directCount(stars, lim); r.Visible != want {
 			t.Errorf("%s V ≤ %v: visible have %d, want %d (direct count)", stars.Source, lim, r.Visible, want)
 		}
+		// The brightest V′ is the catalogue's brightest V, to the bit.
+		want := math.NaN()
+		for _, v := range stars.Vmag {
+			if float64(v) <= lim && !(want <= float64(v)) {
+				want = float64(v)
+			}
+		}
+		if r.Brightest != want && !(math.IsNaN(want) && math.IsNaN(r.Brightest)) {
+			t.Errorf("%s V ≤ %v: brightest V′ %v, want %v", stars.Source, lim, r.Brightest, want)
+		}
 		if r.Forward+r.Rear != r.Visible {
 			t.Errorf("%s V ≤ %v: forward %d + rear %d ≠ visible %d", stars.Source, lim, r.Forward, r.Rear, r.Visible)
 		}
@@ -181,6 +191,7 @@ func TestCensusMovingAgreesWithPerStar(t *testing.T) {
 			obs := camera.Observer{Boost: b}
 			var vis, fwd int
 			var lux float64
+			brightest := math.Inf(1)
 			for i := range sky.Len() {
 				u := r3.Vec{X: float64(sky.X[i]), Y: float64(sky.Y[i]), Z: float64(sky.Z[i])}
 				n, d, dil, _ := obs.See(r3.Unit(u), math.Inf(1))
@@ -191,6 +202,7 @@ func TestCensusMovingAgreesWithPerStar(t *testing.T) {
 				lux += y
 				if o.Vmag() <= 5 {
 					vis++
+					brightest = min(brightest, o.Vmag())
 					if r3.Dot(n, h) >= 0 {
 						fwd++
 					}
@@ -202,6 +214,10 @@ func TestCensusMovingAgreesWithPerStar(t *testing.T) {
 			}
 			if !scalar.EqualWithinRel(r.Illuminance, lux, 1e-6) {
 				t.Errorf("%v β = %v: illuminance have %.9g, want %.9g", beam, beta, r.Illuminance, lux)
+			}
+			// V′ itself, to the table's 1e-6 mag (spectrum doc).
+			if !scalar.EqualWithinAbs(r.Brightest, brightest, 1e-6) {
+				t.Errorf("%v β = %v: brightest V′ have %.9f, want %.9f", beam, beta, r.Brightest, brightest)
 			}
 		}
 	}

@@ -241,10 +241,10 @@ func DopplerCurve(speeds []Speed, n int) (*Table, error) {
 }
 
 // deltaV returns V′ − V of a blackbody of temperature T seen with Doppler
-// factor D under the given beaming convention.
+// factor D under the given beaming convention: the per-star photometry of
+// spectrum.Observe for a star of V = 0.
 func deltaV(T, D float64, beam spectrum.Beaming) float64 {
-	bb := spectrum.Blackbody{T: T, W: 1}
-	return bb.Observed(D, beam).Vmag() - bb.Vmag()
+	return spectrum.Observe(0, T, D, 1, beam).V
 }
 
 func tempName(T float64) string { return "T" + strconv.FormatFloat(T, 'g', 6, 64) }

@@ -11,23 +11,20 @@ import (
 
 // BrighteningV returns ΔV = V′ − V, the change of a star's V magnitude when
 // a blackbody of temperature T (K) is seen with Doppler factor D under beam:
-// the renderer's photometry for one star at its rest-frame distance,
+// the renderer's photometry (spectrum.Observe, the one definition) for one
+// star at its rest-frame distance,
 //
 //	ΔV = −2.5 log₁₀( WScale(D) · F_V(D·T)/F_V(T) ),
 //
 // F_V the V-band flux per unit dilution (spectrum.Lookup's LnV). Negative
 // values are brightenings: about −4.2 mag at 3000 K and D ≈ 4.4, while very
 // hot stars fade toward +2.5 log₁₀ D (exact beaming). NaN for T or D not
-// positive and finite.
+// positive and finite, or an unknown beam.
 func BrighteningV(T, D float64, beam spectrum.Beaming) float64 {
 	if !(T > 0 && D > 0) || math.IsInf(T, 0) || math.IsInf(D, 0) {
 		return math.NaN()
 	}
-	lnT, lnD := math.Log(T), math.Log(D)
-	s0 := spectrum.Lookup(lnT)
-	s1 := spectrum.Lookup(lnT + lnD)
-	beamExp := float64(beam.FluxExponent() - 4)
-	return -lnToMag * (beamExp*lnD + s1.LnV - s0.LnV)
+	return spectrum.Observe(0, T, D, 1, beam).V
 }
 
 // Depth is the completeness bound of a frame: the faintest catalogue V whose

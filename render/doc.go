@@ -10,13 +10,14 @@
 //  1. asks camera.Observer.See for the apparent direction n′ (unit vector,
 //     ICRS axes, ship frame), the Doppler factor D and the dilution
 //     (d⊙/r)² from moving the observer;
-//  2. sets the observed temperature T′ = D·T and the observed dilution
-//     W′ = W₀·(d⊙/r)²·Beaming.WScale(D), where W₀ is fixed by the
-//     catalogue V and the rest temperature (Prepare) so that at rest, from
-//     the Sun, the observed V′ equals the catalogue V exactly;
-//  3. reads the per-unit-W photometry at ln T′ from spectrum.Lookup:
-//     illuminance Y = W′·e^LnY lux, X = (x/y)·Y, Z = ((1−x−y)/y)·Y, and
-//     V′ = −2.5·log10(W′·e^LnV / V0FluxLambda);
+//  2. takes the star's observed photometry from spectrum.ObserveBatch, the
+//     one definition the census, the stars table and the depth bound use
+//     too: T′ = D·T, the observed dilution W′ = W₀·(d⊙/r)²·
+//     Beaming.WScale(D), where W₀ is fixed by the catalogue V and the rest
+//     temperature so that at rest, from the Sun, the observed V′ equals the
+//     catalogue V exactly, and V′ = V − 2.5·log10(F′_V/F_V);
+//  3. with the per-unit-W table photometry at ln T′ (spectrum.Lookup):
+//     illuminance Y = W′·e^LnY lux, X = (x/y)·Y, Z = ((1−x−y)/y)·Y;
 //  4. culls stars with V′ > Options.Limit (default Exposure + 10 mag);
 //  5. projects n′ with camera.Projection.Forward, dropping stars that are
 //     undefined there (behind a pinhole), whose PSF would lie wholly

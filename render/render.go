@@ -138,13 +138,10 @@ type Prepared struct {
 	direct bool
 }
 
-// The dilution seen from the Sun at rest, ln W₀ = lnV0Flux − 0.4·ln10·V −
-// lnV0, is recomputed per frame from the catalogue column, by the same
-// expression every time: that costs less than reading 8 more bytes per
-// star from memory.
-
-// lnV0Flux is ln of the V-band flux of a V = 0 star.
-var lnV0Flux = math.Log(spectrum.V0FluxLambda)
+// The dilution seen from the Sun at rest, ln W₀ = spectrum.LnWForV(V,
+// lnV0), is recomputed per frame from the catalogue column (inside
+// spectrum.ObserveBatch), by the same expression every time: that costs
+// less than reading 8 more bytes per star from memory.
 
 // Prepare validates stars and computes each star's dilution W from its
 // catalogue V magnitude and rest temperature, with the same V passband
@@ -159,9 +156,6 @@ func Prepare(stars *catalog.Stars) (*Prepared, error) {
 	}
 	return p, nil
 }
-
-// magToLn is 0.4·ln 10: a magnitude difference times this is a ln flux ratio.
-const magToLn = 0.4 * math.Ln10
 
 // chunkSize is the number of stars transformed per work item. It is fixed
 // so that the work split does not depend on the worker count.
@@ -283,7 +277,7 @@ func (p *Prepared) gather(f *Frame, chunks []chunkResult) ([]discStar, error) {
 // a WhiteTemperature blackbody of V = exposure.
 func ExposureScale(exposure float64) float64 {
 	s := spectrum.Lookup(math.Log(WhiteTemperature))
-	lnW := math.Log(spectrum.V0FluxLambda) - magToLn*exposure - s.LnV
+	lnW := spectrum.LnWForV(exposure, s.LnV)
 	eRef := math.Exp(lnW + s.LnY)
 	psf, _ := NewPSF(DefaultFWHM)
 	return 1 / (eRef * psf.PeakFraction())
@@ -350,7 +344,7 @@ type transformer struct {
 	proj    camera.Projection
 	psf     *PSF
 	lnScale float64
-	beamExp float64 // FluxExponent − 4: ln WScale(D) = beamExp·ln D
+	beamExp float64 // FluxExponent − 4: ln WScale(D) = beamExp·ln D (disc tests)
 	w, h    float64 // image size, px
 	margin  float64 // PSF radius + 1 px: how far outside the image a star may still light it
 	rFish   float64 // fisheye circle radius, px
@@ -375,11 +369,15 @@ const blockSize = 256
 // geomBlock holds one block's pre-boost directions (boosted in place),
 // Doppler factors and dilutions.
 type geomBlock struct {
-	x, y, z, d, dil [blockSize]float64
-	lnD             [blockSize]float64 // ln d, filled by geometry
-	bad             [blockSize]bool
-	// Filled by photometry: ln T′ and the table sample there, the
-	// observed V′ and ln W′.
+	x, y, z, d [blockSize]float64
+	lnD        [blockSize]float64 // ln d, filled by geometry
+	// lnDil is ln of the dilution (d⊙/r)², 0 where it is 1; unset (and
+	// sun true) for an observer at the Sun, where every dilution is 1.
+	lnDil [blockSize]float64
+	sun   bool
+	bad   [blockSize]bool
+	// Filled by photometry (spectrum.ObserveBatch): ln T′ and the table
+	// sample there, the observed V′ and ln W′.
 	lnT, lnY, lnV, cx, cy [blockSize]float64
 	vObs, lnW             [blockSize]float64
 	// Rest values of a direct Prepared, computed per block.
@@ -407,16 +405,15 @@ func (t *transformer) geometry(lo, m int, g *geomBlock) {
 		ux, uy, uz = t.p.ux[lo:lo+m], t.p.uy[lo:lo+m], t.p.uz[lo:lo+m]
 	}
 	clear(g.bad[:m])
-	for k := range m {
-		g.dil[k] = 1
-	}
 	p := t.opt.Observer.Position
-	if p == (r3.Vec{}) {
+	g.sun = p == (r3.Vec{})
+	if g.sun {
 		// From the Sun every star is seen along its catalogue direction.
 		t.opt.Observer.Boost.ApplyBatch(ux, uy, uz, g.x[:m], g.y[:m], g.z[:m], g.d[:m])
 		lnBatch(g.d[:m], g.lnD[:m])
 		return
 	}
+	clear(g.lnDil[:m])
 	cd := t.p.Stars.Dist[lo : lo+m]
 	for k := range ux {
 		u := r3.Vec{X: ux[k], Y: uy[k], Z: uz[k]}
@@ -437,16 +434,18 @@ func (t *transformer) geometry(lo, m int, g *geomBlock) {
 		}
 		g.x[k], g.y[k], g.z[k] = v.X/r, v.Y/r, v.Z/r
 		q := dist / r
-		g.dil[k] = q * q
+		if dil := q * q; dil != 1 {
+			g.lnDil[k] = lnFast(dil)
+		}
 	}
 	t.opt.Observer.Boost.ApplyBatch(g.x[:m], g.y[:m], g.z[:m], g.x[:m], g.y[:m], g.z[:m], g.d[:m])
 	lnBatch(g.d[:m], g.lnD[:m])
 }
 
 // photometry fills g's photometry for stars lo..lo+m−1, whose geometry is
-// already in g: T′ = D·T₀ and its table sample (spectrum.LookupBatch,
-// bit-identical to Lookup), ln W′ = ln W₀ + ln dilution + ln WScale(D) with
-// WScale(D) = D^(k−4), and V′ = V − 2.5 log10(F′_V/F_V), F_V ∝ W·exp(LnV).
+// already in g, with spectrum.ObserveBatch (the one definition of the
+// observed photometry): T′ = D·T₀ and its table sample, ln W′ = ln W₀ +
+// ln dilution + ln WScale(D), and V′ = V − 2.5 log10(F′_V/F_V).
 func (t *transformer) photometry(lo, m int, g *geomBlock) {
 	p := t.p
 	var lnT0, lnV0 []float64
@@ -459,21 +458,13 @@ func (t *transformer) photometry(lo, m int, g *geomBlock) {
 	} else {
 		lnT0, lnV0 = p.lnT0[lo:lo+m], p.lnV0[lo:lo+m]
 	}
-	vmag := p.Stars.Vmag[lo : lo+m]
-	lnD, dil := g.lnD[:m], g.dil[:m]
-	for k, l := range lnT0 {
-		g.lnT[k] = l + lnD[k]
+	var lnDil []float64
+	if !g.sun {
+		lnDil = g.lnDil[:m]
 	}
-	spectrum.LookupBatch(g.lnT[:m], g.lnY[:m], g.lnV[:m], g.cx[:m], g.cy[:m])
-	lnV, vObs, lnW := g.lnV[:m], g.vObs[:m], g.lnW[:m]
-	for k, v := range vmag {
-		dlnW := t.beamExp * lnD[k]
-		if dil[k] != 1 {
-			dlnW += lnFast(dil[k])
-		}
-		vObs[k] = float64(v) - lnToMag*(dlnW+lnV[k]-lnV0[k])
-		lnW[k] = (lnV0Flux - magToLn*float64(v) - lnV0[k]) + dlnW
-	}
+	spectrum.ObserveBatch(t.opt.Beaming, p.Stars.Vmag[lo:lo+m], lnT0, lnV0, g.lnD[:m], lnDil,
+		spectrum.ObservedBatch{V: g.vObs[:m], LnW: g.lnW[:m], LnT: g.lnT[:m],
+			LnY: g.lnY[:m], LnV: g.lnV[:m], X: g.cx[:m], Y: g.cy[:m]})
 }
 
 // restLn sets out[k] to ln of the rest temperature teff[k], as Prepare
@@ -499,9 +490,6 @@ func (t *transformer) see(k int, g *geomBlock) int {
 	}
 	return seeOK
 }
-
-// lnToMag converts a ln flux ratio to magnitudes: 2.5/ln 10.
-const lnToMag = 1 / magToLn
 
 func (t *transformer) run(lo, hi int, out []splatRec, res *chunkResult) {
 	k := 0
@@ -608,7 +596,7 @@ func insideError(p *Prepared, row, gRow int, pos r3.Vec) error {
 	e.DistP = r3.Norm(r3.Sub(c, pos))
 	// R = d⊙·√W₀, W₀ the dilution seen from the Sun.
 	lnV0 := spectrum.Lookup(math.Log(float64(s.Teff[row]))).LnV
-	lnW0 := lnV0Flux - magToLn*float64(s.Vmag[row]) - lnV0
+	lnW0 := spectrum.LnWForV(float64(s.Vmag[row]), lnV0)
 	e.RadiusP = dist * math.Exp(lnW0/2)
 	return e
 }

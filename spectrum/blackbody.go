@@ -51,7 +51,7 @@ func FromV(T, vmag float64) (Blackbody, error) {
 		return Blackbody{}, fmt.Errorf("%w: V = %g", ErrMagnitude, vmag)
 	}
 	s := Lookup(math.Log(T))
-	lnW := math.Log(V0FluxLambda) - 0.4*math.Ln10*vmag - s.LnV
+	lnW := LnWForV(vmag, s.LnV)
 	return NewBlackbody(T, math.Exp(lnW))
 }
 

@@ -51,3 +51,18 @@ func ExampleXYZToLinearSRGB() {
 	// 1.0000 1.0000 1.0000
 	// 0.7354
 }
+
+// A star of V = 2 seen with Doppler factor D: at D = 1 V′ = V exactly
+// (physics.md); a very hot star at D = 3 under the exact convention is in
+// the Rayleigh–Jeans limit, F′_V/F_V → 1/D, so V′ → 2 + 2.5 log₁₀ 3 = 3.193
+// (physics.md); a 3000 K star at D = 4.4 brightens by about 4.2 mag
+// (physics.md, depth needed).
+func ExampleObserve() {
+	fmt.Printf("%.3f\n", spectrum.Observe(2, 5772, 1, 1, spectrum.BeamingExact).V)
+	fmt.Printf("%.3f\n", spectrum.Observe(2, 1e9, 3, 1, spectrum.BeamingExact).V)
+	fmt.Printf("%.1f\n", spectrum.Observe(2, 3000, 4.4, 1, spectrum.BeamingExact).V-2)
+	// Output:
+	// 2.000
+	// 3.193
+	// -4.2
+}
