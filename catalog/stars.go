@@ -182,7 +182,9 @@ func CleanName(s string) string {
 // > 0 or +Inf, B−V from −5 to 10 or NaN, proper motions within ±10⁵ mas/yr,
 // radial velocity within ±10⁵ km/s or NaN. Every reader (text, cache,
 // cache chunks, Parquet) calls it before returning, so a binary file cannot
-// carry a value a text file could not.
+// carry a value a text file could not. The one exception is the Sun's own
+// row (SunID, see Sun), whose V seen 1 km from its centre is −62.6: V down
+// to −100 is accepted there.
 func (s *Stars) Validate() error {
 	n := s.Len()
 	cols := []struct {
@@ -209,7 +211,7 @@ func (s *Stars) Validate() error {
 		if n2 := x*x + y*y + z*z; !(n2 > 1-unitTol && n2 < 1+unitTol) {
 			return fmt.Errorf("catalog: star %d (id %d) has direction (%g, %g, %g), not a unit vector", i, s.ID[i], x, y, z)
 		}
-		if v := s.Vmag[i]; !(v >= vmagLo && v <= vmagHi) {
+		if v := s.Vmag[i]; !(v >= vmagLo && v <= vmagHi) && !(s.ID[i] == SunID && v >= sunVmagLo && v <= vmagHi) {
 			return fmt.Errorf("catalog: star %d (id %d) has V = %g, want %d to %d", i, s.ID[i], v, vmagLo, vmagHi)
 		}
 		if t := s.Teff[i]; !(t >= teffLo && t <= teffHi) {
