@@ -193,7 +193,9 @@ type synthGen struct {
 	seed   uint64
 	vlim   float64
 	dust   bool
-	nM     int // number of M bins
+	keepV  bool    // record each kept star's float64 V in its block (SkyCache)
+	lastV  float64 // the V of the star draw kept last
+	nM     int     // number of M bins
 	comps  []synthComp
 	lnR    [synthNR]float64
 	r      [synthNR]float64
@@ -321,8 +323,12 @@ func synthCellCap(c int) SynthCell {
 	return SynthCell{Dir: [3]float64{x, y, z}, Radius: math.Acos(math.Max(-1, minDot)) * 1.02}
 }
 
-// synthBlock holds the stars of one (cell, slice).
-type synthBlock struct{ s Stars }
+// synthBlock holds the stars of one (cell, slice), and for a SkyCache the
+// exact V each was drawn with.
+type synthBlock struct {
+	s Stars
+	v []float64
+}
 
 // run samples every sky cell to its limit and appends the stars to s, slice
 // by slice and, within a slice, cell by cell.
@@ -425,6 +431,9 @@ func (g *synthGen) cell(c int, lim float64) []synthBlock {
 		blk.grow(n)
 		for j := 0; j < n; j++ {
 			g.draw(rng, blk, id+int64(j), total, v1, v2, lim, s0, s1, l0, l1)
+			if g.keepV && len(out[sl].v) < blk.Len() {
+				out[sl].v = append(out[sl].v, g.lastV)
+			}
 		}
 	}
 	return out
@@ -613,6 +622,7 @@ func (g *synthGen) draw(rng *rand.Rand, s *Stars, id int64, total, v1, v2, lim, 
 	if v > lim {
 		return
 	}
+	g.lastV = v
 	cb := math.Sqrt(math.Max(0, 1-sb*sb))
 	sl, cl := math.Sincos(l)
 	x, y, z := galacticToICRS(cb*cl, cb*sl, sb)

@@ -1,0 +1,164 @@
+package catalog
+
+import (
+	"math"
+	"runtime"
+	"sync"
+)
+
+// SkyCache draws the synthetic sky cell by cell on demand and keeps what it
+// drew, so that the skies a sequence of frames asks for (a flight's, each
+// as deep as its frame needs) draw every cell once, to the deepest limit
+// asked of it. Sky(opt) is exactly Synthetic(opt) — the same rows in the
+// same order with the same values — whatever was asked before, since every
+// (cell, magnitude slice) is drawn from its own random stream and a
+// shallower sky keeps a prefix of each slice's draws (see Synthetic). Safe
+// for concurrent use.
+type SkyCache struct {
+	opt SynthOptions // seed, nearby stars and dust; MagLimit and CellLimit unused
+	mu  sync.Mutex
+	lim []float64 // per cell: the limit its blocks were drawn to (−Inf: not drawn)
+	blk [][]synthBlock
+	// n is the number of sampled stars held.
+	n int
+}
+
+// NewSkyCache returns an empty cache of the sky opt selects (its Seed,
+// NoNearby and NoExtinction; MagLimit and CellLimit are given to Sky).
+func NewSkyCache(opt SynthOptions) *SkyCache {
+	opt.MagLimit, opt.CellLimit = 0, nil
+	c := &SkyCache{opt: opt, lim: make([]float64, synthCells), blk: make([][]synthBlock, synthCells)}
+	for i := range c.lim {
+		c.lim[i] = math.Inf(-1)
+	}
+	return c
+}
+
+// Held returns the number of sampled stars the cache holds.
+func (c *SkyCache) Held() int {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	return c.n
+}
+
+// Sky returns Synthetic(opt) with opt's MagLimit and CellLimit and the
+// cache's seed, nearby stars and dust, drawing only the cells not yet drawn
+// as deep as asked.
+func (c *SkyCache) Sky(magLimit float64, cellLimit func(SynthCell) float64) *Stars {
+	opt := c.opt
+	opt.MagLimit, opt.CellLimit = magLimit, cellLimit
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	g := newSynthGen(opt)
+	g.keepV = true
+	limits := make([]float64, synthCells)
+	nSlices := 0
+	var todo []int
+	for cell := range limits {
+		lim := g.vlim
+		if cellLimit != nil {
+			if l := cellLimit(synthCellCap(cell)); l < lim {
+				lim = l
+			}
+		}
+		limits[cell] = lim
+		nSlices = max(nSlices, synthSliceOf(lim)+1)
+		if c.lim[cell] < lim {
+			todo = append(todo, cell)
+		}
+	}
+	if len(todo) > 0 {
+		cells := make(chan int)
+		var wg sync.WaitGroup
+		for range min(runtime.GOMAXPROCS(0), 8, len(todo)) {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				w := *g
+				w.cumPhi = make([]float64, len(g.comps))
+				for cell := range cells {
+					c.blk[cell] = w.cell(cell, limits[cell])
+				}
+			}()
+		}
+		for _, cell := range todo {
+			cells <- cell
+		}
+		close(cells)
+		wg.Wait()
+		c.n = 0
+		for _, cell := range todo {
+			c.lim[cell] = limits[cell]
+		}
+		for cell := range c.blk {
+			for _, b := range c.blk[cell] {
+				c.n += b.s.Len()
+			}
+		}
+	}
+	s := &Stars{Epoch: 2000, Source: SyntheticSource, Format: SyntheticFormat}
+	if !opt.NoNearby {
+		for k := range nearbyStars {
+			s.Append(nearbyStars[k].star(k))
+		}
+	}
+	n := s.Len()
+	for cell := range c.blk {
+		for sl := 0; sl < min(nSlices, len(c.blk[cell])); sl++ {
+			n += c.blk[cell][sl].count(limits[cell])
+		}
+	}
+	s.grow(n)
+	for sl := 0; sl < nSlices; sl++ {
+		for cell := range c.blk {
+			if sl < len(c.blk[cell]) {
+				c.blk[cell][sl].appendTo(s, limits[cell])
+			}
+		}
+	}
+	return s
+}
+
+// count returns the number of the block's stars with V ≤ lim (the exact
+// float64 V each was drawn with, as Synthetic compares it).
+func (b *synthBlock) count(lim float64) int {
+	n := 0
+	for _, v := range b.v {
+		if v <= lim {
+			n++
+		}
+	}
+	return n
+}
+
+// appendTo appends the block's stars with V ≤ lim to s.
+func (b *synthBlock) appendTo(s *Stars, lim float64) {
+	if b.count(lim) == len(b.v) {
+		s.appendStars(&b.s)
+		return
+	}
+	for i, v := range b.v {
+		if v > lim {
+			continue
+		}
+		s.ID = append(s.ID, b.s.ID[i])
+		s.X = append(s.X, b.s.X[i])
+		s.Y = append(s.Y, b.s.Y[i])
+		s.Z = append(s.Z, b.s.Z[i])
+		s.Dist = append(s.Dist, b.s.Dist[i])
+		s.Vmag = append(s.Vmag, b.s.Vmag[i])
+		s.Teff = append(s.Teff, b.s.Teff[i])
+		s.BV = append(s.BV, b.s.BV[i])
+		s.Flags = append(s.Flags, b.s.Flags[i])
+	}
+}
+
+// SynthCells returns the cells of the synthetic sky's sampling grid, as
+// SynthOptions.CellLimit sees them, in cell order.
+func SynthCells() []SynthCell {
+	out := make([]SynthCell, synthCells)
+	for c := range out {
+		out[c] = synthCellCap(c)
+	}
+	return out
+}

@@ -1,0 +1,93 @@
+package catalog
+
+import (
+	"math"
+	"slices"
+	"testing"
+)
+
+// sameStars reports the first difference between the columns of a and b.
+func sameStars(t *testing.T, what string, a, b *Stars) {
+	t.Helper()
+	if a.Len() != b.Len() {
+		t.Fatalf("%s: %d stars, want %d", what, a.Len(), b.Len())
+	}
+	if !slices.Equal(a.ID, b.ID) || !slices.Equal(a.X, b.X) || !slices.Equal(a.Y, b.Y) || !slices.Equal(a.Z, b.Z) ||
+		!slices.Equal(a.Dist, b.Dist) || !slices.Equal(a.Vmag, b.Vmag) || !slices.Equal(a.Teff, b.Teff) ||
+		!slices.EqualFunc(a.BV, b.BV, func(x, y float32) bool { return x == y || x != x && y != y }) || !slices.Equal(a.Flags, b.Flags) {
+		t.Fatalf("%s: columns differ from Synthetic's", what)
+	}
+	if a.Names[0] != b.Names[0] || len(a.Names) != len(b.Names) {
+		t.Fatalf("%s: names differ", what)
+	}
+}
+
+// TestSkyCacheIsSynthetic: whatever was asked of the cache before (deeper,
+// shallower, other cells), Sky gives Synthetic's catalogue for the same
+// options bit for bit — the determinism a flight's frames rely on — and
+// draws a cell only when asked deeper than before.
+func TestSkyCacheIsSynthetic(t *testing.T) {
+	// Cells toward one half of the sky deeper than the rest.
+	half := func(v float64) func(SynthCell) float64 {
+		return func(c SynthCell) float64 {
+			if c.Dir[0] > 0 {
+				return v
+			}
+			return DefaultSynthMagLimit
+		}
+	}
+	deep := 9.6
+	if testing.Short() {
+		deep = 9.1
+	}
+	cases := []struct {
+		lim  float64
+		cell func(SynthCell) float64
+	}{
+		{8, nil},
+		{deep, half(deep)},
+		{deep - 0.45, nil},
+		{8.5, half(8.3)},
+		{deep, nil},
+		{0, nil},
+		{math.NaN(), half(8.7)},
+	}
+	c := NewSkyCache(SynthOptions{})
+	held := 0
+	for i, k := range cases {
+		got := c.Sky(k.lim, k.cell)
+		want := Synthetic(SynthOptions{MagLimit: k.lim, CellLimit: k.cell})
+		sameStars(t, "case "+string(rune('0'+i)), got, want)
+		if h := c.Held(); h < held {
+			t.Errorf("case %d: the cache shrank from %d to %d stars", i, held, h)
+		} else {
+			held = h
+		}
+	}
+	// The built-in sky is the prefix of every deeper sky (a frame's
+	// references into it stay valid).
+	b, d := BuiltIn(), c.Sky(deep, half(deep))
+	sameStars(t, "prefix", d.Slice(0, b.Len()), b)
+}
+
+// Concat keeps both catalogues' rows, names and optional columns.
+func TestConcat(t *testing.T) {
+	a := &Stars{Source: "a"}
+	a.Append(Star{ID: 1, Name: "One", RA: 10, Dec: 20, Dist: 5, Vmag: 3, Teff: 5000, BV: 0.5, RV: 12})
+	b := &Stars{}
+	b.Append(Star{ID: 2, RA: 30, Dec: -5, Dist: 7, Vmag: 4, Teff: 6000, BV: 0.4, RV: math.NaN()})
+	b.Append(Star{ID: 3, Name: "Three", RA: 50, Dec: 5, Dist: 9, Vmag: 5, Teff: 7000, BV: 0.3, PMRA: 1, PMDec: -2, RV: math.NaN()})
+	c := Concat(a, b)
+	if c.Len() != 3 || c.Source != "a" || c.Names[0] != "One" || c.Names[2] != "Three" || c.Names[1] != "" {
+		t.Fatalf("Concat: %d rows, names %v", c.Len(), c.Names)
+	}
+	if c.PMRA[0] != 0 || c.PMRA[2] != 1 || c.PMDec[2] != -2 || c.RV[0] != 12 || c.RV[1] == c.RV[1] || c.Vmag[2] != 5 {
+		t.Errorf("Concat: PM %v/%v, RV %v, V %v", c.PMRA, c.PMDec, c.RV, c.Vmag)
+	}
+	if err := c.Validate(); err != nil {
+		t.Error(err)
+	}
+	if a.Len() != 1 || b.Len() != 2 {
+		t.Error("Concat modified its inputs")
+	}
+}
