@@ -3,7 +3,9 @@
 // writer left (RemoveStaleTemps, by render.TempPrefix), file hashes
 // (SHA256), the disk-space estimate (FrameBytes, FreeSpace) and the
 // photosensitivity (flash) check over the frames' luminance
-// (MeanLuminance, FlashWarning).
+// (MeanLuminance, FlashWarning), and how a frame is integrated over its
+// shutter (PlanExposure: the streak knots and the diffuse layers'
+// instants; Instants: the observer and camera at those offsets).
 //
 // A frame depends only on the plan and its index, so shards and resumed
 // runs write the same bytes as a single run. The command owns flags,

@@ -89,6 +89,22 @@
 // of its value [cp: float32 has a 24-bit significand]. Library code never reads the
 // clock, never uses global randomness and never sets GOMAXPROCS.
 //
+// # Motion blur
+//
+// Prepared.RenderMotion integrates a frame over its exposure from the
+// observer and camera at K evenly spaced knots (K odd, the middle one the
+// frame's instant): each star is transformed at every knot, its on-screen
+// path interpolated by quadratics through runs of three knots, and the PSF
+// deposited at n sub-positions per segment at the midpoints of equal time
+// steps, weight 1/n each (n from the segment's on-screen speed, successive
+// sub-positions at most StreakSpacing = 0.75 FWHM apart, at most
+// MaxStreakSamples), so a streak is continuous and its summed flux is the
+// star's. Photometry is the middle knot's. ChooseKnots picks K from probe
+// paths (the quadratic within KnotTolerance = 0.05 px of the exact path).
+// Layers.AddLinearMotion adds the diffuse layers as their time mean by
+// Gauss–Legendre quadrature at LayerTimes' instants. Both are
+// bit-identical for any worker count.
+//
 // # Tone and encoding
 //
 // ToneLinear clips channels to [0, 1]; ToneShoulder leaves luminance below

@@ -1,0 +1,100 @@
+package job
+
+import (
+	"fmt"
+	"math"
+	"testing"
+
+	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/flight"
+	"github.com/skyframe/skyframe/render"
+)
+
+// panPlan is a steady pan: the camera turns from Dec −20° to +20° over
+// 2 s at 10 fps, so at 1 s (frame 10) it moves at the smoothstep's peak
+// rate 1.5 × 40°/2 s = 30°/s; the ship is at rest at the Sun.
+func panPlan(t *testing.T) *flight.Plan {
+	t.Helper()
+	p, err := flight.ParsePlan([]byte(`
+[[leg]]
+kind = "cruise"
+ship_years = 1
+ra = 0
+dec = 0
+
+[show]
+fps = 10
+seconds = 2.1
+
+[camera]
+size = "200x100"
+fov = 60
+
+[[camera.look]]
+at = 0
+look = "0,-20"
+
+[[camera.look]]
+at = 2
+look = "0,20"
+`), "pan.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := p.Bind(nil); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+func pinhole200(fs flight.FrameState) (camera.Projection, error) {
+	p := camera.Projection{Kind: camera.Pinhole, Width: 200, Height: 100, FOV: fs.Camera.FOV, Orient: fs.Camera.Orient}
+	return p, p.Prepare()
+}
+
+// The exposure of a frame mid-pan at 30°/s and 10 fps with a 180° shutter
+// spans 1.5° of turn: at the centre of a 60° pinhole 200 px wide that is
+// 2·(100 px/tan 30°)·tan 0.75° = 4.53 px (gnomonic projection), and the
+// probes nearer the edges move a little more. Three knots at −¼, 0, ¼
+// frame intervals follow it (a steady pan curves little), and the diffuse
+// layers take the 2-point Gauss–Legendre instants ±¼/√3. A closed shutter
+// and a frame of the final hold (camera at rest) are their instant alone.
+func TestPlanExposure(t *testing.T) {
+	p := panPlan(t)
+	e, err := PlanExposure(p, 10, 180, 1.5, pinhole200)
+	if err != nil {
+		t.Fatal(err)
+	}
+	centre := 2 * 100 / math.Tan(30*math.Pi/180) * math.Tan(0.75*math.Pi/180)
+	if e.Path < centre || e.Path > 1.2*centre {
+		t.Errorf("path %.4f px, want at least the centre's %.4f and within 20 %%", e.Path, centre)
+	}
+	if fmt.Sprint(e.Knots) != "[-0.25 0 0.25]" || e.KnotError > render.KnotTolerance {
+		t.Errorf("knots %v (error %.3g px), want [-0.25 0 0.25]", e.Knots, e.KnotError)
+	}
+	g := 0.25 / math.Sqrt(3)
+	if len(e.Layers) != 2 || math.Abs(math.Abs(e.Layers[0])-g) > 1e-15 || e.Layers[0] != -e.Layers[1] || e.LayerWeights[0] != 0.5 {
+		t.Errorf("layer instants %v weights %v, want ±%v, ½ each", e.Layers, e.LayerWeights, g)
+	}
+	in, err := Instants(p, 10, e.Knots, pinhole200)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fs, _ := p.FrameState(10)
+	mid, _ := pinhole200(fs)
+	if in[1].Projection.Orient != mid.Orient {
+		t.Errorf("the middle knot's camera %+v is not the frame's %+v", in[1].Projection.Orient, mid.Orient)
+	}
+	for _, c := range []struct {
+		frame   int
+		shutter float64
+	}{{10, 0}, {p.Frames() - 1, 180}} {
+		e, err := PlanExposure(p, c.frame, c.shutter, 1.5, pinhole200)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if e.Knots != nil || e.Layers != nil {
+			t.Errorf("frame %d, shutter %v: knots %v layers %v, want the instant alone (path %.3g px)", c.frame, c.shutter, e.Knots, e.Layers, e.Path)
+		}
+	}
+}
