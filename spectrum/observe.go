@@ -83,10 +83,7 @@ func ObserveBatch[F float32 | float64](beam Beaming, vmag []F, lnT0, lnV0, lnD, 
 		lnT[k] = l + lnD[k]
 	}
 	LookupBatch(lnT, out.LnY, out.LnV, out.X, out.Y)
-	beamExp := math.NaN()
-	if e := beam.FluxExponent(); e != 0 {
-		beamExp = float64(e - 4)
-	}
+	beamExp := beamExponent(beam)
 	lnV, vObs, lnW := out.LnV[:n], out.V[:n], out.LnW[:n]
 	if lnDil != nil {
 		lnDil = lnDil[:n]
@@ -97,9 +94,24 @@ func ObserveBatch[F float32 | float64](beam Beaming, vmag []F, lnT0, lnV0, lnD, 
 		if lnDil != nil {
 			dlnW += lnDil[k]
 		}
-		vObs[k] = v - lnToMag*(dlnW+lnV[k]-lnV0[k])
-		lnW[k] = LnWForV(v, lnV0[k]) + dlnW
+		vObs[k], lnW[k] = observed(v, lnV0[k], lnV[k], dlnW)
 	}
+}
+
+// beamExponent returns FluxExponent − 4, the power of D in WScale(D)
+// (−2, −1 or 0), or NaN for an unknown convention.
+func beamExponent(beam Beaming) float64 {
+	if e := beam.FluxExponent(); e != 0 {
+		return float64(e - 4)
+	}
+	return math.NaN()
+}
+
+// observed returns V′ and ln W′ of a star of catalogue magnitude v, with
+// V flux per unit W e^lnV0 at rest and e^lnV at T′, whose dilution changes
+// by e^dlnW. ObserveBatch and Observe share it, so they agree to the bit.
+func observed(v, lnV0, lnV, dlnW float64) (vObs, lnW float64) {
+	return v - lnToMag*(dlnW+lnV-lnV0), LnWForV(v, lnV0) + dlnW
 }
 
 // Observed is the photometry of one star as seen by a moving observer (see
@@ -123,22 +135,20 @@ func (o Observed) Blackbody() Blackbody {
 // Observe returns the photometry of a star of catalogue magnitude vmag and
 // rest temperature T (K) seen with Doppler factor D through a dilution
 // factor dil (1 for an observer at the Sun, or for an infinitely far star)
-// under beam. It is ObserveBatch on one star with math.Log's logarithms,
-// and gives the same bits as that call: V′ = vmag exactly when D = 1 and
-// dil = 1. T, D and dil must be finite and > 0; otherwise the fields are
-// NaN, ±Inf or meaningless, as the logarithms make them.
+// under beam. It is ObserveBatch on one star with math.Log's logarithms
+// (nil lnDil when dil = 1), and gives the same bits as that call: V′ = vmag
+// exactly when D = 1 and dil = 1. T, D and dil must be finite and > 0;
+// otherwise the fields are NaN, ±Inf or meaningless, as the logarithms
+// make them.
 func Observe(vmag, T, D, dil float64, beam Beaming) Observed {
-	lnT0 := [1]float64{math.Log(T)}
-	lnV0 := [1]float64{Lookup(lnT0[0]).LnV}
-	lnD := [1]float64{math.Log(D)}
-	var lnDil []float64
-	var ld [1]float64
+	lnT0, lnD := math.Log(T), math.Log(D)
+	lnV0 := Lookup(lnT0).LnV
+	o := Observed{LnT: lnT0 + lnD}
+	o.Sample = Lookup(o.LnT)
+	dlnW := beamExponent(beam) * lnD
 	if dil != 1 {
-		ld[0] = math.Log(dil)
-		lnDil = ld[:]
+		dlnW += math.Log(dil)
 	}
-	var v, lnW, lnT, lnY, lnV, x, y [1]float64
-	ObserveBatch(beam, []float64{vmag}, lnT0[:], lnV0[:], lnD[:], lnDil,
-		ObservedBatch{V: v[:], LnW: lnW[:], LnT: lnT[:], LnY: lnY[:], LnV: lnV[:], X: x[:], Y: y[:]})
-	return Observed{V: v[0], LnW: lnW[0], LnT: lnT[0], Sample: Sample{LnY: lnY[0], LnV: lnV[0], X: x[0], Y: y[0]}}
+	o.V, o.LnW = observed(vmag, lnV0, o.LnV, dlnW)
+	return o
 }
