@@ -1,7 +1,11 @@
 package frameopt
 
 import (
+	"fmt"
+
 	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/exr"
+	"github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/spectrum"
 )
@@ -71,4 +75,25 @@ func (o *Options) Frame() Frame {
 	f.White, _ = spectrum.ParseWhitePoint(o.White)
 	f.Beaming, _ = spectrum.ParseBeaming(o.Beaming)
 	return f
+}
+
+// EXR resolves the OpenEXR options (exr-type, exr-compression,
+// exr-layers; checked by their definitions). Messages name the flags.
+func (o *Options) EXR() (frame.EXROptions, error) {
+	var x frame.EXROptions
+	var err error
+	if o.EXRType != "" {
+		if x.Type, err = exr.ParsePixelType(o.EXRType); err != nil {
+			return x, fmt.Errorf("--exr-type %q: want half or float", o.EXRType)
+		}
+	}
+	if o.EXRCompression != "" {
+		if x.Compression, err = exr.ParseCompression(o.EXRCompression); err != nil {
+			return x, fmt.Errorf("--exr-compression %q: want zip or none", o.EXRCompression)
+		}
+	}
+	if x.Layers, err = frame.ParseEXRLayers(o.EXRLayers); err != nil {
+		return x, fmt.Errorf("--exr-layers: %v", err)
+	}
+	return x, nil
 }

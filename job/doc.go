@@ -1,19 +1,31 @@
-// Package job holds the batch-job logic of a flight that does not depend
-// on how a frame is rendered: removal of temporary files an interrupted
-// writer left (RemoveStaleTemps, by render.TempPrefix), file hashes
-// (SHA256), the disk-space estimate (FrameBytes, FreeSpace) and the
-// photosensitivity (flash) check over the frames' luminance
-// (MeanLuminance, FlashWarning), and how a frame is integrated over its
-// shutter (PlanExposure: the streak knots and the diffuse layers'
-// instants; Instants: the observer and camera at those offsets).
+// Package job is the batch logic of a flight: a bound plan (Job) rendered
+// frame by frame into an output directory. It names each frame's files and
+// refuses patterns under which two would collide (Files,
+// CheckOutputNames), renders and writes a frame (RenderFrame: PNG, FITS,
+// EXR and overlay layer through package frame, then the sealed JSON
+// sidecar last, each file atomically), identifies the inputs a frame is
+// made of (Inputs: plan text, tool version, catalogue and names file
+// contents by SHA-256), checks a written frame for resume and verification
+// (CheckFrame: the sidecar's seal, the inputs' hash, each image's size and
+// SHA-256), holds the output directory's lock for a frame range
+// (LockFrames), checks the disk space before and while rendering
+// (CheckSpace, CheckSpaceLeft; the free space comes from Job.FreeSpace, a
+// seam tests set), removes the temporary files an interrupted writer left
+// (RemoveStaleTemps, by render.TempPrefix) and runs the photosensitivity
+// (flash) check over the frames' luminance (MeanLuminance, FlashWarning).
+// PlanExposure decides how a frame is integrated over its shutter (the
+// streak knots and the diffuse layers' instants); Instants gives the
+// observer and camera at those offsets.
 //
 // A frame depends only on the plan and its index, so shards and resumed
 // runs write the same bytes as a single run. The command owns flags,
-// printing, progress, the clock and signals; this package returns values
-// and errors and never prints.
+// printing, progress, the clock (times such as a lock's start are passed
+// in) and signals; this package returns values and errors (*InputError for
+// problems with the plan, settings or output directory, exit status 2) and
+// never prints.
 //
 // Names of frame files are relative to the output directory and
-// slash-separated; OutDir arguments are operating-system paths. Times are
-// Julian years, distances parsecs, luminance relative (0 black, 1 white,
-// linear).
+// slash-separated; OutDir and other directory arguments are
+// operating-system paths. Times are Julian years, distances parsecs,
+// luminance relative (0 black, 1 white, linear).
 package job

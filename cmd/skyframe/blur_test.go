@@ -11,6 +11,7 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/flight"
+	flightjob "github.com/skyframe/skyframe/job"
 	"github.com/skyframe/skyframe/render"
 )
 
@@ -18,7 +19,7 @@ import (
 // to +20° over 2 s, so at 1 s (frame 10 of 10 fps) it moves at the
 // smoothstep's peak rate 1.5 × 40°/2 s = 30°/s through the star at RA 0,
 // Dec 0, centred. The ship is at rest at the Sun.
-func panPlan(t *testing.T, shutter float64) *flightJob {
+func panPlan(t *testing.T, shutter float64) *flightjob.Job {
 	t.Helper()
 	dir := t.TempDir()
 	if err := os.WriteFile(filepath.Join(dir, "one.csv"), []byte("id,ra,dec,vmag,bv\n1,0,0,2,0.6\n"), 0o644); err != nil {
@@ -64,20 +65,20 @@ look = "0,20"
 func renderPan(t *testing.T, shutter float64) (*render.Frame, int) {
 	t.Helper()
 	j := panPlan(t, shutter)
-	prep, err := render.Prepare(j.stars)
+	prep, err := render.Prepare(j.Stars)
 	if err != nil {
 		t.Fatal(err)
 	}
-	fs, err := j.plan.FrameState(10)
+	fs, err := j.Plan.FrameState(10)
 	if err != nil {
 		t.Fatal(err)
 	}
-	proj, err := j.projection(fs)
+	proj, err := j.Projection(fs)
 	if err != nil {
 		t.Fatal(err)
 	}
 	obs, _ := flightObserver(t, fs)
-	f, _, _, blur, err := j.renderLinear(prep, fs, obs, proj)
+	f, _, _, blur, err := j.RenderLinear(prep, fs, obs, proj)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -166,18 +167,18 @@ func BenchmarkFlightBlur(b *testing.B) {
 				if err != nil {
 					b.Fatal(err)
 				}
-				prep, err := render.Prepare(j.stars)
+				prep, err := render.Prepare(j.Stars)
 				if err != nil {
 					b.Fatal(err)
 				}
-				fs, _ := j.plan.FrameState(30)
-				proj, _ := j.projection(fs)
+				fs, _ := j.Plan.FrameState(30)
+				proj, _ := j.Projection(fs)
 				obs, _ := flight.Observer(fs.State)
 				b.ReportAllocs()
 				b.ResetTimer()
 				var k int
 				for range b.N {
-					_, _, _, blur, err := j.renderLinear(prep, fs, obs, proj)
+					_, _, _, blur, err := j.RenderLinear(prep, fs, obs, proj)
 					if err != nil {
 						b.Fatal(err)
 					}

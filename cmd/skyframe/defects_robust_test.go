@@ -640,21 +640,18 @@ func TestFlightOutputLock(t *testing.T) {
 func TestFlightSpaceCheckedFromWrittenFrames(t *testing.T) {
 	dir := t.TempDir()
 	plan := writePlan(t, dir, voyagePlan(6))
-	old := freeSpace
-	defer func() { freeSpace = old }()
 	calls := 0
-	freeSpace = func(string) (uint64, error) {
+	free := func(string) (uint64, error) {
 		calls++
 		if calls == 1 {
 			return 1 << 40, nil
 		}
 		return 4096, nil
 	}
-	code, _, errs := runIn(t, "flight", plan)
+	code, _, errs := runFree(t, free, "flight", plan)
 	if code != exitFailure || !strings.Contains(errs, "stopping after frame 0") || !strings.Contains(errs, "--resume") {
 		t.Fatalf("status %d: %s", code, errs)
 	}
-	freeSpace = old
 	if code, so, _ := runIn(t, "flight", plan, "--verify", "--frames", "0-0"); code != exitOK {
 		t.Errorf("frame 0 not intact: %s", so)
 	}

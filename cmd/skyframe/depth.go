@@ -208,17 +208,17 @@ func frameDepth(w io.Writer, cmd string, sc *scene, spec *frameSpec, skyDepth fl
 	builtIn := sc.builtIn
 	if builtIn {
 		var s *catalog.Stars
-		s, rep, err = deepBuiltIn(spec.opt, skyDepth)
+		s, rep, err = deepBuiltIn(spec.Opt, skyDepth)
 		if err != nil {
 			return err
 		}
 		if s != catalog.BuiltIn() {
-			p := spec.opt.Observer.Position
+			p := spec.Opt.Observer.Position
 			s = catalog.WithSun(s, [3]float64{p.X, p.Y, p.Z})
 			sc.stars = s
 			sc.index = names.NewIndex(s, sc.table)
 		}
-	} else if rep, err = catalogueDepth(sc.stars, spec.opt); err != nil {
+	} else if rep, err = catalogueDepth(sc.stars, spec.Opt); err != nil {
 		return err
 	}
 	rep.builtIn = builtIn

@@ -5,6 +5,7 @@ import (
 
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/flight"
+	flightjob "github.com/skyframe/skyframe/job"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 )
@@ -17,6 +18,7 @@ func isInputError(err error) bool {
 	var pe *catalog.ParseError
 	var ple *flight.PlanError
 	var le *flight.LegError
-	return errors.As(err, &pe) || errors.As(err, &ple) || errors.As(err, &le) ||
+	var je *flightjob.InputError
+	return errors.As(err, &pe) || errors.As(err, &ple) || errors.As(err, &le) || errors.As(err, &je) ||
 		errors.Is(err, render.ErrNotRegular) || errors.Is(err, overlay.ErrHUDFit) || errors.Is(err, render.ErrInsideStar)
 }

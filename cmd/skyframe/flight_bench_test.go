@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"testing"
 
+	"github.com/skyframe/skyframe/imgfile"
+	flightjob "github.com/skyframe/skyframe/job"
 	"github.com/skyframe/skyframe/render"
 )
 
@@ -29,7 +31,7 @@ height = 1080
 fov = 70
 `
 
-func benchJob(b *testing.B) *flightJob {
+func benchJob(b *testing.B) *flightjob.Job {
 	b.Helper()
 	dir := b.TempDir()
 	p := filepath.Join(dir, "plan.toml")
@@ -48,16 +50,16 @@ func benchJob(b *testing.B) *flightJob {
 // successive frames of a 1920×1080 pinhole flight of the built-in sky.
 func BenchmarkFlightFrame1080p(b *testing.B) {
 	job := benchJob(b)
-	prep, err := render.Prepare(job.stars)
+	prep, err := render.Prepare(job.Stars)
 	if err != nil {
 		b.Fatal(err)
 	}
-	enc := &render.PNGEncoder{}
-	n := job.plan.Frames()
+	enc := &imgfile.PNGEncoder{}
+	n := job.Plan.Frames()
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		if _, err := job.renderFrame(prep, enc, i%n); err != nil {
+		if _, err := job.RenderFrame(prep, enc, i%n); err != nil {
 			b.Fatal(err)
 		}
 	}

@@ -3,7 +3,6 @@ package main
 import (
 	"errors"
 	"fmt"
-	"github.com/dustin/go-humanize"
 	"io"
 	"os"
 	"slices"
@@ -12,6 +11,7 @@ import (
 	"github.com/schollz/progressbar/v3"
 	"golang.org/x/term"
 
+	"github.com/skyframe/skyframe/imgfile"
 	flightjob "github.com/skyframe/skyframe/job"
 	"github.com/skyframe/skyframe/render"
 )
@@ -24,35 +24,40 @@ var errInterrupted = errors.New("interrupted")
 // does not change any output.
 const envTestPace = "SKYFRAME_TEST_PACE"
 
-// render renders the job's frames, skipping intact ones with resume.
-func (j *flightJob) render(e *env, resume bool) error {
-	todo := j.frames
+// renderFlight renders the job's frames, skipping intact ones with resume.
+func renderFlight(e *env, j *flightjob.Job, resume bool) error {
+	todo := j.Frames
 	// The lock is taken before the resume check when the directory exists
 	// (another run may be writing there), else once it is created, after
 	// the free-space check (which must not create it).
-	var lock *dirLock
-	defer func() { lock.release() }()
-	takeLock := func() (err error) {
-		if lock == nil && len(j.frames) > 0 {
-			lock, err = j.lockFrames(e.stderr, slices.Min(j.frames), slices.Max(j.frames), time.Now())
+	var lock *flightjob.Lock
+	defer func() { lock.Release() }()
+	takeLock := func() error {
+		if lock != nil || len(j.Frames) == 0 {
+			return nil
 		}
+		l, notes, err := j.LockFrames(slices.Min(j.Frames), slices.Max(j.Frames), time.Now())
+		for _, n := range notes {
+			fmt.Fprintf(e.stderr, "skyframe: %s\n", n)
+		}
+		lock = l
 		return err
 	}
-	if fi, err := os.Stat(j.outDir); err == nil && fi.IsDir() {
+	if fi, err := os.Stat(j.OutDir); err == nil && fi.IsDir() {
 		if err := takeLock(); err != nil {
 			return err
 		}
 	}
-	lum := make(map[int]flightjob.Lum, len(j.frames))
+	lum := make(map[int]flightjob.Lum, len(j.Frames))
 	if resume {
 		todo = todo[:0:0]
-		for _, i := range j.frames {
-			if st, l, _ := j.checkFrame(i); st == frameIntact {
+		for _, i := range j.Frames {
+			if st, l, _ := j.CheckFrame(i); st == flightjob.Intact {
 				lum[i] = l
 				// Temporary files an interrupted run left beside an
 				// intact frame; under the lock no other run writes it.
 				if lock != nil {
-					if err := j.removeStaleTemps(i); err != nil {
+					if err := j.RemoveFrameTemps(i); err != nil {
 						return err
 					}
 				}
@@ -60,9 +65,9 @@ func (j *flightJob) render(e *env, resume bool) error {
 			}
 			todo = append(todo, i)
 		}
-		fmt.Fprintf(e.stderr, "resume: %d of %d frames already done\n", len(j.frames)-len(todo), len(j.frames))
+		fmt.Fprintf(e.stderr, "resume: %d of %d frames already done\n", len(j.Frames)-len(todo), len(j.Frames))
 	}
-	if err := j.checkSpace(len(todo)); err != nil {
+	if err := j.CheckSpace(len(todo)); err != nil {
 		return err
 	}
 	var pace time.Duration
@@ -73,7 +78,7 @@ func (j *flightJob) render(e *env, resume bool) error {
 		}
 		pace = d
 	}
-	if err := os.MkdirAll(j.outDir, 0o755); err != nil {
+	if err := os.MkdirAll(j.OutDir, 0o755); err != nil {
 		return err
 	}
 	if err := takeLock(); err != nil {
@@ -83,11 +88,11 @@ func (j *flightJob) render(e *env, resume bool) error {
 	var prep *render.Prepared
 	if len(todo) > 0 {
 		var err error
-		if prep, err = render.Prepare(j.stars); err != nil {
+		if prep, err = render.Prepare(j.Stars); err != nil {
 			return err
 		}
 	}
-	enc := &render.PNGEncoder{Workers: j.workers}
+	enc := &imgfile.PNGEncoder{Workers: j.Workers}
 	prog := newFrameProgress(e.stderr, "flight", len(todo))
 	last := -1
 	var biggest int64 // largest frame written so far, bytes
@@ -100,11 +105,11 @@ func (j *flightJob) render(e *env, resume bool) error {
 			}
 			return fmt.Errorf("%w after frame %d", errInterrupted, last)
 		}
-		if err := j.removeStaleTemps(i); err != nil {
+		if err := j.RemoveFrameTemps(i); err != nil {
 			prog.finish()
 			return err
 		}
-		l, err := j.renderFrame(prep, enc, i)
+		l, err := j.RenderFrame(prep, enc, i)
 		if err != nil {
 			prog.finish()
 			return err
@@ -113,7 +118,7 @@ func (j *flightJob) render(e *env, resume bool) error {
 		last = i
 		prog.add()
 		done++
-		if err := j.checkSpaceLeft(i, len(todo)-done, &biggest); err != nil {
+		if err := j.CheckSpaceLeft(i, len(todo)-done, &biggest); err != nil {
 			prog.finish()
 			return err
 		}
@@ -126,115 +131,53 @@ func (j *flightJob) render(e *env, resume bool) error {
 	}
 	prog.finish()
 	took := time.Since(start)
-	j.flashWarning(e.stderr, lum)
+	flashWarning(e.stderr, j, lum)
 	rate := 0.0
 	if took > 0 {
 		rate = float64(len(todo)) / took.Seconds()
 	}
 	fmt.Fprintf(e.stdout, "skyframe %s: %s, shard %s: rendered %d frames (%d already done) into %s in %v (%.2f frames/s)\n",
-		version, j.plan.Name, j.shard, len(todo), len(j.frames)-len(todo), j.outDir, took.Round(time.Millisecond), rate)
+		version, j.Plan.Name, j.Shard, len(todo), len(j.Frames)-len(todo), j.OutDir, took.Round(time.Millisecond), rate)
 	return nil
 }
 
 // flashWarning runs the general flash check over the frames in lum (the
-// contiguous block this run handled) and warns on w when it fails: on the
-// whole-frame mean, and on each window of the regional check (see
-// meanLuminance), which catches a flash confined to part of the frame that
-// the whole-frame mean dilutes below threshold.
-func (j *flightJob) flashWarning(w io.Writer, lum map[int]flightjob.Lum) {
-	if j.every > 1 {
-		fmt.Fprintf(w, "skyframe: flash check skipped: --every %d renders every %dth frame, not a sequence at the plan's frame rate\n", j.every, j.every)
+// contiguous block this run handled; flightjob.FlashWarning) and warns on w
+// when it fails.
+func flashWarning(w io.Writer, j *flightjob.Job, lum map[int]flightjob.Lum) {
+	if j.Every > 1 {
+		fmt.Fprintf(w, "skyframe: flash check skipped: --every %d renders every %dth frame, not a sequence at the plan's frame rate\n", j.Every, j.Every)
 		return
 	}
-	if msg := flightjob.FlashWarning(j.frames, lum, j.plan.Show.FPS); msg != "" {
+	if msg := flightjob.FlashWarning(j.Frames, lum, j.Plan.Show.FPS); msg != "" {
 		fmt.Fprintf(w, "skyframe: %s\n", msg)
 	}
 }
 
-// freeSpace reports the bytes free on the file system holding a directory
-// (flightjob.FreeSpace). Tests replace it.
-var freeSpace = flightjob.FreeSpace
-
-// frameBytes estimates the bytes one frame writes.
-func (j *flightJob) frameBytes() uint64 {
-	return flightjob.FrameBytes(j.plan.Output, j.frame.Width, j.frame.Height, j.stars.Len())
-}
-
-// checkSpace refuses a render whose estimated output exceeds the free space.
-func (j *flightJob) checkSpace(frames int) error {
-	if frames == 0 {
-		return nil
-	}
-	need := uint64(frames) * j.frameBytes()
-	free, err := freeSpace(j.outDir)
-	if err != nil {
-		return usagef("output directory %s: %v", j.outDir, err)
-	}
-	if need > free {
-		return usagef("output directory %s: %d frames need about %s (%s each), only %s free",
-			j.outDir, frames, humanBytes(need), humanBytes(j.frameBytes()), humanBytes(free))
-	}
-	return nil
-}
-
-// spaceMargin is the factor on the largest frame written so far in the
-// running free-space check: frame sizes vary along a flight (78–200 KB in
-// one audit of a 1080p flight with overlays, where the first estimate was
-// 58 KiB), so the check uses what was written, not a model.
-const spaceMargin = 1.5
-
-// checkSpaceLeft measures the files frame i wrote, keeps the largest frame
-// size in *biggest, and stops the run (status 1; --resume continues) when
-// the remaining frames at that size times spaceMargin would not fit in the
-// free space, before the disk fills mid-frame.
-func (j *flightJob) checkSpaceLeft(i, remaining int, biggest *int64) error {
-	var n int64
-	for _, f := range j.files(i).list() {
-		if fi, err := os.Stat(j.path(f.rel)); err == nil {
-			n += fi.Size()
-		}
-	}
-	*biggest = max(*biggest, n)
-	if remaining <= 0 {
-		return nil
-	}
-	need := uint64(float64(remaining) * float64(*biggest) * spaceMargin)
-	free, err := freeSpace(j.outDir)
-	if err != nil {
-		return nil // the up-front check reported an unreadable directory
-	}
-	if need > free {
-		return fmt.Errorf("output directory %s: stopping after frame %d: frames take up to %s here, the %d remaining need about %s (×%.1f margin) and only %s is free; free some space and run again with --resume",
-			j.outDir, i, humanBytes(uint64(*biggest)), remaining, humanBytes(need), spaceMargin, humanBytes(free))
-	}
-	return nil
-}
-
-func humanBytes(n uint64) string { return humanize.IBytes(n) }
-
-// verify checks every selected frame and lists the missing and corrupt ones.
-func (j *flightJob) verify(e *env) error {
+// verifyFlight checks every selected frame and lists the missing and
+// corrupt ones.
+func verifyFlight(e *env, j *flightjob.Job) error {
 	var missing, corrupt int
-	lum := make(map[int]flightjob.Lum, len(j.frames))
-	for _, i := range j.frames {
-		st, l, why := j.checkFrame(i)
+	lum := make(map[int]flightjob.Lum, len(j.Frames))
+	for _, i := range j.Frames {
+		st, l, why := j.CheckFrame(i)
 		switch st {
-		case frameIntact:
+		case flightjob.Intact:
 			lum[i] = l
-		case frameMissing:
+		case flightjob.Missing:
 			missing++
 			fmt.Fprintf(e.stdout, "missing frame %d: %s\n", i, why)
-		case frameCorrupt:
+		case flightjob.Corrupt:
 			corrupt++
 			fmt.Fprintf(e.stdout, "corrupt frame %d: %s\n", i, why)
 		}
 	}
 	fmt.Fprintf(e.stdout, "verify %s: %d frames, %d intact, %d missing, %d corrupt\n",
-		j.outDir, len(j.frames), len(j.frames)-missing-corrupt, missing, corrupt)
+		j.OutDir, len(j.Frames), len(j.Frames)-missing-corrupt, missing, corrupt)
 	if missing+corrupt > 0 {
-		return fmt.Errorf("verify: %d missing and %d corrupt frames in %s", missing, corrupt, j.outDir)
+		return fmt.Errorf("verify: %d missing and %d corrupt frames in %s", missing, corrupt, j.OutDir)
 	}
-	j.flashWarning(e.stderr, lum)
+	flashWarning(e.stderr, j, lum)
 	return nil
 }
 

@@ -20,6 +20,7 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"github.com/skyframe/skyframe/flight"
+	flightjob "github.com/skyframe/skyframe/job"
 )
 
 // envExecMain makes the test binary act as the skyframe command, so tests
@@ -57,6 +58,16 @@ func runIn(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
 	var out, errb bytes.Buffer
 	code := run(context.Background(), args, &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+// runFree runs the command in-process like runIn, with the free space on
+// every file system reported by free.
+func runFree(t *testing.T, free func(dir string) (uint64, error), args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	e := &env{ctx: context.Background(), stdout: &out, stderr: &errb, getenv: os.Getenv, freeSpace: free}
+	code := e.dispatch(args)
 	return code, out.String(), errb.String()
 }
 
@@ -486,13 +497,11 @@ unresolved_depth = 99
 	}
 
 	t.Run("output larger than free space", func(t *testing.T) {
-		old := freeSpace
-		defer func() { freeSpace = old }()
 		var asked string
-		freeSpace = func(dir string) (uint64, error) { asked = dir; return 100 << 10, nil }
+		free := func(dir string) (uint64, error) { asked = dir; return 100 << 10, nil }
 		dir := t.TempDir()
 		plan := writePlan(t, dir, voyagePlan(20))
-		code, _, errs := runIn(t, "flight", plan)
+		code, _, errs := runFree(t, free, "flight", plan)
 		if code != exitUsage {
 			t.Fatalf("status %d, want %d\n%s", code, exitUsage, errs)
 		}
@@ -507,8 +516,8 @@ unresolved_depth = 99
 			t.Errorf("output directory created before the error (%v)", err)
 		}
 		// The same plan fits in 1 MiB.
-		freeSpace = func(string) (uint64, error) { return 1 << 20, nil }
-		if code, _, errs := runIn(t, "flight", plan, "--frames", "0-1"); code != exitOK {
+		free = func(string) (uint64, error) { return 1 << 20, nil }
+		if code, _, errs := runFree(t, free, "flight", plan, "--frames", "0-1"); code != exitOK {
 			t.Errorf("with 1 MiB free: status %d\n%s", code, errs)
 		}
 	})
@@ -550,14 +559,14 @@ func TestFlightVerify(t *testing.T) {
 	}
 	// A sidecar from another plan (sealed as a real one is) is corrupt too.
 	side0 := filepath.Join(out, "frames", "00000.json")
-	var s flightSidecar
+	var s flightjob.Sidecar
 	sb, _ := os.ReadFile(side0)
 	if err := json.Unmarshal(sb, &s); err != nil {
 		t.Fatal(err)
 	}
 	s.Flight.PlanHash = strings.Repeat("0", 64)
 	sb2, _ := json.MarshalIndent(s, "", "  ")
-	if err := os.WriteFile(side0, append(sealJSON(sb2), '\n'), 0o644); err != nil {
+	if err := os.WriteFile(side0, append(flightjob.Seal(sb2), '\n'), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	if _, so, _ := runIn(t, "flight", plan, "--verify"); !strings.Contains(so, "corrupt frame 0:") || !strings.Contains(so, "different inputs") {
@@ -622,7 +631,7 @@ seconds = 1
 			if got := strings.Contains(errs, warn); got != c.warn {
 				t.Errorf("warning printed: %v, want %v\n%s", got, c.warn, errs)
 			}
-			var s flightSidecar
+			var s flightjob.Sidecar
 			b, _ := os.ReadFile(filepath.Join(dir, "out", "frames", "00000.json"))
 			if err := json.Unmarshal(b, &s); err != nil {
 				t.Fatal(err)

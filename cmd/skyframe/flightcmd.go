@@ -5,21 +5,21 @@ import (
 
 	"context"
 	"fmt"
-	"github.com/dustin/go-humanize"
 	"io"
-	"math"
 	"path/filepath"
 	"slices"
 	"strings"
 	"time"
 
+	"github.com/dustin/go-humanize"
+
 	"github.com/spf13/pflag"
 
-	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/flight"
 	framefiles "github.com/skyframe/skyframe/frame"
-	"github.com/skyframe/skyframe/frameopt"
+	"github.com/skyframe/skyframe/imgfile"
+	flightjob "github.com/skyframe/skyframe/job"
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/render"
 )
@@ -111,27 +111,6 @@ func (f *flightFlags) register(fs *pflag.FlagSet) {
 	fs.IntVar(&f.every, "every", 1, "render every Nth frame only (N ≥ 1; frames keep their numbers); with N > 1 the output goes to OUTPUT-preview (or --out)")
 }
 
-// flightJob is a parsed, bound and checked plan with everything a render,
-// resume or verification needs.
-type flightJob struct {
-	plan    *flight.Plan
-	hash    string       // identity of everything that makes the frames (inputsOf, flightInputs.hash)
-	inputs  flightInputs // what went into hash, recorded in each sidecar
-	stars   *catalog.Stars
-	index   *names.Index
-	outDir  string
-	frames  []int // the frames this invocation handles, ascending
-	shard   flight.Shard
-	frame   frameopt.Frame // the plan's frame options, parsed (a preview's size)
-	preview bool           // a reduced render (--preview, --every)
-	every   int            // --every
-	workers int
-	// layers are the plan's overlays (frameLayers specialises them).
-	layers layerSet
-	// exr is the OpenEXR content of each frame (output.exr).
-	exr framefiles.EXROptions
-}
-
 func runFlight(e *env, args []string) error {
 	fs := pflag.NewFlagSet("flight", pflag.ContinueOnError)
 	fs.SetOutput(e.stderr)
@@ -171,24 +150,24 @@ func runFlight(e *env, args []string) error {
 	switch {
 	case f.dryRun:
 		r := flight.Range{First: 1, Last: 0}
-		if len(job.frames) > 0 {
-			r = flight.Range{First: job.frames[0], Last: job.frames[len(job.frames)-1]}
+		if len(job.Frames) > 0 {
+			r = flight.Range{First: job.Frames[0], Last: job.Frames[len(job.Frames)-1]}
 		}
-		if err := flight.WriteDryRunCSV(e.stdout, job.plan, r); err != nil {
+		if err := flight.WriteDryRunCSV(e.stdout, job.Plan, r); err != nil {
 			return err
 		}
-		if err := job.comfortWarning(e.stderr, r); err != nil {
+		if err := comfortWarning(e.stderr, job, r); err != nil {
 			return err
 		}
-		return job.estimate(e)
+		return estimate(e, job)
 	case f.verify:
-		return job.verify(e)
+		return verifyFlight(e, job)
 	}
-	return job.render(e, f.resume)
+	return renderFlight(e, job, f.resume)
 }
 
 // loadFlightJob reads, binds and validates the plan, before any rendering.
-func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) {
+func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightjob.Job, error) {
 	data, err := readPlanFile(e.ctx, planPath)
 	if err != nil {
 		return nil, err
@@ -214,28 +193,29 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 	if err := plan.Bind(flight.StarsResolver(stars, find)); err != nil {
 		return nil, err
 	}
-	inputs, err := inputsOf(e.ctx, plan, base, index)
+	inputs, err := flightjob.InputsOf(e.ctx, plan, cataloguePath(plan, base), index, version)
 	if err != nil {
 		return nil, err
 	}
-	job := &flightJob{plan: plan, hash: inputs.hash(), inputs: inputs, stars: stars, index: index, workers: f.workers}
-	job.outDir = plan.Output.Dir
-	if !filepath.IsAbs(job.outDir) {
-		job.outDir = filepath.Join(base, job.outDir)
+	job := &flightjob.Job{Plan: plan, Hash: inputs.Hash(), Inputs: inputs, Stars: stars, Index: index, Workers: f.workers,
+		Version: version, FreeSpace: e.freeSpace}
+	job.OutDir = plan.Output.Dir
+	if !filepath.IsAbs(job.OutDir) {
+		job.OutDir = filepath.Join(base, job.OutDir)
 	}
-	job.preview = f.preview != 1 || f.every != 1
-	job.every = f.every
-	if job.preview && f.out == "" {
-		job.outDir = filepath.Clean(job.outDir) + "-preview"
+	preview := f.preview != 1 || f.every != 1
+	job.Every = f.every
+	if preview && f.out == "" {
+		job.OutDir = filepath.Clean(job.OutDir) + "-preview"
 	}
 	if f.out != "" {
-		job.outDir = f.out
+		job.OutDir = f.out
 	}
-	if fi, err := os.Stat(job.outDir); err == nil && !fi.IsDir() {
+	if fi, err := os.Stat(job.OutDir); err == nil && !fi.IsDir() {
 		if f.out != "" {
 			return nil, usagef("--out %s: exists and is not a directory", f.out)
 		}
-		return nil, usagef("%s: output.dir %s: exists and is not a directory", planPath, job.outDir)
+		return nil, usagef("%s: output.dir %s: exists and is not a directory", planPath, job.OutDir)
 	}
 	rng, err := flight.ParseRange(f.frames)
 	if err != nil {
@@ -245,7 +225,7 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 	if lo, hi := rng.Clip(total); lo >= hi && f.frames != "" {
 		return nil, usagef("--frames %s: the plan has frames 0-%d", f.frames, total-1)
 	}
-	job.shard = flight.Shard{K: 0, N: 1}
+	job.Shard = flight.Shard{K: 0, N: 1}
 	if f.shard != "" || !f.verify {
 		sh, why, err := flight.SelectShard(f.shard, e.getenv)
 		if err != nil {
@@ -254,44 +234,36 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightJob, error) 
 			}
 			return nil, usagef("shard from the environment: %v", err)
 		}
-		job.shard = sh
+		job.Shard = sh
 		if why != "" {
 			fmt.Fprintf(e.stderr, "skyframe: shard %d/%d: %s\n", sh.K, sh.N, why)
 		}
 	}
-	job.frames = job.shard.Frames(total, rng)
-	if err := job.checkOutputNames(planPath); err != nil {
+	job.Frames = job.Shard.Frames(total, rng)
+	if err := job.CheckOutputNames(planPath); err != nil {
 		return nil, err
 	}
 	if f.every > 1 {
-		job.frames = slices.DeleteFunc(job.frames, func(i int) bool { return i%f.every != 0 })
+		job.Frames = slices.DeleteFunc(job.Frames, func(i int) bool { return i%f.every != 0 })
 	}
-	if err := job.checkCamera(); err != nil {
+	if err := job.CheckCamera(); err != nil {
 		return nil, err
 	}
-	if job.preview {
-		fr := &job.frame
-		fr.Width = max(1, int(math.Round(float64(fr.Width)*f.preview)))
-		fr.Height = max(1, int(math.Round(float64(fr.Height)*f.preview)))
-		if fr.Kind == camera.Cube {
-			fr.Width = 6 * fr.Height
-		}
-		// A preview's sidecars record their own hash, so --resume and
-		// --verify in the preview directory never take a preview frame for
-		// a full one, or one preview for another.
-		job.hash = sha256Hex([]byte(fmt.Sprintf("%s preview scale %v every %d", job.hash, f.preview, f.every)))
+	if preview {
+		job.Preview(f.preview, f.every)
 	}
-	if job.layers, err = planLayers(plan, index); err != nil {
+	if job.Layers, err = planLayers(plan, index); err != nil {
 		return nil, err
 	}
+	job.Credit = namesCredit(index, labelsShown(job.Layers.Labels))
 	if fs0, err := plan.FrameState(0); err == nil {
-		if p0, err := job.projection(fs0); err == nil {
-			if err := job.layers.checkHUDFit(p0, wideHUDValues(plan.Title), planPath+": overlays.hud"); err != nil {
+		if p0, err := job.Projection(fs0); err == nil {
+			if err := checkHUDFit(job.Layers, p0, framefiles.WideHUDValues(plan.Title), planPath+": overlays.hud"); err != nil {
 				return nil, err
 			}
 		}
 	}
-	if plan.Output.OverlayLayer && !job.layers.Options.Any() {
+	if plan.Output.OverlayLayer && !job.Layers.Options.Any() {
 		return nil, usagef("%s: output.overlay_layer: no overlay is selected (add overlays.grid, labels, hud, …)", planPath)
 	}
 	if !*plan.Output.PNG && !plan.Output.FITS {
@@ -375,38 +347,6 @@ func planStars(ctx context.Context, warn io.Writer, plan *flight.Plan, base stri
 	return stars, nil
 }
 
-// checkCamera builds the first frame's camera, so that a projection the
-// plan's values cannot make is reported before anything renders.
-func (j *flightJob) checkCamera() error {
-	j.frame = j.plan.Frame.Frame()
-	if j.plan.Output.EXR {
-		x, err := exrOptions(&j.plan.Frame)
-		if err != nil {
-			return usagef("%s: camera.exr_*: %v", j.plan.Name, err)
-		}
-		x.FPS = j.plan.Show.FPS
-		j.exr = x
-	}
-	fsx, err := j.plan.FrameState(0)
-	if err != nil {
-		return err
-	}
-	if _, err := j.projection(fsx); err != nil {
-		return usagef("%s: camera: %v", j.plan.Name, err)
-	}
-	return nil
-}
-
-// projection builds the prepared camera projection of a frame.
-func (j *flightJob) projection(fs flight.FrameState) (camera.Projection, error) {
-	fr := j.frame
-	p := camera.Projection{Kind: fr.Kind, Width: fr.Width, Height: fr.Height, FOV: fs.Camera.FOV, Tilt: fs.Camera.Tilt, Orient: fs.Camera.Orient}
-	if err := p.Prepare(); err != nil {
-		return camera.Projection{}, err
-	}
-	return p, nil
-}
-
 // fmtDuration rounds d for progress lines.
 func fmtDuration(d time.Duration) string {
 	if d < 10*time.Second {
@@ -417,12 +357,12 @@ func fmtDuration(d time.Duration) string {
 
 // comfortWarning warns on w about stretches of frames whose camera motion
 // exceeds the comfort limits (flight.ComfortDegPerSec, flight.ScreenLimitPx).
-func (j *flightJob) comfortWarning(w io.Writer, r flight.Range) error {
-	st, err := flight.ComfortStretches(j.plan, r)
+func comfortWarning(w io.Writer, j *flightjob.Job, r flight.Range) error {
+	st, err := flight.ComfortStretches(j.Plan, r)
 	if err != nil {
 		return err
 	}
-	limitPx := flight.ScreenLimitPx(j.frame.Width, j.plan.Show.FPS)
+	limitPx := flight.ScreenLimitPx(j.Frame.Width, j.Plan.Show.FPS)
 	for _, s := range st {
 		fmt.Fprintf(w, "warning: frames %d-%d: camera motion above the comfort limit (up to %.3g°/s, limit %g°/s; up to %.3g px/frame at the centre, limit %.3g px/frame = the frame width in %g s)\n",
 			s.First, s.Last, s.MaxRateDegS, flight.ComfortDegPerSec, s.MaxScreenPx, limitPx, flight.ComfortCrossingSec)
@@ -433,25 +373,25 @@ func (j *flightJob) comfortWarning(w io.Writer, r flight.Range) error {
 // estimate renders one representative frame (the middle one of the job)
 // into a temporary directory, removed afterwards, and prints on e.stderr
 // the measured render time per frame and the disk the job's frames take.
-func (j *flightJob) estimate(e *env) error {
-	if len(j.frames) == 0 {
+func estimate(e *env, j *flightjob.Job) error {
+	if len(j.Frames) == 0 {
 		return nil
 	}
-	i := j.frames[len(j.frames)/2]
+	i := j.Frames[len(j.Frames)/2]
 	tmp, err := os.MkdirTemp("", "skyframe-estimate-")
 	if err != nil {
 		return err
 	}
 	defer os.RemoveAll(tmp)
 	probe := *j
-	probe.outDir = tmp
+	probe.OutDir = tmp
 	t0 := time.Now()
-	prep, err := render.Prepare(j.stars)
+	prep, err := render.Prepare(j.Stars)
 	if err != nil {
 		return err
 	}
 	t1 := time.Now()
-	if _, err := probe.renderFrame(prep, &render.PNGEncoder{Workers: j.workers}, i); err != nil {
+	if _, err := probe.RenderFrame(prep, &imgfile.PNGEncoder{Workers: j.Workers}, i); err != nil {
 		return err
 	}
 	per := time.Since(t1)
@@ -467,10 +407,10 @@ func (j *flightJob) estimate(e *env) error {
 	if err != nil {
 		return err
 	}
-	n := len(j.frames)
+	n := len(j.Frames)
 	total := time.Duration(n)*per + t1.Sub(t0)
 	fmt.Fprintf(e.stderr, "estimate: frame %d (%dx%d) rendered and written in %v here (the catalogue prepared once in %v): %d frames ≈ %v; disk ≈ %s (%s for frame %d)\n",
-		i, j.frame.Width, j.frame.Height, per.Round(time.Millisecond), t1.Sub(t0).Round(time.Millisecond), n, fmtDuration(total),
+		i, j.Frame.Width, j.Frame.Height, per.Round(time.Millisecond), t1.Sub(t0).Round(time.Millisecond), n, fmtDuration(total),
 		humanize.IBytes(uint64(bytes)*uint64(n)), humanize.IBytes(uint64(bytes)), i)
 	return nil
 }

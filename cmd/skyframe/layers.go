@@ -6,28 +6,11 @@ import (
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/camera"
+	framefiles "github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 )
-
-// layerSet is a frame's linear layers (into the buffer and the FITS) and
-// its overlays (drawn on the encoded image only).
-type layerSet struct {
-	render.Layers
-	overlay.Options
-	// unresolvedDepth is the resolved depth (V) of the unresolved-light
-	// layer, when Layers.Unresolved is set.
-	unresolvedDepth float64
-}
-
-// sidecarInfo describes the linear layers for a frame's sidecar.
-func (l *layerSet) sidecarInfo(side *render.Sidecar) {
-	side.CMB = l.CMB
-	if l.Unresolved != nil {
-		side.Unresolved = &render.UnresolvedInfo{DepthV: l.unresolvedDepth, Components: len(l.Unresolved.Temperatures())}
-	}
-}
 
 // frameLayers converts the overlay options (already checked by frameopt)
 // into render layers for scene sc, resolving the stars they name (usage
@@ -35,11 +18,11 @@ func (l *layerSet) sidecarInfo(side *render.Sidecar) {
 // the stars labels asks for. The HUD, when asked for, holds what a single
 // frame knows: β, γ and the signal rates from home (the Sun) and from
 // mark-destination; a flight fills in its clocks and distances per frame.
-func frameLayers(o *frameopt.Options, sc *scene, opt *render.Options) (layerSet, error) {
-	var l layerSet
+func frameLayers(o *frameopt.Options, sc *scene, opt *render.Options) (framefiles.Layers, error) {
+	var l framefiles.Layers
 	l.CMB = o.CMB
 	var err error
-	if l.Unresolved, l.unresolvedDepth, err = unresolvedLayer(sc.stars, o.Unresolved, o.UnresolvedDepth, sc.depthV); err != nil {
+	if l.Unresolved, l.UnresolvedDepth, err = unresolvedLayer(sc.stars, o.Unresolved, o.UnresolvedDepth, sc.depthV); err != nil {
 		return l, err
 	}
 	g, _ := overlay.ParseGraticuleFrame(o.Grid)
@@ -126,11 +109,8 @@ func labelStars(values []string) []string {
 // checkHUDFit refuses, before anything renders, a heads-up display that
 // has no room in the front safe area of fisheye projection p (exit
 // status 2, naming where it came from). v stands for the display's values.
-func (l layerSet) checkHUDFit(p camera.Projection, v overlay.HUDValues, where string) error {
-	if l.HUD == nil {
-		return nil
-	}
-	if err := overlay.CheckHUDFit(p, v, l.HUDCorner, l.TextSize); err != nil {
+func checkHUDFit(l framefiles.Layers, p camera.Projection, v overlay.HUDValues, where string) error {
+	if err := l.CheckHUDFit(p, v); err != nil {
 		return usagef("%s: %v", where, err)
 	}
 	return nil

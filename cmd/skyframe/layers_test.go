@@ -10,6 +10,7 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
+	framefiles "github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/overlay"
@@ -46,9 +47,9 @@ func parseLayerFlags(t *testing.T, args ...string) *layerFlags {
 	return &f
 }
 
-func (f *layerFlags) layers(sc *scene, opt *render.Options) (layerSet, error) {
+func (f *layerFlags) layers(sc *scene, opt *render.Options) (framefiles.Layers, error) {
 	if f.err != nil {
-		return layerSet{}, f.err
+		return framefiles.Layers{}, f.err
 	}
 	return frameLayers(&f.o, sc, opt)
 }

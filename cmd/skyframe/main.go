@@ -47,6 +47,9 @@ type env struct {
 	stdout io.Writer
 	stderr io.Writer
 	getenv func(string) string
+	// freeSpace reports the bytes free on the file system holding a
+	// directory; nil asks the operating system (tests fake it).
+	freeSpace func(dir string) (uint64, error)
 }
 
 type command struct {

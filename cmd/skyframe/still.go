@@ -4,10 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"image"
-	"image/draw"
 	"io"
-	"math"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -18,11 +15,8 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
-	"github.com/skyframe/skyframe/exr"
 	framefiles "github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/frameopt"
-	"github.com/skyframe/skyframe/imgfile"
-	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/spectrum"
 )
@@ -96,17 +90,10 @@ func (f *stillFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget for the render; a cache-file catalogue (skyframe catalog pack) with more stars than one chunk this budget allows is read from disk chunk by chunk instead of loaded whole, with the same result")
 }
 
-// frameSpec is everything about a frame that is not the physics.
+// frameSpec is everything about a still frame that is not the physics
+// (framefiles.Spec), with the completeness of its catalogue.
 type frameSpec struct {
-	proj     camera.Projection
-	opt      render.Options
-	tone     render.ToneMode
-	depth    int
-	lookDesc string
-	source   string // command recorded in the PNG "Source" chunk; empty: "skyframe still"
-	layers   layerSet
-	credit   string // attribution of the star names in the labels; empty: none shown
-	exr      framefiles.EXROptions
+	framefiles.Spec
 	depthRep *depthReport // completeness of the catalogue for the frame; nil: not known
 }
 
@@ -143,7 +130,7 @@ func (f *stillFlags) build(sc *scene) (*frameSpec, error) {
 	if err != nil {
 		return nil, err
 	}
-	spec.lookDesc = desc
+	spec.Look = desc
 	up := r3.Vec{Z: 1}
 	if o.Up != "" {
 		d, err := frameopt.ParseDirection(o.Up, frameopt.SkyDir)
@@ -158,16 +145,16 @@ func (f *stillFlags) build(sc *scene) (*frameSpec, error) {
 	if err != nil {
 		return nil, usagef("--look/--up: %v", err)
 	}
-	spec.proj = camera.Projection{Kind: fr.Kind, Width: fr.Width, Height: fr.Height, FOV: fr.FOV, Tilt: fr.Tilt, Orient: orient}
-	if err := spec.proj.Validate(); err != nil {
+	spec.Proj = camera.Projection{Kind: fr.Kind, Width: fr.Width, Height: fr.Height, FOV: fr.FOV, Tilt: fr.Tilt, Orient: orient}
+	if err := spec.Proj.Validate(); err != nil {
 		return nil, usagef("--projection %s: %v", fr.Kind, err)
 	}
-	if err := spec.proj.Prepare(); err != nil {
+	if err := spec.Proj.Prepare(); err != nil {
 		return nil, usageError{err}
 	}
-	spec.tone, spec.depth = fr.Tone, fr.Depth
-	spec.opt = render.Options{
-		Projection: spec.proj, Observer: sc.observer, Beaming: fr.Beaming,
+	spec.Tone, spec.Depth = fr.Tone, fr.Depth
+	spec.Opt = render.Options{
+		Projection: spec.Proj, Observer: sc.observer, Beaming: fr.Beaming,
 		FWHM: fr.FWHM, Exposure: fr.Exposure, Limit: fr.Limit,
 		Color: spectrum.ColorOptions{White: fr.White},
 	}
@@ -273,30 +260,30 @@ func runStill(e *env, args []string) error {
 	if err := frameDepth(e.stderr, "still", sc, spec, p.skyDepth.v, p.stream != nil); err != nil {
 		return err
 	}
-	if spec.layers, err = frameLayers(&f.frame, sc, &spec.opt); err != nil {
+	if spec.Layers, err = frameLayers(&f.frame, sc, &spec.Opt); err != nil {
 		return err
 	}
 	if outputs.exr != "" {
-		if spec.exr, err = exrOptions(&f.frame); err != nil {
-			return err
+		if spec.EXR, err = f.frame.EXR(); err != nil {
+			return usageError{err}
 		}
-		spec.opt.Doppler = spec.exr.Layers == nil || slices.Contains(spec.exr.Layers, framefiles.EXRDoppler)
+		spec.Opt.Doppler = spec.EXR.Layers == nil || slices.Contains(spec.EXR.Layers, framefiles.EXRDoppler)
 	}
-	if outputs.overlay != "" && !spec.layers.Options.Any() {
+	if outputs.overlay != "" && !spec.Layers.Options.Any() {
 		return usagef("--overlay-layer %s: no overlay is selected (add --grid, --labels, --hud, …)", outputs.overlay)
 	}
 	rows := sc.stars.Len()
 	if p.stream != nil {
 		rows = p.stream.Len()
 	}
-	need := render.EstimateMemory(spec.opt, spec.depth, rows, p.stream != nil, renderBudget)
-	need.Overlays = overlayBytes(spec.layers.Options, w, h)
+	need := render.EstimateMemory(spec.Opt, spec.Depth, rows, p.stream != nil, renderBudget)
+	need.Overlays = overlayBytes(spec.Layers.Options, w, h)
 	if err := checkMemory(need, budget, "reduce --size, --grid-step or --lattice"); err != nil {
 		return err
 	}
-	spec.credit = namesCredit(sc.index, labelsShown(spec.layers.Labels))
-	if spec.layers.HUD != nil {
-		if err := spec.layers.checkHUDFit(spec.proj, *spec.layers.HUD, "--hud"); err != nil {
+	spec.Credit = namesCredit(sc.index, labelsShown(spec.Layers.Labels))
+	if spec.Layers.HUD != nil {
+		if err := checkHUDFit(spec.Layers, spec.Proj, *spec.Layers.HUD, "--hud"); err != nil {
 			return err
 		}
 	}
@@ -308,18 +295,18 @@ func runStill(e *env, args []string) error {
 				return nil, context.Cause(e.ctx)
 			}
 			return p.stream.Next()
-		}, spec.opt)
+		}, spec.Opt)
 	} else {
-		frame, err = render.Render(sc.stars, spec.opt)
+		frame, err = render.Render(sc.stars, spec.Opt)
 	}
 	if err != nil {
 		return err
 	}
 	var kept []render.Contribution
 	if outputs.exr != "" {
-		kept, err = spec.layers.AddLinearKept(frame)
+		kept, err = spec.Layers.AddLinearKept(frame)
 	} else {
-		err = spec.layers.AddLinear(frame)
+		err = spec.Layers.AddLinear(frame)
 	}
 	if err != nil {
 		return err
@@ -335,7 +322,7 @@ func runStill(e *env, args []string) error {
 	printSummary(e.stdout, frame, sc, spec, outputs, took, total)
 	if p.stream != nil {
 		fmt.Fprintf(e.stdout, "catalogue: %d stars rendered from disk in chunks of up to %d (--memory %s)\n",
-			frame.Stats.Total, render.ChunkRows(render.Options{Projection: spec.proj, Doppler: true}, renderBudget), f.memory)
+			frame.Stats.Total, render.ChunkRows(render.Options{Projection: spec.Proj, Doppler: true}, renderBudget), f.memory)
 	}
 	return nil
 }
@@ -344,6 +331,21 @@ func runStill(e *env, args []string) error {
 // With overlay set, the overlays go there alone and png holds the sky
 // without them.
 type outputPaths struct{ png, fits, sidecar, exr, overlay string }
+
+// writeFrame writes the frame's files as one set (framefiles.Spec.Write).
+// A layer --exr-layers asks for that the frame does not have is a usage
+// error.
+func writeFrame(ctx context.Context, frame *render.Frame, kept []render.Contribution, sc *scene, spec *frameSpec, out outputPaths) error {
+	spec.Version, spec.Stars, spec.Heading, spec.Beaming = version, sc.stars, sc.heading, sc.beaming
+	if d := spec.depthRep; d != nil {
+		spec.DepthV, spec.NeededV = finitePtr(d.have), finitePtr(d.needed.Needed)
+	}
+	err := spec.Write(ctx, frame, kept, framefiles.Paths{PNG: out.png, FITS: out.fits, Sidecar: out.sidecar, EXR: out.exr, Overlay: out.overlay})
+	if errors.Is(err, framefiles.ErrEXRLayer) {
+		return usagef("--exr-layers: %v", err)
+	}
+	return err
+}
 
 func (o outputPaths) check() error {
 	if o.png == "" {
@@ -365,116 +367,11 @@ func (o outputPaths) check() error {
 	return nil
 }
 
-// writeFrame writes the PNG, FITS and sidecar of a frame as one set: each
-// to a temporary file, and all renamed into place only when every one was
-// written, so a failure never leaves a new image beside an old sidecar.
-func writeFrame(ctx context.Context, frame *render.Frame, kept []render.Contribution, sc *scene, spec *frameSpec, out outputPaths) error {
-	side := frame.Sidecar("skyframe", version, sc.stars, spec.tone)
-	spec.layers.sidecarInfo(&side)
-	if d := spec.depthRep; d != nil {
-		side.Catalog.DepthV, side.Catalog.NeededV = finitePtr(d.have), finitePtr(d.needed.Needed)
-	}
-	meta := pngMeta(side, spec)
-	var img draw.Image
-	if spec.depth == 16 {
-		img = frame.ToNRGBA64(spec.tone)
-	} else {
-		img = frame.ToNRGBA(spec.tone)
-	}
-	var layer *image.NRGBA
-	if out.overlay != "" {
-		over, err := overlay.Layer(frame, sc.stars, spec.layers.Options)
-		if err != nil {
-			return err
-		}
-		layer = overlay.Straight(over)
-	} else if err := overlay.Draw(img, frame, sc.stars, spec.layers.Options); err != nil {
-		return err
-	}
-	var set render.FileSet
-	defer set.Abort()
-	err := set.Add(out.png, func(w io.Writer) error {
-		return render.WritePNG(ctxWriter{ctx, w}, img, meta)
-	})
-	if err != nil {
-		return err
-	}
-	if layer != nil {
-		lmeta := append([]render.KV{{Key: "Description", Value: "skyframe overlays alone (sRGB, straight alpha) for " + filepath.Base(out.png)}}, meta...)
-		if err := set.Add(out.overlay, func(w io.Writer) error {
-			return render.WritePNG(ctxWriter{ctx, w}, layer, lmeta)
-		}); err != nil {
-			return err
-		}
-	}
-	if out.fits != "" {
-		cards, err := fitsCards(frame, sc, spec)
-		if err != nil {
-			return err
-		}
-		if err := set.Add(out.fits, func(w io.Writer) error {
-			return render.WriteFITS(ctxWriter{ctx, w}, frame.W, frame.H, frame.Pix, cards)
-		}); err != nil {
-			return err
-		}
-	}
-	if out.exr != "" {
-		img, err := stillEXR(frame, kept, side, sc, spec)
-		if err != nil {
-			return err
-		}
-		enc := exr.Encoder{Compression: spec.exr.Compression}
-		if err := set.Add(out.exr, func(w io.Writer) error {
-			return enc.Encode(ctxWriter{ctx, w}, img)
-		}); err != nil {
-			return err
-		}
-	}
-	if out.sidecar != "" {
-		if err := set.Add(out.sidecar, func(w io.Writer) error {
-			return render.WriteSidecar(w, side)
-		}); err != nil {
-			return err
-		}
-	}
-	return set.Commit()
-}
-
-func fitsCards(frame *render.Frame, sc *scene, spec *frameSpec) ([]render.Card, error) {
-	b := sc.observer.Boost
-	ra, dec := camera.RADec(sc.heading)
-	pos := sc.observer.Position
-	limit := frame.Options.Limit
-	if math.IsInf(limit, 0) {
-		limit = 0
-	}
-	meta := render.FITSMeta{
-		Object: spec.lookDesc, Creator: "skyframe " + version,
-		Beta: b.Beta(), Gamma: b.Gamma(), MotionRA: ra, MotionDec: dec,
-		Position: [3]float64{pos.X, pos.Y, pos.Z}, Exposure: frame.Options.Exposure, Limit: limit,
-		FWHM: frame.Options.FWHM, Beaming: sc.beaming.String(), Projection: spec.proj.Kind.String(),
-		FOV: spec.proj.FieldOfView(), Tilt: spec.proj.Tilt, Catalog: sc.stars.SourceName(), Stars: frame.Stats.Drawn,
-		ScalePerLux: frame.Scale, White: frame.Options.Color.White.String(), Layers: spec.layers.Layers.Names(),
-	}
-	cards, err := meta.Cards()
-	if err != nil {
-		return nil, err
-	}
-	wcs, err := render.WCSCards(spec.proj)
-	if errors.Is(err, render.ErrNoWCS) {
-		return cards, nil
-	}
-	if err != nil {
-		return nil, err
-	}
-	return append(cards, wcs...), nil
-}
-
 func printSummary(w io.Writer, frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths, took, total time.Duration) {
 	b := sc.observer.Boost
 	ra, dec := camera.RADec(sc.heading)
 	fmt.Fprintf(w, "skyframe %s: %s, β = %.6g, γ = %.6g toward RA %.3f° Dec %+.3f°, looking %s\n",
-		version, sc.stars.Source, b.Beta(), b.Gamma(), ra, dec, spec.lookDesc)
+		version, sc.stars.Source, b.Beta(), b.Gamma(), ra, dec, spec.Look)
 	st := frame.Stats
 	fmt.Fprintf(w, "stars: %d drawn, %d fainter than V %.2f, %d off frame (of %d)\n",
 		st.Drawn, st.Culled, frame.Options.Limit, st.OffFrame, st.Total)
@@ -493,51 +390,4 @@ func printSummary(w io.Writer, frame *render.Frame, sc *scene, spec *frameSpec, 
 		}
 	}
 	fmt.Fprintf(w, "wrote %s in %v (render %v)\n", files, total.Round(time.Millisecond), took.Round(time.Millisecond))
-}
-
-// pngMeta records the frame's parameters as PNG text chunks. Besides the
-// standard keywords (Software, Source, Comment; PNG spec §11.3.4.2) every
-// key is prefixed "skyframe:" so that none takes a standard or widely read
-// meaning (Pillow, for one, would report a text chunk named "gamma" as the
-// display gamma instead of the gAMA chunk's). Equirectangular frames carry
-// the GPano panorama XMP (imgfile.GPanoXMP) so viewers show them as a sphere.
-func pngMeta(s render.Sidecar, spec *frameSpec) []render.KV {
-	source := spec.source
-	if source == "" {
-		source = "skyframe still"
-	}
-	m := map[string]string{
-		"Software": "skyframe " + version,
-		"Source":   source,
-		"Comment":  "Simulated sky: blackbody stars, no extinction; see the JSON sidecar for the full state.",
-	}
-	for k, v := range map[string]string{
-		"beta":           fmtFloat(s.Beta),
-		"lorentz_factor": fmtFloat(s.Gamma),
-		"rapidity":       fmtFloat(s.Rapidity),
-		"position_pc":    fmt.Sprintf("%g,%g,%g", s.PositionPC[0], s.PositionPC[1], s.PositionPC[2]),
-		"projection":     spec.proj.Kind.String(),
-		"fov_deg":        fmtFloat(spec.proj.FieldOfView()),
-		"exposure_v":     fmtFloat(s.ExposureV),
-		"scale_per_lux":  fmtFloat(s.Scale),
-		"tone":           s.Tone,
-		"beaming":        s.Beaming,
-		"white_point":    s.White,
-		"layers":         strings.Join(spec.layers.Layers.Names(), ","),
-		"catalog":        s.Catalog.Source,
-		"look":           spec.lookDesc,
-		"stars_drawn":    fmt.Sprint(s.Counts.Drawn),
-	} {
-		m["skyframe:"+k] = v
-	}
-	if s.Heading != nil {
-		m["skyframe:heading"] = fmt.Sprintf("%+v", *s.Heading)
-	}
-	if spec.credit != "" {
-		m["skyframe:star_names"] = spec.credit
-	}
-	if spec.proj.Kind == camera.Equirect {
-		m[imgfile.XMPKeyword] = imgfile.GPanoXMP(spec.proj.Width, spec.proj.Height)
-	}
-	return render.SortedKV(m)
 }

@@ -1,4 +1,4 @@
-package main
+package job
 
 import (
 	"bufio"
@@ -14,23 +14,24 @@ import (
 )
 
 // Output-directory locks. A run that renders frames (with or without
-// --resume) holds a lock file in the output directory,
+// resume) holds a lock file in the output directory,
 // ".skyframe-<pid>.lock", recording its host, process id, frame range and
 // start time. Before it renders it looks at the other lock files there:
-// one whose frame range overlaps its own refuses the run (exit 2, naming
-// the other run), so two runs never write the same frames; shards of one
-// job, whose ranges are disjoint, share the directory. A lock of a process
-// on this host that no longer runs (killed, the machine restarted) is
-// stale: it is removed and the log says so. A lock from another host
-// cannot be checked; the message says to delete it if that run is gone.
-// --verify and --dry-run write nothing and take no lock.
+// one whose frame range overlaps its own refuses the run (an InputError
+// naming the other run), so two runs never write the same frames; shards
+// of one job, whose ranges are disjoint, share the directory. A lock of a
+// process on this host that no longer runs (killed, the machine
+// restarted) is stale: it is removed and a note says so. A lock from
+// another host cannot be checked; the message says to delete it if that
+// run is gone. Verification and dry runs write nothing and take no lock.
 
 const lockPrefix, lockSuffix = ".skyframe-", ".lock"
 
-// dirLock is a held lock; release removes it.
-type dirLock struct{ path string }
+// Lock is a held output-directory lock; Release removes it.
+type Lock struct{ path string }
 
-func (l *dirLock) release() {
+// Release removes the lock file; a nil Lock does nothing.
+func (l *Lock) Release() {
 	if l != nil {
 		_ = os.Remove(l.path) // best effort: a leftover lock is detected as stale
 	}
@@ -84,28 +85,30 @@ func alive(pid int) bool {
 	return err == nil || errors.Is(err, syscall.EPERM)
 }
 
-// lockFrames takes the output directory's lock for frames first..last,
-// writing notes (stale locks removed) to log.
-func (j *flightJob) lockFrames(log io.Writer, first, last int, now time.Time) (*dirLock, error) {
+// LockFrames takes the output directory's lock for frames first..last for
+// this process, started at now. It returns the lock and notes about stale
+// locks it removed.
+func (j *Job) LockFrames(first, last int, now time.Time) (*Lock, []string, error) {
 	host, _ := os.Hostname()
 	me := lockInfo{host: host, pid: os.Getpid(), first: first, last: last, started: now.UTC().Format(time.RFC3339)}
-	path := filepath.Join(j.outDir, lockPrefix+strconv.Itoa(me.pid)+lockSuffix)
+	path := filepath.Join(j.OutDir, lockPrefix+strconv.Itoa(me.pid)+lockSuffix)
 	body := fmt.Sprintf("host=%s\npid=%d\nframes=%d-%d\nstarted=%s\n", me.host, me.pid, first, last, me.started)
 	f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_TRUNC, 0o666)
 	if err != nil {
-		return nil, fmt.Errorf("lock %s: %w", path, err)
+		return nil, nil, fmt.Errorf("lock %s: %w", path, err)
 	}
 	if _, err := f.WriteString(body); err != nil {
 		f.Close()
 		os.Remove(path)
-		return nil, fmt.Errorf("lock %s: %w", path, err)
+		return nil, nil, fmt.Errorf("lock %s: %w", path, err)
 	}
 	if err := f.Close(); err != nil {
 		os.Remove(path)
-		return nil, fmt.Errorf("lock %s: %w", path, err)
+		return nil, nil, fmt.Errorf("lock %s: %w", path, err)
 	}
-	lock := &dirLock{path: path}
-	others, _ := filepath.Glob(filepath.Join(j.outDir, lockPrefix+"*"+lockSuffix))
+	lock := &Lock{path: path}
+	var notes []string
+	others, _ := filepath.Glob(filepath.Join(j.OutDir, lockPrefix+"*"+lockSuffix))
 	for _, o := range others {
 		if o == path {
 			continue
@@ -116,16 +119,16 @@ func (j *flightJob) lockFrames(log io.Writer, first, last int, now time.Time) (*
 		}
 		if li.host == host && !alive(li.pid) {
 			if os.Remove(o) == nil {
-				fmt.Fprintf(log, "skyframe: removed a stale lock %s (%v): that process no longer runs\n", filepath.Base(o), li)
+				notes = append(notes, fmt.Sprintf("removed a stale lock %s (%v): that process no longer runs", filepath.Base(o), li))
 			}
 			continue
 		}
 		if li.last < first || li.first > last {
 			continue // another shard: disjoint frames
 		}
-		lock.release()
-		return nil, usagef("output directory %s: another run is rendering frames %d-%d there (%v, lock %s); wait for it, or give this run other frames (--frames, --shard); if that run is gone, delete the lock file",
-			j.outDir, max(first, li.first), min(last, li.last), li, filepath.Base(o))
+		lock.Release()
+		return nil, notes, inputf("output directory %s: another run is rendering frames %d-%d there (%v, lock %s); wait for it, or give this run other frames (--frames, --shard); if that run is gone, delete the lock file",
+			j.OutDir, max(first, li.first), min(last, li.last), li, filepath.Base(o))
 	}
-	return lock, nil
+	return lock, notes, nil
 }

@@ -1,0 +1,570 @@
+package job
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"image"
+	"image/draw"
+	"io"
+	"math"
+	"os"
+	"path"
+	"path/filepath"
+	"slices"
+	"strconv"
+	"strings"
+
+	"gonum.org/v1/gonum/spatial/r3"
+
+	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/exr"
+	"github.com/skyframe/skyframe/flight"
+	"github.com/skyframe/skyframe/frame"
+	"github.com/skyframe/skyframe/frameopt"
+	"github.com/skyframe/skyframe/imgfile"
+	"github.com/skyframe/skyframe/names"
+	"github.com/skyframe/skyframe/overlay"
+	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/spectrum"
+)
+
+// Job is a parsed, bound and checked flight plan with everything a render,
+// resume or verification needs. The command fills it in from its flags
+// and the plan, then calls CheckCamera (and Preview for a reduced render)
+// before anything renders.
+type Job struct {
+	Plan   *flight.Plan
+	Hash   string // identity of everything that makes the frames (Inputs.Hash, Preview)
+	Inputs Inputs // what went into Hash, recorded in each sidecar
+	Stars  *catalog.Stars
+	Index  *names.Index
+	OutDir string
+	Frames []int // the frames this job handles, ascending
+	Shard  flight.Shard
+	Frame  frameopt.Frame // the plan's frame options, parsed (a preview's size)
+	Every  int            // every Nth frame only (Preview); 0 or 1: all
+	// Workers bounds the goroutines per frame for rendering and encoding
+	// (0: all CPUs); the bytes written do not depend on it.
+	Workers int
+	// Layers are the plan's layers and overlays (FrameLayers specialises
+	// them to a frame).
+	Layers frame.Layers
+	// EXR is the OpenEXR content of each frame (output.exr).
+	EXR frame.EXROptions
+	// Version is the tool version recorded in the files.
+	Version string
+	// Credit is the attribution of the star names the labels show,
+	// recorded in the PNG; empty: none shown.
+	Credit string
+	// FreeSpace reports the bytes free on the file system holding a
+	// directory; nil: the operating system's figure (FreeSpace).
+	FreeSpace func(dir string) (uint64, error)
+}
+
+// Paths are the paths of one frame's files, relative to the output
+// directory and slash-separated; empty when not written. Overlay is the
+// overlay layer's PNG.
+type Paths struct{ PNG, FITS, Sidecar, Overlay, EXR string }
+
+// Files returns the paths of frame i's files.
+func (j *Job) Files(i int) Paths {
+	var f Paths
+	o := j.Plan.Output
+	if *o.PNG {
+		f.PNG = j.Plan.FrameName(i, "")
+	}
+	if o.FITS {
+		f.FITS = j.Plan.FrameName(i, ".fits")
+	}
+	if *o.Sidecar {
+		f.Sidecar = j.Plan.FrameName(i, ".json")
+	}
+	if f.PNG == "" && f.FITS != "" && f.Sidecar == f.FITS {
+		f.Sidecar = f.FITS + ".json"
+	}
+	// A pattern whose file part is fixed ("{frame:05}/sky.png") ignores
+	// the extension: there the FITS, sidecar and overlay layer take the
+	// PNG's name with their own extension, so no two files of a frame
+	// share a name.
+	base := j.Plan.FrameName(i, "")
+	own := func(name, ext string) string {
+		if name != "" && name == base && (f.PNG != "" || ext == ".overlay.png") {
+			return strings.TrimSuffix(base, path.Ext(base)) + ext
+		}
+		return name
+	}
+	f.FITS = own(f.FITS, ".fits")
+	f.Sidecar = own(f.Sidecar, ".json")
+	if o.OverlayLayer {
+		f.Overlay = own(j.Plan.FrameName(i, ".overlay.png"), ".overlay.png")
+	}
+	if o.EXR {
+		f.EXR = own(j.Plan.FrameName(i, ".exr"), ".exr")
+	}
+	return f
+}
+
+// OutFile is one file a frame writes: which writer, and where (relative
+// to the output directory, slash-separated).
+type OutFile struct{ What, Rel string }
+
+// List names every file of the frame, for every writer. A new writer adds
+// its file here so that CheckOutputNames covers it.
+func (f Paths) List() []OutFile {
+	var out []OutFile
+	for _, c := range []OutFile{{"PNG", f.PNG}, {"FITS", f.FITS}, {"EXR", f.EXR}, {"overlay layer", f.Overlay}, {"sidecar", f.Sidecar}} {
+		if c.Rel != "" {
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
+// CheckOutputNames refuses, before anything renders, a frame-name pattern
+// under which two files would share a path: two writers of one frame
+// (output.frames = "frames/{frame}.json" names the PNG like the sidecar,
+// which would be written last over it) or files of different frames. It
+// compares the files of the first two and last two frames of the plan,
+// which any clash between frame numbers of different widths shows.
+// planPath names the plan in the message.
+func (j *Job) CheckOutputNames(planPath string) error {
+	total := j.Plan.Frames()
+	seen := map[string]string{}
+	for _, i := range []int{0, 1, total - 2, total - 1} {
+		if i < 0 || i >= total {
+			continue
+		}
+		for _, f := range j.Files(i).List() {
+			key := path.Clean(f.Rel)
+			this := fmt.Sprintf("frame %d's %s", i, f.What)
+			if prev, dup := seen[key]; dup && prev != this {
+				return inputf("%s: output.frames %q: %s and %s would both be %s; use a pattern whose extension no other output uses, such as \"frames/{frame:05}.png\"",
+					planPath, j.Plan.Output.Frames, prev, this, f.Rel)
+			}
+			seen[key] = this
+		}
+	}
+	return nil
+}
+
+// Path is the operating-system path of the output-relative name rel.
+func (j *Job) Path(rel string) string { return filepath.Join(j.OutDir, filepath.FromSlash(rel)) }
+
+// SignalRates are the received rates of once-per-second signals from home
+// (the trajectory's start point) and the destination (its end point), as
+// in flight.WriteDryRunCSV.
+func SignalRates(tr *flight.Trajectory, s flight.State) (home, dest float64) {
+	toHome, toDest := r3.Sub(tr.Home(), s.Pos), r3.Sub(tr.Destination(), s.Pos)
+	home, dest = s.DopplerBehind(), s.DopplerAhead()
+	if r3.Norm(toHome) > 0 {
+		home = s.Doppler(toHome)
+	}
+	if r3.Norm(toDest) > 0 {
+		dest = s.Doppler(toDest)
+	}
+	return home, dest
+}
+
+// Preview turns the job into a reduced render: frames scaled by scale
+// (0 < scale ≤ 1; a cube keeps Width = 6·Height) and only every Nth frame
+// (frames keep their numbers). Its sidecars record a hash of their own, so
+// resume and verify in the preview directory never take a preview frame
+// for a full one, or one preview for another. Call it after CheckCamera.
+func (j *Job) Preview(scale float64, every int) {
+	fr := &j.Frame
+	fr.Width = max(1, int(math.Round(float64(fr.Width)*scale)))
+	fr.Height = max(1, int(math.Round(float64(fr.Height)*scale)))
+	if fr.Kind == camera.Cube {
+		fr.Width = 6 * fr.Height
+	}
+	j.Hash = SHA256([]byte(fmt.Sprintf("%s preview scale %v every %d", j.Hash, scale, every)))
+}
+
+// CheckCamera parses the plan's frame options into j.Frame (and the
+// OpenEXR options when the plan writes EXR) and builds the first frame's
+// camera, so that a projection the plan's values cannot make is reported
+// before anything renders.
+func (j *Job) CheckCamera() error {
+	j.Frame = j.Plan.Frame.Frame()
+	if j.Plan.Output.EXR {
+		x, err := j.Plan.Frame.EXR()
+		if err != nil {
+			return inputf("%s: camera.exr_*: %v", j.Plan.Name, err)
+		}
+		x.FPS = j.Plan.Show.FPS
+		j.EXR = x
+	}
+	fsx, err := j.Plan.FrameState(0)
+	if err != nil {
+		return err
+	}
+	if _, err := j.Projection(fsx); err != nil {
+		return inputf("%s: camera: %v", j.Plan.Name, err)
+	}
+	return nil
+}
+
+// Projection builds the prepared camera projection of a frame.
+func (j *Job) Projection(fs flight.FrameState) (camera.Projection, error) {
+	fr := j.Frame
+	p := camera.Projection{Kind: fr.Kind, Width: fr.Width, Height: fr.Height, FOV: fs.Camera.FOV, Tilt: fs.Camera.Tilt, Orient: fs.Camera.Orient}
+	if err := p.Prepare(); err != nil {
+		return camera.Projection{}, err
+	}
+	return p, nil
+}
+
+// starFinder looks stars up in the job's catalogue through its names index.
+func (j *Job) starFinder() frameopt.StarFinder {
+	return func(name string) (r3.Vec, float64, bool) {
+		i, err := j.Index.Find(name)
+		if err != nil {
+			return r3.Vec{}, 0, false
+		}
+		st := j.Stars.At(i)
+		return r3.Vec{X: st.Dir[0], Y: st.Dir[1], Z: st.Dir[2]}, st.Dist, true
+	}
+}
+
+// FrameLayers specialises the plan's layers to frame fs seen by obs: the
+// destination marker and HUD follow the ship.
+func (j *Job) FrameLayers(fs flight.FrameState, obs camera.Observer) frame.Layers {
+	l := j.Layers
+	tr := j.Plan.Trajectory()
+	if md := j.Plan.Frame.MarkDestination; md != "" {
+		if d, err := frameopt.ParseDirection(md, frameopt.PointDir); err == nil {
+			if u, err := d.CatalogueDir(obs, fs.State.Dir, j.starFinder()); err == nil {
+				l.Markers.Destination = &u
+			}
+		}
+	} else if l.Markers.Motion {
+		d := r3.Sub(tr.Destination(), fs.State.Pos)
+		if n := r3.Norm(d); n > 0 {
+			u := r3.Scale(1/n, d)
+			l.Markers.Destination = &u
+		}
+	}
+	if l.HUD != nil {
+		v := overlay.NoHUDValues()
+		v.Title = j.Plan.Title
+		if j.Plan.Frame.HUDTitle != "" {
+			v.Title = j.Plan.Frame.HUDTitle
+		}
+		v.Beta, v.Gamma = fs.State.Beta, fs.State.Gamma
+		v.TauYears, v.TYears = fs.State.Tau, fs.State.T
+		v.TravelledLy = fs.State.Travelled / flight.LightYearPc
+		v.RemainingLy = fs.State.Remaining / flight.LightYearPc
+		v.RateHome, v.RateDest = SignalRates(tr, fs.State)
+		l.HUD = &v
+	}
+	l.Lattice.Origin = tr.Start().Pos
+	return l
+}
+
+// RenderFrame renders frame i and writes its files, each atomically, the
+// sidecar last so that its presence marks a complete frame. It returns
+// the frame's luminance for the flash check.
+func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int) (Lum, error) {
+	fs, err := j.Plan.FrameState(i)
+	if err != nil {
+		return Lum{}, err
+	}
+	obs, err := flight.Observer(fs.State)
+	if err != nil {
+		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+	}
+	proj, err := j.Projection(fs)
+	if err != nil {
+		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+	}
+	fr := j.Frame
+	f, lay, kept, blur, err := j.RenderLinear(prep, fs, obs, proj)
+	if err != nil {
+		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+	}
+	spec := &frame.Spec{Proj: proj, Opt: f.Options, Tone: fr.Tone, Depth: fr.Depth, Look: fs.Look.Look, Source: "skyframe flight",
+		Credit: j.Credit, Layers: lay, EXR: j.EXR, Version: j.Version, Stars: j.Stars, Heading: fs.State.Dir}
+	side := spec.Sidecar(f)
+	img8 := f.ToNRGBA(fr.Tone)
+	lum := MeanLuminance(img8)
+	var img draw.Image = img8
+	if fr.Depth == 16 {
+		img = spec.Image(f)
+	}
+	ff := j.Files(i)
+	var layer *image.NRGBA
+	if ff.Overlay != "" {
+		if layer, err = spec.OverlayLayer(f); err != nil {
+			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		}
+	} else if err := spec.DrawOverlays(img, f); err != nil {
+		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+	}
+	home, dest := SignalRates(j.Plan.Trajectory(), fs.State)
+	info := Info{
+		Title: j.Plan.Title, PlanHash: j.Hash, Inputs: j.Inputs, Frame: i, Frames: j.Plan.Frames(), Phase: fs.Phase.String(),
+		VideoSeconds: fs.Seconds, ShipYears: fs.State.Tau, CatalogueYrs: fs.State.T,
+		RateHome: home, RateDest: dest, TravelledPc: fs.State.Travelled, RemainingPc: fs.State.Remaining,
+		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum.Mean, RegionLuminance: lum.Regions,
+		Shutter: fr.Shutter, BlurSamples: len(blur),
+	}
+	frameKV := []imgfile.KV{{Key: "skyframe:frame", Value: strconv.Itoa(i)}, {Key: "skyframe:plan_hash", Value: j.Hash}}
+	if ff.PNG != "" {
+		meta := append(spec.PNGMeta(side), frameKV...)
+		var buf bytes.Buffer
+		if err := enc.Encode(&buf, img, meta); err != nil {
+			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		}
+		if err := j.writeFile(ff.PNG, buf.Bytes()); err != nil {
+			return Lum{}, err
+		}
+		info.Files = append(info.Files, FileRecord{Kind: "png", Name: ff.PNG, Bytes: int64(buf.Len()), SHA256: SHA256(buf.Bytes())})
+	}
+	if layer != nil {
+		meta := append(append(spec.PNGMeta(side), frameKV...),
+			imgfile.KV{Key: "Description", Value: "skyframe overlays alone (sRGB, straight alpha)"})
+		var buf bytes.Buffer
+		if err := enc.Encode(&buf, layer, meta); err != nil {
+			return Lum{}, fmt.Errorf("flight: frame %d: overlay layer: %w", i, err)
+		}
+		if err := j.writeFile(ff.Overlay, buf.Bytes()); err != nil {
+			return Lum{}, err
+		}
+		info.Files = append(info.Files, FileRecord{Kind: "overlay", Name: ff.Overlay, Bytes: int64(buf.Len()), SHA256: SHA256(buf.Bytes())})
+	}
+	if ff.FITS != "" {
+		cards, err := spec.FITSCards(f)
+		if err != nil {
+			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		}
+		cards = append(cards, imgfile.Card{Key: "FRAME", Value: i, Comment: "frame index in the flight"})
+		var buf bytes.Buffer
+		if err := imgfile.WriteFITS(&buf, f.W, f.H, f.Pix, cards); err != nil {
+			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		}
+		if err := j.writeFile(ff.FITS, buf.Bytes()); err != nil {
+			return Lum{}, err
+		}
+		info.Files = append(info.Files, FileRecord{Kind: "fits", Name: ff.FITS, Bytes: int64(buf.Len()), SHA256: SHA256(buf.Bytes())})
+	}
+	if ff.EXR != "" {
+		b, err := j.frameEXR(spec, f, kept, side, layer)
+		if err != nil {
+			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		}
+		if err := j.writeFile(ff.EXR, b); err != nil {
+			return Lum{}, err
+		}
+		info.Files = append(info.Files, FileRecord{Kind: "exr", Name: ff.EXR, Bytes: int64(len(b)), SHA256: SHA256(b)})
+	}
+	if ff.Sidecar != "" {
+		data, err := json.MarshalIndent(Sidecar{Sidecar: side, Flight: info}, "", "  ")
+		if err != nil {
+			return Lum{}, fmt.Errorf("flight: frame %d: sidecar: %w", i, err)
+		}
+		if err := j.writeFile(ff.Sidecar, append(Seal(data), '\n')); err != nil {
+			return Lum{}, err
+		}
+	}
+	return lum, nil
+}
+
+// writeFile writes data to the output-relative path rel atomically,
+// creating its directory.
+func (j *Job) writeFile(rel string, data []byte) error {
+	p := j.Path(rel)
+	if err := os.MkdirAll(filepath.Dir(p), 0o755); err != nil {
+		return err
+	}
+	return render.WriteFileAtomic(p, func(w io.Writer) error {
+		_, err := w.Write(data)
+		return err
+	})
+}
+
+// Status is what CheckFrame found for one frame.
+type Status int
+
+// Statuses of CheckFrame.
+const (
+	Intact Status = iota
+	Missing
+	Corrupt
+)
+
+// CheckFrame reports whether frame i is complete and intact: its sidecar's
+// seal checks, it records this job's hash and frame index, and every image
+// file it lists exists with the recorded size and SHA-256. It returns the
+// recorded luminance and, when not intact, the reason.
+func (j *Job) CheckFrame(i int) (Status, Lum, string) {
+	ff := j.Files(i)
+	data, err := os.ReadFile(j.Path(ff.Sidecar))
+	if os.IsNotExist(err) {
+		return Missing, Lum{}, "no sidecar " + ff.Sidecar
+	}
+	if err != nil {
+		return Corrupt, Lum{}, err.Error()
+	}
+	if err := CheckSeal(data); err != nil {
+		return Corrupt, Lum{}, ff.Sidecar + ": " + err.Error()
+	}
+	var side Sidecar
+	if err := json.Unmarshal(data, &side); err != nil {
+		return Corrupt, Lum{}, ff.Sidecar + ": " + err.Error()
+	}
+	fl := side.Flight
+	if fl.PlanHash != j.Hash {
+		why := j.Inputs.Changed(fl.Inputs)
+		if why == "" {
+			why = "another plan or preview setting"
+		}
+		return Corrupt, Lum{}, fmt.Sprintf("%s: made from different inputs: %s (hash %.12s…, now %.12s…)", ff.Sidecar, why, fl.PlanHash, j.Hash)
+	}
+	if fl.Frame != i {
+		return Corrupt, Lum{}, fmt.Sprintf("%s: records frame %d", ff.Sidecar, fl.Frame)
+	}
+	want := map[string]string{"png": ff.PNG, "fits": ff.FITS, "overlay": ff.Overlay, "exr": ff.EXR}
+	seen := 0
+	for _, rec := range fl.Files {
+		name, ok := want[rec.Kind]
+		if !ok || name == "" || rec.Name != name {
+			return Corrupt, Lum{}, fmt.Sprintf("%s: unexpected file record %s %q", ff.Sidecar, rec.Kind, rec.Name)
+		}
+		seen++
+		b, err := os.ReadFile(j.Path(name))
+		if os.IsNotExist(err) {
+			return Missing, Lum{}, "no " + name
+		}
+		if err != nil {
+			return Corrupt, Lum{}, err.Error()
+		}
+		if int64(len(b)) != rec.Bytes || SHA256(b) != rec.SHA256 {
+			return Corrupt, Lum{}, fmt.Sprintf("%s: %d bytes, SHA-256 does not match the sidecar", name, len(b))
+		}
+	}
+	n := 0
+	for _, s := range []string{ff.PNG, ff.FITS, ff.Overlay, ff.EXR} {
+		if s != "" {
+			n++
+		}
+	}
+	if seen != n {
+		return Corrupt, Lum{}, fmt.Sprintf("%s: lists %d image files, the plan writes %d", ff.Sidecar, seen, n)
+	}
+	regions := fl.RegionLuminance
+	if len(regions) != Regions*Regions {
+		regions = nil // recorded without it, or damaged: whole-frame check only
+	}
+	return Intact, Lum{Mean: fl.MeanLuminance, Regions: regions}, ""
+}
+
+// RemoveFrameTemps deletes temporary files that an interrupted writer of
+// frame i left behind (see RemoveStaleTemps). Only this frame's names are
+// touched, so shards sharing a directory never remove each other's files
+// in flight.
+func (j *Job) RemoveFrameTemps(i int) error {
+	ff := j.Files(i)
+	return RemoveStaleTemps(j.OutDir, ff.PNG, ff.FITS, ff.Sidecar, ff.Overlay, ff.EXR)
+}
+
+// RenderLinear renders the linear buffer of frame state fs (observer obs,
+// projection proj) with its layers, integrated over the shutter: the mean
+// of the sub-frames flight.Plan.BlurSamples asks for, each a full render of
+// its instant (stars and diffuse layers), summed in a fixed order so the
+// result depends only on the plan and the frame. The frame's options,
+// projection and observer are those of the frame's own instant, and its
+// star statistics those of the sub-frame nearest to it.
+func (j *Job) RenderLinear(prep *render.Prepared, fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, frame.Layers, []render.Contribution, []float64, error) {
+	fr := j.Frame
+	// keep: an unblurred frame with an EXR file keeps its linear
+	// contributions apart and its Doppler channel (a blurred frame's EXR
+	// has the combined light only).
+	one := func(fs flight.FrameState, obs camera.Observer, proj camera.Projection, keep bool) (*render.Frame, frame.Layers, []render.Contribution, error) {
+		opt := render.Options{Projection: proj, Observer: obs, Beaming: fr.Beaming, FWHM: fr.FWHM,
+			Exposure: fs.Camera.Exposure, Limit: fr.Limit, Color: spectrum.ColorOptions{White: fr.White}, Workers: j.Workers,
+			Doppler: keep && (j.EXR.Layers == nil || slices.Contains(j.EXR.Layers, frame.EXRDoppler))}
+		f, err := prep.Render(opt)
+		if err != nil {
+			return nil, frame.Layers{}, nil, err
+		}
+		lay := j.FrameLayers(fs, obs)
+		var kept []render.Contribution
+		if keep {
+			kept, err = lay.AddLinearKept(f)
+		} else {
+			err = lay.AddLinear(f)
+		}
+		if err != nil {
+			return nil, frame.Layers{}, nil, err
+		}
+		return f, lay, kept, nil
+	}
+	offsets, _, err := j.Plan.BlurSamples(fs.Index, fr.Shutter, fr.FWHM, j.Projection)
+	if err != nil {
+		return nil, frame.Layers{}, nil, nil, err
+	}
+	if len(offsets) == 1 && offsets[0] == 0 {
+		f, lay, kept, err := one(fs, obs, proj, j.Plan.Output.EXR)
+		return f, lay, kept, offsets, err
+	}
+	var acc []float32
+	var nearest *render.Frame
+	best := math.Inf(1)
+	for _, dt := range offsets {
+		fsk, err := j.Plan.FrameStateAt(fs.Index, dt)
+		if err != nil {
+			return nil, frame.Layers{}, nil, nil, err
+		}
+		obsk, err := flight.Observer(fsk.State)
+		if err != nil {
+			return nil, frame.Layers{}, nil, nil, err
+		}
+		projk, err := j.Projection(fsk)
+		if err != nil {
+			return nil, frame.Layers{}, nil, nil, err
+		}
+		fk, _, _, err := one(fsk, obsk, projk, false)
+		if err != nil {
+			return nil, frame.Layers{}, nil, nil, err
+		}
+		if acc == nil {
+			acc = fk.Pix
+		} else {
+			for p, v := range fk.Pix {
+				acc[p] += v
+			}
+		}
+		if math.Abs(dt) < best {
+			best, nearest = math.Abs(dt), fk
+		}
+	}
+	inv := float32(1 / float64(len(offsets)))
+	for p := range acc {
+		acc[p] *= inv
+	}
+	f := nearest
+	f.Pix = acc
+	f.Doppler = nil
+	f.Options.Projection, f.Options.Observer, f.Options.Exposure = proj, obs, fs.Camera.Exposure
+	lay := j.FrameLayers(fs, obs)
+	return f, lay, nil, offsets, nil
+}
+
+// frameEXR encodes a flight frame's OpenEXR file: the frame, its kept
+// linear contributions, the overlays alone (the overlay layer when the plan
+// writes one, else drawn on a transparent image) and the physical state,
+// at the plan's frame rate.
+func (j *Job) frameEXR(spec *frame.Spec, f *render.Frame, kept []render.Contribution, side render.Sidecar, layer *image.NRGBA) ([]byte, error) {
+	img, err := spec.EXRFile(f, kept, side, layer)
+	if err != nil {
+		return nil, fmt.Errorf("camera.exr_layers: %w", err)
+	}
+	enc := exr.Encoder{Compression: j.EXR.Compression, Workers: j.Workers}
+	var buf bytes.Buffer
+	if err := enc.Encode(&buf, img); err != nil {
+		return nil, err
+	}
+	return buf.Bytes(), nil
+}
