@@ -87,8 +87,19 @@ func (c *cacheWriter) f32s(v []float32) {
 }
 
 // WriteCache writes s to w in the binary cache format described above. It
-// validates s first and refuses strings longer than 65535 bytes.
+// validates s first and refuses strings longer than 65535 bytes. Stars
+// in order of V (see SortByV) are written as a sorted cache, version 2,
+// with a magnitude index (see sorted.go); others as version 1.
 func WriteCache(w io.Writer, s *Stars) error {
+	var idx *MagIndex
+	if err := s.Validate(); err == nil && sortedByV(s) {
+		idx = buildIndex(s)
+	}
+	return writeCache(w, s, idx)
+}
+
+// writeCache writes s with the magnitude index idx (nil: version 1).
+func writeCache(w io.Writer, s *Stars, idx *MagIndex) error {
 	if err := s.Validate(); err != nil {
 		return err
 	}
@@ -117,14 +128,25 @@ func WriteCache(w io.Writer, s *Stars) error {
 	if s.Names != nil {
 		bits |= cacheHasName
 	}
+	version := uint8(CacheVersion)
+	if idx != nil {
+		version = cacheVersionSorted
+	}
 	c := &cacheWriter{w: w, buf: make([]byte, 0, cacheChunk)}
 	c.bytes(cacheMagic)
-	c.u8(CacheVersion)
+	c.u8(version)
 	c.u32(bits)
 	c.u64(uint64(n))
 	c.u64(math.Float64bits(s.Epoch))
 	c.str(s.Source)
 	c.str(s.Format)
+	if idx != nil {
+		idx.write(c)
+		c.flush()
+		c.u32(c.crc) // headcrc
+		c.flush()
+		c.crc = 0 // columns are covered by the index's checksums
+	}
 	for _, id := range s.ID {
 		c.u64(uint64(id))
 	}
@@ -140,6 +162,10 @@ func WriteCache(w io.Writer, s *Stars) error {
 	}
 	if bits&cacheHasRV != 0 {
 		c.f32s(s.RV)
+	}
+	if idx != nil {
+		c.flush()
+		c.crc = 0 // the trailer covers the names section only
 	}
 	if bits&cacheHasName != 0 {
 		c.u64(uint64(len(rows)))
@@ -293,9 +319,10 @@ func readCacheSized(r io.Reader, maxRows int, avail int64) (*Stars, error) {
 	if string(h[:7]) != string(cacheMagic) {
 		return nil, fmt.Errorf("%w: bad magic %q", ErrBadCache, h[:7])
 	}
-	if h[7] != CacheVersion {
-		return nil, fmt.Errorf("%w: version %d, this reader knows %d", ErrBadCache, h[7], CacheVersion)
+	if h[7] != CacheVersion && h[7] != cacheVersionSorted {
+		return nil, fmt.Errorf("%w: version %d, this reader knows %d and %d", ErrBadCache, h[7], CacheVersion, cacheVersionSorted)
 	}
+	version := h[7] // h is reused by the reads below
 	bits := binary.LittleEndian.Uint32(h[8:])
 	if bits&^cacheKnown != 0 {
 		return nil, fmt.Errorf("%w: unknown column bits %#x", ErrBadCache, bits)
@@ -315,6 +342,27 @@ func readCacheSized(r io.Reader, maxRows int, avail int64) (*Stars, error) {
 	}
 	if s.Format, err = c.str(); err != nil {
 		return nil, err
+	}
+	var idx *MagIndex
+	if version == cacheVersionSorted {
+		ncols := 9
+		if bits&cacheHasPM != 0 {
+			ncols += 2
+		}
+		if bits&cacheHasRV != 0 {
+			ncols++
+		}
+		if idx, err = readIndex(c, n, ncols); err != nil {
+			return nil, err
+		}
+		sum := c.crc
+		hc, err := c.next(4)
+		if err != nil {
+			return nil, err
+		}
+		if got := binary.LittleEndian.Uint32(hc); got != sum {
+			return nil, fmt.Errorf("%w: header checksum %08x, computed %08x", ErrCorrupt, got, sum)
+		}
 	}
 	per := int64(8 + 7*4 + 1)
 	if bits&cacheHasPM != 0 {
@@ -368,6 +416,9 @@ func readCacheSized(r io.Reader, maxRows int, avail int64) (*Stars, error) {
 			return nil, err
 		}
 	}
+	if idx != nil {
+		c.crc = 0 // the trailer covers the names section only
+	}
 	if bits&cacheHasName != 0 {
 		cnt, err := c.u64()
 		if err != nil {
@@ -404,6 +455,11 @@ func readCacheSized(r io.Reader, maxRows int, avail int64) (*Stars, error) {
 	}
 	if err := s.Validate(); err != nil {
 		return nil, fmt.Errorf("%w: %v", ErrCorrupt, err)
+	}
+	if idx != nil {
+		if err := idx.verify(s); err != nil {
+			return nil, err
+		}
 	}
 	return s, nil
 }

@@ -62,6 +62,14 @@ type ChunkReader struct {
 	buf      []byte
 	nameRows []int  // rows of names, ascending
 	cur      *Stars // the chunk last returned, whose storage Next reuses
+	// Sorted caches (version 2): the index, the rows Next delivers
+	// (end: all of them, or the bins LimitBins keeps), the first bin
+	// not yet checked in full, the running CRC of each column in that
+	// bin, and the first bin whose skipped rows were checked.
+	idx      *MagIndex
+	end      int
+	walk     []binWalker // per column
+	tailFrom int
 }
 
 // OpenChunks opens the cache file at path for reading in chunks of at most
@@ -102,15 +110,21 @@ func openChunks(f *os.File, path string, chunkRows int) (*ChunkReader, error) {
 	if size < 4 {
 		return nil, fmt.Errorf("%w: %d bytes", ErrTruncated, size)
 	}
+	var tr [4]byte
+	if _, err := f.ReadAt(tr[:], size-4); err != nil {
+		return nil, fmt.Errorf("%w: checksum missing", ErrTruncated)
+	}
+	var ver [8]byte
+	if _, err := f.ReadAt(ver[:], 0); err == nil && string(ver[:7]) == string(cacheMagic) && ver[7] == cacheVersionSorted {
+		// A sorted cache checks its header and index here, each bin's
+		// columns as they are read, and its names below.
+		return openSorted(f, path, chunkRows, size, binary.LittleEndian.Uint32(tr[:]))
+	}
 	// Checksum first, in one sequential pass, so that nothing below reads
 	// a corrupt file.
 	h := crc32.New(castagnoli)
 	if _, err := io.CopyBuffer(h, io.NewSectionReader(f, 0, size-4), make([]byte, cacheChunk)); err != nil {
 		return nil, err
-	}
-	var tr [4]byte
-	if _, err := f.ReadAt(tr[:], size-4); err != nil {
-		return nil, fmt.Errorf("%w: checksum missing", ErrTruncated)
 	}
 	if got, sum := binary.LittleEndian.Uint32(tr[:]), h.Sum32(); got != sum {
 		return nil, fmt.Errorf("%w: checksum %08x, computed %08x", ErrCorrupt, got, sum)
@@ -148,47 +162,61 @@ func openChunks(f *os.File, path string, chunkRows int) (*ChunkReader, error) {
 		return nil, err
 	}
 	c.offID, _ = sr.Seek(0, io.SeekCurrent)
+	c.end = c.n
+	return c, c.readNames(size, nil)
+}
+
+// readNames checks the file size against the columns and reads the names
+// section; with trailer set (sorted caches) its CRC must match it.
+func (c *ChunkReader) readNames(size int64, trailer *uint32) error {
+	f := c.f
 	end := c.colOffset(c.ncols(), 0) // end of the last column
 	if end > size-4 {
-		return nil, fmt.Errorf("%w: %d rows need %d bytes, file has %d", ErrTruncated, c.n, end+4, size)
+		return fmt.Errorf("%w: %d rows need %d bytes, file has %d", ErrTruncated, c.n, end+4, size)
 	}
 	if c.bits&cacheHasName == 0 {
 		if end != size-4 {
-			return nil, fmt.Errorf("%w: %d bytes after the columns", ErrCorrupt, size-4-end)
+			return fmt.Errorf("%w: %d bytes after the columns", ErrCorrupt, size-4-end)
 		}
-		return c, nil
+		if trailer != nil && *trailer != 0 {
+			return fmt.Errorf("%w: names checksum %08x for no names", ErrCorrupt, *trailer)
+		}
+		return nil
 	}
 	nr := &cacheReader{r: io.NewSectionReader(f, end, size-4-end)}
 	cnt, err := nr.u64()
 	if err != nil {
-		return nil, err
+		return err
 	}
 	if cnt > uint64(c.n) {
-		return nil, fmt.Errorf("%w: %d names for %d rows", ErrBadCache, cnt, c.n)
+		return fmt.Errorf("%w: %d names for %d rows", ErrBadCache, cnt, c.n)
 	}
 	c.names = make(map[int]string, min(int(cnt), 1<<16))
 	prev := -1
 	for j := uint64(0); j < cnt; j++ {
 		row, err := nr.u64()
 		if err != nil {
-			return nil, err
+			return err
 		}
 		if row >= uint64(c.n) || int(row) <= prev {
-			return nil, fmt.Errorf("%w: name row %d out of order or range", ErrBadCache, row)
+			return fmt.Errorf("%w: name row %d out of order or range", ErrBadCache, row)
 		}
 		prev = int(row)
 		nm, err := nr.str()
 		if err != nil {
-			return nil, err
+			return err
 		}
 		c.names[prev] = CleanName(nm)
 		c.nameRows = append(c.nameRows, prev)
 	}
 	var one [1]byte
 	if k, _ := nr.r.Read(one[:]); k > 0 {
-		return nil, fmt.Errorf("%w: data after the names", ErrCorrupt)
+		return fmt.Errorf("%w: data after the names", ErrCorrupt)
 	}
-	return c, nil
+	if trailer != nil && nr.crc != *trailer {
+		return fmt.Errorf("%w: names checksum %08x, computed %08x", ErrCorrupt, *trailer, nr.crc)
+	}
+	return nil
 }
 
 // ncols is the number of float32 columns after ID (X…BV, then optional).
@@ -229,11 +257,11 @@ func (c *ChunkReader) Next() (*Stars, error) {
 	if c.f == nil {
 		return nil, errors.New("catalog: chunks: reader is closed")
 	}
-	if c.pos >= c.n {
+	if c.pos >= c.end {
 		return nil, io.EOF
 	}
 	lo := c.pos
-	k := min(c.rows, c.n-lo)
+	k := min(c.rows, c.end-lo)
 	if c.cur == nil {
 		c.cur = &Stars{}
 	}
@@ -242,6 +270,13 @@ func (c *ChunkReader) Next() (*Stars, error) {
 		Dist: s.Dist, Vmag: s.Vmag, Teff: s.Teff, BV: s.BV, Flags: s.Flags, PMRA: s.PMRA, PMDec: s.PMDec, RV: s.RV, Names: s.Names}
 	b, err := c.read(c.offID+8*int64(lo), 8*k)
 	if err != nil {
+		return nil, err
+	}
+	startBin := 0
+	if c.idx != nil {
+		startBin = c.walk[0].bin
+	}
+	if err := c.feed(0, b, 8, lo, lo+k); err != nil {
 		return nil, err
 	}
 	s.ID = reuse(s.ID, k)
@@ -260,6 +295,13 @@ func (c *ChunkReader) Next() (*Stars, error) {
 		if err != nil {
 			return nil, err
 		}
+		cj := j + 1 // the index's column number: ID is 0, Flags 8
+		if j >= 7 {
+			cj++
+		}
+		if err := c.feed(cj, b, 4, lo, lo+k); err != nil {
+			return nil, err
+		}
 		col := reuse(*p, k)
 		for i := range col {
 			col[i] = math.Float32frombits(binary.LittleEndian.Uint32(b[4*i:]))
@@ -268,6 +310,9 @@ func (c *ChunkReader) Next() (*Stars, error) {
 	}
 	b, err = c.read(c.colOffset(7, 0)-int64(c.n)+int64(lo), k)
 	if err != nil {
+		return nil, err
+	}
+	if err := c.feed(8, b, 1, lo, lo+k); err != nil {
 		return nil, err
 	}
 	s.Flags = reuse(s.Flags, k)
@@ -291,6 +336,18 @@ func (c *ChunkReader) Next() (*Stars, error) {
 	}
 	if err := s.Validate(); err != nil {
 		return nil, &ParseError{File: c.path, Err: fmt.Errorf("cache: %w: rows %d…: %v", ErrCorrupt, lo, err)}
+	}
+	if c.idx != nil {
+		b := startBin
+		for i := 0; i < k; i++ {
+			r := lo + i
+			for int64(r) >= c.idx.Offsets[b+1] {
+				b++
+			}
+			if err := c.idx.checkRow(b, r, s.Vmag[i], s.Teff[i], s.Dist[i]); err != nil {
+				return nil, &ParseError{File: c.path, Err: fmt.Errorf("cache: %w", err)}
+			}
+		}
 	}
 	c.pos += k
 	return s, nil
@@ -320,7 +377,12 @@ func (c *ChunkReader) read(off int64, k int) ([]byte, error) {
 }
 
 // Rewind makes the next call of Next return the first chunk again.
-func (c *ChunkReader) Rewind() { c.pos = 0 }
+func (c *ChunkReader) Rewind() {
+	c.pos = 0
+	for j := range c.walk {
+		c.walk[j].bin, c.walk[j].crc = 0, 0
+	}
+}
 
 // Close closes the file.
 func (c *ChunkReader) Close() error {

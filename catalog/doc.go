@@ -74,7 +74,15 @@
 //
 // WriteCache/ReadCache store Stars in a versioned, CRC-32C-checksummed,
 // little-endian column format (layout in cache.go) that loads at memory
-// speed. Stars.Find looks stars up by number, "HR n"/"HIP n"/"Gaia DR3 n",
+// speed. Stars in canonical order — by catalogue V, ties in input order
+// (SortByV, a stable sort) — are written as a sorted cache (version 2,
+// layout in sorted.go) with a magnitude index: the first row of every
+// 0.05-mag bin, bounds of Teff and of each bin's distances, and a CRC-32C
+// per bin and column. ChunkReader.LimitBins reads only the leading bins
+// (the stars that can reach a frame's limit, render.DepthBins); each bin
+// read is checked against its CRCs, and the V, Teff and distance columns
+// of the bins skipped are checked against the index, so a cache whose
+// index disagrees with its rows is refused as corrupt (ErrCorrupt). Stars.Find looks stars up by number, "HR n"/"HIP n"/"Gaia DR3 n",
 // or name. Fetch downloads a catalogue (KnownSources: CDS V/50, I/239,
 // I/311) to a temporary file, verifies it by reading it, and renames it
 // into place in CacheDir().

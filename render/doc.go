@@ -89,6 +89,22 @@
 // of its value [cp: float32 has a 24-bit significand]. Library code never reads the
 // clock, never uses global randomness and never sets GOMAXPROCS.
 //
+// The order rule for catalogues read only as deep as a frame needs: the
+// canonical order of a catalogue is (catalogue V, input row), the order
+// of a sorted cache (catalog.SortByV). RenderChunks reads a sorted cache
+// only through the bins of its magnitude index that DepthBins says can
+// hold a drawn star (the frame's limit plus the largest brightening in
+// view, NeededDepth, plus the brightening of stars the observer has moved
+// toward, and any star that could be resolved as a disc). Every star left
+// out would have been culled, and a culled star deposits nothing, so the
+// drawn stars and their order — hence every pixel's sum — are those of
+// the whole cache: the frame is bit-identical to the full read of the
+// same cache. A catalogue in another order (a text file, an unsorted
+// cache) gives the same stars, deposits and totals, its pixel sums
+// differing only by the float32 rounding of a different order of
+// addition; sorting it (catalog pack does) makes it bit-identical. The
+// fainter remainder is what the unresolved-light layer stands for.
+//
 // # Motion blur
 //
 // Prepared.RenderMotion integrates a frame over its exposure from the

@@ -7,7 +7,7 @@ import "sort"
 type Stats struct {
 	Total    int // stars in the catalogue
 	Drawn    int // deposited (at least partly on the image)
-	Culled   int // observed V′ fainter than Options.Limit
+	Culled   int // observed V′ fainter than Options.Limit, or left unread as too faint to reach it in view (RenderChunks)
 	OffFrame int // bright enough but outside the image (or behind a pinhole)
 	Invalid  int // non-finite observed brightness or position
 	// Brightest lists the brightest drawn stars by observed V′, brightest

@@ -83,14 +83,15 @@ func Chunks(s *catalog.Stars, rows int) func() (*catalog.Stars, error) {
 
 // RenderCacheFile renders the binary catalogue cache at path (see
 // catalog.WriteCache) chunk by chunk within about memoryBudget bytes
-// (0 means DefaultMemoryBudget); see RenderStream.
+// (0 means DefaultMemoryBudget); see RenderStream. A sorted cache is read
+// only as deep as the frame needs (RenderChunks).
 func RenderCacheFile(path string, opt Options, memoryBudget int64) (*Frame, error) {
 	cr, err := catalog.OpenChunks(path, ChunkRows(opt, memoryBudget))
 	if err != nil {
 		return nil, fmt.Errorf("render: %w", err)
 	}
 	defer cr.Close()
-	return RenderStream(cr.Next, opt)
+	return RenderChunks(cr, opt)
 }
 
 // RenderStream renders a catalogue delivered in chunks: next returns the
