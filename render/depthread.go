@@ -15,6 +15,9 @@ import (
 // with room.
 const depthMargin = 0.05
 
+// magPerLn converts a ln flux ratio to magnitudes: 2.5/ln 10.
+const magPerLn = 2.5 / math.Ln10
+
 // DepthBins returns how many leading bins of a sorted cache's magnitude
 // index x hold every star the frame opt can draw, so that reading only
 // those rows (catalog.ChunkReader.LimitBins) gives the frame of the whole
@@ -52,7 +55,8 @@ func DepthBins(opt Options, x *catalog.MagIndex) (int, error) {
 	beta := opt.Observer.Boost.Beta()
 	lnDmin := 0.5 * math.Log((1-beta)/(1+beta))
 	theta := math.Min(0, lnDiscThreshold(&opt.Projection)+2*lnDmin)
-	vDisc := (lnV0Flux - minLnV - theta) / magToLn
+	// ln W⊙ = LnWForV(V, ln F_V(T)) ≥ θ − 2 ln q  ⇔  V ≤ (LnWForV(0, ·) − θ + 2 ln q)·2.5/ln 10.
+	vDisc := (spectrum.LnWForV(0, minLnV) - theta) * magPerLn
 	pos := math.Sqrt(opt.Observer.Position.X*opt.Observer.Position.X + opt.Observer.Position.Y*opt.Observer.Position.Y +
 		opt.Observer.Position.Z*opt.Observer.Position.Z)
 	bins := 0
@@ -65,7 +69,7 @@ func DepthBins(opt Options, x *catalog.MagIndex) (int, error) {
 			}
 			lnQ = math.Log(d / (d - pos))
 		}
-		v := math.Max(dep.Needed+2*lnQ*lnToMag, vDisc+2*lnQ/magToLn) + depthMargin
+		v := math.Max(dep.Needed, vDisc) + 2*lnQ*magPerLn + depthMargin
 		if x.Lower(b) <= v {
 			bins = b + 1
 		}
