@@ -60,12 +60,15 @@
 // Continuous pixel coordinates have (0, 0) at the top-left corner of the
 // image, x to the right, y down; pixel (i, j) spans [i, i+1)×[j, j+1) and
 // its centre is (i+0.5, j+0.5). The PSF is a circular Gaussian (FWHM
-// default 1.5 px, σ = FWHM/2.3548), truncated at 4σ and integrated over
-// each pixel as wx[i]·wy[j] with wx[i] = (erf((i+1−x)/σ√2) −
-// erf((i−x)/σ√2))/2 renormalised over the support (from tables, within
-// 8·10⁻⁷ of the star's flux per weight), so a star inside the
-// image deposits its flux to rounding and the deposit's centroid is the
-// star position to 10⁻³ px for FWHM ≥ 1.5 px. Light that falls outside the
+// default 1.5 px, σ = FWHM/2.3548) integrated over each pixel as
+// wx[i]·wy[j] with wx[i] = (erf((i+1−x)/σ√2) − erf((i−x)/σ√2))/2, on a
+// window of 2k+1 pixels per axis centred on the star's pixel, the tails
+// beyond it added to the window's edge pixels (from tables, within
+// 8·10⁻⁷ of the star's flux per weight). k = ⌈3.09·σ⌉ is the narrowest
+// window with at most 10⁻³ of the flux beyond it on either side (5×5
+// pixels for the default PSF), so a star inside the image deposits its
+// flux to rounding and the deposit's centroid is the star position to
+// 10⁻³ px for FWHM ≥ 1.5 px (see PSF). Light that falls outside the
 // image is lost; in an equirectangular frame it wraps across the ±180°
 // seam; in a cube strip it is clipped to the star's own face (it is not
 // carried to the geometrically adjacent face). Stars are circular in the
@@ -82,9 +85,13 @@
 //
 // The output is bit-identical for any Options.Workers and GOMAXPROCS:
 // stars are transformed in fixed chunks of 8192, binned in catalogue order
-// into 64×64-pixel tiles, and each pixel sums its stars' deposits (each
-// formed in float64) in catalogue order in float32, so the sums also do
-// not depend on how a streamed catalogue is split into chunks. For a pixel
+// into 128×128-pixel tiles, and each pixel sums its stars' deposits (each
+// formed in float64) in catalogue order in float32, straight into the
+// frame buffer, so the sums also do not depend on how a streamed catalogue
+// is split into chunks (the rule: a pixel's value is the float32 sum of
+// its deposits in catalogue order; tiles only decide which worker adds
+// them, never their order). A record whose window crosses a tile edge is
+// binned into each tile it lights and adds only that tile's pixels. For a pixel
 // lit by k stars the rounding error of the sum is at most about k·6·10⁻⁸
 // of its value [cp: float32 has a 24-bit significand]. Library code never reads the
 // clock, never uses global randomness and never sets GOMAXPROCS.

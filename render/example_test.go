@@ -31,7 +31,7 @@ func ExamplePSF_PeakFraction() {
 	}
 	fmt.Printf("σ = %.4f px, radius = %.3f px, peak = %.4f\n", p.Sigma(), p.Radius(), p.PeakFraction())
 	// Output:
-	// σ = 0.6370 px, radius = 2.548 px, peak = 0.3221
+	// σ = 0.6370 px, radius = 2.000 px, peak = 0.3221
 }
 
 // ToneShoulder leaves values below the knee alone and maps luminance 1 to

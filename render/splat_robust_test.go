@@ -10,7 +10,7 @@ import (
 
 // Splat as properties over random widths, positions, colours and buffer
 // sizes (TestSplatConservesFlux checks a fixed table of widths):
-//   - energy conservation [cp: the PSF is normalised over its ±4σ support]:
+//   - energy conservation [cp: the PSF window holds all the flux, its tails folded into the edge pixels]:
 //     a star whose support lies inside the buffer deposits exactly its flux
 //     in each channel (float32 accumulation: relative 1e-4, as in
 //     TestSplatConservesFlux);

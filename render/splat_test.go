@@ -37,12 +37,37 @@ func TestPSFErrors(t *testing.T) {
 
 // The centre pixel of a pixel-centred Gaussian of σ = 1 holds
 // (2Φ(0.5) − 1)² of the flux, with Φ(0.5) = 0.691462 from the standard
-// normal table [mem], so 2Φ(0.5) − 1 = 0.382925.
+// normal table [mem], so 2Φ(0.5) − 1 = 0.382925 (the tails folded into the
+// window's edge pixels do not reach the centre).
 func TestPeakFraction(t *testing.T) {
 	p, _ := NewPSF(fwhmPerSigma)
-	want := 0.382925 * 0.382925 / (math.Erf(4/math.Sqrt2) * math.Erf(4/math.Sqrt2))
+	want := 0.382925 * 0.382925
 	if have := p.PeakFraction(); !scalar.EqualWithinRel(have, want, 1e-5) {
 		t.Errorf("peak fraction: have %v, want %v", have, want)
+	}
+}
+
+// psfTailSigma is the standard normal's upper 10⁻³ point: ½·erfc(t/√2) is
+// the normal's upper tail [cp], from math.Erfc. Each PSF's window
+// half-width k is the smallest whole number of pixels with at most 10⁻³ of
+// the flux beyond it on one side (the rule in PSF's doc).
+func TestPSFTailSigma(t *testing.T) {
+	tail := func(x float64) float64 { return 0.5 * math.Erfc(x/math.Sqrt2) }
+	if have := tail(psfTailSigma); !scalar.EqualWithinRel(have, psfTail, 1e-12) {
+		t.Errorf("tail beyond %v σ: have %v, want %v", psfTailSigma, have, psfTail)
+	}
+	for _, fwhm := range []float64{0.3, 0.5, 1, 1.5, 2, 2.5, 4, 9.7, MaxFWHM} {
+		p, _ := NewPSF(fwhm)
+		k := p.Radius()
+		if tail(k/p.Sigma()) > psfTail || (k > 1 && tail((k-1)/p.Sigma()) <= psfTail) {
+			t.Errorf("FWHM %v: k = %v px leaves %.3g beyond it, %.3g beyond k−1", fwhm, k, tail(k/p.Sigma()), tail((k-1)/p.Sigma()))
+		}
+		if p.Taps() > maxTaps {
+			t.Errorf("FWHM %v: %d taps > maxTaps", fwhm, p.Taps())
+		}
+	}
+	if p, _ := NewPSF(DefaultFWHM); p.Taps() != 5 {
+		t.Errorf("default PSF: %d taps per axis, want 5", p.Taps())
 	}
 }
 
@@ -158,22 +183,12 @@ func BenchmarkSplat(b *testing.B) {
 	}
 }
 
-// The tabulated Gaussian CDF agrees with ½·erf(t/√2) from math.Erf to 1e-8.
-func TestGaussCDF(t *testing.T) {
-	for k := 0; k <= 80000; k++ {
-		x := -4.2 + 8.4*float64(k)/80000
-		want := 0.5 * math.Erf(math.Max(-4, math.Min(4, x))/math.Sqrt2)
-		if have := gaussCDF(x); math.Abs(have-want) > 1e-8 {
-			t.Fatalf("G(%v): have %v, want %v", x, have, want)
-		}
-	}
-}
-
 // TestWeightsVsErf checks the tabulated weights against the exact pixel
-// integrals of the truncated, renormalised Gaussian from math.Erf (the
-// reference: ½·erf(t/√2) is the centred normal CDF [cp]), to the 8·10⁻⁷
-// the table promises, for PSFs from the narrowest to the widest and
-// sub-pixel phases that fall between the table's knots.
+// integrals of the Gaussian from math.Erf, the window's first and last
+// pixels holding the tails beyond them (the reference: ½·erf(t/√2) is the
+// centred normal CDF [cp]), to the 8·10⁻⁷ the table promises, for PSFs
+// from the narrowest to the widest and sub-pixel phases that fall between
+// the table's knots.
 func TestWeightsVsErf(t *testing.T) {
 	rng := rand.New(rand.NewPCG(9, 10))
 	var w [maxTaps]float64
@@ -188,9 +203,18 @@ func TestWeightsVsErf(t *testing.T) {
 			i0, n := p.Weights(c, w[:])
 			sum := 0.0
 			for i := 0; i < n; i++ {
-				a := math.Max(float64(i0+i)-c, -p.Radius()) / p.Sigma()
-				b := math.Min(float64(i0+i+1)-c, p.Radius()) / p.Sigma()
-				want := (gaussCDFExact(b) - gaussCDFExact(a)) / (2 * gaussCDFExact(psfRadiusSigma))
+				if i0 != int(math.Floor(c))-int(p.Radius()) || n != p.Taps() {
+					t.Fatalf("FWHM %v, c=%v: window %d+%d, want ⌊c⌋−k and 2k+1", fwhm, c, i0, n)
+				}
+				a := (float64(i0+i) - c) / p.Sigma()
+				b := (float64(i0+i+1) - c) / p.Sigma()
+				if i == 0 {
+					a = math.Inf(-1)
+				}
+				if i == n-1 {
+					b = math.Inf(1)
+				}
+				want := 0.5 * (math.Erf(b/math.Sqrt2) - math.Erf(a/math.Sqrt2))
 				worst = math.Max(worst, math.Abs(w[i]-want))
 				sum += w[i]
 			}
