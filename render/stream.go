@@ -6,7 +6,6 @@ import (
 	"io"
 	"math"
 	"runtime"
-	"sync"
 	"sync/atomic"
 
 	"gonum.org/v1/gonum/spatial/r3"
@@ -42,13 +41,14 @@ const (
 // cannot be met; the minimum keeps the per-chunk overhead small) and at
 // most 2 097 152.
 //
-// Every chunk reads and writes each lit tile of the frame once (24 bytes
-// per pixel, 0.4 GB for 4096²), so very short chunks are slow; beyond about
-// 2·10⁶ rows a chunk's records no longer gain from the larger pass and only
-// cost memory (10⁷ stars into a 4096² fisheye: 2.2 s at 5·10⁵ rows, 1.61 s
-// at 10⁶, 1.48 s at 2·10⁶, 1.45 s at 4·10⁶, with 8, 11, 17 and 27 bytes
-// per star of working memory; BenchmarkScaleFisheye4096 setup, one run of
-// 3 frames each, this machine).
+// Every chunk adds into each lit tile of the frame once, bringing its 12
+// bytes per pixel into cache (0.2 GB for 4096²), so very short chunks are
+// slow; beyond about 2·10⁶ rows a chunk's records no longer gain from the
+// larger pass and only cost memory (10⁷ stars into a 4096² fisheye, before
+// tiles were added straight into the frame: 2.2 s at 5·10⁵ rows, 1.61 s at
+// 10⁶, 1.48 s at 2·10⁶, 1.45 s at 4·10⁶, with 8, 11, 17 and 27 bytes per
+// star of working memory; BenchmarkScaleFisheye4096 setup, one run of 3
+// frames each, this machine).
 func ChunkRows(opt Options, memoryBudget int64) int {
 	if memoryBudget <= 0 {
 		memoryBudget = DefaultMemoryBudget
@@ -123,10 +123,9 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 	}
 	f := &Frame{Buffer: *buf, Options: opt, Scale: ExposureScale(opt.Exposure)}
 	p := &Prepared{}
-	var pool sync.Pool // *tileAcc scratch, one per worker in use
-	var recs []splatRec
-	var chunks []chunkResult
-	g := newGrid(f.W, f.H, psf.Radius(), opt.Projection.Kind)
+	sc := getScratch(f.W, f.H, psf.Radius(), opt.Projection.Kind)
+	defer scratchPool.Put(sc)
+	g := &sc.g
 	var best []StarInfo
 	var discs []discStar
 	base := 0
@@ -148,18 +147,9 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 		}
 		n := stars.Len()
 		f.Stats.Total += n
-		if cap(recs) < n {
-			recs = make([]splatRec, n)
-		}
-		recs = recs[:n]
+		recs := sc.records(n)
 		nChunks := (n + chunkSize - 1) / chunkSize
-		if cap(chunks) < nChunks {
-			chunks = make([]chunkResult, nChunks)
-		}
-		chunks = chunks[:nChunks]
-		for c := range chunks {
-			chunks[c] = chunkResult{best: chunks[c].best[:0], discs: chunks[c].discs[:0]}
-		}
+		chunks := sc.results(nChunks)
 		parallel(workers, nChunks, func(c int) {
 			lo := c * chunkSize
 			hi := min(lo+chunkSize, n)
@@ -197,7 +187,7 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 		// each tile into the frame's sums; tiles are disjoint, so they
 		// run in parallel without changing any pixel's order of addition.
 		g.binAll(recs, chunks, workers)
-		addTiles(&f.Buffer, g, &psf, workers, &pool)
+		addTiles(&f.Buffer, g, &psf, workers)
 		base += n
 	}
 	if !got {
@@ -339,8 +329,8 @@ func resolveOptions(opt Options) (Options, PSF, int, error) {
 	return opt, psf, workers, nil
 }
 
-// maxTiles bounds the tiles one record can touch: a kernel of radius
-// ≤ 4σ of MaxFWHM (55 px) spans at most 3 tiles per axis, twice with the
+// maxTiles bounds the tiles one record can touch: a window of half-width
+// k ≤ 43 px (MaxFWHM) spans at most 2 tiles per axis (3 kept for margin), twice with the
 // equirect wrap.
 const maxTiles = 2 * 3 * 3
 
@@ -350,6 +340,7 @@ func (g *grid) tilesOf(r *splatRec, out *[maxTiles]int32) int {
 	k := 0
 	ty0, ty1 := g.tileRange(r.y, 0, g.h)
 	clip0, clip1, wrap := g.span(r.x)
+	seen0, seen1 := 1, 0 // the first pass's tile columns
 	for rep := 0; rep < 2; rep++ {
 		x := r.x
 		if rep == 1 {
@@ -361,12 +352,19 @@ func (g *grid) tilesOf(r *splatRec, out *[maxTiles]int32) int {
 		tx0, tx1 := g.tileRange(x, clip0, clip1)
 		for ty := ty0; ty <= ty1; ty++ {
 			for tx := tx0; tx <= tx1; tx++ {
+				if tx >= seen0 && tx <= seen1 {
+					// An image narrower than a few tiles: the wrapped
+					// kernel falls in a tile the record is already in,
+					// whose addTile draws both.
+					continue
+				}
 				if k < maxTiles {
 					out[k] = int32(ty*g.tw + tx)
 				}
 				k++
 			}
 		}
+		seen0, seen1 = tx0, tx1
 	}
 	return min(k, maxTiles)
 }
