@@ -3,6 +3,7 @@ package render
 import (
 	"fmt"
 	"math"
+	"slices"
 
 	"gonum.org/v1/gonum/integrate/quad"
 )
@@ -47,32 +48,76 @@ func LayerTimes(path float64) (u, w []float64) {
 }
 
 // AddLinearMotion adds the linear layers of l (the CMB, the unresolved
-// starlight) to f's buffer as their weighted mean over instants: for each
-// instant in at (the observer and camera at time LayerTimes' u), the
-// layers as seen then, on f's photometric scale times w[k]. Every layer
-// is linear in the frame's Scale, so each instant's share is drawn
-// straight into the buffer; the additions are in a fixed order, so the
-// result does not depend on the worker count. Every instant's projection
-// must have f's kind and size.
+// starlight) to f's buffer as their weighted time mean over instants: for
+// each instant in at (the observer and camera at time LayerTimes' u), the
+// layer as seen then, on f's photometric scale times w[k] (every layer is
+// linear in the frame's Scale), summed into a black buffer, which is then
+// added to f's — layer by layer, in Names order, as AddLinearMotionKept
+// does, so both leave the same frame. The additions are in a fixed order,
+// so the result does not depend on the worker count. Every instant's
+// projection must have f's kind and size; the weights must be finite and
+// positive. It needs one more buffer of f's size.
 func (l Layers) AddLinearMotion(f *Frame, at []Instant, w []float64) error {
+	_, err := l.addMotion(f, at, w, false)
+	return err
+}
+
+// AddLinearMotionKept does what AddLinearMotion does and also returns every
+// contribution as its own buffer, in Names order (the stars, a copy of the
+// buffer before the layers, then each layer), like AddLinearKept.
+func (l Layers) AddLinearMotionKept(f *Frame, at []Instant, w []float64) ([]Contribution, error) {
+	return l.addMotion(f, at, w, true)
+}
+
+func (l Layers) addMotion(f *Frame, at []Instant, w []float64, keep bool) ([]Contribution, error) {
 	if f == nil || len(at) == 0 || len(at) != len(w) {
-		return fmt.Errorf("%w: AddLinearMotion needs a frame and one weight per instant", ErrMotion)
+		return nil, fmt.Errorf("%w: AddLinearMotion needs a frame and one weight per instant", ErrMotion)
 	}
 	for k, in := range at {
 		p := in.Projection
 		if p.Kind != f.Options.Projection.Kind || p.Width != f.W || p.Height != f.H {
-			return fmt.Errorf("%w: instant %d is a %v %d×%d, the frame a %v %d×%d", ErrMotion, k,
+			return nil, fmt.Errorf("%w: instant %d is a %v %d×%d, the frame a %v %d×%d", ErrMotion, k,
 				p.Kind, p.Width, p.Height, f.Options.Projection.Kind, f.W, f.H)
 		}
 		if !(w[k] > 0) || math.IsInf(w[k], 0) {
-			return fmt.Errorf("%w: weight %d is %v", ErrMotion, k, w[k])
-		}
-		g := *f
-		g.Options.Observer, g.Options.Projection = in.Observer, in.Projection
-		g.Scale = f.Scale * w[k]
-		if err := l.AddLinear(&g); err != nil {
-			return err
+			return nil, fmt.Errorf("%w: weight %d is %v", ErrMotion, k, w[k])
 		}
 	}
-	return nil
+	var out []Contribution
+	if keep {
+		out = append(out, Contribution{Name: LayerStars, Pix: slices.Clone(f.Pix)})
+	}
+	var scratch []float32
+	for _, one := range []struct {
+		name string
+		l    Layers
+	}{
+		{LayerCMB, Layers{CMB: l.CMB, CMBOptions: l.CMBOptions}},
+		{LayerUnresolved, Layers{Unresolved: l.Unresolved, DiffuseOptions: l.DiffuseOptions}},
+	} {
+		if !one.l.CMB && one.l.Unresolved == nil {
+			continue
+		}
+		if keep || scratch == nil {
+			scratch = make([]float32, len(f.Pix))
+		} else {
+			clear(scratch)
+		}
+		for k, in := range at {
+			g := *f
+			g.Buffer = Buffer{W: f.W, H: f.H, Pix: scratch}
+			g.Options.Observer, g.Options.Projection = in.Observer, in.Projection
+			g.Scale = f.Scale * w[k]
+			if err := one.l.AddLinear(&g); err != nil {
+				return nil, err
+			}
+		}
+		if err := f.Buffer.Add(&Buffer{W: f.W, H: f.H, Pix: scratch}); err != nil {
+			return nil, err
+		}
+		if keep {
+			out = append(out, Contribution{Name: one.name, Pix: scratch})
+		}
+	}
+	return out, nil
 }

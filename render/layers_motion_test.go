@@ -2,6 +2,7 @@ package render
 
 import (
 	"math"
+	"slices"
 	"testing"
 
 	"gonum.org/v1/gonum/spatial/r3"
@@ -120,5 +121,46 @@ func TestLayerTimes(t *testing.T) {
 	u, w := LayerTimes(0)
 	if math.Abs(math.Abs(u[0])-1/math.Sqrt(3)) > 1e-15 || u[0] != -u[1] || w[0] != 0.5 || w[1] != 0.5 {
 		t.Errorf("2-point rule: nodes %v weights %v", u, w)
+	}
+}
+
+// AddLinearMotionKept leaves the frame AddLinearMotion leaves, bit for
+// bit, and returns the stars and each layer apart (they sum to the frame
+// within float32 rounding).
+func TestAddLinearMotionKept(t *testing.T) {
+	const w, h = 96, 64
+	lay := Layers{CMB: true, Unresolved: gaussBandSky{sigma: 0.02}}
+	u, wts := LayerTimes(20)
+	at := tiltInstants(t, w, h, 30, 1.5, u)
+	mid := tiltInstants(t, w, h, 30, 1.5, []float64{0})[0]
+	frames := make([]*Frame, 2)
+	for i := range frames {
+		buf, err := NewBuffer(w, h, false)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for k := range buf.Pix {
+			buf.Pix[k] = float32(k%7) * 0.01 // stand-in stars
+		}
+		frames[i] = &Frame{Buffer: *buf, Options: Options{Projection: mid.Projection, Observer: mid.Observer}, Scale: ExposureScale(-20)}
+	}
+	if err := lay.AddLinearMotion(frames[0], at, wts); err != nil {
+		t.Fatal(err)
+	}
+	kept, err := lay.AddLinearMotionKept(frames[1], at, wts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !slices.Equal(frames[0].Pix, frames[1].Pix) {
+		t.Error("AddLinearMotionKept left another frame than AddLinearMotion")
+	}
+	if len(kept) != 3 || kept[0].Name != LayerStars || kept[1].Name != LayerCMB || kept[2].Name != LayerUnresolved {
+		t.Fatalf("contributions %v", kept)
+	}
+	for k, v := range frames[1].Pix {
+		s := kept[0].Pix[k] + kept[1].Pix[k] + kept[2].Pix[k]
+		if math.Abs(float64(s-v)) > 1e-6*math.Abs(float64(v)) {
+			t.Fatalf("pixel value %d: contributions sum to %v, frame %v", k, s, v)
+		}
 	}
 }

@@ -257,6 +257,9 @@ type streaker struct {
 	fwhm   float64
 	radius float64 // PSF radius, px
 	margin float64 // PSF radius + 1 px
+	// Scratch of star: the knots' positions and the segments.
+	xs, ys [MaxKnots]float64
+	seg    [MaxKnots / 2]streakRec
 }
 
 func newStreaker(p *Prepared, opt *Options, psf *PSF, scale float64, knots []Instant, projs []camera.Projection, same []bool) *streaker {
@@ -339,11 +342,12 @@ func (s *streaker) star(i, j int, out []streakRec, res *chunkResult) int {
 	// The knots' positions, unwrapped across an equirect seam; a star
 	// undefined at a knot or changing cube face is drawn at the middle
 	// knot only ("steady").
-	var xs, ys [MaxKnots]float64
+	xs, ys := s.xs[:len(s.projs)], s.ys[:len(s.projs)]
 	steady := false
 	kind, w := t.proj.Kind, t.w
 	face := math.Floor(xm / t.h)
-	for k := range s.projs {
+	x0, x1, y0, y1 := xm, xm, ym, ym
+	for k := range xs {
 		x, y := s.px[k][j], s.py[k][j]
 		if math.IsNaN(x) || math.IsNaN(y) {
 			steady = true
@@ -362,6 +366,17 @@ func (s *streaker) star(i, j int, out []streakRec, res *chunkResult) int {
 			}
 		}
 		xs[k], ys[k] = x, y
+		x0, x1 = math.Min(x0, x), math.Max(x1, x)
+		y0, y1 = math.Min(y0, y), math.Max(y1, y)
+	}
+	if !steady && kind != camera.Equirect {
+		// Far off the frame: the path through the knots overshoots
+		// their bounding box by at most an eighth of its size.
+		m := s.margin + 0.25*math.Max(x1-x0, y1-y0)
+		if x1 < -m || x0 > w+m || y1 < -m || y0 > t.h+m {
+			res.off++
+			return 0
+		}
 	}
 	if !steady {
 		// A star whose whole path is within one sub-position's spacing
@@ -386,7 +401,7 @@ func (s *streaker) star(i, j int, out []streakRec, res *chunkResult) int {
 		return 1
 	}
 	// Segments, and whether any of them can light the frame.
-	var segRec [MaxKnots / 2]streakRec
+	segRec := &s.seg
 	lit := false
 	for sg := 0; sg < s.segs; sg++ {
 		ax, ay, bx, by := segment(xs[2*sg:], ys[2*sg:])
