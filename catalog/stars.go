@@ -183,7 +183,7 @@ func CleanName(s string) string {
 // radial velocity within ±10⁵ km/s or NaN. Every reader (text, cache,
 // cache chunks, Parquet) calls it before returning, so a binary file cannot
 // carry a value a text file could not. The one exception is the Sun's own
-// row (SunID, see Sun), whose V seen 1 km from its centre is −62.6: V down
+// row (SunID, see Sun), whose V seen 1 km from its centre is −67.6: V down
 // to −100 is accepted there.
 func (s *Stars) Validate() error {
 	n := s.Len()

@@ -37,7 +37,7 @@ const (
 // (camera.Observer); a star exactly at the origin would have no direction
 // and an infinite V there, so the Sun's centre is put SunOffset (1 km) from
 // the origin toward the north ecliptic pole, with its V at that distance,
-// M_V + 5 log₁₀(SunOffset / 10 pc) ≈ −62.6. Seen from any observer outside
+// M_V + 5 log₁₀(SunOffset / 10 pc) ≈ −67.6. Seen from any observer outside
 // the Sun that is the Sun at the origin to within 1 km: V = −26.74 from 1 au
 // and −0.17 from 1 pc (M_V + 5 log₁₀(r / 10 pc)), in the direction of the
 // origin to 1 km / r radians. The V column of the Sun's row therefore holds

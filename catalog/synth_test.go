@@ -366,6 +366,23 @@ func TestSyntheticCounts(t *testing.T) {
 	}
 }
 
+// TestSyntheticCountsHipparcos compares the bright end with counts from
+// the Hipparcos catalogue (ESA 1997), as tabulated in the OEIS, sequence
+// A053406 ("Number of stars brighter than visual magnitude n−1", J.
+// Fontaine 2000) [pub]: 4 968 stars brighter than V = 6, 15 328 than 7 and
+// 40 858 than 8, where Hipparcos is nearly complete; each within 20 % (the
+// issue's tolerance). The model counts V ≤ v (the difference of a boundary
+// is far below the tolerance).
+func TestSyntheticCountsHipparcos(t *testing.T) {
+	for _, c := range []struct{ v, want float64 }{{6, 4968}, {7, 15328}, {8, 40858}} {
+		n := synthCountSubset(c.v, 1)
+		t.Logf("N(<%g) = %.0f (Hipparcos, OEIS A053406: %.0f, %+.1f %%)", c.v, n, c.want, 100*(n/c.want-1))
+		if rel := n/c.want - 1; math.Abs(rel) > 0.2 {
+			t.Errorf("V ≤ %g: have %.0f stars, want %.0f ± 20 %% (Hipparcos counts, OEIS A053406)", c.v, n, c.want)
+		}
+	}
+}
+
 // TestSyntheticDepthStable: a star of the built-in sky keeps its identifier,
 // position, distance, magnitude and colour whatever depth is asked for,
 // whether by MagLimit or per cell, and whatever the number of goroutines;
