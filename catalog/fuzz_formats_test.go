@@ -31,7 +31,8 @@ func fuzzFormat(f *testing.F, format Format, names ...string) {
 		f.Add(zb.Bytes())
 	}
 	f.Fuzz(func(t *testing.T, data []byte) {
-		opt := ReadOptions{Format: format, MaxLineBytes: 1 << 14, MaxRows: 1 << 14, MaxDecompressedBytes: 1 << 22}
+		opt := fuzzLimits
+		opt.Format = format
 		s, rep, err := Read(bytes.NewReader(data), "fuzz", opt)
 		if err != nil {
 			// Errors are package-prefixed (the project's error convention).

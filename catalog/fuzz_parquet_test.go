@@ -34,7 +34,8 @@ func FuzzReadParquet(f *testing.F) {
 		f.Fatal(err)
 	}
 	f.Fuzz(func(t *testing.T, data []byte) {
-		opt := ReadOptions{Format: FormatParquet, MaxRows: 1 << 14, MaxLineBytes: 1 << 14, MaxDecompressedBytes: 1 << 22}
+		opt := fuzzLimits
+		opt.Format = FormatParquet
 		s, rep, err := Read(bytes.NewReader(data), "fuzz.parquet", opt)
 		if err != nil {
 			if !strings.HasPrefix(err.Error(), "catalog: ") {
