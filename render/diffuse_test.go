@@ -445,18 +445,11 @@ func BenchmarkAddDiffuse(b *testing.B) {
 // BenchmarkAddDiffuseModel draws the built-in sky's unresolved light
 // (catalog.UnresolvedSky, 7 components, depth V = 8) into the default
 // still frame: 1920×1080 pinhole, 60°, at 0.9 c toward the galactic
-// centre, looking ahead.
-func BenchmarkAddDiffuseModel(b *testing.B) {
-	u, err := catalog.NewUnresolvedSky(catalog.DefaultSynthMagLimit, func(T float64) float64 {
-		bb, err := spectrum.FromV(T, 0)
-		if err != nil {
-			return math.NaN()
-		}
-		return bb.W
-	}, catalog.SynthOptions{})
-	if err != nil {
-		b.Fatal(err)
-	}
+// centre, looking ahead, on the adaptive grid (all cores).
+func BenchmarkAddDiffuseModel(b *testing.B) { benchDiffuseModel(b, false) }
+
+func benchDiffuseModel(b *testing.B, exact bool) {
+	u := builtInUnresolved(b)
 	gc := camera.FromGalacticLB(0, 0)
 	boost, err := camera.NewBoost(gc, 0.9)
 	if err != nil {
@@ -466,7 +459,7 @@ func BenchmarkAddDiffuseModel(b *testing.B) {
 	b.ReportAllocs()
 	b.ResetTimer()
 	for b.Loop() {
-		if err := AddDiffuse(f, u, DiffuseOptions{}); err != nil {
+		if err := AddDiffuse(f, u, DiffuseOptions{Exact: exact}); err != nil {
 			b.Fatal(err)
 		}
 	}

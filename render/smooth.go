@@ -1,0 +1,301 @@
+package render
+
+import (
+	"math"
+
+	"github.com/skyframe/skyframe/camera"
+)
+
+// Drawing smooth layers (the unresolved starlight, the CMB) on an adaptive
+// grid of image cells.
+//
+// A diffuse layer changes little from one pixel to the next almost
+// everywhere, so evaluating it exactly at every pixel wastes most of the
+// work. addSmooth evaluates it exactly at the corners of square cells of
+// smoothCell pixels and fills each cell by bilinear interpolation of the
+// corner values, after checking the interpolation against exact values at
+// nine points: the cell's centre, the midpoints of its four edges and the
+// centres of its four quarters. For a function with continuous second
+// derivatives the error of bilinear interpolation is −½[f_xx (x−x₀)(x₁−x) +
+// f_yy (y−y₀)(y₁−y)] to leading order, largest at the centre (both terms)
+// and, where f_xx and f_yy have opposite signs and cancel there, at the
+// edge midpoints (one term each); where the curvature changes sign inside
+// the cell (the flank of a narrow band) the error vanishes at the centre
+// and peaks near the quarter points. When any check misses the exact value
+// by more than the tolerance times the pixel's largest channel, the cell is
+// split into four (its checks at the midpoints become their corners) down
+// to smoothMinCell pixels, below which its pixels are evaluated exactly. A
+// cell is also split, and at the smallest size evaluated exactly, when any
+// of its corners or checks is not smooth: a pixel the evaluator sub-samples
+// (its value varies within the pixel), or one without a direction (outside
+// a fisheye's circle or at its rim). So the fisheye rim, the fast-varying
+// forward beam at high speed and any structure finer than a cell are exact,
+// and cells never straddle an image edge, the equirect seam (the image's
+// left and right edges) or a cube face (each face is its own column of
+// cells); the equirect poles are rows of the image like any other, their
+// pixels' solid angle exact per row. Cells wholly outside a fisheye's
+// circle get nothing.
+//
+// Each cell is computed on its own from exact evaluations, and rows of
+// cells run in parallel, each writing only its own pixels: the result is
+// the same for any worker count, bit for bit.
+
+// Parameters of the adaptive grid.
+const (
+	// smoothCell is the side of the top-level cells, pixels.
+	smoothCell = 32
+	// smoothMinCell is the side below which a failing cell is evaluated
+	// exactly instead of split.
+	smoothMinCell = 4
+	// DefaultSmoothTolerance is the largest error the interpolation of a
+	// diffuse layer may leave at the checked points, relative to the
+	// pixel's largest channel (see DiffuseOptions.Tolerance): 10⁻³ is a
+	// tenth of an 8-bit sRGB step at full scale and smaller elsewhere.
+	DefaultSmoothTolerance = 1e-3
+)
+
+// pixelEval evaluates a layer exactly at pixel (i, j): the linear RGB to
+// add, whether the value may be interpolated (smooth) and an error that
+// stops the drawing. A value that adds nothing is (0, 0, 0).
+type pixelEval func(i, j int) (v [3]float64, smooth bool, err error)
+
+// smoothGrid describes the cells of one image.
+type smoothGrid struct {
+	w, h    int
+	segs    [][2]int // column segments [a, b): cube faces, else the whole width
+	circle  imageCircle
+	tol     float64
+	workers int
+}
+
+func newSmoothGrid(p *camera.Projection, tol float64, workers int) smoothGrid {
+	g := smoothGrid{w: p.Width, h: p.Height, tol: tol, workers: workers}
+	if p.Kind == camera.Cube && p.Width%6 == 0 && p.Width/6 == p.Height {
+		for k := 0; k < 6; k++ {
+			g.segs = append(g.segs, [2]int{k * p.Height, (k + 1) * p.Height})
+		}
+	} else {
+		g.segs = [][2]int{{0, p.Width}}
+	}
+	g.circle.cx, g.circle.cy, g.circle.r, g.circle.ok = p.ImageCircle()
+	return g
+}
+
+// nodes returns the node pixels of the span [a, b): a, a+smoothCell, … and
+// b−1.
+func nodes(a, b int) []int {
+	var n []int
+	for x := a; x < b-1; x += smoothCell {
+		n = append(n, x)
+	}
+	return append(n, b-1)
+}
+
+// add draws the layer into dst (W×H interleaved RGB) with one pixelEval per
+// worker from newEval. It returns the first error in band order.
+func (g *smoothGrid) add(dst []float32, newEval func() pixelEval) error {
+	rows := nodes(0, g.h)
+	bands := max(1, len(rows)-1)
+	errs := make([]error, bands)
+	parallel(g.workers, bands, func(k int) {
+		ev := newEval()
+		y0, y1 := rows[k], rows[min(k+1, len(rows)-1)]
+		c := smoothCellState{dst: dst, w: g.w, ev: ev, tol: g.tol, circle: g.circle}
+		for _, s := range g.segs {
+			cols := nodes(s[0], s[1])
+			for m := 0; m < max(1, len(cols)-1); m++ {
+				x0, x1 := cols[m], cols[min(m+1, len(cols)-1)]
+				lastX, lastY := m+1 >= len(cols)-1, k == bands-1
+				if err := c.cell(x0, x1, y0, y1, lastX, lastY); err != nil {
+					errs[k] = err
+					return
+				}
+			}
+		}
+	})
+	for _, err := range errs {
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+type smoothCellState struct {
+	dst    []float32
+	w      int
+	ev     pixelEval
+	tol    float64
+	circle imageCircle // pixels wholly outside it get nothing
+}
+
+// cell draws the top-level cell with corner pixels (x0, y0)–(x1, y1): it
+// fills the pixels x0 ≤ x < x1 (≤ x1 when lastX) and y0 ≤ y < y1 (≤ y1
+// when lastY).
+func (c *smoothCellState) cell(x0, x1, y0, y1 int, lastX, lastY bool) error {
+	if !c.circle.meets(x0, y0, x1+1, y1+1) {
+		return nil // outside a fisheye's circle: no light
+	}
+	var v [4]nodeVal
+	for q, p := range [4][2]int{{x0, y0}, {x1, y0}, {x0, y1}, {x1, y1}} {
+		var err error
+		if v[q].v, v[q].ok, err = c.ev(p[0], p[1]); err != nil {
+			return err
+		}
+	}
+	return c.refine(x0, x1, y0, y1, lastX, lastY, v)
+}
+
+// nodeVal is an exact value at a node and whether it is smooth.
+type nodeVal struct {
+	v  [3]float64
+	ok bool
+}
+
+// refine draws a cell whose corner values are v, in the order (x0,y0),
+// (x1,y0), (x0,y1), (x1,y1): by interpolation when every corner and check
+// is smooth and the checks pass, else split into four, else exactly.
+func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nodeVal) error {
+	if x1-x0 < 2 || y1-y0 < 2 {
+		return c.exact(x0, x1, y0, y1, lastX, lastY)
+	}
+	xm, ym := (x0+x1)/2, (y0+y1)/2
+	good := v[0].ok && v[1].ok && v[2].ok && v[3].ok
+	split := max(x1-x0, y1-y0) > smoothMinCell
+	if !good && !split {
+		return c.exact(x0, x1, y0, y1, lastX, lastY)
+	}
+	var cv [4][3]float64
+	for q := range cv {
+		cv[q] = v[q].v
+	}
+	// Checks: centre, top, bottom, left, right midpoints, then the centres
+	// of the four quarters.
+	qx0, qx1 := (x0+xm)/2, (xm+x1)/2
+	qy0, qy1 := (y0+ym)/2, (ym+y1)/2
+	pts := [9][2]int{{xm, ym}, {xm, y0}, {xm, y1}, {x0, ym}, {x1, ym}, {qx0, qy0}, {qx1, qy0}, {qx0, qy1}, {qx1, qy1}}
+	var e [9]nodeVal
+	for q, p := range pts {
+		var err error
+		if e[q].v, e[q].ok, err = c.ev(p[0], p[1]); err != nil {
+			return err
+		}
+		if good {
+			tx := float64(p[0]-x0) / float64(x1-x0)
+			ty := float64(p[1]-y0) / float64(y1-y0)
+			good = e[q].ok && within(bilerp(&cv, tx, ty), e[q].v, c.tol)
+		}
+	}
+	if good {
+		c.interp(x0, x1, y0, y1, lastX, lastY, &cv)
+		return nil
+	}
+	if !split {
+		return c.exact(x0, x1, y0, y1, lastX, lastY)
+	}
+	cc, t, b, l, r := e[0], e[1], e[2], e[3], e[4]
+	if err := c.refine(x0, xm, y0, ym, false, false, [4]nodeVal{v[0], t, l, cc}); err != nil {
+		return err
+	}
+	if err := c.refine(xm, x1, y0, ym, lastX, false, [4]nodeVal{t, v[1], cc, r}); err != nil {
+		return err
+	}
+	if err := c.refine(x0, xm, ym, y1, false, lastY, [4]nodeVal{l, cc, v[2], b}); err != nil {
+		return err
+	}
+	return c.refine(xm, x1, ym, y1, lastX, lastY, [4]nodeVal{cc, r, b, v[3]})
+}
+
+// within reports whether the interpolated value a is within tol of the
+// exact value e relative to e's largest channel. There is no absolute
+// floor: a frame may be drawn at any scale (a weighted instant of a
+// motion-blurred layer, a dim exposure), so no level is safely invisible.
+func within(a, e [3]float64, tol float64) bool {
+	lim := tol * math.Max(math.Abs(e[0]), math.Max(math.Abs(e[1]), math.Abs(e[2])))
+	for k := range a {
+		if !(math.Abs(a[k]-e[k]) <= lim) {
+			return false
+		}
+	}
+	return true
+}
+
+func bilerp(v *[4][3]float64, tx, ty float64) [3]float64 {
+	var o [3]float64
+	for k := range o {
+		a := v[0][k] + tx*(v[1][k]-v[0][k])
+		b := v[2][k] + tx*(v[3][k]-v[2][k])
+		o[k] = a + ty*(b-a)
+	}
+	return o
+}
+
+// fillEnd returns the end (exclusive) of the pixels a cell fills along one
+// axis.
+func fillEnd(a1 int, last bool) int {
+	if last {
+		return a1 + 1
+	}
+	return a1
+}
+
+// interp fills the cell by bilinear interpolation of v.
+func (c *smoothCellState) interp(x0, x1, y0, y1 int, lastX, lastY bool, v *[4][3]float64) {
+	xe, ye := fillEnd(x1, lastX), fillEnd(y1, lastY)
+	ix, iy := 1/float64(x1-x0), 1/float64(y1-y0)
+	for y := y0; y < ye; y++ {
+		ty := float64(y-y0) * iy
+		var l, d [3]float64
+		for k := range l {
+			l[k] = v[0][k] + ty*(v[2][k]-v[0][k])
+			d[k] = v[1][k] + ty*(v[3][k]-v[1][k]) - l[k]
+		}
+		row := c.dst[3*(y*c.w+x0) : 3*(y*c.w+xe)]
+		for x := x0; x < xe; x++ {
+			tx := float64(x-x0) * ix
+			p := row[3*(x-x0) : 3*(x-x0)+3 : 3*(x-x0)+3]
+			p[0] += float32(l[0] + tx*d[0])
+			p[1] += float32(l[1] + tx*d[1])
+			p[2] += float32(l[2] + tx*d[2])
+		}
+	}
+}
+
+// exact evaluates every pixel of the cell.
+func (c *smoothCellState) exact(x0, x1, y0, y1 int, lastX, lastY bool) error {
+	xe, ye := fillEnd(x1, lastX), fillEnd(y1, lastY)
+	for y := y0; y < ye; y++ {
+		for x := x0; x < xe; x++ {
+			v, _, err := c.ev(x, y)
+			if err != nil {
+				return err
+			}
+			if v == [3]float64{} {
+				continue
+			}
+			p := c.dst[3*(y*c.w+x) : 3*(y*c.w+x)+3 : 3*(y*c.w+x)+3]
+			p[0] += float32(v[0])
+			p[1] += float32(v[1])
+			p[2] += float32(v[2])
+		}
+	}
+	return nil
+}
+
+// imageCircle is a fisheye's image circle (camera.Projection.ImageCircle),
+// outside which no direction is imaged.
+type imageCircle struct {
+	cx, cy, r float64
+	ok        bool
+}
+
+// meets reports whether the rectangle [x0, x1]×[y0, y1] of image
+// coordinates reaches inside the circle (always true without a circle).
+func (c imageCircle) meets(x0, y0, x1, y1 int) bool {
+	if !c.ok {
+		return true
+	}
+	dx := max(float64(x0)-c.cx, 0, c.cx-float64(x1))
+	dy := max(float64(y0)-c.cy, 0, c.cy-float64(y1))
+	return dx*dx+dy*dy < c.r*c.r
+}
