@@ -140,6 +140,7 @@ func OpenFiles(ctx context.Context, paths []string, opt ReadOptions, fo FilesOpt
 			total += fi.Size()
 		}
 	}
+	opt.allowEmpty = true // the catalogue, not each file, must hold stars
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
 	type result struct {
@@ -333,7 +334,7 @@ func mergeFiles(paths []string, format Format, get func(i int) (*Stars, *Report)
 				}
 			}
 			if !merged {
-				if sk.File == "" {
+				if sk.File == "" && len(paths) > 1 {
 					sk.File = paths[i]
 				}
 				rep.Skips = append(rep.Skips, sk)

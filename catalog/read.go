@@ -77,6 +77,9 @@ type ReadOptions struct {
 	// fainter than it are dropped as they are read (counted among the
 	// skipped rows as "fainter than the V cut"). Zero keeps every star.
 	MaxV float64
+	// allowEmpty lets a read that keeps no star succeed (OpenFiles: a
+	// shard whose stars all fall to the V cut).
+	allowEmpty bool
 	// Epoch, when non-zero, is the Julian epoch (e.g. 2000.0) to which
 	// positions are propagated by proper motion with the linear model
 	// u(t) = normalise(u₀ + (t − t₀)(μα* ê_α + μδ ê_δ)), ê_α, ê_δ the local
@@ -480,6 +483,10 @@ func (b *builder) skip(reason string, line int) {
 }
 
 func (b *builder) finish() (*Stars, *Report, error) {
+	if b.s.Len() == 0 && b.opt.allowEmpty {
+		summarise(b.s, b.rep)
+		return b.s, b.rep, nil
+	}
 	if b.s.Len() == 0 {
 		return nil, b.rep, &ParseError{File: b.file, Err: fmt.Errorf("%w (%d rows skipped)", ErrNoRows, b.rep.Skipped)}
 	}

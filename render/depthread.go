@@ -1,6 +1,7 @@
 package render
 
 import (
+	"context"
 	"fmt"
 	"math"
 
@@ -77,13 +78,13 @@ func DepthBins(opt Options, x *catalog.MagIndex) (int, error) {
 	return max(bins, 1), nil
 }
 
-// RenderChunks renders the cache cr reads (see RenderStream). From a
-// sorted cache it reads only the bins DepthBins needs: the frame (pixels,
-// Doppler channel, Brightest) is the one the whole cache gives, bit for
-// bit, and so are the Stats, the rows left unread counted in Total and
-// Culled as the full read counts them. A cache in file order is read in
-// full.
-func RenderChunks(cr *catalog.ChunkReader, opt Options) (*Frame, error) {
+// RenderChunks renders the cache cr reads (see RenderStream), stopping
+// with context.Cause(ctx) between chunks once ctx is done. From a sorted
+// cache it reads only the bins DepthBins needs: the frame (pixels, Doppler
+// channel, Brightest, Drawn) is the one the whole cache gives, bit for
+// bit; the rows left unread are counted in Stats.Total and Stats.Culled.
+// A cache in file order is read in full.
+func RenderChunks(ctx context.Context, cr *catalog.ChunkReader, opt Options) (*Frame, error) {
 	if x := cr.Index(); x != nil {
 		bins, err := DepthBins(opt, x)
 		if err != nil {
@@ -93,7 +94,12 @@ func RenderChunks(cr *catalog.ChunkReader, opt Options) (*Frame, error) {
 			return nil, fmt.Errorf("render: %w", err)
 		}
 	}
-	f, err := RenderStream(cr.Next, opt)
+	f, err := RenderStream(func() (*catalog.Stars, error) {
+		if err := ctx.Err(); err != nil {
+			return nil, context.Cause(ctx)
+		}
+		return cr.Next()
+	}, opt)
 	if err != nil {
 		return nil, err
 	}

@@ -14,9 +14,11 @@ import (
 )
 
 // BenchmarkDepthRead is the read-only-what-can-be-seen figure: a 2048²
-// fisheye at β = 0.9 toward the view (Exposure −1, limit V′ = 9) from a
-// realistic 10⁷-star catalogue (scaleSky: counts ×2.5 per magnitude over
-// −1.5 … 16) on disk, read three ways with RenderCacheFile:
+// fisheye at β = 0.9 toward the view from a realistic 10⁷-star catalogue
+// (scaleSky: counts ×2.5 per magnitude over −1.5 … 16) on disk, at
+// Exposure −2.3 (limit V′ = 7.7), where the frame's completeness bound
+// (DepthBins: V < 13.45) lies inside the bright 10⁶ stars (V ≤ 13.50), so
+// that those give the same frame; read three ways with RenderCacheFile:
 //
 //   - bright1e6: a sorted cache of its 10⁶ brightest stars;
 //   - sorted1e7: the sorted cache of all 10⁷, read as deep as the frame
@@ -53,7 +55,7 @@ func BenchmarkDepthRead(b *testing.B) {
 		"sorted1e7":   write("sorted.skyfcat", sorted),
 		"unsorted1e7": write("unsorted.skyfcat", sky),
 	}
-	opt := Options{Projection: proj(b, camera.Fisheye, 2048, 2048), Exposure: -1,
+	opt := Options{Projection: proj(b, camera.Fisheye, 2048, 2048), Exposure: -2.3,
 		Observer: observer(b, r3.Unit(r3.Vec{X: 1, Y: 0.3, Z: 0.1}), 0.9)}
 	cr, err := catalog.OpenChunks(paths["sorted1e7"], 0)
 	if err != nil {

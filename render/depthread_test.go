@@ -2,6 +2,7 @@ package render
 
 import (
 	"bytes"
+	"context"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -118,7 +119,7 @@ func TestDepthBinsNeverSkipsADrawnStar(t *testing.T) {
 				rt.Fatalf("%d of the %d unread stars (V ≥ %.2f) are drawn", tail.Stats.Drawn, sorted.Len()-keep, x.Lower(bins))
 			}
 		}
-		part, err := RenderChunks(cr, opt)
+		part, err := RenderChunks(context.Background(), cr, opt)
 		if err != nil {
 			rt.Fatal(err)
 		}

@@ -1,6 +1,7 @@
 package render
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
@@ -91,7 +92,7 @@ func RenderCacheFile(path string, opt Options, memoryBudget int64) (*Frame, erro
 		return nil, fmt.Errorf("render: %w", err)
 	}
 	defer cr.Close()
-	return RenderChunks(cr, opt)
+	return RenderChunks(context.Background(), cr, opt)
 }
 
 // RenderStream renders a catalogue delivered in chunks: next returns the

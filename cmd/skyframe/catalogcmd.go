@@ -8,6 +8,7 @@ import (
 	"net/http"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -102,7 +103,7 @@ func readOptions(format string, columns []string) (catalog.ReadOptions, error) {
 }
 
 func catalogInspect(e *env, args []string) error {
-	fs := catalogFlagSet(e, "inspect", "Usage: skyframe catalog inspect [options] FILE\n\nOptions:\n")
+	fs := catalogFlagSet(e, "inspect", "Usage: skyframe catalog inspect [options] FILE...\n\nFILE: a file, a directory, a glob or builtin; several are read as one catalogue.\n\nOptions:\n")
 	format := fs.String("catalog-format", "", "format, overriding detection")
 	cols := fs.StringSlice("column", nil, "generic CSV/TSV column map, FIELD=NAME (fields: "+strings.Join(columnFields, ", ")+")")
 	var namesPath string
@@ -113,8 +114,8 @@ func catalogInspect(e *env, args []string) error {
 		}
 		return usageError{err}
 	}
-	if fs.NArg() != 1 {
-		return usagef("catalog inspect: want exactly one FILE (or builtin)")
+	if fs.NArg() < 1 || fs.NArg() > 1 && slices.Contains(fs.Args(), "builtin") {
+		return usagef("catalog inspect: want FILE... (or builtin alone)")
 	}
 	table, err := loadNames(namesPath)
 	if err != nil {
@@ -134,8 +135,8 @@ func catalogInspect(e *env, args []string) error {
 		if err != nil {
 			return err
 		}
-		if stars, rep, err = catalog.OpenContext(e.ctx, fs.Arg(0), opt); err != nil {
-			return usageError{err}
+		if stars, rep, err = openCatalog(e.ctx, fs.Args(), opt, nil); err != nil {
+			return err
 		}
 	}
 	printReport(e.stdout, stars, rep, time.Since(start))
@@ -185,7 +186,14 @@ func printSkipped(w io.Writer, r *catalog.Report) {
 	}
 	var parts []string
 	for _, sk := range r.Skips {
-		parts = append(parts, fmt.Sprintf("%d %s (first at line %d)", sk.Count, sk.Reason, sk.FirstLine))
+		switch {
+		case sk.FirstLine == 0:
+			parts = append(parts, fmt.Sprintf("%d %s", sk.Count, sk.Reason))
+		case sk.File != "":
+			parts = append(parts, fmt.Sprintf("%d %s (first at %s:%d)", sk.Count, sk.Reason, sk.File, sk.FirstLine))
+		default:
+			parts = append(parts, fmt.Sprintf("%d %s (first at line %d)", sk.Count, sk.Reason, sk.FirstLine))
+		}
 	}
 	fmt.Fprintf(w, "skyframe: %s: %d rows skipped: %s\n", r.Source, r.Skipped, strings.Join(parts, ", "))
 }
@@ -225,22 +233,26 @@ func printReport(w io.Writer, s *catalog.Stars, r *catalog.Report, took time.Dur
 }
 
 func catalogPack(e *env, args []string) error {
-	fs := catalogFlagSet(e, "pack", "Usage: skyframe catalog pack [options] FILE -o OUT\n\nOptions:\n")
+	fs := catalogFlagSet(e, "pack", "Usage: skyframe catalog pack [options] FILE... -o OUT\n\nFILE: files, directories (their files) or quoted glob patterns, e.g. 'gaia/GaiaSource_*.csv.gz',\nread in parallel as one catalogue. A cache is written sorted by V with a magnitude index,\nso frames read only the stars they can show.\n\nOptions:\n")
 	format := fs.String("catalog-format", "", "input format, overriding detection")
 	cols := fs.StringSlice("column", nil, "generic CSV/TSV column map, FIELD=NAME")
 	out := fs.StringP("output", "o", "", "cache file to write (required)")
 	to := fs.String("to", "cache", "output format: cache (skyframe's binary cache) or parquet (Apache Parquet, exact Stars columns)")
+	maxV := fs.Float64("max-v", 0, "keep only stars with catalogue V ≤ this (0: all); stars fainter are dropped while reading")
 	if err := fs.Parse(args); err != nil {
 		if err == pflag.ErrHelp {
 			return errHelp
 		}
 		return usageError{err}
 	}
-	if fs.NArg() != 1 {
-		return usagef("catalog pack: want exactly one input FILE")
+	if fs.NArg() < 1 {
+		return usagef("catalog pack: want at least one input FILE")
 	}
 	if *out == "" {
 		return usagef("catalog pack: --output/-o is required")
+	}
+	if fs.Changed("max-v") && !(*maxV >= -30 && *maxV <= 40) {
+		return usagef("catalog pack: --max-v %v: want a V magnitude from -30 to 40", *maxV)
 	}
 	write := catalog.WriteCache
 	switch *to {
@@ -253,22 +265,34 @@ func catalogPack(e *env, args []string) error {
 	if err := checkWritable("output", *out); err != nil {
 		return err
 	}
-	if sameFile(fs.Arg(0), *out) {
-		return usagef("catalog pack: --output %s is the input file %s; write to another file", *out, fs.Arg(0))
+	for _, a := range fs.Args() {
+		if sameFile(a, *out) {
+			return usagef("catalog pack: --output %s is the input file %s; write to another file", *out, a)
+		}
 	}
 	opt, err := readOptions(*format, *cols)
 	if err != nil {
 		return err
 	}
-	stars, rep, err := catalog.OpenContext(e.ctx, fs.Arg(0), opt)
+	opt.MaxV = *maxV
+	stars, rep, err := openCatalog(e.ctx, fs.Args(), opt, e.stderr)
 	if err != nil {
-		return usageError{err}
+		return err
+	}
+	if *to == "cache" {
+		// Canonical order: frames read from it only as deep as they need
+		// are bit-identical to its full read.
+		stars = catalog.SortByV(stars)
 	}
 	err = render.WriteFileAtomic(*out, func(w io.Writer) error { return write(ctxWriter{e.ctx, w}, stars) })
 	if err != nil {
 		return err
 	}
-	fmt.Fprintf(e.stdout, "%s: %d stars from %s (%s, %d rows skipped)\n", *out, stars.Len(), rep.Source, rep.Format, rep.Skipped)
+	sorted := ""
+	if *to == "cache" {
+		sorted = ", sorted by V"
+	}
+	fmt.Fprintf(e.stdout, "%s: %d stars from %s (%s, %d rows skipped%s)\n", *out, stars.Len(), rep.Source, rep.Format, rep.Skipped, sorted)
 	printSkipped(e.stderr, rep)
 	return nil
 }

@@ -339,9 +339,9 @@ func planStars(ctx context.Context, warn io.Writer, plan *flight.Plan, base stri
 		*dst = v
 	}
 	path := cataloguePath(plan, base)
-	stars, rep, err := catalog.OpenContext(ctx, path, opt)
+	stars, rep, err := openCatalog(ctx, []string{path}, opt, nil)
 	if err != nil {
-		return nil, usageError{err}
+		return nil, err
 	}
 	printSkipped(warn, rep)
 	return stars, nil

@@ -44,7 +44,7 @@ type physicsFlags struct {
 const defaultToward = "266.405,-28.936"
 
 func (p *physicsFlags) register(fs *pflag.FlagSet, defaultSpeed float64) {
-	fs.StringVar(&p.catalog, "catalog", "", "star catalogue file (BSC5, Hipparcos, Gaia CSV, CSV/TSV, skyframe cache; gzip ok); default: the built-in synthetic sky")
+	fs.StringVar(&p.catalog, "catalog", "", "star catalogue (BSC5, Hipparcos, Gaia CSV/ECSV, CSV/TSV, Parquet, skyframe cache; gzip ok): a file, a directory, a quoted glob or a comma-separated list, read as one; default: the built-in synthetic sky")
 	fs.StringVar(&p.catalogFormat, "catalog-format", "", "catalogue format, overriding detection: "+formatNames())
 	fs.Float64Var(&p.speed, "speed", defaultSpeed, "ship speed β = v/c, 0 ≤ β < 1")
 	fs.Float64Var(&p.gamma, "gamma", 0, "Lorentz factor γ ≥ 1 instead of --speed (exact up to γ = 1e8 and beyond)")
@@ -186,9 +186,9 @@ func loadStars(ctx context.Context, warn io.Writer, path, format string, columns
 		return nil, err
 	}
 	opt.Epoch = epoch
-	stars, rep, err := catalog.OpenContext(ctx, path, opt)
+	stars, rep, err := openCatalog(ctx, []string{path}, opt, nil)
 	if err != nil {
-		return nil, usageError{err}
+		return nil, err
 	}
 	printSkipped(warn, rep)
 	return stars, nil

@@ -277,7 +277,7 @@ func runCensus(e *env, args []string) error {
 	fs := pflag.NewFlagSet("census", pflag.ContinueOnError)
 	fs.SetOutput(e.stderr)
 	var p physicsFlags
-	fs.StringVar(&p.catalog, "catalog", "", "star catalogue file (BSC5, Hipparcos, Gaia CSV, CSV/TSV, skyframe cache; gzip ok); default: the built-in synthetic sky")
+	fs.StringVar(&p.catalog, "catalog", "", "star catalogue (BSC5, Hipparcos, Gaia CSV/ECSV, CSV/TSV, Parquet, skyframe cache; gzip ok): a file, a directory, a quoted glob or a comma-separated list, read as one; default: the built-in synthetic sky")
 	fs.StringVar(&p.catalogFormat, "catalog-format", "", "catalogue format, overriding detection: "+formatNames())
 	fs.StringSliceVar(&p.columns, "column", nil, "generic CSV/TSV column map, FIELD=NAME, repeatable")
 	fs.Float64Var(&p.epoch, "epoch", 0, "propagate positions by proper motion to this Julian epoch; 0 keeps the catalogue epoch")

@@ -290,12 +290,7 @@ func runStill(e *env, args []string) error {
 	start := time.Now()
 	var frame *render.Frame
 	if p.stream != nil {
-		frame, err = render.RenderStream(func() (*catalog.Stars, error) {
-			if err := e.ctx.Err(); err != nil {
-				return nil, context.Cause(e.ctx)
-			}
-			return p.stream.Next()
-		}, spec.Opt)
+		frame, err = render.RenderChunks(e.ctx, p.stream, spec.Opt)
 	} else {
 		frame, err = render.Render(sc.stars, spec.Opt)
 	}
@@ -321,8 +316,8 @@ func runStill(e *env, args []string) error {
 	total := time.Since(start)
 	printSummary(e.stdout, frame, sc, spec, outputs, took, total)
 	if p.stream != nil {
-		fmt.Fprintf(e.stdout, "catalogue: %d stars rendered from disk in chunks of up to %d (--memory %s)\n",
-			frame.Stats.Total, render.ChunkRows(render.Options{Projection: spec.Proj, Doppler: true}, renderBudget), f.memory)
+		fmt.Fprintf(e.stdout, "catalogue: %d of %d stars read from disk in chunks of up to %d (--memory %s)%s\n",
+			p.stream.Rows(), frame.Stats.Total, render.ChunkRows(render.Options{Projection: spec.Proj, Doppler: true}, renderBudget), f.memory, sortedNote(p.stream))
 	}
 	return nil
 }

@@ -1,9 +1,12 @@
 package main
 
 import (
+	"context"
 	"errors"
+	"fmt"
 	"io"
 	"math"
+	"os"
 	"sort"
 	"strings"
 
@@ -135,4 +138,67 @@ func containsInt(s []int, v int) bool {
 		}
 	}
 	return false
+}
+
+// sortedNote says how deep a sorted cache was read, for the still's
+// summary line.
+func sortedNote(cr *catalog.ChunkReader) string {
+	x := cr.Index()
+	if x == nil {
+		return ""
+	}
+	k := x.Bins()
+	for k > 0 && x.Offsets[k-1] >= int64(cr.Rows()) {
+		k--
+	}
+	return fmt.Sprintf("; sorted cache read to V = %.2f, as deep as the frame needs", x.Lower(k))
+}
+
+// openCatalog reads --catalog (or a plan's catalogue, or catalog
+// inspect/pack's inputs): one file as before, or many — a directory, a
+// glob pattern or a comma-separated list when no file has that name —
+// read as one catalogue (catalog.OpenFiles), with progress on progress
+// when it is set.
+func openCatalog(ctx context.Context, args []string, opt catalog.ReadOptions, progress io.Writer) (*catalog.Stars, *catalog.Report, error) {
+	var list []string
+	for _, a := range args {
+		if fi, err := os.Stat(a); err == nil && !fi.IsDir() {
+			list = append(list, a)
+			continue
+		}
+		for _, p := range strings.Split(a, ",") {
+			if p = strings.TrimSpace(p); p != "" {
+				list = append(list, p)
+			}
+		}
+	}
+	paths, err := catalog.ExpandInputs(list)
+	if err != nil {
+		return nil, nil, usageError{err}
+	}
+	if len(paths) == 1 && progress == nil {
+		s, rep, err := catalog.OpenContext(ctx, paths[0], opt)
+		if err != nil {
+			return nil, rep, usageError{err}
+		}
+		return s, rep, nil
+	}
+	var fo catalog.FilesOptions
+	if progress != nil {
+		label := "read " + paths[0]
+		if len(paths) > 1 {
+			label = fmt.Sprintf("read %d files", len(paths))
+		}
+		bar := newByteProgress(progress, label)
+		defer bar.finish()
+		fo.Progress = func(done, total int64, _, _ int) { bar.update(done, total) }
+	}
+	s, rep, err := catalog.OpenFiles(ctx, paths, opt, fo)
+	if err != nil {
+		if ctx.Err() != nil {
+			return nil, rep, context.Cause(ctx)
+		}
+		return nil, rep, usageError{err}
+	}
+	return s, rep, nil
 }
