@@ -3,9 +3,11 @@ package job
 import (
 	"fmt"
 	"math"
+	"os"
 	"testing"
 
 	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/flight"
 	"github.com/skyframe/skyframe/render"
 )
@@ -96,5 +98,50 @@ func TestPlanExposure(t *testing.T) {
 		if e.Knots != nil || e.Layers != nil {
 			t.Errorf("frame %d, shutter %v: knots %v layers %v, want the instant alone (path %.3g px)", c.frame, c.shutter, e.Knots, e.Layers, e.Path)
 		}
+	}
+}
+
+// The sample flight keeps a 180° shutter, and its fastest camera swing is
+// blurred: three knots (a swing within the comfort limit curves little
+// in one frame), a streak of a few pixels — under the ~8 px the speed
+// target assumes — and the diffuse layers at two instants.
+func TestSamplePlanBlur(t *testing.T) {
+	data, err := os.ReadFile("../samples/plan.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p, err := flight.ParsePlan(data, "plan.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	stars := catalog.BuiltIn()
+	if err := p.Bind(flight.StarsResolver(stars, stars.Find)); err != nil {
+		t.Fatal(err)
+	}
+	fr := p.Frame.Frame()
+	if fr.Shutter != 180 {
+		t.Fatalf("sample plan shutter %v°, want 180°", fr.Shutter)
+	}
+	fastest, px := 0, 0.0
+	for i := 1; i < p.Frames(); i++ {
+		m, err := p.MotionAt(i)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if m.ScreenPx > px {
+			fastest, px = i, m.ScreenPx
+		}
+	}
+	proj := func(fs flight.FrameState) (camera.Projection, error) {
+		q := camera.Projection{Kind: fr.Kind, Width: fr.Width, Height: fr.Height, FOV: fs.Camera.FOV, Tilt: fs.Camera.Tilt, Orient: fs.Camera.Orient}
+		return q, q.Prepare()
+	}
+	e, err := PlanExposure(p, fastest, fr.Shutter, fr.FWHM, proj)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("fastest swing at frame %d: %.2f px per frame at the centre; exposure path %.2f px, %d knots, %d layer instants", fastest, px, e.Path, len(e.Knots), len(e.Layers))
+	if len(e.Knots) != 3 || len(e.Layers) != 2 || e.Path > 8 || e.Path < 0.5*px/2 {
+		t.Errorf("frame %d: path %.2f px (centre %.2f px per frame), knots %v, layer instants %v", fastest, e.Path, px, e.Knots, e.Layers)
 	}
 }

@@ -280,7 +280,7 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	fr := j.Frame
-	f, lay, kept, blur, err := j.RenderLinear(prep, fs, obs, proj)
+	f, lay, kept, ex, err := j.RenderLinear(prep, fs, obs, proj)
 	if err != nil {
 		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
@@ -308,7 +308,7 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 		VideoSeconds: fs.Seconds, ShipYears: fs.State.Tau, CatalogueYrs: fs.State.T,
 		RateHome: home, RateDest: dest, TravelledPc: fs.State.Travelled, RemainingPc: fs.State.Remaining,
 		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum.Mean, RegionLuminance: lum.Regions,
-		Shutter: fr.Shutter, BlurSamples: len(blur),
+		Shutter: fr.Shutter, BlurKnots: len(ex.Knots), BlurPathPx: ex.Path,
 	}
 	frameKV := []imgfile.KV{{Key: "skyframe:frame", Value: strconv.Itoa(i)}, {Key: "skyframe:plan_hash", Value: j.Hash}}
 	if ff.PNG != "" {
@@ -470,86 +470,56 @@ func (j *Job) RemoveFrameTemps(i int) error {
 }
 
 // RenderLinear renders the linear buffer of frame state fs (observer obs,
-// projection proj) with its layers, integrated over the shutter: the mean
-// of the sub-frames flight.Plan.BlurSamples asks for, each a full render of
-// its instant (stars and diffuse layers), summed in a fixed order so the
-// result depends only on the plan and the frame. The frame's options,
-// projection and observer are those of the frame's own instant, and its
-// star statistics those of the sub-frame nearest to it.
-func (j *Job) RenderLinear(prep *render.Prepared, fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, frame.Layers, []render.Contribution, []float64, error) {
+// projection proj) with its layers, integrated over the shutter as
+// PlanExposure plans it: the instant alone when nothing moves (or the
+// shutter is closed), else every star streaked along its apparent path
+// between the exposure's knots (render.Prepared.RenderMotion) and the
+// diffuse layers averaged over their instants
+// (render.Layers.AddLinearMotion). The result depends only on the plan
+// and the frame. The frame's options, projection, observer and star
+// statistics are those of its own instant. With an EXR file it keeps the
+// linear contributions apart and the Doppler channel.
+func (j *Job) RenderLinear(prep *render.Prepared, fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, frame.Layers, []render.Contribution, Exposure, error) {
 	fr := j.Frame
-	// keep: an unblurred frame with an EXR file keeps its linear
-	// contributions apart and its Doppler channel (a blurred frame's EXR
-	// has the combined light only).
-	one := func(fs flight.FrameState, obs camera.Observer, proj camera.Projection, keep bool) (*render.Frame, frame.Layers, []render.Contribution, error) {
-		opt := render.Options{Projection: proj, Observer: obs, Beaming: fr.Beaming, FWHM: fr.FWHM,
-			Exposure: fs.Camera.Exposure, Limit: fr.Limit, Color: spectrum.ColorOptions{White: fr.White}, Workers: j.Workers,
-			Doppler: keep && (j.EXR.Layers == nil || slices.Contains(j.EXR.Layers, frame.EXRDoppler))}
-		f, err := prep.Render(opt)
-		if err != nil {
-			return nil, frame.Layers{}, nil, err
+	keep := j.Plan.Output.EXR
+	opt := render.Options{Projection: proj, Observer: obs, Beaming: fr.Beaming, FWHM: fr.FWHM,
+		Exposure: fs.Camera.Exposure, Limit: fr.Limit, Color: spectrum.ColorOptions{White: fr.White}, Workers: j.Workers,
+		Doppler: keep && (j.EXR.Layers == nil || slices.Contains(j.EXR.Layers, frame.EXRDoppler))}
+	ex, err := PlanExposure(j.Plan, fs.Index, fr.Shutter, fr.FWHM, j.Projection)
+	if err != nil {
+		return nil, frame.Layers{}, nil, ex, err
+	}
+	lay := j.FrameLayers(fs, obs)
+	var f *render.Frame
+	var kept []render.Contribution
+	if ex.Knots == nil {
+		if f, err = prep.Render(opt); err != nil {
+			return nil, frame.Layers{}, nil, ex, err
 		}
-		lay := j.FrameLayers(fs, obs)
-		var kept []render.Contribution
 		if keep {
 			kept, err = lay.AddLinearKept(f)
 		} else {
 			err = lay.AddLinear(f)
 		}
-		if err != nil {
-			return nil, frame.Layers{}, nil, err
-		}
-		return f, lay, kept, nil
+		return f, lay, kept, ex, err
 	}
-	offsets, _, err := j.Plan.BlurSamples(fs.Index, fr.Shutter, fr.FWHM, j.Projection)
+	knots, err := Instants(j.Plan, fs.Index, ex.Knots, j.Projection)
 	if err != nil {
-		return nil, frame.Layers{}, nil, nil, err
+		return nil, frame.Layers{}, nil, ex, err
 	}
-	if len(offsets) == 1 && offsets[0] == 0 {
-		f, lay, kept, err := one(fs, obs, proj, j.Plan.Output.EXR)
-		return f, lay, kept, offsets, err
+	if f, err = prep.RenderMotion(opt, knots); err != nil {
+		return nil, frame.Layers{}, nil, ex, err
 	}
-	var acc []float32
-	var nearest *render.Frame
-	best := math.Inf(1)
-	for _, dt := range offsets {
-		fsk, err := j.Plan.FrameStateAt(fs.Index, dt)
-		if err != nil {
-			return nil, frame.Layers{}, nil, nil, err
-		}
-		obsk, err := flight.Observer(fsk.State)
-		if err != nil {
-			return nil, frame.Layers{}, nil, nil, err
-		}
-		projk, err := j.Projection(fsk)
-		if err != nil {
-			return nil, frame.Layers{}, nil, nil, err
-		}
-		fk, _, _, err := one(fsk, obsk, projk, false)
-		if err != nil {
-			return nil, frame.Layers{}, nil, nil, err
-		}
-		if acc == nil {
-			acc = fk.Pix
-		} else {
-			for p, v := range fk.Pix {
-				acc[p] += v
-			}
-		}
-		if math.Abs(dt) < best {
-			best, nearest = math.Abs(dt), fk
-		}
+	at, err := Instants(j.Plan, fs.Index, ex.Layers, j.Projection)
+	if err != nil {
+		return nil, frame.Layers{}, nil, ex, err
 	}
-	inv := float32(1 / float64(len(offsets)))
-	for p := range acc {
-		acc[p] *= inv
+	if keep {
+		kept, err = lay.AddLinearMotionKept(f, at, ex.LayerWeights)
+	} else {
+		err = lay.AddLinearMotion(f, at, ex.LayerWeights)
 	}
-	f := nearest
-	f.Pix = acc
-	f.Doppler = nil
-	f.Options.Projection, f.Options.Observer, f.Options.Exposure = proj, obs, fs.Camera.Exposure
-	lay := j.FrameLayers(fs, obs)
-	return f, lay, nil, offsets, nil
+	return f, lay, kept, ex, err
 }
 
 // frameEXR encodes a flight frame's OpenEXR file: the frame, its kept

@@ -41,11 +41,14 @@ type Info struct {
 	// RegionLuminance holds the mean relative luminance of each of the
 	// Regions² overlapping windows (see MeanLuminance), row by row.
 	RegionLuminance []float64 `json:"region_luminance,omitempty"`
-	// Shutter is the shutter angle in degrees; BlurSamples the sub-frames
-	// integrated over the exposure (1: the frame's instant only).
-	Shutter     float64      `json:"shutter_deg"`
-	BlurSamples int          `json:"blur_samples"`
-	Files       []FileRecord `json:"files"`
+	// Shutter is the shutter angle in degrees; BlurKnots the instants of
+	// the exposure its stars were transformed at (0: the frame's instant
+	// alone, see PlanExposure), BlurPathPx the longest on-screen path of
+	// the probe grid over the exposure, pixels.
+	Shutter    float64      `json:"shutter_deg"`
+	BlurKnots  int          `json:"blur_knots"`
+	BlurPathPx float64      `json:"blur_path_px"`
+	Files      []FileRecord `json:"files"`
 }
 
 // FileRecord names an image file of the frame (relative to the output

@@ -61,7 +61,8 @@ look = "0,20"
 	return j
 }
 
-// renderPan returns frame 10's linear buffer and its sub-frame count.
+// renderPan returns frame 10's linear buffer and its exposure's knot count
+// (0: the frame's instant alone).
 func renderPan(t *testing.T, shutter float64) (*render.Frame, int) {
 	t.Helper()
 	j := panPlan(t, shutter)
@@ -78,11 +79,11 @@ func renderPan(t *testing.T, shutter float64) (*render.Frame, int) {
 		t.Fatal(err)
 	}
 	obs, _ := flightObserver(t, fs)
-	f, _, _, blur, err := j.RenderLinear(prep, fs, obs, proj)
+	f, _, _, ex, err := j.RenderLinear(prep, fs, obs, proj)
 	if err != nil {
 		t.Fatal(err)
 	}
-	return f, len(blur)
+	return f, len(ex.Knots)
 }
 
 // moments returns the summed luminance-like total (R+G+B) and the
@@ -109,14 +110,15 @@ func moments(f *render.Frame) (sum, varX, varY float64) {
 // unblurred frame) and spreads it along the analytic on-screen path of a
 // steady pan: at 30°/s and 10 fps a 180° shutter covers 1.5°, which a
 // 60° pinhole 200 px wide maps to 1.5° × (100 px / tan 30°) × π/180 =
-// 4.534 px at the centre (gnomonic projection, y = f·tan δ). The K
-// midpoint samples of a path of length L have variance L²(K²−1)/(12K²),
-// which adds to the unblurred image's.
+// 4.534 px at the centre (gnomonic projection, y = f·tan δ). The star is
+// a streak of n = ⌈L/(0.75·FWHM)⌉ = 5 sub-positions at the midpoints of
+// equal time steps (render.StreakSpacing), whose variance along the path,
+// L²(n²−1)/(12n²), adds to the unblurred image's.
 func TestMotionBlurPan(t *testing.T) {
 	sharp, k0 := renderPan(t, 0)
 	blur, k := renderPan(t, 180)
-	if k0 != 1 || k < 2 {
-		t.Fatalf("sub-frames: %d with the shutter closed, %d open", k0, k)
+	if k0 != 0 || k != 3 {
+		t.Fatalf("knots: %d with the shutter closed, %d open; want 0 and 3", k0, k)
 	}
 	s0, vx0, vy0 := moments(sharp)
 	s1, vx1, vy1 := moments(blur)
@@ -125,14 +127,15 @@ func TestMotionBlurPan(t *testing.T) {
 	}
 	f := 100 / math.Tan(30*math.Pi/180)
 	L := 1.5 * math.Pi / 180 * f
-	want := L * L * float64(k*k-1) / float64(12*k*k)
+	n := math.Ceil(L / (render.StreakSpacing * render.DefaultFWHM))
+	want := L * L * (n*n - 1) / (12 * n * n)
 	if got := vy1 - vy0; math.Abs(got-want) > 0.02*want {
-		t.Errorf("streak variance along the pan %.4f px², want %.4f (L = %.3f px, %d samples)", got, want, L, k)
+		t.Errorf("streak variance along the pan %.4f px², want %.4f (L = %.3f px, %v sub-positions)", got, want, L, n)
 	}
 	if math.Abs(vx1-vx0) > 0.01*vx0 {
 		t.Errorf("the streak widened across the pan: variance %.4f → %.4f", vx0, vx1)
 	}
-	t.Logf("streak %.3f px in %d sub-frames; variance %.4f → %.4f px²", L, k, vy0, vy1)
+	t.Logf("streak %.3f px of %v sub-positions, %d knots; variance %.4f → %.4f px²", L, n, k, vy0, vy1)
 }
 
 func flightObserver(t *testing.T, fs flight.FrameState) (camera.Observer, error) {
@@ -178,13 +181,13 @@ func BenchmarkFlightBlur(b *testing.B) {
 				b.ResetTimer()
 				var k int
 				for range b.N {
-					_, _, _, blur, err := j.RenderLinear(prep, fs, obs, proj)
+					_, _, _, ex, err := j.RenderLinear(prep, fs, obs, proj)
 					if err != nil {
 						b.Fatal(err)
 					}
-					k = len(blur)
+					k = len(ex.Knots)
 				}
-				b.ReportMetric(float64(k), "subframes")
+				b.ReportMetric(float64(k), "knots")
 			})
 		}
 	}
