@@ -1,6 +1,10 @@
 package catalog
 
-import "testing"
+import (
+	"errors"
+	"strings"
+	"testing"
+)
 
 func TestParseColumnMap(t *testing.T) {
 	cm, err := ParseColumnMap(" ra = alpha_h , dec=delta,vmag=mag,bv=colour,plx=plx_mas,name=label,id=star,ra-hours=true,epoch=2000")
@@ -20,5 +24,52 @@ func TestParseColumnMap(t *testing.T) {
 	}
 	if cm, err := ParseColumnMap(""); err != nil || cm != (ColumnMap{}) {
 		t.Errorf("empty spec: %+v %v", cm, err)
+	}
+}
+
+// ParseColumns is the one column-map parser (--column, plan
+// catalogue.columns through ColumnMap.Set, ParseColumnMap): aliases, the
+// bare ra-hours word, and refusals with their sentinel errors.
+func TestParseColumns(t *testing.T) {
+	for _, c := range []struct {
+		in   []string
+		want ColumnMap
+	}{
+		{nil, ColumnMap{}},
+		{[]string{"dist=d_pc"}, ColumnMap{Dist: "d_pc"}},
+		{[]string{"distance=d_pc"}, ColumnMap{Dist: "d_pc"}},
+		{[]string{" VMAG = V ", "b-v=BV", "ra-hours"}, ColumnMap{Vmag: "V", BV: "BV", RAHours: true}},
+		{[]string{"de=DE", "pmde=pm", "plx=p", "v=m"}, ColumnMap{Dec: "DE", PMDec: "pm", Parallax: "p", Vmag: "m"}},
+		{[]string{"epoch=1991.25", "ra_hours=false"}, ColumnMap{Epoch: 1991.25}},
+	} {
+		cm, err := ParseColumns(c.in)
+		if err != nil || cm != c.want {
+			t.Errorf("%q: have %+v, %v; want %+v", c.in, cm, err, c.want)
+		}
+	}
+	for _, c := range []struct {
+		in   string
+		want error
+	}{
+		{"g=phot_g_mean_mag", ErrGaiaColumn},
+		{"bp_rp=x", ErrGaiaColumn},
+		{"vmg=V", ErrColumnField},
+		{"colour=x", ErrColumnField},
+	} {
+		_, err := ParseColumns([]string{c.in})
+		if !errors.Is(err, c.want) || !strings.Contains(err.Error(), c.in) {
+			t.Errorf("%q: have %v, want %v naming the entry", c.in, err, c.want)
+		}
+	}
+	for _, bad := range [][]string{{"ra"}, {"=x"}, {"ra="}, {"ra=a", "ra=b"}, {"epoch=1e9"}} {
+		if _, err := ParseColumns(bad); err == nil {
+			t.Errorf("%q accepted", bad)
+		}
+	}
+	_, err := ParseColumns([]string{"vmg=V"})
+	for _, f := range ColumnFields {
+		if !strings.Contains(err.Error(), f) {
+			t.Errorf("unknown-field message %q does not list %q", err, f)
+		}
 	}
 }

@@ -3,6 +3,7 @@ package flight
 import (
 	"errors"
 	"fmt"
+	"maps"
 	"math"
 	"path"
 	"reflect"
@@ -16,6 +17,7 @@ import (
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/frameopt"
 )
 
@@ -77,17 +79,19 @@ type CatalogueSpec struct {
 	Path string `toml:"path"`
 	// Format of the file (left to the catalogue reader; empty: detect).
 	Format string `toml:"format"`
-	// Columns maps our column names (see CatalogueColumns) to the file's.
-	Columns map[string]string `toml:"columns"`
+	// Columns maps our column names (see CatalogueColumns) to the file's,
+	// as given; ColumnMap is the same, parsed (catalog.ColumnMap.Set).
+	Columns   map[string]string `toml:"columns"`
+	ColumnMap catalog.ColumnMap `toml:"-"`
 	// Names is the IAU Catalog of Star Names file for proper names in star
 	// references and labels; empty: the fetched copy in the user cache, if
 	// any; "none": no names table.
 	Names string `toml:"names"`
 }
 
-// CatalogueColumns lists the column names a [catalogue.columns] map may set.
-var CatalogueColumns = []string{"id", "name", "ra", "dec", "parallax", "distance", "vmag",
-	"bv", "teff", "g", "bp_rp", "pmra", "pmdec", "rv"}
+// CatalogueColumns lists the column names a [catalogue.columns] map may set
+// (catalog.ColumnFields; catalog.ColumnMap.Set also takes its aliases).
+var CatalogueColumns = catalog.ColumnFields
 
 // StartSpec is the [start] table: where and how the ship starts. Position is
 // [x, y, z] in pc (ICRS, Sun at the origin) or Star; neither means the Sun.
@@ -482,20 +486,18 @@ func (p *Plan) fill(pf *planFile, c *checker) {
 	c.str(cat.Path, "catalogue", "path")
 	c.str(cat.Format, "catalogue", "format")
 	c.str(cat.Names, "catalogue", "names")
-	for k, v := range cat.Columns {
-		known := false
-		for _, n := range CatalogueColumns {
-			known = known || n == k
-		}
-		if !known {
+	for _, k := range slices.Sorted(maps.Keys(cat.Columns)) {
+		v := cat.Columns[k]
+		c.str(v, "catalogue", "columns", k)
+		err := cat.ColumnMap.Set(k, v)
+		switch {
+		case errors.Is(err, catalog.ErrColumnField):
 			c.errs = append(c.errs, &PlanError{File: c.file, Line: c.lines.line("catalogue", "columns", k),
 				Key: "catalogue.columns." + k, Msg: "unknown column name",
 				Suggest: "catalogue.columns." + closest(k, CatalogueColumns), Err: ErrUnknownKey})
+		case err != nil:
+			c.fail(err.Error(), "catalogue", "columns", k)
 		}
-		if v == "" {
-			c.fail("empty column name", "catalogue", "columns", k)
-		}
-		c.str(v, "catalogue", "columns", k)
 	}
 	p.Catalogue = cat
 

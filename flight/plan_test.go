@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"errors"
+	"fmt"
 	"math"
 	"os"
 	"reflect"
@@ -136,6 +137,8 @@ func TestPlanErrors(t *testing.T) {
 		{"unknown key in leg", "[[leg]]\nkind = \"boost\"\nacel_g = 1\nship_years = 1\n[show]\nseconds = 5\n", ErrUnknownKey, 3, "leg.acel_g", "leg.accel_g"},
 		{"unknown table", base + "[camra]\nwidth = 100\n", ErrUnknownKey, 6, "camra", "camera"},
 		{"unknown column", base + "[catalogue.columns]\nvmg = \"Vmag\"\n", ErrUnknownKey, 7, "catalogue.columns.vmg", "catalogue.columns.vmag"},
+		{"Gaia column", base + "[catalogue]\npath = \"t.csv\"\n[catalogue.columns]\nvmag = \"V\"\ng = \"G\"\n", ErrPlanValue, 10, "catalogue.columns.g", ""},
+		{"empty column", base + "[catalogue.columns]\nvmag = \"\"\n", ErrPlanValue, 7, "catalogue.columns.vmag", ""},
 		{"NaN", base + "[camera]\nfov = nan\n", ErrPlanValue, 7, "camera.fov", ""},
 		{"Inf", strings.Replace(base, "seconds = 5", "seconds = inf", 1), ErrPlanValue, 5, "show.seconds", ""},
 		{"absurd size", base + "[camera]\nwidth = 100000\nheight = 10\n", ErrPlanValue, 7, "camera.width", ""},
@@ -387,4 +390,32 @@ func FuzzParsePlan(f *testing.F) {
 			}
 		}
 	})
+}
+
+// The plan's [catalogue.columns] is parsed by catalog.ColumnMap.Set, the
+// parser of --column: dist and its alias distance both work, and a Gaia
+// column is refused at parse time with the catalogue's own message.
+func TestPlanColumns(t *testing.T) {
+	base := "[catalogue]\npath = \"t.csv\"\n[catalogue.columns]\n%s\n[[leg]]\nkind = \"cruise\"\nship_years = 1\n[show]\nseconds = 5\n"
+	for _, c := range []struct {
+		cols string
+		want catalog.ColumnMap
+	}{
+		{"dist = \"D\"\nvmag = \"V\"", catalog.ColumnMap{Dist: "D", Vmag: "V"}},
+		{"distance = \"D\"", catalog.ColumnMap{Dist: "D"}},
+		{"plx = \"p\"\nra_hours = \"true\"", catalog.ColumnMap{Parallax: "p", RAHours: true}},
+	} {
+		p, err := ParsePlan([]byte(fmt.Sprintf(base, c.cols)), "t.toml")
+		if err != nil {
+			t.Errorf("%q: %v", c.cols, err)
+			continue
+		}
+		if p.Catalogue.ColumnMap != c.want {
+			t.Errorf("%q: have %+v, want %+v", c.cols, p.Catalogue.ColumnMap, c.want)
+		}
+	}
+	_, err := ParsePlan([]byte(fmt.Sprintf(base, "g = \"G\"")), "t.toml")
+	if err == nil || !strings.Contains(err.Error(), catalog.ErrGaiaColumn.Error()) {
+		t.Errorf("g column: %v, want the catalogue's message %q", err, catalog.ErrGaiaColumn)
+	}
 }

@@ -94,9 +94,9 @@ func readOptions(format string, columns []string) (catalog.ReadOptions, error) {
 		}
 		opt.Format = f
 	}
-	cm, err := parseColumnMap(columns)
+	cm, err := catalog.ParseColumns(columns)
 	if err != nil {
-		return opt, err
+		return opt, usagef("--column: %v", err)
 	}
 	opt.Columns = cm
 	return opt, nil
@@ -105,7 +105,7 @@ func readOptions(format string, columns []string) (catalog.ReadOptions, error) {
 func catalogInspect(e *env, args []string) error {
 	fs := catalogFlagSet(e, "inspect", "Usage: skyframe catalog inspect [options] FILE...\n\nFILE: a file, a directory, a glob or builtin; several are read as one catalogue.\n\nOptions:\n")
 	format := fs.String("catalog-format", "", "format, overriding detection")
-	cols := fs.StringSlice("column", nil, "generic CSV/TSV column map, FIELD=NAME (fields: "+strings.Join(columnFields, ", ")+")")
+	cols := fs.StringSlice("column", nil, "generic CSV/TSV column map, FIELD=NAME (fields: "+strings.Join(catalog.ColumnFields, ", ")+")")
 	var namesPath string
 	registerNames(fs, &namesPath)
 	if err := fs.Parse(args); err != nil {

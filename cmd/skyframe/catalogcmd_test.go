@@ -105,3 +105,34 @@ func TestCatalogFetchLoopback(t *testing.T) {
 		t.Errorf("unknown catalogue: exit %d, want %d", code, exitUsage)
 	}
 }
+
+// --column and a plan's catalogue.columns go through one parser
+// (catalog.ParseColumns / ColumnMap.Set): distance= is dist, and a Gaia
+// column is refused with the same message on the command line and in a
+// plan (at parse time, with its line).
+func TestColumnMapOneParser(t *testing.T) {
+	dir := t.TempDir()
+	csv := filepath.Join(dir, "t.csv")
+	if err := os.WriteFile(csv, []byte("id,ra,dec,V,BV,D\n1,10,20,3,0.6,5\n2,30,-40,4,1.0,12\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, f := range []string{"dist", "distance"} {
+		out, errs, code := runCmd(t, "stars", "--catalog", csv, "--column", "vmag=V,bv=BV,"+f+"=D", "--speed", "0")
+		if code != exitOK || !strings.Contains(out, ",5,") || !strings.Contains(out, ",12,") {
+			t.Errorf("--column %s=D: status %d, distances not read:\n%s%s", f, code, out, errs)
+		}
+	}
+	_, errs, code := runCmd(t, "stars", "--catalog", csv, "--column", "vmag=V,g=G")
+	if code != exitUsage || !strings.Contains(errs, catalog.ErrGaiaColumn.Error()) {
+		t.Errorf("--column g=G: status %d, %q", code, errs)
+	}
+	plan := filepath.Join(dir, "plan.toml")
+	body := "[catalogue]\npath = \"t.csv\"\n[catalogue.columns]\nvmag = \"V\"\ng = \"G\"\n[[leg]]\nkind = \"cruise\"\nship_years = 1\n[show]\nseconds = 1\n"
+	if err := os.WriteFile(plan, []byte(body), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, errs, code = runCmd(t, "flight", plan, "--dry-run")
+	if code != exitUsage || !strings.Contains(errs, catalog.ErrGaiaColumn.Error()) || !strings.Contains(errs, "plan.toml:5") {
+		t.Errorf("plan catalogue.columns.g: status %d, %q", code, errs)
+	}
+}

@@ -328,16 +328,7 @@ func planStars(ctx context.Context, warn io.Writer, plan *flight.Plan, base stri
 		}
 		opt.Format = fm
 	}
-	for k, v := range c.Columns {
-		dst := map[string]*string{"id": &opt.Columns.ID, "name": &opt.Columns.Name, "ra": &opt.Columns.RA,
-			"dec": &opt.Columns.Dec, "parallax": &opt.Columns.Parallax, "distance": &opt.Columns.Dist,
-			"vmag": &opt.Columns.Vmag, "bv": &opt.Columns.BV, "teff": &opt.Columns.Teff,
-			"pmra": &opt.Columns.PMRA, "pmdec": &opt.Columns.PMDec, "rv": &opt.Columns.RV}[k]
-		if dst == nil {
-			return nil, usagef("%s: catalogue.columns.%s: only the Gaia reader uses this column, and it finds it itself", plan.Name, k)
-		}
-		*dst = v
-	}
+	opt.Columns = c.ColumnMap
 	path := cataloguePath(plan, base)
 	stars, rep, err := openCatalog(ctx, []string{path}, opt, nil)
 	if err != nil {

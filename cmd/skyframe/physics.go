@@ -54,7 +54,7 @@ func (p *physicsFlags) register(fs *pflag.FlagSet, defaultSpeed float64) {
 	if fs.Lookup("beaming") == nil { // still takes it as a frame option (frameopt)
 		fs.StringVar(&p.beaming, "beaming", "exact", "point-source beaming convention: exact (flux ∝ D²), d3, d4 (moving-source conventions of published figures)")
 	}
-	fs.StringSliceVar(&p.columns, "column", nil, "generic CSV/TSV column map, FIELD=NAME, repeatable (fields: "+strings.Join(columnFields, ", ")+"; add ra-hours if RA is in hours)")
+	fs.StringSliceVar(&p.columns, "column", nil, "generic CSV/TSV column map, FIELD=NAME, repeatable (fields: "+strings.Join(catalog.ColumnFields, ", ")+"; add ra-hours if RA is in hours)")
 	fs.Float64Var(&p.epoch, "epoch", 0, "propagate positions by proper motion to this Julian epoch (e.g. 2100); 0 keeps the catalogue epoch")
 	registerNames(fs, &p.names)
 	registerSkyDepth(fs, &p.skyDepth)
