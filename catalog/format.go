@@ -167,7 +167,7 @@ func detectFormat(br *bufio.Reader, name string, gz bool) (Format, error) {
 
 // looksLikeHeader: a delimited line whose first field starts with a letter.
 func looksLikeHeader(ln []byte) bool {
-	if bytes.IndexAny(ln, ",\t;") < 0 {
+	if !bytes.ContainsAny(ln, ",\t;") {
 		return false
 	}
 	t := bytes.TrimLeft(ln, " \"'")

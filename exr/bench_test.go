@@ -66,7 +66,7 @@ func benchEncode(b *testing.B, img *Image, e Encoder) {
 }
 
 // BenchmarkEncode4096HalfZIP is the figure: a 4096² RGB frame, half,
-// ZIP (compare render's BenchmarkWritePNG8/16 and BenchmarkWriteFITS).
+// ZIP (compare imgfile's BenchmarkWritePNG8/16 and BenchmarkWriteFITS).
 func BenchmarkEncode4096HalfZIP(b *testing.B) { benchEncode(b, benchFrame(b, false), Encoder{}) }
 
 // BenchmarkEncode4096HalfZIPBackground has a non-zero background in every

@@ -203,14 +203,6 @@ func (l *leg) AtT(t float64) State {
 	return l.End()
 }
 
-func (l *leg) length() float64 {
-	var s float64
-	for i := range l.segs {
-		s += l.segs[i].length
-	}
-	return s
-}
-
 // appendSeg appends a segment continuing from the end of the last one (or
 // from start), skipping zero-length pieces unless it would leave none.
 func (l *leg) appendSeg(start State, axis r3.Vec, phi0, rate, dtau float64) {
@@ -451,7 +443,6 @@ func (v VoyageSpec) Build(start State, resolve Resolver) (Leg, error) {
 		// stand-off point, the target stays the destination.
 		d -= so
 		dest = r3.Add(start.Pos, r3.Scale(d, u))
-		delta = r3.Sub(dest, start.Pos)
 	}
 	phiS, err := signedRapidity(start, u)
 	if err != nil {

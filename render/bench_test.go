@@ -8,6 +8,7 @@ import (
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/imgfile"
 )
 
 // BenchmarkTransform measures the per-star boost + photometry loop (phase 1
@@ -109,7 +110,7 @@ func BenchmarkFrameFisheye4096PNG(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		if err := WritePNG(io.Discard, f.ToNRGBA(ToneShoulder), nil); err != nil {
+		if err := imgfile.WritePNG(io.Discard, f.ToNRGBA(ToneShoulder), nil); err != nil {
 			b.Fatal(err)
 		}
 	}

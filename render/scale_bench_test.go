@@ -8,8 +8,8 @@ package render
 // (-short drops the 10⁷-star cases). Related benchmarks elsewhere: the
 // per-star transform BenchmarkTransform and BenchmarkPhotometry (this
 // package), camera.BenchmarkSeeBatch1e6 and BenchmarkApplyBatch1e6, PNG
-// and FITS encoding BenchmarkWritePNG8 and BenchmarkWriteFITS (this
-// package), catalogue loading catalog.BenchmarkCacheLoad10M and
+// and FITS encoding imgfile.BenchmarkWritePNG8 and BenchmarkWriteFITS,
+// catalogue loading catalog.BenchmarkCacheLoad10M and
 // BenchmarkOpenCache1M.
 //
 // Metrics: Mstars/s is catalogue stars per second of wall time; peak-B/star

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bufio"
 	"fmt"
 	"io"
 	"math"
@@ -229,7 +228,6 @@ func printReport(w io.Writer, s *catalog.Stars, r *catalog.Report, took time.Dur
 		r.NoDistance, r.NoColour, catalog.DefaultTeff, r.TeffFromCatalogue, r.TeffExtrapolated)
 	fmt.Fprintf(w, "epoch:       J%.2f\n", r.Epoch)
 	fmt.Fprintf(w, "read in:     %v\n", took.Round(time.Millisecond))
-	_ = s
 }
 
 func catalogPack(e *env, args []string) error {
@@ -436,9 +434,6 @@ func checkWritable(flag, path string) error {
 	os.Remove(name)
 	return nil
 }
-
-var _ = bufio.NewReader
-var _ = math.Inf
 
 // fetchNames downloads the IAU Catalog of Star Names into the user cache
 // (or out), where --names finds it by default.

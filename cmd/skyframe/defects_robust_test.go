@@ -246,8 +246,8 @@ func TestCatalogFetchRefusesUnverifiable(t *testing.T) {
 	dir := t.TempDir()
 	dst := filepath.Join(dir, "bsc5.dat")
 	code, out, errs := runIn(t, "catalog", "fetch", "bsc5", "--url", srv.URL+"/catalog", "-o", dst)
-	if code != exitFailure || !strings.Contains(errs, "cannot tell whether the download is complete") {
-		t.Errorf("status %d, stderr %q", code, errs)
+	if code != exitFailure || !strings.Contains(errs, "cannot tell whether the download is complete") || out != "" {
+		t.Errorf("status %d, stdout %q, stderr %q", code, out, errs)
 	}
 	if ents, _ := os.ReadDir(dir); len(ents) != 0 {
 		t.Errorf("left behind: %v", ents)

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"fmt"
 	"math"
 	"strconv"
 	"strings"
@@ -37,26 +36,6 @@ func parseRADec(flag, s string) (ra, dec float64, err error) {
 	return math.Mod(math.Mod(v[0], 360)+360, 360), v[1], nil
 }
 
-// maxSize is the largest width or height a frame may have.
-const maxSize = 32768
-
-// parseSize reads "WxH".
-func parseSize(flag, s string) (w, h int, err error) {
-	a, b, ok := strings.Cut(strings.ToLower(s), "x")
-	if !ok {
-		return 0, 0, usagef("--%s %q: want WIDTHxHEIGHT, e.g. 1920x1080", flag, s)
-	}
-	w, err1 := strconv.Atoi(strings.TrimSpace(a))
-	h, err2 := strconv.Atoi(strings.TrimSpace(b))
-	if err1 != nil || err2 != nil {
-		return 0, 0, usagef("--%s %q: want WIDTHxHEIGHT in whole pixels", flag, s)
-	}
-	if w < 1 || h < 1 || w > maxSize || h > maxSize {
-		return 0, 0, usagef("--%s %q: each side must be between 1 and %d pixels", flag, s, maxSize)
-	}
-	return w, h, nil
-}
-
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 // checkFinite names a flag whose value is NaN or infinite.
@@ -66,7 +45,3 @@ func checkFinite(flag string, v float64) error {
 	}
 	return nil
 }
-
-func fmtFloat(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-
-var _ = fmt.Sprint

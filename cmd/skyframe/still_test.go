@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/imgfile"
 	"github.com/skyframe/skyframe/internal/sharedcat"
 	"github.com/skyframe/skyframe/render"
 )
@@ -63,7 +64,7 @@ func TestStarsBSC5AtRest(t *testing.T) {
 // written here from Calabretta & Greisen (2002, A&A 395, 1077) §2–§5.1.3 and
 // Greisen & Calabretta (2002, A&A 395, 1061) eq. (1)–(4), independently of
 // the renderer's projection code. p1, p2 are 1-based FITS pixel coordinates.
-func tanWorld(t *testing.T, h render.FITSHeader, p1, p2 float64) (ra, dec float64) {
+func tanWorld(t *testing.T, h imgfile.FITSHeader, p1, p2 float64) (ra, dec float64) {
 	t.Helper()
 	get := func(k string, def float64) float64 {
 		v, err := h.Float(k)
@@ -122,7 +123,7 @@ func TestStillFITSWCSMatchesStars(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	h, err := render.ReadFITSHeader(f)
+	h, err := imgfile.ReadFITSHeader(f)
 	if err != nil {
 		t.Fatal(err)
 	}
