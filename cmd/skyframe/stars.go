@@ -187,16 +187,14 @@ func parseFlags(fs *pflag.FlagSet, args []string) error {
 	return nil
 }
 
-// magPerLn converts a natural-log flux ratio into magnitudes.
-const magPerLn = 2.5 / math.Ln10
-
 // observeStars computes every star's apparent state for observer obs
 // (sc gives the catalogue, names, heading and beaming), sorted by observed V.
 //
 // Catalogue values are taken at their printed precision (short32). The
-// observed V is the catalogue V plus the change in magnitude, −2.5 log₁₀ of
-// (W′/W)·(V flux per unit W at D·T)/(at T), so that no change (β = 0, at
-// the Sun) leaves V exactly as it is.
+// observed V and colour are spectrum.Observe's (the photometry the renderer
+// and the census use): the catalogue V plus the change in magnitude,
+// −2.5 log₁₀ of (W′/W)·(V flux per unit W at D·T)/(at T), so that no change
+// (β = 0, at the Sun) leaves V exactly as it is.
 func observeStars(sc *scene, obs camera.Observer) []starRow {
 	s := sc.stars
 	heading := sc.heading
@@ -216,13 +214,11 @@ func observeStars(sc *scene, obs camera.Observer) []starRow {
 		if !math.IsInf(st.Dist, 0) {
 			from = r3.Unit(r3.Sub(r3.Scale(st.Dist, u), obs.Position))
 		}
-		lnT := math.Log(T)
-		lnTObs := lnT + math.Log(d)
+		ph := spectrum.Observe(V, T, d, dil, sc.beaming)
+		vObs, cx, cy := ph.V, ph.X, ph.Y
 		wScale := dil * sc.beaming.WScale(d)
-		vObs := V - magPerLn*(math.Log(wScale)+spectrum.Lookup(lnTObs).LnV-spectrum.Lookup(lnT).LnV)
 		raObs, decObs := camera.RADec(n)
 		tObs := d * T
-		cx, cy := spectrum.Chromaticity(tObs)
 		row := starRow{
 			ID: st.ID, Name: sc.index.Name(i), RA: st.RA, Dec: st.Dec, Temp: T, Vmag: V,
 			Theta: angleDeg(from, heading), ThetaObs: angleDeg(n, heading),

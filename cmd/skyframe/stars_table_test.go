@@ -117,6 +117,38 @@ func TestStarsSpeedsEqualSingleRuns(t *testing.T) {
 	}
 }
 
+// The table's photometry is the renderer's and the census's
+// (spectrum.Observe, checked against direct integration of the V passband
+// in the spectrum tests): at speed, each row's vmag_obs equals the W-based
+// Blackbody path, FromV(T, V).Observed(D, beaming).Vmag() [pub:
+// physics.md, T′ = D T, W′ = W·WScale(D)], to 1e-9 mag, and its colour is
+// the chromaticity of a blackbody at D·T to 1e-9; the built-in sky (no
+// shared data needed), seen from the Sun. A 0.004 mag error fails.
+func TestStarsPhotometryMatchesBlackbody(t *testing.T) {
+	for _, c := range []struct {
+		beam string
+		b    spectrum.Beaming
+	}{{"exact", spectrum.BeamingExact}, {"d4", spectrum.BeamingD4}} {
+		rows := starsJSON(t, "--speeds", "0.5,0.99", "--beaming", c.beam, "--limit", "300")
+		if len(rows) != 600 {
+			t.Fatalf("%d rows, want 600", len(rows))
+		}
+		for _, r := range rows {
+			bb, err := spectrum.FromV(r.Temp, r.Vmag)
+			if err != nil {
+				t.Fatal(err)
+			}
+			o := bb.Observed(r.Doppler, c.b)
+			if want := o.Vmag(); math.Abs(r.VmagObs-want) > 1e-9 {
+				t.Fatalf("%s β %v id %d (T %v, D %v): vmag_obs %.12f, Blackbody path %.12f", c.beam, r.Beta, r.ID, r.Temp, r.Doppler, r.VmagObs, want)
+			}
+			if x, y := spectrum.Chromaticity(o.T); math.Abs(r.CIEx-x) > 1e-9 || math.Abs(r.CIEy-y) > 1e-9 {
+				t.Fatalf("%s β %v id %d: colour (%v, %v), blackbody at D·T (%v, %v)", c.beam, r.Beta, r.ID, r.CIEx, r.CIEy, x, y)
+			}
+		}
+	}
+}
+
 // Parquet read back by parquet-go gives the JSON table's values exactly,
 // with and without --speeds; without a file it is refused with exit 2.
 func TestStarsParquet(t *testing.T) {
