@@ -27,6 +27,7 @@ import (
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/sky"
 	"github.com/skyframe/skyframe/spectrum"
 )
 
@@ -38,13 +39,27 @@ type Job struct {
 	Plan   *flight.Plan
 	Hash   string // identity of everything that makes the frames (Inputs.Hash, Preview)
 	Inputs Inputs // what went into Hash, recorded in each sidecar
-	Stars  *catalog.Stars
-	Index  *names.Index
-	OutDir string
-	Frames []int // the frames this job handles, ascending
-	Shard  flight.Shard
-	Frame  frameopt.Frame // the plan's frame options, parsed (a preview's size)
-	Every  int            // every Nth frame only (Preview); 0 or 1: all
+	// Stars are the rows every frame's catalogue starts with (Sky.Base,
+	// the catalogue with the Sun); Index finds stars among them.
+	Stars *catalog.Stars
+	Index *names.Index
+	// Sky gives each frame its catalogue: Stars, and for the built-in sky
+	// the fainter stars as deep as the frame needs (sky.Source.Frame); nil
+	// draws Stars as they are in every frame.
+	Sky *sky.Source
+	// Unresolved builds the unresolved-light maps for the depth each frame
+	// of the built-in sky draws to, when UnresolvedFollows: the layer is on
+	// without a fixed depth, so it takes over where the frame's stars stop.
+	Unresolved        *sky.UnresolvedMaps
+	UnresolvedFollows bool
+	// Completeness, when set, receives each rendered frame's completeness
+	// report (the command warns about the worst).
+	Completeness func(frame int, r sky.Report)
+	OutDir       string
+	Frames       []int // the frames this job handles, ascending
+	Shard        flight.Shard
+	Frame        frameopt.Frame // the plan's frame options, parsed (a preview's size)
+	Every        int            // every Nth frame only (Preview); 0 or 1: all
 	// Workers bounds the goroutines per frame for rendering and encoding
 	// (0: all CPUs); the bytes written do not depend on it.
 	Workers int
@@ -280,12 +295,22 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	fr := j.Frame
-	f, lay, kept, ex, err := j.RenderLinear(prep, fs, obs, proj)
+	jf, stars, prep, rep, err := j.frameSky(prep, i, fs, obs, proj)
+	if err != nil {
+		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+	}
+	f, lay, kept, ex, err := jf.RenderLinear(prep, fs, obs, proj)
 	if err != nil {
 		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	spec := &frame.Spec{Proj: proj, Opt: f.Options, Tone: fr.Tone, Depth: fr.Depth, Look: fs.Look.Look, Source: "skyframe flight",
-		Credit: j.Credit, Layers: lay, EXR: j.EXR, Version: j.Version, Stars: j.Stars, Heading: fs.State.Dir}
+		Credit: j.Credit, Layers: lay, EXR: j.EXR, Version: j.Version, Stars: stars, Heading: fs.State.Dir}
+	if rep != nil {
+		spec.DepthV, spec.NeededV = finitePtr(rep.Have), finitePtr(rep.Threshold())
+		if j.Completeness != nil {
+			j.Completeness(i, *rep)
+		}
+	}
 	side := spec.Sidecar(f)
 	img8 := f.ToNRGBA(fr.Tone)
 	lum := MeanLuminance(img8)
@@ -537,4 +562,70 @@ func (j *Job) frameEXR(spec *frame.Spec, f *render.Frame, kept []render.Contribu
 		return nil, err
 	}
 	return buf.Bytes(), nil
+}
+
+// frameSky settles the catalogue of frame i (state fs, observer obs,
+// projection proj): with Sky, the frame's catalogue and its prepared form
+// for the depth the frame needs at its own instant and at the shutter's
+// opening and closing, and its completeness report; without, Stars and
+// prep as given. The job it returns is j with the unresolved layer
+// starting at that depth when UnresolvedFollows.
+func (j *Job) frameSky(prep *render.Prepared, i int, fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*Job, *catalog.Stars, *render.Prepared, *sky.Report, error) {
+	if j.Sky == nil {
+		return j, j.Stars, prep, nil, nil
+	}
+	opts := []render.Options{j.instantOptions(fs, obs, proj)}
+	if sh := j.Frame.Shutter; sh > 0 {
+		for _, u := range []float64{-1, 1} {
+			fsk, err := j.Plan.FrameStateAt(i, flight.ExposureOffset(u, sh))
+			if err != nil {
+				return nil, nil, nil, nil, err
+			}
+			obsk, err := flight.Observer(fsk.State)
+			if err != nil {
+				return nil, nil, nil, nil, err
+			}
+			projk, err := j.Projection(fsk)
+			if err != nil {
+				return nil, nil, nil, nil, err
+			}
+			opts = append(opts, j.instantOptions(fsk, obsk, projk))
+		}
+	}
+	fsky, err := j.Sky.Frame(opts, math.NaN())
+	if err != nil {
+		return nil, nil, nil, nil, err
+	}
+	stars, fprep, err := fsky.Stars(obs.Position)
+	if err != nil {
+		return nil, nil, nil, nil, err
+	}
+	jf := j
+	if j.UnresolvedFollows && j.Unresolved != nil && j.Layers.Unresolved != nil {
+		u, err := j.Unresolved.At(fsky.Depth)
+		if err != nil {
+			return nil, nil, nil, nil, err
+		}
+		c := *j
+		c.Layers.Unresolved, c.Layers.UnresolvedDepth = u, fsky.Depth
+		jf = &c
+	}
+	rep := fsky.Report
+	return jf, stars, fprep, &rep, nil
+}
+
+// instantOptions are the render options of one instant of a frame: the
+// ones RenderLinear draws it with.
+func (j *Job) instantOptions(fs flight.FrameState, obs camera.Observer, proj camera.Projection) render.Options {
+	fr := j.Frame
+	return render.Options{Projection: proj, Observer: obs, Beaming: fr.Beaming, FWHM: fr.FWHM,
+		Exposure: fs.Camera.Exposure, Limit: fr.Limit, Color: spectrum.ColorOptions{White: fr.White}, Workers: j.Workers}
+}
+
+// finitePtr returns &v, or nil for NaN and ±Inf.
+func finitePtr(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
 }

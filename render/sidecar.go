@@ -92,8 +92,10 @@ type CatalogInfo struct {
 	Epoch  float64 `json:"epoch"`
 	// DepthV is the catalogue's completeness limit (estimated from its
 	// magnitude counts, or the depth the built-in sky was drawn to) and
-	// NeededV the frame's completeness bound (NeededDepth); absent when not
-	// known.
+	// NeededV the depth the frame needs to be complete (NeededDepth: for the
+	// built-in sky, for the stars the image can show; for a catalogue file,
+	// for the frame's cull limit); absent when not known. A flight records
+	// them per frame.
 	DepthV  *float64 `json:"depth_v,omitempty"`
 	NeededV *float64 `json:"needed_v,omitempty"`
 }

@@ -185,6 +185,22 @@ func cellReaches(c catalog.SynthCell, opt render.Options, prof *render.DepthProf
 	return !math.IsInf(prof.NeededFor(dop(th1)*0.999, dop(th0)*1.001), -1)
 }
 
+// Catalogue returns the frame's catalogue for an instant whose observer
+// is at pos (pc), as Stars does, without preparing it (a single frame is
+// drawn straight from it).
+func (f *Frame) Catalogue(pos r3.Vec) *catalog.Stars {
+	src := f.src
+	base := src.base
+	if !catalog.SunShown([3]float64{pos.X, pos.Y, pos.Z}) {
+		base = src.dim
+	}
+	if f.limit == nil {
+		return base
+	}
+	deep := src.cache.Sky(f.Depth, func(c catalog.SynthCell) float64 { return f.limit[c] })
+	return catalog.Concat(base, deep.Slice(src.nBuilt, deep.Len()))
+}
+
 // Stars returns the frame's catalogue for an instant whose observer is at
 // pos (pc), and its prepared form (render.Prepare) for drawing many
 // instants or frames: Base's rows (the Sun's dimmed at the origin), then,
@@ -196,28 +212,23 @@ func (f *Frame) Stars(pos r3.Vec) (*catalog.Stars, *render.Prepared, error) {
 	origin := !catalog.SunShown([3]float64{pos.X, pos.Y, pos.Z})
 	key := f.key<<1 | b2u(origin)
 	src.mu.Lock()
-	defer src.mu.Unlock()
 	for i, e := range src.last {
 		if e.stars != nil && e.key == key {
 			src.last[0], src.last[i] = src.last[i], src.last[0]
+			src.mu.Unlock()
 			return e.stars, e.prep, nil
 		}
 	}
-	base := src.base
-	if origin {
-		base = src.dim
-	}
-	s := base
-	if f.limit != nil {
-		deep := src.cache.Sky(f.Depth, func(c catalog.SynthCell) float64 { return f.limit[c] })
-		s = catalog.Concat(base, deep.Slice(src.nBuilt, deep.Len()))
-	}
+	src.mu.Unlock()
+	s := f.Catalogue(pos)
 	prep, err := render.Prepare(s)
 	if err != nil {
 		return nil, nil, err
 	}
+	src.mu.Lock()
 	src.last[1] = src.last[0]
 	src.last[0] = entry{key: key, stars: s, prep: prep}
+	src.mu.Unlock()
 	return s, prep, nil
 }
 

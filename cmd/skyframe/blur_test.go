@@ -66,10 +66,6 @@ look = "0,20"
 func renderPan(t *testing.T, shutter float64) (*render.Frame, int) {
 	t.Helper()
 	j := panPlan(t, shutter)
-	prep, err := render.Prepare(j.Stars)
-	if err != nil {
-		t.Fatal(err)
-	}
 	fs, err := j.Plan.FrameState(10)
 	if err != nil {
 		t.Fatal(err)
@@ -79,6 +75,15 @@ func renderPan(t *testing.T, shutter float64) (*render.Frame, int) {
 		t.Fatal(err)
 	}
 	obs, _ := flightObserver(t, fs)
+	// The frame's catalogue: the star and the Sun, culled at the origin.
+	fr, err := j.Sky.Frame([]render.Options{{Projection: proj, Observer: obs}}, math.NaN())
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, prep, err := fr.Stars(obs.Position)
+	if err != nil {
+		t.Fatal(err)
+	}
 	f, _, _, ex, err := j.RenderLinear(prep, fs, obs, proj)
 	if err != nil {
 		t.Fatal(err)

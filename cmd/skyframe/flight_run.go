@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"slices"
+	"strconv"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
@@ -14,6 +15,7 @@ import (
 	"github.com/skyframe/skyframe/imgfile"
 	flightjob "github.com/skyframe/skyframe/job"
 	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/sky"
 )
 
 // errInterrupted is wrapped by the error of a render stopped by a signal.
@@ -86,10 +88,18 @@ func renderFlight(e *env, j *flightjob.Job, resume bool) error {
 	}
 	start := time.Now()
 	var prep *render.Prepared
-	if len(todo) > 0 {
+	if len(todo) > 0 && j.Sky == nil {
 		var err error
 		if prep, err = render.Prepare(j.Stars); err != nil {
 			return err
+		}
+	}
+	var short []int // frames whose catalogue falls short, and their reports
+	reps := map[int]sky.Report{}
+	j.Completeness = func(i int, r sky.Report) {
+		if !r.Complete() {
+			short = append(short, i)
+			reps[i] = r
 		}
 	}
 	enc := &imgfile.PNGEncoder{Workers: j.Workers}
@@ -131,6 +141,7 @@ func renderFlight(e *env, j *flightjob.Job, resume bool) error {
 	}
 	prog.finish()
 	took := time.Since(start)
+	depthWarning(e.stderr, short, reps)
 	flashWarning(e.stderr, j, lum)
 	rate := 0.0
 	if took > 0 {
@@ -239,4 +250,34 @@ func (p *frameProgress) finish() {
 		fmt.Fprintln(p.w)
 		p.bar = nil
 	}
+}
+
+// depthWarning writes the completeness warning of a flight for the worst
+// of the frames whose catalogue falls short (short, in rendering order,
+// with their reports), naming it and how many fall short.
+func depthWarning(w io.Writer, short []int, reps map[int]sky.Report) {
+	if len(short) == 0 {
+		return
+	}
+	list := make([]sky.Report, len(short))
+	for k, i := range short {
+		list[k] = reps[i]
+	}
+	worst, k := sky.Worst(list)
+	if k < 0 {
+		return
+	}
+	what := fmt.Sprintf("frame %d, the worst of %d frames that fall short (%s),", short[k], len(short), frameSpan(short))
+	if len(short) == 1 {
+		what = fmt.Sprintf("frame %d", short[k])
+	}
+	fmt.Fprintln(w, worst.Warning("flight", what))
+}
+
+// frameSpan describes a sorted list of frame numbers by its first and last.
+func frameSpan(frames []int) string {
+	if len(frames) == 1 {
+		return strconv.Itoa(frames[0])
+	}
+	return fmt.Sprintf("frames %d–%d", frames[0], frames[len(frames)-1])
 }

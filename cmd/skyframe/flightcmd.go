@@ -22,6 +22,7 @@ import (
 	flightjob "github.com/skyframe/skyframe/job"
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/sky"
 )
 
 const flightHelp = `Usage: skyframe flight PLAN.toml [options]
@@ -177,10 +178,14 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightjob.Job, err
 		return nil, err
 	}
 	base := filepath.Dir(planPath)
-	stars, err := planStars(e.ctx, e.stderr, plan, base)
+	loaded, err := planStars(e.ctx, e.stderr, plan, base)
 	if err != nil {
 		return nil, err
 	}
+	// Every frame's catalogue starts with the loaded one and the Sun; the
+	// built-in sky is drawn deeper per frame.
+	src := sky.NewSource(loaded, cataloguePath(plan, base) == "")
+	stars := src.Base()
 	index, err := planNames(plan, base, stars)
 	if err != nil {
 		return nil, err
@@ -197,8 +202,8 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightjob.Job, err
 	if err != nil {
 		return nil, err
 	}
-	job := &flightjob.Job{Plan: plan, Hash: inputs.Hash(), Inputs: inputs, Stars: stars, Index: index, Workers: f.workers,
-		Version: version, FreeSpace: e.freeSpace}
+	job := &flightjob.Job{Plan: plan, Hash: inputs.Hash(), Inputs: inputs, Stars: stars, Index: index, Sky: src, Workers: f.workers,
+		Version: version, FreeSpace: e.freeSpace, Unresolved: &unresolvedMaps}
 	job.OutDir = plan.Output.Dir
 	if !filepath.IsAbs(job.OutDir) {
 		job.OutDir = filepath.Join(base, job.OutDir)
@@ -255,6 +260,7 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightjob.Job, err
 	if job.Layers, err = planLayers(plan, index); err != nil {
 		return nil, err
 	}
+	job.UnresolvedFollows = src.BuiltIn() && job.Layers.Unresolved != nil && plan.Frame.UnresolvedDepth == nil
 	job.Credit = namesCredit(index, labelsShown(job.Layers.Labels))
 	if fs0, err := plan.FrameState(0); err == nil {
 		if p0, err := job.Projection(fs0); err == nil {
@@ -377,12 +383,19 @@ func estimate(e *env, j *flightjob.Job) error {
 	probe := *j
 	probe.OutDir = tmp
 	t0 := time.Now()
-	prep, err := render.Prepare(j.Stars)
-	if err != nil {
+	enc := &imgfile.PNGEncoder{Workers: j.Workers}
+	var prep *render.Prepared
+	if j.Sky == nil {
+		if prep, err = render.Prepare(j.Stars); err != nil {
+			return err
+		}
+	} else if _, err := probe.RenderFrame(nil, enc, i); err != nil {
+		// The first frame draws the sky's cells and the unresolved map
+		// the frame needs; the second is the frame's own cost.
 		return err
 	}
 	t1 := time.Now()
-	if _, err := probe.RenderFrame(prep, &imgfile.PNGEncoder{Workers: j.Workers}, i); err != nil {
+	if _, err := probe.RenderFrame(prep, enc, i); err != nil {
 		return err
 	}
 	per := time.Since(t1)
@@ -400,7 +413,7 @@ func estimate(e *env, j *flightjob.Job) error {
 	}
 	n := len(j.Frames)
 	total := time.Duration(n)*per + t1.Sub(t0)
-	fmt.Fprintf(e.stderr, "estimate: frame %d (%dx%d) rendered and written in %v here (the catalogue prepared once in %v): %d frames ≈ %v; disk ≈ %s (%s for frame %d)\n",
+	fmt.Fprintf(e.stderr, "estimate: frame %d (%dx%d) rendered and written in %v here (the catalogue prepared or the sky drawn once in %v): %d frames ≈ %v; disk ≈ %s (%s for frame %d)\n",
 		i, j.Frame.Width, j.Frame.Height, per.Round(time.Millisecond), t1.Sub(t0).Round(time.Millisecond), n, fmtDuration(total),
 		humanize.IBytes(uint64(bytes)*uint64(n)), humanize.IBytes(uint64(bytes)), i)
 	return nil

@@ -87,7 +87,9 @@ func pixels(t *testing.T, img image.Image) []byte {
 // the byte (issue check: depth 16, fwhm 2.5, white d50, limit 9, beaming d4
 // and an up, plus a look in each direction spelling). The PNG text chunks
 // differ (they name the command and the plan), so the decoded pixels and
-// the FITS data are compared.
+// the FITS data are compared. Both draw the built-in sky as deep as the
+// frame needs (the flight with its shutter closed, so that its frame's
+// instant alone decides the depth, as the still's does).
 func TestPlanMatchesStill(t *testing.T) {
 	for _, look := range []string{"45,5", "catalogue:45,5", "ahead", "Sollow"} {
 		t.Run(look, func(t *testing.T) {
@@ -118,6 +120,7 @@ beaming = "d4"
 up = "100,40"
 look = %q
 exposure = 3
+shutter = 0
 
 [output]
 fits = true
@@ -152,9 +155,7 @@ fits = true
 			fits := filepath.Join(dir, "still.fits")
 			code, _, errs = runIn(t, "still", "--position", "0.5,-0.25,0.1", "--rapidity", phi, "--toward", "30,10",
 				"--size", "160x90", "--fov", "50", "--depth", "16", "--fwhm", "2.5", "--white", "d50", "--limit", "9",
-				"--beaming", "d4", "--up", "100,40", "--look", look, "--exposure", "3", "-o", out, "--fits", fits,
-				// Flights draw the built-in sky at its default depth.
-				"--sky-depth", "8")
+				"--beaming", "d4", "--up", "100,40", "--look", look, "--exposure", "3", "-o", out, "--fits", fits)
 			if code != 0 {
 				t.Fatalf("still: exit %d: %s", code, errs)
 			}

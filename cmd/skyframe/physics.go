@@ -50,7 +50,7 @@ func (p *physicsFlags) register(fs *pflag.FlagSet, defaultSpeed float64) {
 	fs.Float64Var(&p.gamma, "gamma", 0, "Lorentz factor γ ≥ 1 instead of --speed (exact up to γ = 1e8 and beyond)")
 	fs.Float64Var(&p.rapidity, "rapidity", 0, "rapidity φ = atanh β instead of --speed")
 	fs.StringVar(&p.toward, "toward", defaultToward, "direction of motion as RA,DEC (ICRS degrees; the same apparent or as catalogue:RA,DEC, since aberration keeps the axis of motion), or a star id or name from the catalogue")
-	fs.StringVar(&p.position, "position", "0,0,0", "ship position X,Y,Z in parsecs (ICRS axes, Sun at origin), or a star id or name")
+	fs.StringVar(&p.position, "position", "0,0,0", "ship position X,Y,Z in parsecs (ICRS axes, Sun at origin), or a star id or name; the Sun is a star of the sky from everywhere but the origin itself, where the view is the catalogue's own night sky without it; a position inside the Sun (within 695 700 km of the origin) or any star is refused")
 	if fs.Lookup("beaming") == nil { // still takes it as a frame option (frameopt)
 		fs.StringVar(&p.beaming, "beaming", "exact", "point-source beaming convention: exact (flux ∝ D²), d3, d4 (moving-source conventions of published figures)")
 	}
@@ -131,7 +131,8 @@ func (p *physicsFlags) resolve(e *env, fs *pflag.FlagSet) (*scene, error) {
 	}
 	sc.builtIn = p.catalog == "" && p.stream == nil
 	if p.stream == nil {
-		// The Sun is a star of every sky seen from outside the solar system.
+		// The Sun is a star of every sky, except seen from the origin itself
+		// (catalog.SunShown).
 		if w := catalog.WithSun(sc.stars, [3]float64{pos.X, pos.Y, pos.Z}); w != sc.stars {
 			sc.stars, sc.index = w, names.NewIndex(w, table)
 		}

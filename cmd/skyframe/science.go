@@ -17,6 +17,7 @@ import (
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/sky"
 	"github.com/skyframe/skyframe/spectrum"
 	"gonum.org/v1/gonum/spatial/r3"
 )
@@ -447,7 +448,7 @@ func runCensus(e *env, args []string) error {
 // census to limit needs (render.MaxBrightening over the catalogue's
 // temperatures and the Doppler factors γ(1 ± β) of the whole sky).
 func censusNeeds(stars *catalog.Stars, sp []analysis.Speed, heading r3.Vec, limit float64, beam spectrum.Beaming, builtIn bool) ([]float64, error) {
-	tmin, tmax := builtInTemps()
+	tmin, tmax := sky.BuiltInTemps()
 	if !builtIn {
 		d := catalog.EstimateDepth(stars)
 		tmin, tmax = d.TMin, d.TMax

@@ -15,7 +15,9 @@ import (
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/sky"
 	"github.com/skyframe/skyframe/spectrum"
 )
 
@@ -138,6 +140,9 @@ func runStars(e *env, args []string) error {
 	}
 	sc, err := p.resolve(e, fs)
 	if err != nil {
+		return err
+	}
+	if err := warnTableDepth(e.stderr, sc, betas); err != nil {
 		return err
 	}
 	write := func(w io.Writer) error {
@@ -340,4 +345,35 @@ func short32(v float64) float64 {
 		return v
 	}
 	return f
+}
+
+// tableLimit is the observed V to which the completeness of a star table
+// is judged: the naked-eye limit (common practice), the still's naked-eye
+// preset.
+const tableLimit = 6.5
+
+// warnTableDepth writes the completeness warning of a star table to w
+// when the catalogue cannot list every star that reaches V′ = tableLimit
+// anywhere in the sky at the table's speed (with --speeds, the fastest):
+// the catalogue's depth and the depth needed, the estimated share of stars
+// and light missing, and the V′ to which the rows are complete.
+func warnTableDepth(w io.Writer, sc *scene, betas []float64) error {
+	b := sc.observer.Boost
+	what := fmt.Sprintf("a whole-sky list to V′ = %g (the naked-eye limit)", tableLimit)
+	if len(betas) > 0 {
+		fast := slices.Max(betas)
+		var err error
+		if b, err = camera.NewBoost(sc.heading, fast); err != nil {
+			return usageError{err}
+		}
+		if len(betas) > 1 {
+			what += fmt.Sprintf(" at β = %s (the fastest of --speeds)", fmtBeta(fast))
+		}
+	}
+	rep := sky.WholeSky(catalog.EstimateDepth(sc.stars), sc.builtIn, b, tableLimit, sc.beaming)
+	rep.Hint = fmt.Sprintf("rows fainter than V′ ≈ %.1f may lack stars; a deeper catalogue lists them", rep.Have+rep.Needed.DeltaV)
+	if msg := rep.Warning("stars", what); msg != "" {
+		fmt.Fprintln(w, msg)
+	}
+	return nil
 }

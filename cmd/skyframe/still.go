@@ -18,6 +18,7 @@ import (
 	framefiles "github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/sky"
 	"github.com/skyframe/skyframe/spectrum"
 )
 
@@ -94,7 +95,7 @@ func (f *stillFlags) register(fs *pflag.FlagSet) {
 // (framefiles.Spec), with the completeness of its catalogue.
 type frameSpec struct {
 	framefiles.Spec
-	depthRep *depthReport // completeness of the catalogue for the frame; nil: not known
+	depthRep *sky.Report // completeness of the catalogue for the frame; nil: not known
 }
 
 // checkFrameFlags checks every frame option given on the command line
@@ -333,7 +334,7 @@ type outputPaths struct{ png, fits, sidecar, exr, overlay string }
 func writeFrame(ctx context.Context, frame *render.Frame, kept []render.Contribution, sc *scene, spec *frameSpec, out outputPaths) error {
 	spec.Version, spec.Stars, spec.Heading, spec.Beaming = version, sc.stars, sc.heading, sc.beaming
 	if d := spec.depthRep; d != nil {
-		spec.DepthV, spec.NeededV = finitePtr(d.have), finitePtr(d.needed.Needed)
+		spec.DepthV, spec.NeededV = finitePtr(d.Have), finitePtr(d.Threshold())
 	}
 	err := spec.Write(ctx, frame, kept, framefiles.Paths{PNG: out.png, FITS: out.fits, Sidecar: out.sidecar, EXR: out.exr, Overlay: out.overlay})
 	if errors.Is(err, framefiles.ErrEXRLayer) {

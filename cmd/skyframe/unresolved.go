@@ -4,11 +4,10 @@ import (
 	"fmt"
 	"math"
 	"strings"
-	"sync"
 
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/render"
-	"github.com/skyframe/skyframe/spectrum"
+	"github.com/skyframe/skyframe/sky"
 )
 
 // Unresolved-light modes of --unresolved (plan key overlays.unresolved).
@@ -19,23 +18,15 @@ const (
 )
 
 // builtInDepth is the resolved depth (V) of the built-in sky when nothing
-// drew it deeper (flights): the map of unresolved light starts where its
-// sampled stars stop.
+// drew it deeper: the map of unresolved light starts where its sampled
+// stars stop. (A flight's frames draw deeper and move the layer with them:
+// job.Job.UnresolvedFollows.)
 const builtInDepth = catalog.DefaultSynthMagLimit
 
-// unresolvedMaps caches the built maps by depth: a map takes a few tenths of
-// a second of CPU to build and a flight uses the same one for every frame.
-var unresolvedMaps sync.Map // float64 → *catalog.UnresolvedSky
-
-// v0Dilution is the dilution of a blackbody at T whose V-band flux is that
-// of a V = 0 star, from the same photometry as every star.
-func v0Dilution(T float64) float64 {
-	b, err := spectrum.FromV(T, 0)
-	if err != nil {
-		return math.NaN()
-	}
-	return b.W
-}
+// unresolvedMaps keeps the built maps by depth: a map takes a few tenths
+// of a second of CPU to build, and stills, flights and tests come back to
+// the same depths.
+var unresolvedMaps sky.UnresolvedMaps
 
 // unresolvedLayer resolves the unresolved-light options (frameopt
 // unresolved and unresolved-depth) for stars: mode is auto (""), on or off;
@@ -75,13 +66,9 @@ func unresolvedLayer(stars *catalog.Stars, mode string, depthOpt *float64, known
 	if math.IsInf(depth, 0) || depth < catalog.MinUnresolvedDepth || depth > catalog.MaxUnresolvedDepth {
 		return nil, 0, usagef("--unresolved-depth %v: want a V magnitude in [%g, %g]", depth, catalog.MinUnresolvedDepth, catalog.MaxUnresolvedDepth)
 	}
-	if u, ok := unresolvedMaps.Load(depth); ok {
-		return u.(*catalog.UnresolvedSky), depth, nil
-	}
-	u, err := catalog.NewUnresolvedSky(depth, v0Dilution, catalog.SynthOptions{})
+	u, err := unresolvedMaps.At(depth)
 	if err != nil {
 		return nil, 0, fmt.Errorf("%s: %w", what, err)
 	}
-	unresolvedMaps.Store(depth, u)
 	return u, depth, nil
 }
