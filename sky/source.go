@@ -119,16 +119,14 @@ func (src *Source) Frame(instants []render.Options, maxV float64) (*Frame, error
 			return nil, err
 		}
 		profs[k] = p
-		v := opt
-		v.Limit = VisibleLimit(opt)
-		vd, err := render.NeededDepth(v, tmin, tmax)
-		if err != nil {
-			return nil, err
-		}
+		// The bound for the stars the image can show: the same largest
+		// brightening (it does not depend on the limit) from the
+		// just-visible level, as render.NeededDepth gives it.
+		visNeed := VisibleLimit(opt) - p.Depth.DeltaV
 		if k == 0 {
-			rep = Report{Needed: p.Depth, Visible: vd.Needed, BuiltIn: true}
+			rep = Report{Needed: p.Depth, Visible: visNeed, BuiltIn: true}
 		}
-		vis = math.Max(vis, vd.Needed)
+		vis = math.Max(vis, visNeed)
 	}
 	vres := maxV
 	if math.IsNaN(vres) {
