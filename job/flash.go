@@ -3,6 +3,9 @@ package job
 import (
 	"fmt"
 	"image"
+	"runtime"
+	"sync"
+	"sync/atomic"
 
 	"github.com/skyframe/skyframe/flight"
 	"github.com/skyframe/skyframe/spectrum"
@@ -41,24 +44,51 @@ func MeanLuminance(img *image.NRGBA) Lum {
 	if w*h == 0 {
 		return Lum{}
 	}
-	// Sums over a 6 × 6 grid of cells; a window is 2 × 2 cells.
+	// Sums over a 6 × 6 grid of cells; a window is 2 × 2 cells. Each row's
+	// sum over each cell's columns is computed in parallel (bands of rows
+	// over GOMAXPROCS goroutines), then the row sums are added in row
+	// order: the result does not depend on the number of goroutines.
 	const cells = Regions + 1
+	var x0s, x1s [cells]int
+	for cx := range cells {
+		x0s[cx], x1s[cx] = (cx*w+cells-1)/cells, ((cx+1)*w+cells-1)/cells // first x with x·6/w ≥ cx
+	}
+	rowSums := make([]float64, h*cells)
+	const band = 32
+	bands := (h + band - 1) / band
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), bands) {
+		wg.Go(func() {
+			for {
+				k := int(next.Add(1)) - 1
+				if k >= bands {
+					return
+				}
+				for y := k * band; y < min(h, (k+1)*band); y++ {
+					row := img.Pix[y*img.Stride : y*img.Stride+4*w]
+					for cx := range cells {
+						var s float64
+						for x := 4 * x0s[cx]; x < 4*x1s[cx]; x += 4 {
+							s += 0.2126*srgbToLinear[row[x]] + 0.7152*srgbToLinear[row[x+1]] + 0.0722*srgbToLinear[row[x+2]]
+						}
+						rowSums[y*cells+cx] = s
+					}
+				}
+			}
+		})
+	}
+	wg.Wait()
 	var cell [cells][cells]float64
 	var cnt [cells][cells]int
 	var sum float64
 	for y := 0; y < h; y++ {
 		cy := y * cells / h
-		row := img.Pix[y*img.Stride : y*img.Stride+4*w]
-		for cx := 0; cx < cells; cx++ {
-			x0, x1 := (cx*w+cells-1)/cells, ((cx+1)*w+cells-1)/cells // first x with x·6/w ≥ cx
-			var s float64
-			for x := 4 * x0; x < 4*x1; x += 4 {
-				v := 0.2126*srgbToLinear[row[x]] + 0.7152*srgbToLinear[row[x+1]] + 0.0722*srgbToLinear[row[x+2]]
-				sum += v
-				s += v
-			}
+		for cx := range cells {
+			s := rowSums[y*cells+cx]
+			sum += s
 			cell[cy][cx] += s
-			cnt[cy][cx] += x1 - x0
+			cnt[cy][cx] += x1s[cx] - x0s[cx]
 		}
 	}
 	out := Lum{Mean: sum / float64(w*h), Regions: make([]float64, Regions*Regions)}

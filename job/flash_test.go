@@ -4,8 +4,12 @@ import (
 	"image"
 	"image/color"
 	"math"
+	"runtime"
+	"slices"
 	"strings"
 	"testing"
+
+	"github.com/skyframe/skyframe/spectrum"
 )
 
 // TestMeanLuminanceRegions: a white block exactly filling the top-left
@@ -77,6 +81,39 @@ func TestFlashWarningRegional(t *testing.T) {
 		mk(c.regions, c.period)
 		if w := FlashWarning(frames, lum, 30); w != "" {
 			t.Errorf("regions %v, period %d: unexpected warning %q", c.regions, c.period, w)
+		}
+	}
+}
+
+// The parallel mean luminance is the same for any number of goroutines,
+// bit for bit, and equals the plain per-pixel mean (IEC 61966-2-1 decoding
+// and Y weights, as srgbToLinear) to rounding.
+func TestMeanLuminanceParallel(t *testing.T) {
+	const w, h = 301, 157
+	img := image.NewNRGBA(image.Rect(0, 0, w, h))
+	for i := range img.Pix {
+		img.Pix[i] = byte(i*7919 + i/13)
+	}
+	var plain float64
+	for i := 0; i < len(img.Pix); i += 4 {
+		r, g, b := spectrum.DecodeSRGB(float64(img.Pix[i])/255), spectrum.DecodeSRGB(float64(img.Pix[i+1])/255), spectrum.DecodeSRGB(float64(img.Pix[i+2])/255)
+		plain += 0.2126*r + 0.7152*g + 0.0722*b
+	}
+	plain /= w * h
+	defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(0))
+	var ref Lum
+	for k, procs := range []int{1, 2, 5} {
+		runtime.GOMAXPROCS(procs)
+		l := MeanLuminance(img)
+		if k == 0 {
+			ref = l
+			if math.Abs(l.Mean-plain) > 1e-12*plain {
+				t.Errorf("mean %.15g, plain per-pixel mean %.15g", l.Mean, plain)
+			}
+			continue
+		}
+		if l.Mean != ref.Mean || !slices.Equal(l.Regions, ref.Regions) {
+			t.Errorf("GOMAXPROCS %d: %v, with 1: %v", procs, l, ref)
 		}
 	}
 }

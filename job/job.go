@@ -14,6 +14,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"sync"
 
 	"gonum.org/v1/gonum/spatial/r3"
 
@@ -312,7 +313,11 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 		}
 	}
 	side := spec.Sidecar(f)
-	img8 := f.ToNRGBA(fr.Tone)
+	// The 8-bit image and the encoders' byte buffers are reused across
+	// frames (framePools): allocating and first touching them anew costs
+	// more than tone mapping at 4096².
+	img8 := f.ToNRGBAInto(getNRGBA(), fr.Tone)
+	defer nrgbaPool.Put(img8)
 	lum := MeanLuminance(img8)
 	var img draw.Image = img8
 	if fr.Depth == 16 {
@@ -338,8 +343,9 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 	frameKV := []imgfile.KV{{Key: "skyframe:frame", Value: strconv.Itoa(i)}, {Key: "skyframe:plan_hash", Value: j.Hash}}
 	if ff.PNG != "" {
 		meta := append(spec.PNGMeta(side), frameKV...)
-		var buf bytes.Buffer
-		if err := enc.Encode(&buf, img, meta); err != nil {
+		buf := getBuffer()
+		defer bufferPool.Put(buf)
+		if err := enc.Encode(buf, img, meta); err != nil {
 			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
 		if err := j.writeFile(ff.PNG, buf.Bytes()); err != nil {
@@ -350,8 +356,9 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 	if layer != nil {
 		meta := append(append(spec.PNGMeta(side), frameKV...),
 			imgfile.KV{Key: "Description", Value: "skyframe overlays alone (sRGB, straight alpha)"})
-		var buf bytes.Buffer
-		if err := enc.Encode(&buf, layer, meta); err != nil {
+		buf := getBuffer()
+		defer bufferPool.Put(buf)
+		if err := enc.Encode(buf, layer, meta); err != nil {
 			return Lum{}, fmt.Errorf("flight: frame %d: overlay layer: %w", i, err)
 		}
 		if err := j.writeFile(ff.Overlay, buf.Bytes()); err != nil {
@@ -365,8 +372,9 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
 		cards = append(cards, imgfile.Card{Key: "FRAME", Value: i, Comment: "frame index in the flight"})
-		var buf bytes.Buffer
-		if err := imgfile.WriteFITS(&buf, f.W, f.H, f.Pix, cards); err != nil {
+		buf := getBuffer()
+		defer bufferPool.Put(buf)
+		if err := imgfile.WriteFITS(buf, f.W, f.H, f.Pix, cards); err != nil {
 			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
 		if err := j.writeFile(ff.FITS, buf.Bytes()); err != nil {
@@ -394,6 +402,30 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 		}
 	}
 	return lum, nil
+}
+
+// Buffers reused across the frames of a flight (and safe for frames
+// rendered concurrently): the 8-bit image and the encoded files' bytes.
+var (
+	nrgbaPool  sync.Pool // *image.NRGBA
+	bufferPool sync.Pool // *bytes.Buffer
+)
+
+// getNRGBA returns an image from the pool, or nil (ToNRGBAInto then
+// allocates one; it also replaces one of the wrong size).
+func getNRGBA() *image.NRGBA {
+	img, _ := nrgbaPool.Get().(*image.NRGBA)
+	return img
+}
+
+// getBuffer returns an empty buffer from the pool or a new one.
+func getBuffer() *bytes.Buffer {
+	b, _ := bufferPool.Get().(*bytes.Buffer)
+	if b == nil {
+		return new(bytes.Buffer)
+	}
+	b.Reset()
+	return b
 }
 
 // writeFile writes data to the output-relative path rel atomically,
