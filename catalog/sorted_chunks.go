@@ -7,6 +7,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"sync"
 )
 
 // binWalker checks one column of a sorted cache bin by bin as its bytes
@@ -150,49 +151,78 @@ func (c *ChunkReader) LimitBins(bins int) error {
 }
 
 // checkSkipped checks bins from…to−1 through their Dist, V and Teff
-// columns (float columns 3, 4 and 5; the index's columns 4, 5 and 6).
+// columns (float columns 3, 4 and 5; the index's columns 4, 5 and 6), one
+// goroutine a column: each bin's CRC, and every row against the index —
+// distance not below its bin's bound, V never decreasing and the first
+// and last V of every bin inside it (so every V is), Teff inside the
+// bounds.
 func (c *ChunkReader) checkSkipped(from, to int) error {
-	x := c.idx
-	lo, hi := int(x.Offsets[from]), int(x.Offsets[to])
-	ws := [3]binWalker{}
-	for i := range ws {
-		ws[i] = binWalker{x: x, col: 4 + i, bin: from, endBin: to}
+	var errs [3]error
+	var wg sync.WaitGroup
+	for i := range errs {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			errs[i] = c.checkColumn(i, from, to)
+		}()
 	}
-	const piece = 1 << 18
-	bufs := [3][]byte{make([]byte, 4*piece), make([]byte, 4*piece), make([]byte, 4*piece)}
-	if from == to {
-		return nil
-	}
-	b := from
-	for r0 := lo; r0 < hi || (r0 == hi && ws[0].bin < to); r0 += piece {
-		r1 := min(r0+piece, hi)
-		for i := range ws {
-			buf := bufs[i][:4*(r1-r0)]
-			if _, err := c.f.ReadAt(buf, c.colOffset(3+i, r0)); err != nil {
-				if err == io.EOF {
-					err = fmt.Errorf("%w: cache ends early", ErrTruncated)
-				}
-				return err
-			}
-			if err := ws[i].feed(buf, 4, r0, r1); err != nil {
-				return err
-			}
-		}
-		for r := r0; r < r1; r++ {
-			for int64(r) >= x.Offsets[b+1] {
-				b++
-			}
-			k := 4 * (r - r0)
-			d := math.Float32frombits(binary.LittleEndian.Uint32(bufs[0][k:]))
-			v := math.Float32frombits(binary.LittleEndian.Uint32(bufs[1][k:]))
-			t := math.Float32frombits(binary.LittleEndian.Uint32(bufs[2][k:]))
-			if err := x.checkRow(b, r, v, t, d); err != nil {
-				return err
-			}
-		}
-		if r1 == hi {
-			break
+	wg.Wait()
+	for _, err := range errs {
+		if err != nil {
+			return err
 		}
 	}
 	return nil
+}
+
+// checkColumn is checkSkipped for one column: 0 Dist, 1 V, 2 Teff.
+func (c *ChunkReader) checkColumn(i, from, to int) error {
+	x := c.idx
+	lo, hi := int(x.Offsets[from]), int(x.Offsets[to])
+	w := binWalker{x: x, col: 4 + i, bin: from, endBin: to}
+	const piece = 1 << 18
+	buf := make([]byte, 4*min(piece, max(hi-lo, 1)))
+	b := from
+	prev := float32(math.Inf(-1))
+	for r0 := lo; ; r0 += piece {
+		r1 := min(r0+piece, hi)
+		bb := buf[:4*(r1-r0)]
+		if _, err := c.f.ReadAt(bb, c.colOffset(3+i, r0)); err != nil {
+			if err == io.EOF {
+				err = fmt.Errorf("%w: cache ends early", ErrTruncated)
+			}
+			return err
+		}
+		if err := w.feed(bb, 4, r0, r1); err != nil {
+			return err
+		}
+		for r := r0; r < r1; r++ {
+			v := math.Float32frombits(binary.LittleEndian.Uint32(bb[4*(r-r0):]))
+			for int64(r) >= x.Offsets[b+1] {
+				b++
+			}
+			switch i {
+			case 0:
+				if !(v >= x.MinDist[b]) {
+					return fmt.Errorf("%w: index disagrees with rows: row %d is at %v pc, below its bin's bound %v pc", ErrCorrupt, r, v, x.MinDist[b])
+				}
+			case 1:
+				if !(v >= prev) {
+					return fmt.Errorf("%w: index disagrees with rows: row %d has V = %v after %v: not sorted", ErrCorrupt, r, v, prev)
+				}
+				prev = v
+				if (int64(r) == x.Offsets[b] || int64(r)+1 == x.Offsets[b+1]) && x.Bin(float64(v)) != b {
+					return fmt.Errorf("%w: index disagrees with rows: row %d has V = %v, which is in bin %d, not in its bin %d (%.2f … %.2f)",
+						ErrCorrupt, r, v, x.Bin(float64(v)), b, x.Lower(b), x.Lower(b+1))
+				}
+			case 2:
+				if t := float64(v); !(t >= x.TMin && t <= x.TMax) {
+					return fmt.Errorf("%w: index disagrees with rows: row %d has Teff = %v K, outside the index's %v … %v K", ErrCorrupt, r, v, x.TMin, x.TMax)
+				}
+			}
+		}
+		if r1 == hi {
+			return nil
+		}
+	}
 }
