@@ -27,7 +27,9 @@ import (
 //
 // The target is sorted1e7 ≤ 1.5 × bright1e6. The frames of sorted1e7 and
 // bright1e6 are checked to be identical when the depth needed lies within
-// the bright end. Not under -short.
+// the bright end. Not under -short. Measured (2-core VM, under /work/cpu,
+// load average 4–10 from other work; -benchtime 3x -count 5, medians):
+// bright1e6 105 ms, sorted1e7 157 ms (1.49×), unsorted1e7 1220 ms (11.6×).
 func BenchmarkDepthRead(b *testing.B) {
 	if testing.Short() {
 		b.Skip("10⁷ stars: not under -short")
