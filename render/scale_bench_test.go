@@ -113,7 +113,7 @@ func peakHeap(fn func()) uint64 {
 	return max(peak.Load(), end) - base
 }
 
-func scaleOptions(b *testing.B, kind camera.Kind, w, h int) Options {
+func scaleOptions(b testing.TB, kind camera.Kind, w, h int) Options {
 	return Options{Projection: proj(b, kind, w, h), Observer: observer(b, r3.Unit(r3.Vec{X: 1, Y: 1}), 0.5), Exposure: 6}
 }
 
