@@ -13,13 +13,15 @@ import (
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/spectrum"
 )
 
 // Inputs of the C reference renderer in bench/cref (see its README):
 // TestExportCRef writes them, and Go's own frame of the same job, when
 // SKYFRAME_CREF_DIR names a directory (SKYFRAME_CREF_N sets the star
-// count, default 10⁷); otherwise it skips. The job is
+// count, default 10⁷; SKYFRAME_CREF_CACHE=FILE also writes the catalogue
+// as a cache file); otherwise it skips. The job is
 // BenchmarkScaleFisheye4096's: scaleSky(n) into a 4096² fisheye at 0.5 c.
 //
 // Files, little-endian:
@@ -101,7 +103,10 @@ func TestExportCRef(t *testing.T) {
 		spectrum.LumR, spectrum.LumG, spectrum.LumB,
 	}
 	write := func(name string, fn func(w *bufio.Writer) error) {
-		fh, err := os.Create(filepath.Join(dir, name))
+		if !filepath.IsAbs(name) {
+			name = filepath.Join(dir, name)
+		}
+		fh, err := os.Create(name)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -133,6 +138,10 @@ func TestExportCRef(t *testing.T) {
 		}
 		return binary.Write(w, binary.LittleEndian, tab)
 	})
+	if path := os.Getenv("SKYFRAME_CREF_CACHE"); path != "" {
+		// The same catalogue as a cache file, for timing `skyframe still`.
+		write(path, func(w *bufio.Writer) error { return catalog.WriteCache(w, stars) })
+	}
 	f, err := Render(stars, opt)
 	if err != nil {
 		t.Fatal(err)
