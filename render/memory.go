@@ -25,6 +25,10 @@ type MemoryNeed struct {
 	// Overlays is what the overlay layers hold (grid vertices, lattice
 	// beacons), filled in by the caller that knows them.
 	Overlays int64
+	// Files is what the other outputs of a frame hold while they are
+	// encoded (FITS, OpenEXR, an overlay layer), filled in by the caller
+	// that writes them.
+	Files int64
 }
 
 // CatalogueBytesPerStar is the memory of one loaded star: its columns
@@ -34,7 +38,7 @@ const CatalogueBytesPerStar = 65
 
 // Total is the sum of the parts.
 func (m MemoryNeed) Total() int64 {
-	return m.Buffer + m.Image + m.Encode + m.Work + m.Catalogue + m.Overlays
+	return m.Buffer + m.Image + m.Encode + m.Work + m.Catalogue + m.Overlays + m.Files
 }
 
 // EstimateMemory returns the memory a frame of opt written as a depth-bit

@@ -98,6 +98,7 @@ type flightFlags struct {
 	workers int
 	preview float64
 	every   int
+	memory  string
 }
 
 func (f *flightFlags) register(fs *pflag.FlagSet) {
@@ -109,6 +110,7 @@ func (f *flightFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&f.out, "out", "", "output directory, replacing the plan's output.dir")
 	fs.IntVar(&f.workers, "workers", 0, "goroutines per frame for rendering and PNG compression (0: all CPUs; output does not depend on it)")
 	fs.Float64Var(&f.preview, "preview", 1, "render a preview at this scale of the frame size (0 < SCALE ≤ 1) into OUTPUT-preview (or --out), never touching the real frames")
+	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget for the whole run: the catalogue, its prepared values and the largest frame's buffers, images and encoders are estimated before anything renders, and a plan over the budget is refused (exit 2) with the figures")
 	fs.IntVar(&f.every, "every", 1, "render every Nth frame only (N ≥ 1; frames keep their numbers); with N > 1 the output goes to OUTPUT-preview (or --out)")
 }
 
@@ -144,6 +146,10 @@ func runFlight(e *env, args []string) error {
 	if f.every < 1 {
 		return usagef("--every %d: want N ≥ 1", f.every)
 	}
+	budget, err := parseMemory(f.memory)
+	if err != nil {
+		return err
+	}
 	job, err := loadFlightJob(e, fs.Arg(0), &f)
 	if err != nil {
 		return err
@@ -163,6 +169,11 @@ func runFlight(e *env, args []string) error {
 		return estimate(e, job)
 	case f.verify:
 		return verifyFlight(e, job)
+	}
+	need := job.MemoryNeed()
+	need.Overlays = overlayBytes(job.Layers.Options, job.Frame.Width, job.Frame.Height)
+	if err := checkMemory(need, budget, "reduce camera.width and camera.height (or render a --preview)"); err != nil {
+		return err
 	}
 	return renderFlight(e, job, f.resume)
 }

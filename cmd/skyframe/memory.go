@@ -54,6 +54,7 @@ func checkMemory(need render.MemoryNeed, budget int64, hint string) error {
 		}{
 			{"frame buffer", need.Buffer}, {"image", need.Image}, {"PNG encoder", need.Encode},
 			{"render working set", need.Work}, {"catalogue", need.Catalogue}, {"overlays", need.Overlays},
+			{"other outputs", need.Files},
 		} {
 			if p.n > 0 {
 				parts = append(parts, p.name+" "+memBytes(p.n))
