@@ -305,7 +305,8 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	spec := &frame.Spec{Proj: proj, Opt: f.Options, Tone: fr.Tone, Depth: fr.Depth, Look: fs.Look.Look, Source: "skyframe flight",
-		Credit: j.Credit, Layers: lay, EXR: j.EXR, Version: j.Version, Stars: stars, Heading: fs.State.Dir}
+		Credit: j.Credit, Layers: lay, EXR: j.EXR, Version: j.Version, Stars: stars, Heading: fs.State.Dir,
+		Beaming: f.Options.Beaming}
 	if rep != nil {
 		spec.DepthV, spec.NeededV = finitePtr(rep.Have), finitePtr(rep.Threshold())
 		if j.Completeness != nil {

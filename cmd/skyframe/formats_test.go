@@ -344,7 +344,7 @@ func TestFlightEXR(t *testing.T) {
 	}
 	text := strings.Replace(string(plan), "sidecar = true", "sidecar = true\nexr = true", 1)
 	text = strings.Replace(text, "fits = false", "fits = true", 1)
-	text = strings.Replace(text, "width = 640\nheight = 360", "width = 160\nheight = 90\ndepth = 16", 1)
+	text = strings.Replace(text, "width = 640\nheight = 360", "width = 160\nheight = 90\ndepth = 16\nbeaming = \"d4\"", 1)
 	dir := t.TempDir()
 	path := filepath.Join(dir, "plan.toml")
 	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
@@ -380,6 +380,15 @@ func TestFlightEXR(t *testing.T) {
 		t.Errorf("flight FITS header lacks LAYERS")
 	} else if card := string(raw[i : i+80]); !strings.HasPrefix(card, "LAYERS  = 'stars,unresolved'") {
 		t.Errorf("flight FITS %q, want LAYERS = 'stars,unresolved' (the plan has cmb = false)", card)
+	}
+	// ... and the beaming convention the plan asks for (it said exact).
+	if i := bytes.Index(raw[:min(len(raw), 2880*4)], []byte("BEAMING = ")); i < 0 {
+		t.Errorf("flight FITS header lacks BEAMING")
+	} else if card := string(raw[i : i+80]); !strings.HasPrefix(card, "BEAMING = 'd4") {
+		t.Errorf("flight FITS %q, want BEAMING = 'd4' (the plan's camera.beaming)", card)
+	}
+	if side, err := os.ReadFile(filepath.Join(out, "00000.json")); err != nil || !bytes.Contains(side, []byte(`"beaming": "d4"`)) {
+		t.Errorf("flight sidecar lacks \"beaming\": \"d4\" (%v)", err)
 	}
 	ff, err := os.Open(filepath.Join(out, "00000.fits"))
 	if err != nil {
