@@ -3,7 +3,6 @@ package catalog
 import (
 	"bytes"
 	"fmt"
-	"io"
 	"math"
 )
 
@@ -24,25 +23,14 @@ import (
 // FlagNoDistance. Names keep the catalogue's Flamsteed/Bayer text (e.g.
 // "9Alp CMa") with surrounding blanks removed.
 func readBSC5(lr *lineReader, b *builder) error {
-	for {
-		line, err := lr.next()
-		if err == io.EOF {
-			return nil
-		}
-		if err != nil {
-			return err
-		}
-		if isBlank(line) {
-			continue
-		}
-		n := lr.line
+	return lr.eachLine(func(line []byte, n int) error {
 		id, err := b.integer(col(line, 1, 4), "HR", n)
 		if err != nil {
 			return err
 		}
 		if isBlank(col(line, 76, 90)) {
 			b.skip("no position", n)
-			continue
+			return nil
 		}
 		rah, _, err := b.ranged(col(line, 76, 77), "RAh", n, 0, 23)
 		if err != nil {
@@ -74,7 +62,7 @@ func readBSC5(lr *lineReader, b *builder) error {
 		}
 		if anyNaN(rah, ram, ras, ded, dem, des) {
 			b.skip("no position", n)
-			continue
+			return nil
 		}
 		{
 			st := Star{ID: id, RV: math.NaN()}
@@ -97,7 +85,7 @@ func readBSC5(lr *lineReader, b *builder) error {
 			}
 			if !ok {
 				b.skip("no V magnitude", n)
-				continue
+				return nil
 			}
 			st.Vmag = v
 			bv, _, err := b.ranged(col(line, 110, 114), "B-V", n, bvLo, bvHi)
@@ -140,7 +128,8 @@ func readBSC5(lr *lineReader, b *builder) error {
 				return err
 			}
 		}
-	}
+		return nil
+	})
 }
 
 func anyNaN(v ...float64) bool {

@@ -7,7 +7,10 @@ import (
 	"io"
 	"math"
 	"os"
+	"slices"
 	"sort"
+	"strconv"
+	"strings"
 )
 
 // Binary cache layout, version 1 (all integers little-endian):
@@ -236,6 +239,71 @@ func (c *cacheReader) str() (string, error) {
 	return string(b), nil
 }
 
+// cacheHeader is the part of a cache header every version shares: magic
+// and version, column bits, row count, epoch, source and format.
+type cacheHeader struct {
+	version        byte
+	bits           uint32
+	rows           int
+	epoch          float64
+	source, format string
+}
+
+// header reads and checks the shared header: the magic, a version among
+// versions, known column bits, at most maxRows rows and a finite epoch.
+func (c *cacheReader) header(maxRows uint64, versions ...byte) (cacheHeader, error) {
+	var h cacheHeader
+	b, err := c.next(8 + 4 + 8 + 8)
+	if err != nil {
+		return h, err
+	}
+	if string(b[:7]) != string(cacheMagic) {
+		return h, fmt.Errorf("%w: bad magic %q", ErrBadCache, b[:7])
+	}
+	h.version = b[7]
+	if !slices.Contains(versions, h.version) {
+		known := make([]string, len(versions))
+		for i, v := range versions {
+			known[i] = strconv.Itoa(int(v))
+		}
+		return h, fmt.Errorf("%w: version %d, this reader knows %s", ErrBadCache, h.version, strings.Join(known, " and "))
+	}
+	h.bits = binary.LittleEndian.Uint32(b[8:])
+	if h.bits&^cacheKnown != 0 {
+		return h, fmt.Errorf("%w: unknown column bits %#x", ErrBadCache, h.bits)
+	}
+	n64 := binary.LittleEndian.Uint64(b[12:])
+	if n64 > maxRows {
+		return h, fmt.Errorf("%w: header declares %d rows, limit %d", ErrTooManyRows, n64, maxRows)
+	}
+	h.rows = int(n64)
+	h.epoch = math.Float64frombits(binary.LittleEndian.Uint64(b[20:]))
+	if math.IsNaN(h.epoch) || math.IsInf(h.epoch, 0) {
+		return h, fmt.Errorf("%w: epoch %v", ErrBadCache, h.epoch)
+	}
+	if h.source, err = c.str(); err != nil {
+		return h, err
+	}
+	if h.format, err = c.str(); err != nil {
+		return h, err
+	}
+	return h, nil
+}
+
+// headerSum reads the stored CRC of everything read so far (a sorted
+// cache's header and index) and checks it.
+func (c *cacheReader) headerSum() error {
+	sum := c.crc
+	b, err := c.next(4)
+	if err != nil {
+		return err
+	}
+	if got := binary.LittleEndian.Uint32(b); got != sum {
+		return fmt.Errorf("%w: header checksum %08x, computed %08x", ErrCorrupt, got, sum)
+	}
+	return nil
+}
+
 // grown makes room for k more elements, doubling capacity up to total.
 func grown[T any](s []T, k, total int) []T {
 	if len(s)+k <= cap(s) {
@@ -312,37 +380,12 @@ func readCache(r io.Reader, maxRows int, avail int64) (*Stars, error) {
 
 func readCacheSized(r io.Reader, maxRows int, avail int64) (*Stars, error) {
 	c := &cacheReader{r: r}
-	h, err := c.next(8 + 4 + 8 + 8)
+	h, err := c.header(uint64(maxRows), CacheVersion, cacheVersionSorted)
 	if err != nil {
 		return nil, err
 	}
-	if string(h[:7]) != string(cacheMagic) {
-		return nil, fmt.Errorf("%w: bad magic %q", ErrBadCache, h[:7])
-	}
-	if h[7] != CacheVersion && h[7] != cacheVersionSorted {
-		return nil, fmt.Errorf("%w: version %d, this reader knows %d and %d", ErrBadCache, h[7], CacheVersion, cacheVersionSorted)
-	}
-	version := h[7] // h is reused by the reads below
-	bits := binary.LittleEndian.Uint32(h[8:])
-	if bits&^cacheKnown != 0 {
-		return nil, fmt.Errorf("%w: unknown column bits %#x", ErrBadCache, bits)
-	}
-	n64 := binary.LittleEndian.Uint64(h[12:])
-	if n64 > uint64(maxRows) {
-		return nil, fmt.Errorf("%w: header declares %d rows, limit %d", ErrTooManyRows, n64, maxRows)
-	}
-	n := int(n64)
-	epoch := math.Float64frombits(binary.LittleEndian.Uint64(h[20:]))
-	if math.IsNaN(epoch) || math.IsInf(epoch, 0) {
-		return nil, fmt.Errorf("%w: epoch %v", ErrBadCache, epoch)
-	}
-	s := &Stars{Epoch: epoch}
-	if s.Source, err = c.str(); err != nil {
-		return nil, err
-	}
-	if s.Format, err = c.str(); err != nil {
-		return nil, err
-	}
+	version, bits, n := h.version, h.bits, h.rows
+	s := &Stars{Epoch: h.epoch, Source: h.source, Format: h.format}
 	var idx *MagIndex
 	if version == cacheVersionSorted {
 		ncols := 9
@@ -355,13 +398,8 @@ func readCacheSized(r io.Reader, maxRows int, avail int64) (*Stars, error) {
 		if idx, err = readIndex(c, n, ncols); err != nil {
 			return nil, err
 		}
-		sum := c.crc
-		hc, err := c.next(4)
-		if err != nil {
+		if err := c.headerSum(); err != nil {
 			return nil, err
-		}
-		if got := binary.LittleEndian.Uint32(hc); got != sum {
-			return nil, fmt.Errorf("%w: header checksum %08x, computed %08x", ErrCorrupt, got, sum)
 		}
 	}
 	per := int64(8 + 7*4 + 1)

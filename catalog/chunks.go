@@ -131,36 +131,11 @@ func openChunks(f *os.File, path string, chunkRows int) (*ChunkReader, error) {
 	}
 	sr := io.NewSectionReader(f, 0, size-4)
 	cr := &cacheReader{r: sr}
-	hd, err := cr.next(8 + 4 + 8 + 8)
+	hdr, err := cr.header(DefaultMaxRows, CacheVersion)
 	if err != nil {
 		return nil, err
 	}
-	if string(hd[:7]) != string(cacheMagic) {
-		return nil, fmt.Errorf("%w: bad magic %q", ErrBadCache, hd[:7])
-	}
-	if hd[7] != CacheVersion {
-		return nil, fmt.Errorf("%w: version %d, this reader knows %d", ErrBadCache, hd[7], CacheVersion)
-	}
-	c := &ChunkReader{f: f, path: path, rows: chunkRows}
-	c.bits = binary.LittleEndian.Uint32(hd[8:])
-	if c.bits&^cacheKnown != 0 {
-		return nil, fmt.Errorf("%w: unknown column bits %#x", ErrBadCache, c.bits)
-	}
-	n64 := binary.LittleEndian.Uint64(hd[12:])
-	if n64 > DefaultMaxRows {
-		return nil, fmt.Errorf("%w: header declares %d rows, limit %d", ErrTooManyRows, n64, int64(DefaultMaxRows))
-	}
-	c.n = int(n64)
-	c.epoch = math.Float64frombits(binary.LittleEndian.Uint64(hd[20:]))
-	if math.IsNaN(c.epoch) || math.IsInf(c.epoch, 0) {
-		return nil, fmt.Errorf("%w: epoch %v", ErrBadCache, c.epoch)
-	}
-	if c.source, err = cr.str(); err != nil {
-		return nil, err
-	}
-	if c.format, err = cr.str(); err != nil {
-		return nil, err
-	}
+	c := &ChunkReader{f: f, path: path, rows: chunkRows, bits: hdr.bits, n: hdr.rows, epoch: hdr.epoch, source: hdr.source, format: hdr.format}
 	c.offID, _ = sr.Seek(0, io.SeekCurrent)
 	c.end = c.n
 	return c, c.readNames(size, nil)

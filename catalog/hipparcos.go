@@ -3,7 +3,6 @@ package catalog
 import (
 	"bytes"
 	"fmt"
-	"io"
 	"math"
 )
 
@@ -33,18 +32,7 @@ const (
 // +Inf and FlagNoDistance.
 func readHipparcos(lr *lineReader, b *builder) error {
 	fields := make([][]byte, 0, 80)
-	for {
-		line, err := lr.next()
-		if err == io.EOF {
-			return nil
-		}
-		if err != nil {
-			return err
-		}
-		if isBlank(line) {
-			continue
-		}
-		n := lr.line
+	return lr.eachLine(func(line []byte, n int) error {
 		fields = splitPlain(line, '|', fields[:0], hipFields+1)
 		if len(fields) < hipFields {
 			return &ParseError{File: b.file, Line: n, Err: fmt.Errorf("%w: %d '|'-separated fields, want at least %d", ErrFieldCount, len(fields), hipFields)}
@@ -75,7 +63,7 @@ func readHipparcos(lr *lineReader, b *builder) error {
 			}
 			if !okRA || !okDE {
 				b.skip("no position", n)
-				continue
+				return nil
 			}
 		}
 		v, ok, err := b.ranged(fields[hipVmag], "Vmag", n, vmagLo, vmagHi)
@@ -84,7 +72,7 @@ func readHipparcos(lr *lineReader, b *builder) error {
 		}
 		if !ok {
 			b.skip("no V magnitude", n)
-			continue
+			return nil
 		}
 		plx, okPlx, err := b.ranged(fields[hipPlx], "Plx", n, -1e5, 1e5)
 		if err != nil {
@@ -113,7 +101,8 @@ func readHipparcos(lr *lineReader, b *builder) error {
 		if err := b.add(st, n); err != nil {
 			return err
 		}
-	}
+		return nil
+	})
 }
 
 // sexagesimal parses "hh mm ss.s" or "±dd mm ss.s" (blank → ok=false) and
@@ -178,18 +167,7 @@ func splitPlain(line []byte, sep byte, out [][]byte, max int) [][]byte {
 // The file has no V: V is computed from Hp and B−V with VFromHp (Bessell
 // 2000 table). Rows without a position or Hp are skipped and counted.
 func readHip2(lr *lineReader, b *builder) error {
-	for {
-		line, err := lr.next()
-		if err == io.EOF {
-			return nil
-		}
-		if err != nil {
-			return err
-		}
-		if isBlank(line) {
-			continue
-		}
-		n := lr.line
+	return lr.eachLine(func(line []byte, n int) error {
 		id, err := b.integer(col(line, 1, 6), "HIP", n)
 		if err != nil {
 			return err
@@ -204,7 +182,7 @@ func readHip2(lr *lineReader, b *builder) error {
 		}
 		if !okRA || !okDE {
 			b.skip("no position", n)
-			continue
+			return nil
 		}
 		hp, ok, err := b.ranged(col(line, 130, 136), "Hpmag", n, vmagLo, vmagHi)
 		if err != nil {
@@ -212,7 +190,7 @@ func readHip2(lr *lineReader, b *builder) error {
 		}
 		if !ok {
 			b.skip("no Hp magnitude", n)
-			continue
+			return nil
 		}
 		plx, okPlx, err := b.ranged(col(line, 44, 50), "Plx", n, -1e5, 1e5)
 		if err != nil {
@@ -248,5 +226,6 @@ func readHip2(lr *lineReader, b *builder) error {
 		if err := b.add(st, n); err != nil {
 			return err
 		}
-	}
+		return nil
+	})
 }

@@ -372,6 +372,26 @@ func (l *lineReader) next() ([]byte, error) {
 	return b, nil
 }
 
+// eachLine calls fn with every non-blank line and its 1-based number until
+// the input ends or fn or the reader fails.
+func (l *lineReader) eachLine(fn func(line []byte, n int) error) error {
+	for {
+		line, err := l.next()
+		if err == io.EOF {
+			return nil
+		}
+		if err != nil {
+			return err
+		}
+		if isBlank(line) {
+			continue
+		}
+		if err := fn(line, l.line); err != nil {
+			return err
+		}
+	}
+}
+
 // expectEOF drains what follows a cache so trailing garbage and truncated
 // gzip are noticed.
 func (l *lineReader) expectEOF() error {

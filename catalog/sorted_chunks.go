@@ -61,42 +61,18 @@ func (c *ChunkReader) feed(j int, b []byte, size, lo, hi int) error {
 func openSorted(f *os.File, path string, chunkRows int, size int64, trailer uint32) (*ChunkReader, error) {
 	sr := io.NewSectionReader(f, 0, size-4)
 	cr := &cacheReader{r: sr}
-	hd, err := cr.next(8 + 4 + 8 + 8)
+	h, err := cr.header(DefaultMaxRows, cacheVersionSorted)
 	if err != nil {
 		return nil, err
 	}
-	c := &ChunkReader{f: f, path: path, rows: chunkRows}
-	c.bits = binary.LittleEndian.Uint32(hd[8:])
-	if c.bits&^cacheKnown != 0 {
-		return nil, fmt.Errorf("%w: unknown column bits %#x", ErrBadCache, c.bits)
-	}
-	n64 := binary.LittleEndian.Uint64(hd[12:])
-	if n64 > DefaultMaxRows {
-		return nil, fmt.Errorf("%w: header declares %d rows, limit %d", ErrTooManyRows, n64, int64(DefaultMaxRows))
-	}
-	c.n = int(n64)
-	c.epoch = math.Float64frombits(binary.LittleEndian.Uint64(hd[20:]))
-	if math.IsNaN(c.epoch) || math.IsInf(c.epoch, 0) {
-		return nil, fmt.Errorf("%w: epoch %v", ErrBadCache, c.epoch)
-	}
-	if c.source, err = cr.str(); err != nil {
-		return nil, err
-	}
-	if c.format, err = cr.str(); err != nil {
-		return nil, err
-	}
+	c := &ChunkReader{f: f, path: path, rows: chunkRows, bits: h.bits, n: h.rows, epoch: h.epoch, source: h.source, format: h.format}
 	ncols := c.ncols() + 2 // with ID and Flags
 	idx, err := readIndex(cr, c.n, ncols)
 	if err != nil {
 		return nil, err
 	}
-	sum := cr.crc
-	hc, err := cr.next(4)
-	if err != nil {
+	if err := cr.headerSum(); err != nil {
 		return nil, err
-	}
-	if got := binary.LittleEndian.Uint32(hc); got != sum {
-		return nil, fmt.Errorf("%w: header checksum %08x, computed %08x", ErrCorrupt, got, sum)
 	}
 	c.offID, _ = sr.Seek(0, io.SeekCurrent)
 	c.idx, c.end, c.tailFrom = idx, c.n, idx.Bins()
