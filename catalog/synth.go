@@ -155,7 +155,8 @@ func BuiltIn() *Stars {
 //
 // Counts. The default V = 8 sky has about 42 000 stars; to V = 6, 10, 12
 // and 14 about 4 800, 3.1·10⁵, 2.1·10⁶ and 1.5·10⁷ (TestSyntheticCounts
-// compares them with Allen's Astrophysical Quantities). The model constants
+// compares them with a published star-count relation, NASA Space Math
+// problem 103). The model constants
 // and their sources are in synth_model.go.
 func Synthetic(opt SynthOptions) *Stars {
 	s := &Stars{Epoch: 2000, Source: SyntheticSource, Format: SyntheticFormat}
