@@ -23,31 +23,85 @@ type Source struct {
 	File        string // file name used in the cache directory
 	Format      Format
 	Description string
+	// Published is what is known of the file at URL; FetchSource checks
+	// every download against it.
+	Published Published
 }
 
 // KnownSources lists the catalogues `skyframe catalog` can download, by the
 // file names of the CDS (Strasbourg astronomical Data Centre) FTP tree
-// served over HTTPS at https://cdsarc.cds.unistra.fr/ftp/:
-//   - "bsc5": V/50, the Bright Star Catalogue, 5th Revised Ed. (Hoffleit &
-//     Warren 1991), file catalog.gz (9110 entries, ≈ 0.5 MB);
-//   - "hipparcos": I/239, the Hipparcos Catalogue (ESA 1997), main file
-//     hip_main.dat.gz (118 218 entries, ≈ 13 MB);
-//   - "hipparcos2007": I/311, Hipparcos, the New Reduction (van Leeuwen
-//     2007), hip2.dat.gz (117 955 entries).
+// served over HTTPS at https://cdsarc.cds.unistra.fr/ftp/, with what is
+// known of each file (read 2026-12-02 from stored copies of the documents
+// cited; this machine has no network, so none was checked against the
+// archive itself):
 //
-// No published length or SHA-256 of these compressed files could be
-// established offline (the CDS ReadMe files give record lengths and counts
-// of the uncompressed tables, not of the .gz files), so none is recorded
-// here: FetchWith relies on the server's Content-Length or chunked framing
-// and on reading the file completely, and a user can pin a digest
-// (FetchOptions.SHA256, `catalog fetch --sha256`), which every fetch prints.
+//   - "bsc5": V/50, the Bright Star Catalogue, 5th Revised Ed. (Hoffleit &
+//     Warren 1991), file catalog.gz. The V/50 ReadMe (CDS, last revised
+//     1995-11-02 by F. Ochsenbein), File Summary: file "catalog", Lrecl
+//     197, 9110 records. With every record padded with blanks to Lrecl
+//     and ended by a line feed, as CDS serves its fixed-width tables
+//     (common practice; the users cited below who pin this file's digest
+//     also require every one of its records to have 197 bytes), the table
+//     has 9110 × 198 = 1 803 780 bytes, the 14 entries without data
+//     included. CDS publishes no checksum. The gzip
+//     file's size, 573 921 bytes, and SHA-256 3dc44b1e…ec7bed were found
+//     recorded alike in the data notes of at least five unrelated public
+//     repositories that pin the file they downloaded (retrieved
+//     2026-07-28, 2026-09-25 and 2026-09-30, per those notes); the
+//     inflated table's SHA-256 69797549…809afd in two more, one of which
+//     reads it from the copy the SAO Telescope Data Center serves as
+//     ybsc5.gz, so two archives agree on the table's bytes. These are
+//     independent users' records, not the publisher's.
+//   - "hipparcos": I/239, the Hipparcos Catalogue (ESA 1997), main file
+//     hip_main.dat.gz: 118 218 records (the I/239 ReadMe; the SAO
+//     Telescope Data Center's Hipparcos page states the same count). Its
+//     record length, size and SHA-256 could not be established offline:
+//     only the record count is checked.
+//   - "hipparcos2007": I/311, Hipparcos, the New Reduction (van Leeuwen
+//     2007), hip2.dat.gz: 117 955 records (van Leeuwen 2007, A&A 474, 653,
+//     quoted from memory). Size and SHA-256 not established offline: only
+//     the record count is checked.
+//
+// Where no digest is recorded, completeness rests on the record count
+// (every record ended by a line feed), the server's Content-Length or
+// chunked framing, and reading the whole file; a user can pin a digest
+// (FetchOptions.SHA256, `catalog fetch --sha256`), which every fetch
+// prints. A copy edited in any way (such as the trimmed test copy in
+// ../shared/catalogs) is not the published file and fails these checks.
 var KnownSources = map[string]Source{
 	"bsc5": {Name: "bsc5", URL: "https://cdsarc.cds.unistra.fr/ftp/V/50/catalog.gz", File: "bsc5.dat.gz",
-		Format: FormatBSC5, Description: "Bright Star Catalogue, 5th Revised Ed. (CDS V/50)"},
+		Format: FormatBSC5, Description: "Bright Star Catalogue, 5th Revised Ed. (CDS V/50)",
+		Published: Published{
+			Records: 9110, RecordLength: 197, Size: 9110 * 198,
+			SHA256:     "69797549cc1605aad7ff94e9325e29a1661f2a253917faaa056d9bf20b809afd",
+			GzipSize:   573921,
+			GzipSHA256: "3dc44b1e90be8fbe5bcc7656032560f51275f985c7e3f783c9028e1838ec7bed",
+			Source:     "CDS V/50 ReadMe (1995-11-02): 9110 records of 197 bytes; gzip size and SHA-256s as recorded by independent users (2026-07 to 2026-09)",
+		}},
 	"hipparcos": {Name: "hipparcos", URL: "https://cdsarc.cds.unistra.fr/ftp/I/239/hip_main.dat.gz", File: "hip_main.dat.gz",
-		Format: FormatHipparcos, Description: "The Hipparcos Catalogue, ESA 1997 (CDS I/239)"},
+		Format: FormatHipparcos, Description: "The Hipparcos Catalogue, ESA 1997 (CDS I/239)",
+		Published: Published{Records: 118218, Source: "CDS I/239 ReadMe: 118 218 records; size and SHA-256 not established offline"}},
 	"hipparcos2007": {Name: "hipparcos2007", URL: "https://cdsarc.cds.unistra.fr/ftp/I/311/hip2.dat.gz", File: "hip2.dat.gz",
-		Format: FormatHipparcos2007, Description: "Hipparcos, the New Reduction, van Leeuwen 2007 (CDS I/311)"},
+		Format: FormatHipparcos2007, Description: "Hipparcos, the New Reduction, van Leeuwen 2007 (CDS I/311)",
+		Published: Published{Records: 117955, Source: "van Leeuwen (2007), A&A 474, 653: 117 955 records (from memory); size and SHA-256 not established offline"}},
+}
+
+// FetchSource downloads src (from url when not empty: a mirror) to dst
+// with FetchWith, checking the file against src.Published (its served
+// gzip's size and digest only when url is src.URL or empty) and its
+// format against src.Format. opt's Size and SHA256, when given, pin
+// another edition in place of the published sizes and digests.
+func FetchSource(ctx context.Context, client *http.Client, src Source, url, dst string, progress func(done, total int64), opt FetchOptions) error {
+	if url == "" {
+		url = src.URL
+	}
+	pub := src.Published
+	opt.Published = &pub
+	opt.Mirror = url != src.URL
+	if opt.Format == FormatAuto {
+		opt.Format = src.Format
+	}
+	return FetchWith(ctx, client, url, dst, progress, opt)
 }
 
 // CachePath returns where the source is kept: CacheDir()/File.
@@ -89,6 +143,19 @@ type FetchOptions struct {
 	// complete temporary file (path) and must return nil for the file to
 	// be renamed into place. Other kinds of table (the star names) use it.
 	Check func(ctx context.Context, path string) error
+	// Published, when not nil, describes the file as its publisher serves
+	// it; the download must match it (Published.Verify) before any other
+	// check. Its figures also bound the download (a body longer than the
+	// published file stops early) and prove a close-delimited body
+	// complete. A digest pinned in SHA256 or a length in Size replaces its
+	// sizes and digests (a user pinning another edition); its record count
+	// and length still apply.
+	Published *Published
+	// Mirror says the URL is not the publisher's own address, so
+	// Published's figures of the served gzip file (GzipSize, GzipSHA256),
+	// which a mirror may compress differently, are not applied; those of
+	// the table it inflates to are.
+	Mirror bool
 }
 
 // ErrUnverifiable is returned when a download's completeness cannot be
@@ -165,9 +232,15 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 	if ce := resp.Header.Get("Content-Encoding"); ce != "" && ce != "identity" {
 		return fmt.Errorf("catalog: fetch %s: the server applied Content-Encoding %q although none was asked for", url, ce)
 	}
+	pub := opt.Published
+	if pub != nil && (want != "" || opt.Size > 0) {
+		p := *pub
+		p.Size, p.SHA256, p.GzipSize, p.GzipSHA256 = 0, "", 0, ""
+		pub = &p
+	}
 	total := resp.ContentLength
 	chunked := len(resp.TransferEncoding) > 0 && resp.TransferEncoding[0] == "chunked"
-	if total < 0 && !chunked && opt.Size <= 0 {
+	if total < 0 && !chunked && opt.Size <= 0 && !pub.exact() {
 		return fmt.Errorf("catalog: fetch %s: %w: the server sent no Content-Length and the body is not chunked; give the expected size", url, ErrUnverifiable)
 	}
 	if total >= 0 && opt.Size > 0 && total != opt.Size {
@@ -189,6 +262,12 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 	limit := int64(MaxDownloadBytes)
 	if opt.MaxBytes > 0 && opt.MaxBytes < limit {
 		limit = opt.MaxBytes
+	}
+	if m := pub.maxServed(!opt.Mirror); m > 0 && m < limit {
+		limit = m
+	}
+	if total > limit {
+		return fmt.Errorf("catalog: fetch %s: %w: the server announces %d bytes, more than the %d expected", url, ErrVerify, total, limit)
 	}
 	h := sha256.New()
 	var done int64
@@ -230,6 +309,11 @@ func FetchWith(ctx context.Context, client *http.Client, url string, dst string,
 	}
 	if err := tmp.Close(); err != nil {
 		return fmt.Errorf("catalog: fetch: %w", err)
+	}
+	if pub != nil {
+		if err := pub.Verify(tmp.Name(), !opt.Mirror); err != nil {
+			return fmt.Errorf("catalog: fetch %s: %w", url, err)
+		}
 	}
 	if opt.Check != nil {
 		if err := opt.Check(ctx, tmp.Name()); err != nil {

@@ -19,10 +19,12 @@ type Source struct {
 
 // Published is the IAU-CSN text table as the WGSN publishes it (the
 // address linked from the IAU's star-names pages; quoted from memory). The
-// WGSN updates the file as names are adopted, so its size and hash are not
-// pinned here (no published digest could be established offline); Fetch
-// checks the content instead (see Fetch), and a user can pin the digest a
-// fetch prints (`catalog fetch names --sha256`).
+// WGSN updates the file in place as names are adopted (the copy in
+// ../shared/catalogs is the edition of 2018-09-07; public notes seen on
+// 2026-12-02 cite an edition of 2022-04-04 with 451 names), and no size,
+// line count or digest of any edition is published, so none is pinned
+// here: Fetch checks the content instead (see Fetch), and a user can pin
+// the digest a fetch prints (`catalog fetch names --sha256`).
 var Published = Source{
 	URL:  "https://www.pas.rochester.edu/~emamajek/WGSN/IAU-CSN.txt",
 	File: "iau-csn.txt",
