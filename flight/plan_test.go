@@ -419,3 +419,54 @@ func TestPlanColumns(t *testing.T) {
 		t.Errorf("g column: %v, want the catalogue's message %q", err, catalog.ErrGaiaColumn)
 	}
 }
+
+// TestPlanFOVFollowsProjection: a plan's field of view is checked against
+// the range of the projection the same plan names, whatever the order of
+// its keys — the documented defaults are 60° pinhole and 180° fisheye
+// (frameopt.Defs), so `projection = "fisheye"` with `fov = 180` is valid.
+// Before the fix each value was checked as it was stored, keys in
+// alphabetical order, so fov met the default pinhole projection and a
+// fisheye plan of 180° was refused with the pinhole range. Genuine errors
+// still name file, line and key, with the range of the plan's projection.
+func TestPlanFOVFollowsProjection(t *testing.T) {
+	base := "[[leg]]\nkind = \"cruise\"\nship_years = 1\n[show]\nseconds = 5\n"
+	for _, c := range []struct {
+		name, camera string
+		fovs         []float64 // per frame key: the fov the plan resolves (base key when no keys)
+		line         int       // of the error, 0 when valid
+		key, msg     string
+	}{
+		{"fisheye 180", "projection = \"fisheye\"\nfov = 180\nsize = \"256x256\"\n", []float64{180}, 0, "", ""},
+		{"fisheye 180, fov first", "fov = 180\nprojection = \"fisheye\"\n", []float64{180}, 0, "", ""},
+		{"fisheye 360", "projection = \"fisheye\"\nfov = 360\n", []float64{360}, 0, "", ""},
+		{"fisheye keys", "projection = \"fisheye\"\nfov = 180\n[[camera.look]]\nat = 0\nfov = 200\n[[camera.look]]\nat = 1\nfov = 180\n", []float64{200, 180}, 0, "", ""},
+		{"fisheye too wide", "projection = \"fisheye\"\nfov = 400\n", nil, 8, "camera.fov", "for fisheye"},
+		{"fisheye key too wide", "projection = \"fisheye\"\n[[camera.look]]\nat = 0\nfov = 400\n", nil, 10, "camera.look[0].fov", "for fisheye"},
+		{"pinhole 180", "projection = \"pinhole\"\nfov = 180\n", nil, 8, "camera.fov", "for pinhole"},
+		{"default pinhole 180", "fov = 180\n", nil, 7, "camera.fov", "for pinhole"},
+	} {
+		p, err := ParsePlan([]byte(base+"[camera]\n"+c.camera), "t.toml")
+		if c.line == 0 {
+			if err != nil {
+				t.Errorf("%s: %v", c.name, err)
+				continue
+			}
+			var got []float64
+			for _, k := range p.looks {
+				got = append(got, k.fov)
+			}
+			if !reflect.DeepEqual(got, c.fovs) {
+				t.Errorf("%s: key fovs %v, want %v", c.name, got, c.fovs)
+			}
+			continue
+		}
+		var pe *PlanError
+		if !errors.As(err, &pe) || !errors.Is(err, ErrPlanValue) {
+			t.Errorf("%s: have %v, want a *PlanError", c.name, err)
+			continue
+		}
+		if pe.Line != c.line || pe.Key != c.key || !strings.Contains(pe.Msg, c.msg) || !strings.Contains(err.Error(), "t.toml:"+strconv.Itoa(c.line)) {
+			t.Errorf("%s: have %v (line %d key %q), want line %d key %q saying %q", c.name, err, pe.Line, pe.Key, c.line, c.key, c.msg)
+		}
+	}
+}

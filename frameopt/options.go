@@ -145,9 +145,12 @@ func (e *typeError) Is(target error) bool { return target == ErrType }
 
 func typeErr(format string, a ...any) error { return &typeError{fmt.Sprintf(format, a...)} }
 
-// Set stores a plan (TOML-decoded) value of option d into o and checks it.
-// Numbers accept TOML integers and floats; integers only integers; lists
-// an array of strings. The error's message does not name the key.
+// Set stores a plan (TOML-decoded) value of option d into o, checking
+// only its type: numbers accept TOML integers and floats; integers only
+// integers; lists an array of strings. The value itself is checked by
+// Check once every option is set, as for flags, because some checks
+// depend on other options (fov's range on projection) and a table's keys
+// come in no useful order. The error's message does not name the key.
 func (d *Def) Set(o *Options, v any) error {
 	p := d.ptr(o)
 	switch d.Type {
@@ -213,7 +216,7 @@ func (d *Def) Set(o *Options, v any) error {
 		}
 		*p.(*[]string) = out
 	}
-	return d.check(o)
+	return nil
 }
 
 func (d *Def) check(o *Options) error {
