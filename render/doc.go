@@ -122,8 +122,15 @@
 // steps, weight 1/n each (n from the segment's on-screen speed, successive
 // sub-positions at most StreakSpacing = 0.75 FWHM apart, at most
 // MaxStreakSamples), so a streak is continuous and its summed flux is the
-// star's. Photometry is the middle knot's. ChooseKnots picks K from probe
-// paths (the quadratic within KnotTolerance = 0.05 px of the exact path).
+// star's. A path that crosses between cube faces or leaves the
+// projection's domain (behind a pinhole) is interpolated through the
+// star's directions instead, cut where it changes face or leaves the
+// image, and its sub-positions listed one by one, each projected on its
+// own: the part in the frame is drawn, and on a cube each sub-position's
+// kernel is renormalised to its face, so the faces share the star's flux
+// by the time it spends on each. Photometry is the middle knot's. ChooseKnots picks K
+// from probe paths (the quadratic within KnotTolerance = 0.05 px of the
+// exact path).
 // Layers.AddLinearMotion adds the diffuse layers as their time mean by
 // Gauss–Legendre quadrature at LayerTimes' instants. Both are
 // bit-identical for any worker count.

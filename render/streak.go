@@ -6,6 +6,8 @@ import (
 	"math"
 	"sync"
 
+	"gonum.org/v1/gonum/spatial/r3"
+
 	"github.com/skyframe/skyframe/camera"
 )
 
@@ -150,10 +152,14 @@ func StreakSamples(ax, ay, bx, by, fwhm float64) int {
 //
 // Each star is streaked along its apparent path (see the comment at the
 // top of streak.go); stars drawn as discs are drawn at the middle knot,
-// unblurred, and so is a star whose path leaves the projection's domain
-// (behind a pinhole's image plane) or crosses between cube faces within
-// the exposure. Streaks are continuous across an equirectangular frame's
-// ±180° seam. Stats describe the middle knot (a star counts as off the
+// unblurred. A star whose path leaves the projection's domain (behind a
+// pinhole's image plane) or crosses between cube faces within the
+// exposure is streaked through its directions, sub-position by
+// sub-position (streak_edge.go): the part of its streak in the frame is
+// drawn, and on a cube each face gets its share. A star seen at the middle
+// knot is needed: one the middle knot's camera cannot show is off the
+// frame. Streaks are continuous across an equirectangular frame's ±180°
+// seam. Stats describe the middle knot (a star counts as off the
 // frame when no part of its streak can light it).
 //
 // The output is bit-identical for any worker count, like Render's: stars
@@ -206,20 +212,35 @@ func (p *Prepared) RenderMotion(opt Options, knots []Instant) (*Frame, error) {
 	nChunks := (n + chunkSize - 1) / chunkSize
 	chunks := make([]chunkResult, nChunks)
 	counts := make([]int, nChunks)
+	paths := make([][]explicitPath, nChunks)
 	parallel(workers, nChunks, func(c int) {
 		lo := c * chunkSize
 		hi := min(lo+chunkSize, n)
 		st := newStreaker(p, &f.Options, &psf, f.Scale, knots, projs, same)
 		counts[c] = st.run(lo, hi, recs[lo*segs:hi*segs], &chunks[c])
+		paths[c] = st.paths
 	})
 	discs, err := p.gather(f, chunks)
 	if err != nil {
 		return nil, err
 	}
+	// The listed streaks, chunk by chunk; records point into them.
+	var all []explicitPath
+	for c := range paths {
+		off := int32(len(all))
+		if off > 0 {
+			for k := c * chunkSize * segs; k < c*chunkSize*segs+counts[c]; k++ {
+				if recs[k].ex != 0 {
+					recs[k].ex += off
+				}
+			}
+		}
+		all = append(all, paths[c]...)
+	}
 
 	// Phase 2: bin into tiles; phase 3: add each tile's streaks.
 	g := newGrid(f.W, f.H, psf.Radius(), opt.Projection.Kind)
-	sg := &streakGrid{grid: g}
+	sg := &streakGrid{grid: g, paths: all}
 	sg.binAll(recs, counts, chunkSize*segs, workers)
 	sg.addTiles(&f.Buffer, &psf, workers)
 	finishFrame(&f.Buffer, workers)
@@ -240,6 +261,9 @@ type streakRec struct {
 	rgb            [3]float32
 	d              float32
 	n, parts       uint16
+	// ex is 1 + the index of the record's listed sub-positions in
+	// streakGrid.paths (streak_edge.go), 0 for a quadratic path.
+	ex int32
 }
 
 // streaker transforms one chunk of stars at every knot.
@@ -260,6 +284,14 @@ type streaker struct {
 	// Scratch of star: the knots' positions and the segments.
 	xs, ys [MaxKnots]float64
 	seg    [MaxKnots / 2]streakRec
+	// Listed streaks (streak_edge.go): each knot's view, the middle
+	// knot's axes, the knots' directions, and the chunk's paths.
+	views []knotView
+	om    camera.Orientation
+	dirs  [MaxKnots]r3.Vec
+	paths []explicitPath
+	arena []subPos
+	cuts  []float64
 }
 
 func newStreaker(p *Prepared, opt *Options, psf *PSF, scale float64, knots []Instant, projs []camera.Projection, same []bool) *streaker {
@@ -268,6 +300,8 @@ func newStreaker(p *Prepared, opt *Options, psf *PSF, scale float64, knots []Ins
 		geo: make([]*transformer, k), gb: make([]*geomBlock, k),
 		px: make([][blockSize]float64, k), py: make([][blockSize]float64, k),
 		segs: (k - 1) / 2, fwhm: psf.FWHM(), radius: psf.Radius(), margin: psf.Radius() + 1}
+	s.views = newKnotViews(projs, s.mid)
+	s.om = s.views[s.mid].o
 	for i := range knots {
 		if i == s.mid || same[i] {
 			continue
@@ -340,17 +374,17 @@ func (s *streaker) star(i, j int, out []streakRec, res *chunkResult) int {
 		return 0
 	}
 	// The knots' positions, unwrapped across an equirect seam; a star
-	// undefined at a knot or changing cube face is drawn at the middle
-	// knot only ("steady").
+	// undefined at a knot or changing cube face has its sub-positions
+	// listed (streak_edge.go).
 	xs, ys := s.xs[:len(s.projs)], s.ys[:len(s.projs)]
-	steady := false
+	steady, listed := false, false
 	kind, w := t.proj.Kind, t.w
 	face := math.Floor(xm / t.h)
 	x0, x1, y0, y1 := xm, xm, ym, ym
 	for k := range xs {
 		x, y := s.px[k][j], s.py[k][j]
 		if math.IsNaN(x) || math.IsNaN(y) {
-			steady = true
+			listed = true
 			break
 		}
 		switch kind {
@@ -362,14 +396,17 @@ func (s *streaker) star(i, j int, out []streakRec, res *chunkResult) int {
 			}
 		case camera.Cube:
 			if math.Floor(x/t.h) != face {
-				steady = true
+				listed = true
 			}
 		}
 		xs[k], ys[k] = x, y
 		x0, x1 = math.Min(x0, x), math.Max(x1, x)
 		y0, y1 = math.Min(y0, y), math.Max(y1, y)
 	}
-	if !steady && kind != camera.Equirect {
+	if listed {
+		return s.listed(i, j, xm, ym, out, res)
+	}
+	if kind != camera.Equirect {
 		// Far off the frame: the path through the knots overshoots
 		// their bounding box by at most an eighth of its size.
 		m := s.margin + 0.25*math.Max(x1-x0, y1-y0)
@@ -378,7 +415,7 @@ func (s *streaker) star(i, j int, out []streakRec, res *chunkResult) int {
 			return 0
 		}
 	}
-	if !steady {
+	{
 		// A star whose whole path is within one sub-position's spacing
 		// is deposited once, at the middle knot, as Render draws it.
 		L := 0.0
@@ -501,7 +538,8 @@ func (s *streaker) segmentOnFrame(r *streakRec) bool {
 // order within each tile.
 type streakGrid struct {
 	*grid
-	recs []streakRec
+	recs  []streakRec
+	paths []explicitPath // listed streaks (streakRec.ex)
 }
 
 // colRanges returns the pixel column ranges [lo, hi] (at most two, after
@@ -509,6 +547,11 @@ type streakGrid struct {
 // record r's kernels may light, and the row range.
 func (g *streakGrid) colRanges(r *streakRec) (cols [2][2]int, nc, row0, row1 int) {
 	x0, x1, y0, y1 := r.bounds()
+	listed := r.ex != 0
+	if listed {
+		p := &g.paths[r.ex-1]
+		x0, x1, y0, y1 = p.x0, p.x1, p.y0, p.y1
+	}
 	row0 = max(int(math.Floor(y0-g.radius)), 0)
 	row1 = min(int(math.Floor(y1+g.radius)), g.h-1)
 	if row0 > row1 {
@@ -534,6 +577,9 @@ func (g *streakGrid) colRanges(r *streakRec) (cols [2][2]int, nc, row0, row1 int
 		return cols, nc, row0, row1
 	case camera.Cube:
 		lo, hi, _ := g.span(r.x)
+		if listed {
+			lo, hi = 0, g.w
+		}
 		c0, c1 = max(c0, lo), min(c1, hi-1)
 	default:
 		c0, c1 = max(c0, 0), min(c1, g.w-1)
@@ -544,6 +590,9 @@ func (g *streakGrid) colRanges(r *streakRec) (cols [2][2]int, nc, row0, row1 int
 	cols[0] = [2]int{c0, c1}
 	return cols, 1, row0, row1
 }
+
+// single reports whether r is a single deposit (Render's splat).
+func (r *streakRec) single() bool { return r.n == 1 && r.parts == 1 && r.ex == 0 }
 
 func floorDiv(a, b int) int {
 	q := a / b
@@ -641,9 +690,9 @@ func (a *streakAcc) add(b *Buffer, g *streakGrid, ti int, psf *PSF) {
 	for k := 0; k < len(list); {
 		// A run of single-position records goes through the splat
 		// primitive as it is; a streak through the stamp.
-		if list[k].n == 1 && list[k].parts == 1 {
+		if list[k].single() {
 			a.one = a.one[:0]
-			for ; k < len(list) && list[k].n == 1 && list[k].parts == 1; k++ {
+			for ; k < len(list) && list[k].single(); k++ {
 				r := &list[k]
 				a.one = append(a.one, splatRec{x: r.x, y: r.y, rgb: r.rgb, d: r.d})
 			}
@@ -667,13 +716,30 @@ func (a *streakAcc) add(b *Buffer, g *streakGrid, ti int, psf *PSF) {
 // (float64), then every stamp pixel adds stamp·rgb to the tile in float32
 // (and stamp·luminance·D to the Doppler sums).
 func (a *streakAcc) streak(g *streakGrid, ox, oy, tw, th int, r *streakRec, psf *PSF, doppler bool) {
+	var q0, q1, p0, p1 int
+	if r.ex != 0 {
+		q0, q1, p0, p1 = a.explicitStamp(g, ox, oy, tw, th, &g.paths[r.ex-1], psf)
+	} else {
+		q0, q1, p0, p1 = a.quadStamp(g, ox, oy, tw, th, r, psf)
+	}
+	if q1 < q0 {
+		return
+	}
+	a.flush(r, q0, q1, p0, p1, doppler)
+}
+
+// quadStamp deposits the sub-positions of record r's quadratic path that
+// light the tile at (ox, oy) of tw×th pixels into a's stamp and returns
+// the stamp's range used, [q0, q1]×[p0, p1] in tile coordinates (q1 < q0
+// when none).
+func (a *streakAcc) quadStamp(g *streakGrid, ox, oy, tw, th int, r *streakRec, psf *PSF) (q0, q1, p0, p1 int) {
 	inv := 1 / (float64(r.n) * float64(r.parts))
 	ax, ay, bx, by := float64(r.ax), float64(r.ay), float64(r.bx), float64(r.by)
 	W := float64(g.w)
 	fish := g.kind == camera.Fisheye
 	cx, cy, rf := W/2, float64(g.h)/2, float64(min(g.w, g.h))/2
 	clip0, clip1, _ := g.span(r.x) // a cube streak keeps to its face
-	q0, q1, p0, p1 := tileSize, -1, tileSize, -1
+	q0, q1, p0, p1 = tileSize, -1, tileSize, -1
 	wx, wy := &a.wx, &a.wy
 	for i := 0; i < int(r.n); i++ {
 		u := float64(2*i+1)/float64(r.n) - 1
@@ -728,9 +794,12 @@ func (a *streakAcc) streak(g *streakGrid, ox, oy, tw, th int, r *streakRec, psf 
 			}
 		}
 	}
-	if q1 < q0 {
-		return
-	}
+	return q0, q1, p0, p1
+}
+
+// flush adds the stamp's range [q0, q1]×[p0, p1] times record r's colour
+// to the tile's sums, in float32, and clears it.
+func (a *streakAcc) flush(r *streakRec, q0, q1, p0, p1 int, doppler bool) {
 	rgb := [3]float64{float64(r.rgb[0]), float64(r.rgb[1]), float64(r.rgb[2])}
 	lumD := (lumR*rgb[0] + lumG*rgb[1] + lumB*rgb[2]) * float64(r.d)
 	for j := p0; j <= p1; j++ {
