@@ -9,6 +9,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/skyframe/skyframe/analysis"
 )
 
 // --epoch propagates positions the same way whatever file the catalogue
@@ -88,7 +90,7 @@ func TestEpochOnCacheAndParquet(t *testing.T) {
 }
 
 // The CSV and TSV writers of stars give the JSON writer's table: the same
-// header (starColumns, with beta first for --speeds) and every value
+// header (analysis.StarColumns, with beta first for --speeds) and every value
 // reading back to the JSON's number, empty dist_pc where JSON has null.
 func TestStarsCSVAndTSV(t *testing.T) {
 	for _, extra := range [][]string{{"--speed", "0.7"}, {"--speeds", "0,0.99"}} {
@@ -107,10 +109,10 @@ func TestStarsCSVAndTSV(t *testing.T) {
 			if err != nil {
 				t.Fatalf("%s: %v", f.name, err)
 			}
-			head := starColumns
+			head := analysis.StarColumns
 			speeds := extra[0] == "--speeds"
 			if speeds {
-				head = append([]string{"beta"}, starColumns...)
+				head = append([]string{"beta"}, analysis.StarColumns...)
 			}
 			if !reflect.DeepEqual(recs[0], head) {
 				t.Fatalf("%s header %v, want %v", f.name, recs[0], head)
@@ -139,7 +141,7 @@ func TestStarsCSVAndTSV(t *testing.T) {
 						continue
 					}
 					if v, err := strconv.ParseFloat(rec[2+c], 64); err != nil || v != want {
-						t.Fatalf("%s row %d column %s: %q, JSON %v", f.name, k, starColumns[2+c], rec[2+c], want)
+						t.Fatalf("%s row %d column %s: %q, JSON %v", f.name, k, analysis.StarColumns[2+c], rec[2+c], want)
 					}
 				}
 			}

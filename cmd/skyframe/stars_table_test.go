@@ -16,17 +16,18 @@ import (
 	"github.com/parquet-go/parquet-go"
 	"github.com/spf13/pflag"
 
+	"github.com/skyframe/skyframe/analysis"
 	"github.com/skyframe/skyframe/internal/sharedcat"
 	"github.com/skyframe/skyframe/spectrum"
 )
 
-func starsJSON(t *testing.T, args ...string) []speedRow {
+func starsJSON(t *testing.T, args ...string) []analysis.SpeedRow {
 	t.Helper()
 	out, errs, code := runCmd(t, append([]string{"stars", "--format", "json"}, args...)...)
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	var rows []speedRow
+	var rows []analysis.SpeedRow
 	if err := json.Unmarshal([]byte(out), &rows); err != nil {
 		t.Fatal(err)
 	}
@@ -86,7 +87,7 @@ func TestStarsSpeedsEqualSingleRuns(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !slices.Equal(mrecs[0], append([]string{"beta"}, starColumns...)) {
+	if !slices.Equal(mrecs[0], append([]string{"beta"}, analysis.StarColumns...)) {
 		t.Fatalf("header %v", mrecs[0])
 	}
 	k := 1
@@ -193,9 +194,9 @@ func TestStarsParquet(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	have := make([]speedRow, len(flat))
+	have := make([]analysis.SpeedRow, len(flat))
 	for i, r := range flat {
-		have[i] = speedRow{Beta: r.Beta, starRow: starRow{ID: r.ID, Name: r.Name, RA: r.RA, Dec: r.Dec,
+		have[i] = analysis.SpeedRow{Beta: r.Beta, StarRow: analysis.StarRow{ID: r.ID, Name: r.Name, RA: r.RA, Dec: r.Dec,
 			Dist: r.Dist, Temp: r.Temp, Vmag: r.Vmag, Theta: r.Theta, ThetaObs: r.ThetaObs, RAObs: r.RAObs,
 			DecObs: r.DecObs, Doppler: r.Doppler, TempObs: r.TempObs, VmagObs: r.VmagObs, BVObs: r.BVObs,
 			FluxRatio: r.FluxRatio, CIEx: r.CIEx, CIEy: r.CIEy}}
@@ -221,7 +222,7 @@ func TestStarsParquet(t *testing.T) {
 	if _, errs, code := runCmd(t, "stars", "--catalog", bsc, "--speed", "0.5", "--format", "parquet", "-o", one, "--limit", "5"); code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	if rows, err := parquet.ReadFile[starRow](one); err != nil || len(rows) != 5 {
+	if rows, err := parquet.ReadFile[analysis.StarRow](one); err != nil || len(rows) != 5 {
 		t.Errorf("single-speed parquet: %d rows, %v", len(rows), err)
 	}
 	if _, _, code := runCmd(t, "stars", "--format", "parquet"); code != 2 {
@@ -293,7 +294,7 @@ func BenchmarkObserveStars(b *testing.B) {
 	}
 	b.ReportAllocs()
 	for b.Loop() {
-		observeStars(sc, sc.observer)
+		analysis.ObserveStars(sc.stars, sc.index.Name, sc.heading, sc.beaming, sc.observer)
 	}
 	b.ReportMetric(float64(sc.stars.Len())*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mstars/s")
 }

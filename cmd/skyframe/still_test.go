@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"testing"
 
+	"github.com/skyframe/skyframe/analysis"
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/imgfile"
 	"github.com/skyframe/skyframe/internal/sharedcat"
@@ -36,7 +37,7 @@ func TestStarsBSC5AtRest(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	var rows []starRow
+	var rows []analysis.StarRow
 	if err := json.Unmarshal([]byte(out), &rows); err != nil {
 		t.Fatal(err)
 	}
@@ -134,11 +135,11 @@ func TestStillFITSWCSMatchesStars(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("stars: exit %d: %s", code, errs)
 	}
-	var rows []starRow
+	var rows []analysis.StarRow
 	if err := json.Unmarshal([]byte(out), &rows); err != nil {
 		t.Fatal(err)
 	}
-	obs := map[int64]starRow{}
+	obs := map[int64]analysis.StarRow{}
 	for _, r := range rows {
 		obs[r.ID] = r
 	}
