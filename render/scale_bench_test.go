@@ -123,6 +123,12 @@ var scaleSizes = []int{100_000, 1_000_000, 10_000_000}
 // benchScale renders n stars with render (in memory or streamed) and
 // reports throughput and memory per star.
 func benchScale(b *testing.B, kind camera.Kind, w, h int, stream bool) {
+	benchScaleInto(b, kind, w, h, stream, false)
+}
+
+// benchScaleInto is benchScale, with reuse drawing every frame into one
+// Frame (RenderInto, RenderStreamInto) instead of a new one.
+func benchScaleInto(b *testing.B, kind camera.Kind, w, h int, stream, reuse bool) {
 	for _, n := range scaleSizes {
 		b.Run(fmt.Sprintf("n=%.0e", float64(n)), func(b *testing.B) {
 			if n > 1_000_000 && testing.Short() {
@@ -132,9 +138,21 @@ func benchScale(b *testing.B, kind camera.Kind, w, h int, stream bool) {
 			opt := scaleOptions(b, kind, w, h)
 			frame := float64(w * h * 12)
 			run := func() (*Frame, error) { return Render(stars, opt) }
+			rows := ChunkRows(opt, 0)
 			if stream {
-				rows := ChunkRows(opt, 0)
 				run = func() (*Frame, error) { return RenderStream(Chunks(stars, rows), opt) }
+			}
+			if reuse {
+				dst := new(Frame)
+				run = func() (*Frame, error) {
+					if stream {
+						return dst, RenderStreamInto(dst, Chunks(stars, rows), opt)
+					}
+					return dst, RenderInto(dst, stars, opt)
+				}
+				if _, err := run(); err != nil { // the frame to reuse
+					b.Fatal(err)
+				}
 			}
 			var peak uint64
 			var cpu float64
@@ -156,7 +174,11 @@ func benchScale(b *testing.B, kind camera.Kind, w, h int, stream bool) {
 			}
 			b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mstars/s")
 			b.ReportMetric(cpu/float64(b.N), "CPU-s/op")
-			b.ReportMetric((float64(peak)+37*float64(n)-frame)/float64(n), "peak-B/star")
+			alloc := frame // allocated per frame unless reused
+			if reuse {
+				alloc = 0
+			}
+			b.ReportMetric((float64(peak)+37*float64(n)-alloc)/float64(n), "peak-B/star")
 			b.ReportMetric(frame/1e6, "frame-MB")
 		})
 	}
@@ -165,6 +187,13 @@ func benchScale(b *testing.B, kind camera.Kind, w, h int, stream bool) {
 // BenchmarkScaleFisheye4096 is a full 4096² fisheye frame (transform,
 // projection, splat) from 10⁵, 10⁶ and 10⁷ stars with Render.
 func BenchmarkScaleFisheye4096(b *testing.B) { benchScale(b, camera.Fisheye, 4096, 4096, false) }
+
+// BenchmarkScaleFisheye4096Reuse is BenchmarkScaleFisheye4096 drawing
+// every frame into the same Frame (RenderInto): the buffer is cleared,
+// not allocated, and the working memory kept.
+func BenchmarkScaleFisheye4096Reuse(b *testing.B) {
+	benchScaleInto(b, camera.Fisheye, 4096, 4096, false, true)
+}
 
 // BenchmarkScalePinhole1080 is the same for a 1920×1080 pinhole (60° wide).
 func BenchmarkScalePinhole1080(b *testing.B) { benchScale(b, camera.Pinhole, 1920, 1080, false) }

@@ -111,6 +111,22 @@ func RenderCacheFile(path string, opt Options, memoryBudget int64) (*Frame, erro
 // is merged by (V′, row) as Render orders it. The Frame's Stats.Total is
 // the total number of stars seen.
 func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, error) {
+	return renderStream(nil, next, opt)
+}
+
+// RenderStreamInto is RenderStream drawing into dst, whose buffers and
+// working memory are reused as RenderInto reuses them.
+func RenderStreamInto(dst *Frame, next func() (*catalog.Stars, error), opt Options) error {
+	if dst == nil {
+		return errors.New("render: RenderStreamInto: nil Frame")
+	}
+	_, err := renderStream(dst, next, opt)
+	return err
+}
+
+// renderStream is RenderStream into dst, or into a new frame when dst is
+// nil.
+func renderStream(dst *Frame, next func() (*catalog.Stars, error), opt Options) (*Frame, error) {
 	if next == nil {
 		return nil, ErrStars
 	}
@@ -118,14 +134,12 @@ func RenderStream(next func() (*catalog.Stars, error), opt Options) (*Frame, err
 	if err != nil {
 		return nil, err
 	}
-	buf, err := NewBuffer(opt.Projection.Width, opt.Projection.Height, opt.Doppler)
+	f, sc, err := startFrame(dst, opt, &psf, workers)
 	if err != nil {
 		return nil, err
 	}
-	f := &Frame{Buffer: *buf, Options: opt, Scale: ExposureScale(opt.Exposure)}
+	defer f.release(sc)
 	p := &Prepared{}
-	sc := getScratch(f.W, f.H, psf.Radius(), opt.Projection.Kind)
-	defer scratchPool.Put(sc)
 	g := &sc.g
 	var best []StarInfo
 	var discs []discStar

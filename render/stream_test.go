@@ -99,6 +99,60 @@ func TestRenderStreamMatchesRender(t *testing.T) {
 	}
 }
 
+// TestRenderIntoMatchesRender: one Frame drawn into again and again —
+// for every projection, with and without the Doppler channel, in memory,
+// prepared and streamed, across a size change and back — holds each time
+// the bits Render gives, with the buffer reused whenever its size fits
+// [cp: determinism of IEEE 754 arithmetic in fixed order].
+func TestRenderIntoMatchesRender(t *testing.T) {
+	stars := randomStars(20_000, -1, 9, 23)
+	p, err := Prepare(stars)
+	if err != nil {
+		t.Fatal(err)
+	}
+	obs := observer(t, r3.Unit(r3.Vec{X: 1, Y: 0.3, Z: 0.2}), 0.6)
+	obs.Position = r3.Vec{X: 2, Y: -1, Z: 0.5}
+	var dst Frame
+	var pix0 *float32
+	for i, c := range []struct {
+		kind    camera.Kind
+		w, h    int
+		doppler bool
+		how     string
+	}{
+		{camera.Fisheye, 300, 300, false, "stars"}, {camera.Fisheye, 300, 300, false, "prepared"},
+		{camera.Fisheye, 300, 300, true, "stream"}, {camera.Equirect, 400, 200, true, "stars"},
+		{camera.Cube, 600, 100, false, "prepared"}, {camera.Pinhole, 320, 180, false, "stream"},
+		{camera.Fisheye, 300, 300, false, "stars"},
+	} {
+		opt := Options{Projection: proj(t, c.kind, c.w, c.h), Observer: obs, Exposure: 3, Doppler: c.doppler, Workers: 1 + i%3}
+		want, err := Render(stars, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		reuse := len(dst.Pix) == 3*c.w*c.h && (dst.Doppler != nil) == c.doppler
+		switch c.how {
+		case "stars":
+			err = RenderInto(&dst, stars, opt)
+		case "prepared":
+			err = p.RenderInto(&dst, opt)
+		default:
+			err = RenderStreamInto(&dst, Chunks(stars, 7001), opt)
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		sameFrame(t, &dst, want)
+		if reuse != (pix0 == &dst.Pix[0]) {
+			t.Errorf("case %d: buffer reused %v, want %v", i, pix0 == &dst.Pix[0], reuse)
+		}
+		pix0 = &dst.Pix[0]
+	}
+	if err := RenderInto(nil, stars, Options{}); err == nil {
+		t.Error("RenderInto(nil): no error")
+	}
+}
+
 // TestDirectMatchesPreparedAtSun: seen from the Sun the transform boosts
 // the catalogue directions straight from the columns (stored or computed
 // per block); both forms give the frame bit for bit [cp].
