@@ -20,6 +20,7 @@ import (
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/scene"
 )
 
 const catalogHelp = `Usage: skyframe catalog <inspect|pack|fetch> [options] ...
@@ -84,23 +85,6 @@ func catalogFlagSet(e *env, name, usage string) *pflag.FlagSet {
 	return fs
 }
 
-func readOptions(format string, columns []string) (catalog.ReadOptions, error) {
-	var opt catalog.ReadOptions
-	if format != "" {
-		f, err := catalog.ParseFormat(format)
-		if err != nil {
-			return opt, usagef("--catalog-format: %v", err)
-		}
-		opt.Format = f
-	}
-	cm, err := catalog.ParseColumns(columns)
-	if err != nil {
-		return opt, usagef("--column: %v", err)
-	}
-	opt.Columns = cm
-	return opt, nil
-}
-
 func catalogInspect(e *env, args []string) error {
 	fs := catalogFlagSet(e, "inspect", "Usage: skyframe catalog inspect [options] FILE...\n\nFILE: a file, a directory, a glob or builtin; several are read as one catalogue.\n\nOptions:\n")
 	format := fs.String("catalog-format", "", "format, overriding detection")
@@ -116,7 +100,7 @@ func catalogInspect(e *env, args []string) error {
 	if fs.NArg() < 1 || fs.NArg() > 1 && slices.Contains(fs.Args(), "builtin") {
 		return usagef("catalog inspect: want FILE... (or builtin alone)")
 	}
-	table, err := loadNames(namesPath)
+	table, err := scene.LoadNames(namesPath)
 	if err != nil {
 		return err
 	}
@@ -130,11 +114,11 @@ func catalogInspect(e *env, args []string) error {
 		stars = catalog.BuiltIn()
 		rep = catalog.Summary(stars)
 	} else {
-		opt, err := readOptions(*format, *cols)
+		opt, err := scene.ReadOptions(*format, *cols)
 		if err != nil {
 			return err
 		}
-		if stars, rep, err = openCatalog(e.ctx, fs.Args(), opt, nil); err != nil {
+		if stars, rep, err = scene.OpenCatalog(e.ctx, fs.Args(), opt, nil); err != nil {
 			return err
 		}
 	}
@@ -174,27 +158,6 @@ func printNamed(w io.Writer, x *names.Index) {
 		}
 		fmt.Fprintf(w, "  %-14s %-17s V = %5.2f  RA %7.3f°  Dec %+7.3f°  %s\n", x.Label(i), catalog.DisplayID(st.ID), st.Vmag, st.RA, st.Dec, dist)
 	}
-}
-
-// printSkipped tells, on w (stderr), how many rows of a catalogue were
-// skipped and why, so that no command drops rows without a word; catalog
-// inspect prints the same on stdout as part of its report.
-func printSkipped(w io.Writer, r *catalog.Report) {
-	if r == nil || r.Skipped == 0 {
-		return
-	}
-	var parts []string
-	for _, sk := range r.Skips {
-		switch {
-		case sk.FirstLine == 0:
-			parts = append(parts, fmt.Sprintf("%d %s", sk.Count, sk.Reason))
-		case sk.File != "":
-			parts = append(parts, fmt.Sprintf("%d %s (first at %s:%d)", sk.Count, sk.Reason, sk.File, sk.FirstLine))
-		default:
-			parts = append(parts, fmt.Sprintf("%d %s (first at line %d)", sk.Count, sk.Reason, sk.FirstLine))
-		}
-	}
-	fmt.Fprintf(w, "skyframe: %s: %d rows skipped: %s\n", r.Source, r.Skipped, strings.Join(parts, ", "))
 }
 
 func printReport(w io.Writer, s *catalog.Stars, r *catalog.Report, took time.Duration) {
@@ -260,20 +223,29 @@ func catalogPack(e *env, args []string) error {
 	default:
 		return usagef("catalog pack: --to %q (want cache or parquet)", *to)
 	}
-	if err := checkWritable("output", *out); err != nil {
+	if err := scene.CheckWritable("output", *out); err != nil {
 		return err
 	}
 	for _, a := range fs.Args() {
-		if sameFile(a, *out) {
+		if scene.SameFile(a, *out) {
 			return usagef("catalog pack: --output %s is the input file %s; write to another file", *out, a)
 		}
 	}
-	opt, err := readOptions(*format, *cols)
+	opt, err := scene.ReadOptions(*format, *cols)
 	if err != nil {
 		return err
 	}
 	opt.MaxV = *maxV
-	stars, rep, err := openCatalog(e.ctx, fs.Args(), opt, e.stderr)
+	var bar *byteProgress
+	stars, rep, err := scene.OpenCatalog(e.ctx, fs.Args(), opt, func(label string, done, total int64) {
+		if bar == nil {
+			bar = newByteProgress(e.stderr, label)
+		}
+		bar.update(done, total)
+	})
+	if bar != nil {
+		bar.finish()
+	}
 	if err != nil {
 		return err
 	}
@@ -291,7 +263,7 @@ func catalogPack(e *env, args []string) error {
 		sorted = ", sorted by V"
 	}
 	fmt.Fprintf(e.stdout, "%s: %d stars from %s (%s, %d rows skipped%s)\n", *out, stars.Len(), rep.Source, rep.Format, rep.Skipped, sorted)
-	printSkipped(e.stderr, rep)
+	scene.WriteSkipped(e.stderr, rep)
 	return nil
 }
 
@@ -335,7 +307,7 @@ func catalogFetch(e *env, args []string) error {
 		}
 		dst = filepath.Join(dir, src.File)
 	}
-	if err := checkWritable("output", dst); err != nil {
+	if err := scene.CheckWritable("output", dst); err != nil {
 		return err
 	}
 	progress := newByteProgress(e.stderr, "fetch "+src.Name)
@@ -399,42 +371,6 @@ func (p *byteProgress) finish() {
 	}
 }
 
-// sameFile reports whether a and b name one existing file (through links
-// or different spellings).
-func sameFile(a, b string) bool {
-	fa, err1 := os.Stat(a)
-	fb, err2 := os.Stat(b)
-	return err1 == nil && err2 == nil && os.SameFile(fa, fb)
-}
-
-// checkWritable fails early, with the flag's name, when path names
-// something that is not a regular file (a device such as /dev/null, a FIFO,
-// a directory: never replaced) or its directory cannot take a new file.
-func checkWritable(flag, path string) error {
-	if st, err := os.Stat(path); err == nil && st.IsDir() {
-		return usagef("--%s %s: is a directory", flag, path)
-	}
-	if err := render.CheckReplaceable(path); err != nil {
-		return usagef("--%s %s: exists and is not a regular file (only regular files are replaced); name a file", flag, path)
-	}
-	dir := filepath.Dir(path)
-	st, err := os.Stat(dir)
-	if err != nil {
-		return usagef("--%s %s: directory %s does not exist", flag, path, dir)
-	}
-	if !st.IsDir() {
-		return usagef("--%s %s: %s is not a directory", flag, path, dir)
-	}
-	f, err := os.CreateTemp(dir, ".skyframe-probe-*")
-	if err != nil {
-		return usagef("--%s %s: cannot write in %s: %v", flag, path, dir, err)
-	}
-	name := f.Name()
-	f.Close()
-	os.Remove(name)
-	return nil
-}
-
 // fetchNames downloads the IAU Catalog of Star Names into the user cache
 // (or out), where --names finds it by default.
 func fetchNames(e *env, url, out string, size int64, sum string) error {
@@ -449,7 +385,7 @@ func fetchNames(e *env, url, out string, size int64, sum string) error {
 		}
 		dst = filepath.Join(dir, names.Published.File)
 	}
-	if err := checkWritable("output", dst); err != nil {
+	if err := scene.CheckWritable("output", dst); err != nil {
 		return err
 	}
 	client := &http.Client{Timeout: 5 * time.Minute}

@@ -8,6 +8,7 @@ import (
 	flightjob "github.com/skyframe/skyframe/job"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/scene"
 )
 
 // isInputError reports whether err is about the user's input (a catalogue or
@@ -19,6 +20,7 @@ func isInputError(err error) bool {
 	var ple *flight.PlanError
 	var le *flight.LegError
 	var je *flightjob.InputError
-	return errors.As(err, &pe) || errors.As(err, &ple) || errors.As(err, &le) || errors.As(err, &je) ||
+	var se *scene.InputError
+	return errors.As(err, &pe) || errors.As(err, &ple) || errors.As(err, &le) || errors.As(err, &je) || errors.As(err, &se) ||
 		errors.Is(err, render.ErrNotRegular) || errors.Is(err, overlay.ErrHUDFit) || errors.Is(err, render.ErrInsideStar)
 }

@@ -22,6 +22,7 @@ import (
 	flightjob "github.com/skyframe/skyframe/job"
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/scene"
 	"github.com/skyframe/skyframe/sky"
 )
 
@@ -268,14 +269,14 @@ func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightjob.Job, err
 	if preview {
 		job.Preview(f.preview, f.every)
 	}
-	if job.Layers, err = planLayers(plan, index); err != nil {
+	if job.Layers, err = scene.PlanLayers(plan, index, &unresolvedMaps); err != nil {
 		return nil, err
 	}
 	job.UnresolvedFollows = src.BuiltIn() && job.Layers.Unresolved != nil && plan.Frame.UnresolvedDepth == nil
-	job.Credit = namesCredit(index, labelsShown(job.Layers.Labels))
+	job.Credit = scene.NamesCredit(index, scene.LabelsShown(job.Layers.Labels))
 	if fs0, err := plan.FrameState(0); err == nil {
 		if p0, err := job.Projection(fs0); err == nil {
-			if err := checkHUDFit(job.Layers, p0, framefiles.WideHUDValues(plan.Title), planPath+": overlays.hud"); err != nil {
+			if err := scene.CheckHUDFit(job.Layers, p0, framefiles.WideHUDValues(plan.Title), planPath+": overlays.hud"); err != nil {
 				return nil, err
 			}
 		}
@@ -320,7 +321,7 @@ func planNames(plan *flight.Plan, base string, stars *catalog.Stars) (*names.Ind
 	if path != "" && path != "none" && !filepath.IsAbs(path) {
 		path = filepath.Join(base, path)
 	}
-	table, err := loadNames(path)
+	table, err := scene.LoadNames(path)
 	if err != nil {
 		return nil, usagef("%s: catalogue.names: %v", plan.Name, err)
 	}
@@ -347,11 +348,11 @@ func planStars(ctx context.Context, warn io.Writer, plan *flight.Plan, base stri
 	}
 	opt.Columns = c.ColumnMap
 	path := cataloguePath(plan, base)
-	stars, rep, err := openCatalog(ctx, []string{path}, opt, nil)
+	stars, rep, err := scene.OpenCatalog(ctx, []string{path}, opt, nil)
 	if err != nil {
 		return nil, err
 	}
-	printSkipped(warn, rep)
+	scene.WriteSkipped(warn, rep)
 	return stars, nil
 }
 

@@ -15,9 +15,10 @@ import (
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/scene"
 )
 
-func layerScene(t *testing.T) *scene {
+func layerScene(t *testing.T) *scene.Scene {
 	t.Helper()
 	s := &catalog.Stars{Epoch: 2000, Source: "test", Format: "in-code"}
 	s.Append(catalog.Star{ID: 7, Name: "Testar", RA: 10, Dec: 5, Dist: 3, Vmag: 1, Teff: 5000, BV: math.NaN(), RV: math.NaN()})
@@ -25,7 +26,7 @@ func layerScene(t *testing.T) *scene {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return &scene{stars: s, index: names.NewIndex(s, nil), observer: camera.Observer{Boost: b}, heading: camera.FromRADec(10, 5)}
+	return &scene.Scene{Stars: s, Index: names.NewIndex(s, nil), Observer: camera.Observer{Boost: b}, Heading: camera.FromRADec(10, 5)}
 }
 
 // layerFlags parses frame-option flags and converts them to layers as
@@ -47,11 +48,11 @@ func parseLayerFlags(t *testing.T, args ...string) *layerFlags {
 	return &f
 }
 
-func (f *layerFlags) layers(sc *scene, opt *render.Options) (framefiles.Layers, error) {
+func (f *layerFlags) layers(sc *scene.Scene, opt *render.Options) (framefiles.Layers, error) {
 	if f.err != nil {
 		return framefiles.Layers{}, f.err
 	}
-	return frameLayers(&f.o, sc, opt)
+	return scene.FrameLayers(&f.o, sc, opt)
 }
 
 // Bad layer options are usage errors (exit status 2) naming the flag.
@@ -78,7 +79,7 @@ func TestLayerFlagsErrors(t *testing.T) {
 	for _, c := range cases {
 		_, err := parseLayerFlags(t, c.args...).layers(layerScene(t), nil)
 		var ue usageError
-		if !errors.As(err, &ue) || !strings.Contains(err.Error(), c.text) {
+		if !(errors.As(err, &ue) || isInputError(err)) || !strings.Contains(err.Error(), c.text) {
 			t.Errorf("%v: have %v, want a usage error naming %s", c.args, err, c.text)
 		}
 	}

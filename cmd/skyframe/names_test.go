@@ -12,6 +12,7 @@ import (
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/internal/sharedcat"
 	"github.com/skyframe/skyframe/names"
+	"github.com/skyframe/skyframe/scene"
 	"gonum.org/v1/gonum/spatial/r3"
 )
 
@@ -25,7 +26,7 @@ func TestTowardByName(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	table, err := loadNames(sharedcat.IAUCSN(t))
+	table, err := scene.LoadNames(sharedcat.IAUCSN(t))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -48,7 +49,7 @@ func TestTowardByName(t *testing.T) {
 		{"Alpha Orionis", 2061}, {"58 Ori", 2061}, {"HR 2061", 2061}, {"HIP 27989", 2061},
 		{"Rigil Kentaurus", 5459}, {"Toliman", 5460},
 	} {
-		d, err := resolveDirection(x, "toward", c.q, r3.Vec{})
+		d, err := scene.ResolveDirection(x, "toward", c.q, r3.Vec{})
 		if err != nil {
 			t.Errorf("%q: %v", c.q, err)
 			continue

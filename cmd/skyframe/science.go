@@ -17,6 +17,7 @@ import (
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/scene"
 	"github.com/skyframe/skyframe/sky"
 	"github.com/skyframe/skyframe/spectrum"
 	"gonum.org/v1/gonum/spatial/r3"
@@ -89,7 +90,7 @@ func parseList(flag, s string) ([]float64, error) {
 	for _, p := range parts {
 		p = strings.TrimSpace(p)
 		v, err := strconv.ParseFloat(p, 64)
-		if err != nil || !finite(v) {
+		if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
 			return nil, usagef("--%s %q: %q is not a finite number", flag, s, p)
 		}
 		out = append(out, v)
@@ -278,14 +279,14 @@ func runCensus(e *env, args []string) error {
 	fs := pflag.NewFlagSet("census", pflag.ContinueOnError)
 	fs.SetOutput(e.stderr)
 	var p physicsFlags
-	fs.StringVar(&p.catalog, "catalog", "", "star catalogue (BSC5, Hipparcos, Gaia CSV/ECSV, CSV/TSV, Parquet, skyframe cache; gzip ok): a file, a directory, a quoted glob or a comma-separated list, read as one; default: the built-in synthetic sky")
-	fs.StringVar(&p.catalogFormat, "catalog-format", "", "catalogue format, overriding detection: "+formatNames())
-	fs.StringSliceVar(&p.columns, "column", nil, "generic CSV/TSV column map, FIELD=NAME, repeatable")
-	fs.Float64Var(&p.epoch, "epoch", 0, "propagate positions by proper motion to this Julian epoch; 0 keeps the catalogue epoch")
-	fs.StringVar(&p.toward, "toward", defaultToward, "direction of motion as RA,DEC (ICRS degrees), or a star id or name")
-	fs.StringVar(&p.position, "position", "0,0,0", "ship position X,Y,Z in parsecs (ICRS axes, Sun at origin), or a star id or name")
-	fs.StringVar(&p.beaming, "beaming", "exact", "point-source beaming convention: exact (flux ∝ D²), d3, d4")
-	registerNames(fs, &p.names)
+	fs.StringVar(&p.Catalog, "catalog", "", "star catalogue (BSC5, Hipparcos, Gaia CSV/ECSV, CSV/TSV, Parquet, skyframe cache; gzip ok): a file, a directory, a quoted glob or a comma-separated list, read as one; default: the built-in synthetic sky")
+	fs.StringVar(&p.CatalogFormat, "catalog-format", "", "catalogue format, overriding detection: "+formatNames())
+	fs.StringSliceVar(&p.Columns, "column", nil, "generic CSV/TSV column map, FIELD=NAME, repeatable")
+	fs.Float64Var(&p.Epoch, "epoch", 0, "propagate positions by proper motion to this Julian epoch; 0 keeps the catalogue epoch")
+	fs.StringVar(&p.Toward, "toward", defaultToward, "direction of motion as RA,DEC (ICRS degrees), or a star id or name")
+	fs.StringVar(&p.Position, "position", "0,0,0", "ship position X,Y,Z in parsecs (ICRS axes, Sun at origin), or a star id or name")
+	fs.StringVar(&p.Beaming, "beaming", "exact", "point-source beaming convention: exact (flux ∝ D²), d3, d4")
+	registerNames(fs, &p.Names)
 	speeds := fs.String("speeds", defaultCensusSpeeds, "ship speeds β, comma-separated, each 0 ≤ β < 1")
 	gammas := fs.String("gammas", "", "ship speeds as Lorentz factors γ ≥ 1 instead of --speeds")
 	from := fs.Float64("from", 0, "first speed β of an evenly spaced range (with --to, --steps)")
@@ -334,7 +335,7 @@ func runCensus(e *env, args []string) error {
 		return usagef("--limit-mag %v: want a finite magnitude", *limit)
 	}
 	if *pqPath != "" {
-		if err := checkWritable("parquet", *pqPath); err != nil {
+		if err := scene.CheckWritable("parquet", *pqPath); err != nil {
 			return err
 		}
 	}
@@ -349,28 +350,28 @@ func runCensus(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	beam, err := spectrum.ParseBeaming(p.beaming)
+	beam, err := spectrum.ParseBeaming(p.Beaming)
 	if err != nil {
 		return usagef("--beaming: %v", err)
 	}
-	stars, err := loadStars(e.ctx, e.stderr, p.catalog, p.catalogFormat, p.columns, p.epoch)
+	stars, err := scene.LoadStars(e.ctx, e.stderr, p.Catalog, p.CatalogFormat, p.Columns, p.Epoch)
 	if err != nil {
 		return err
 	}
-	table, err := loadNames(p.names)
+	table, err := scene.LoadNames(p.Names)
 	if err != nil {
 		return err
 	}
 	index := names.NewIndex(stars, table)
-	pos, err := resolvePosition(index, "position", p.position)
+	pos, err := scene.ResolvePosition(index, "position", p.Position)
 	if err != nil {
 		return err
 	}
-	heading, err := resolveDirection(index, "toward", p.toward, pos)
+	heading, err := scene.ResolveDirection(index, "toward", p.Toward, pos)
 	if err != nil {
 		return err
 	}
-	builtIn := p.catalog == ""
+	builtIn := p.Catalog == ""
 	need, err := censusNeeds(stars, sp, heading, *limit, beam, builtIn)
 	if err != nil {
 		return err

@@ -11,6 +11,7 @@ import (
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/render"
+	"github.com/skyframe/skyframe/scene"
 	"github.com/skyframe/skyframe/sky"
 )
 
@@ -93,7 +94,7 @@ func runStars(e *env, args []string) error {
 		}
 	}
 	if *out != "-" {
-		if err := checkWritable("output", *out); err != nil {
+		if err := scene.CheckWritable("output", *out); err != nil {
 			return err
 		}
 	}
@@ -106,20 +107,20 @@ func runStars(e *env, args []string) error {
 	}
 	write := func(w io.Writer) error {
 		if betas == nil {
-			rows := analysis.ObserveStars(sc.stars, sc.index.Name, sc.heading, sc.beaming, sc.observer)
+			rows := analysis.ObserveStars(sc.Stars, sc.Index.Name, sc.Heading, sc.Beaming, sc.Observer)
 			if *limit > 0 && len(rows) > *limit {
 				rows = rows[:*limit]
 			}
-			return analysis.WriteStarRows(w, rows, nil, *format, namesCredit(sc.index, true))
+			return analysis.WriteStarRows(w, rows, nil, *format, scene.NamesCredit(sc.Index, true))
 		}
 		var all []analysis.StarRow
 		var beta []float64
 		for _, b := range betas {
-			bo, err := camera.NewBoost(sc.heading, b)
+			bo, err := camera.NewBoost(sc.Heading, b)
 			if err != nil {
 				return usageError{err}
 			}
-			rows := analysis.ObserveStars(sc.stars, sc.index.Name, sc.heading, sc.beaming, camera.Observer{Position: sc.observer.Position, Boost: bo})
+			rows := analysis.ObserveStars(sc.Stars, sc.Index.Name, sc.Heading, sc.Beaming, camera.Observer{Position: sc.Observer.Position, Boost: bo})
 			if *limit > 0 && len(rows) > *limit {
 				rows = rows[:*limit]
 			}
@@ -128,7 +129,7 @@ func runStars(e *env, args []string) error {
 				beta = append(beta, b)
 			}
 		}
-		return analysis.WriteStarRows(w, all, beta, *format, namesCredit(sc.index, true))
+		return analysis.WriteStarRows(w, all, beta, *format, scene.NamesCredit(sc.Index, true))
 	}
 	if *out == "-" {
 		return write(e.stdout)
@@ -161,20 +162,20 @@ const tableLimit = 6.5
 // anywhere in the sky at the table's speed (with --speeds, the fastest):
 // the catalogue's depth and the depth needed, the estimated share of stars
 // and light missing, and the V′ to which the rows are complete.
-func warnTableDepth(w io.Writer, sc *scene, betas []float64) error {
-	b := sc.observer.Boost
+func warnTableDepth(w io.Writer, sc *scene.Scene, betas []float64) error {
+	b := sc.Observer.Boost
 	what := fmt.Sprintf("a whole-sky list to V′ = %g (the naked-eye limit)", tableLimit)
 	if len(betas) > 0 {
 		fast := slices.Max(betas)
 		var err error
-		if b, err = camera.NewBoost(sc.heading, fast); err != nil {
+		if b, err = camera.NewBoost(sc.Heading, fast); err != nil {
 			return usageError{err}
 		}
 		if len(betas) > 1 {
 			what += fmt.Sprintf(" at β = %s (the fastest of --speeds)", fmtBeta(fast))
 		}
 	}
-	rep := sky.WholeSky(catalog.EstimateDepth(sc.stars), sc.builtIn, b, tableLimit, sc.beaming)
+	rep := sky.WholeSky(catalog.EstimateDepth(sc.Stars), sc.BuiltIn, b, tableLimit, sc.Beaming)
 	rep.Hint = fmt.Sprintf("rows fainter than V′ ≈ %.1f may lack stars; a deeper catalogue lists them", rep.Have+rep.Needed.DeltaV)
 	if msg := rep.Warning("stars", what); msg != "" {
 		fmt.Fprintln(w, msg)

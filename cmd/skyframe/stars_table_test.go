@@ -294,7 +294,7 @@ func BenchmarkObserveStars(b *testing.B) {
 	}
 	b.ReportAllocs()
 	for b.Loop() {
-		analysis.ObserveStars(sc.stars, sc.index.Name, sc.heading, sc.beaming, sc.observer)
+		analysis.ObserveStars(sc.Stars, sc.Index.Name, sc.Heading, sc.Beaming, sc.Observer)
 	}
-	b.ReportMetric(float64(sc.stars.Len())*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mstars/s")
+	b.ReportMetric(float64(sc.Stars.Len())*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mstars/s")
 }

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"io"
 	"path/filepath"
@@ -11,15 +10,13 @@ import (
 	"time"
 
 	"github.com/spf13/pflag"
-	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
 	framefiles "github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/render"
-	"github.com/skyframe/skyframe/sky"
-	"github.com/skyframe/skyframe/spectrum"
+	"github.com/skyframe/skyframe/scene"
 )
 
 const stillHelp = `Usage: skyframe still [options]
@@ -91,13 +88,6 @@ func (f *stillFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget for the render; a cache-file catalogue (skyframe catalog pack) with more stars than one chunk this budget allows is read from disk chunk by chunk instead of loaded whole, with the same result")
 }
 
-// frameSpec is everything about a still frame that is not the physics
-// (framefiles.Spec), with the completeness of its catalogue.
-type frameSpec struct {
-	framefiles.Spec
-	depthRep *sky.Report // completeness of the catalogue for the frame; nil: not known
-}
-
 // checkFrameFlags checks every frame option given on the command line
 // with the definitions' own checks, naming the flag.
 func checkFrameFlags(fs *pflag.FlagSet, o *frameopt.Options) error {
@@ -106,98 +96,6 @@ func checkFrameFlags(fs *pflag.FlagSet, o *frameopt.Options) error {
 		return usagef("--%s: %s", e.Def.Name, e.Msg)
 	}
 	return nil
-}
-
-// starFinder looks stars up in the scene's catalogue through its names
-// index (proper names, designations, catalogue numbers).
-func (sc *scene) starFinder() frameopt.StarFinder {
-	return func(name string) (r3.Vec, float64, bool) {
-		i, err := sc.index.Find(name)
-		if err != nil {
-			return r3.Vec{}, 0, false
-		}
-		st := sc.stars.At(i)
-		return r3.Vec{X: st.Dir[0], Y: st.Dir[1], Z: st.Dir[2]}, st.Dist, true
-	}
-}
-
-// build turns the frame options into the frame's projection and render
-// options for scene sc (the options were checked by checkFrameFlags).
-func (f *stillFlags) build(sc *scene) (*frameSpec, error) {
-	o := &f.frame
-	spec := &frameSpec{}
-	fr := o.Frame()
-	forward, desc, err := lookDirection(sc, o.Look)
-	if err != nil {
-		return nil, err
-	}
-	spec.Look = desc
-	up := r3.Vec{Z: 1}
-	if o.Up != "" {
-		d, err := frameopt.ParseDirection(o.Up, frameopt.SkyDir)
-		if err != nil {
-			return nil, usagef("--up: %v", err)
-		}
-		if up, err = d.Resolve(sc.observer, sc.heading, nil); err != nil {
-			return nil, usagef("--up: %v", err)
-		}
-	}
-	orient, err := camera.LookAt(forward, up, fr.Roll)
-	if err != nil {
-		return nil, usagef("--look/--up: %v", err)
-	}
-	spec.Proj = camera.Projection{Kind: fr.Kind, Width: fr.Width, Height: fr.Height, FOV: fr.FOV, Tilt: fr.Tilt, Orient: orient}
-	if err := spec.Proj.Validate(); err != nil {
-		return nil, usagef("--projection %s: %v", fr.Kind, err)
-	}
-	if err := spec.Proj.Prepare(); err != nil {
-		return nil, usageError{err}
-	}
-	spec.Tone, spec.Depth = fr.Tone, fr.Depth
-	spec.Opt = render.Options{
-		Projection: spec.Proj, Observer: sc.observer, Beaming: fr.Beaming,
-		FWHM: fr.FWHM, Exposure: fr.Exposure, Limit: fr.Limit,
-		Color: spectrum.ColorOptions{White: fr.White},
-	}
-	return spec, nil
-}
-
-// starError explains why option flag's star reference q found no star
-// (names.Index.Find's message: candidates or close matches), saying what
-// else the option takes.
-func (sc *scene) starError(flag, other, q string) error {
-	if _, err := findStar(sc.index, flag, other, q); err != nil {
-		return err
-	}
-	return usagef("--%s %q: want %s in %s", flag, q, other, sc.stars.Source)
-}
-
-// lookDirection resolves --look into an apparent (ship-frame) direction and
-// its description.
-func lookDirection(sc *scene, s string) (r3.Vec, string, error) {
-	if s == "" {
-		s = "ahead"
-	}
-	d, err := frameopt.ParseDirection(s, frameopt.AnyDir)
-	if err != nil {
-		return r3.Vec{}, "", usagef("--look: %v", err)
-	}
-	n, err := d.Resolve(sc.observer, sc.heading, sc.starFinder())
-	switch {
-	case errors.Is(err, frameopt.ErrUnknownStar):
-		return r3.Vec{}, "", sc.starError("look", frameopt.AnyDir.Spellings(), d.Star)
-	case err != nil:
-		return r3.Vec{}, "", usagef("--look: %v", err)
-	}
-	desc := strings.ToLower(strings.TrimSpace(s))
-	if d.Kind == frameopt.Star {
-		if i, err := sc.index.Find(d.Star); err == nil {
-			desc = sc.index.Label(i)
-		}
-	} else if d.Kind == frameopt.Apparent || d.Kind == frameopt.Catalogue {
-		desc = strings.TrimSpace(s)
-	}
-	return n, desc, nil
 }
 
 func runStill(e *env, args []string) error {
@@ -219,14 +117,14 @@ func runStill(e *env, args []string) error {
 	if err := checkFrameFlags(fs, &f.frame); err != nil {
 		return err
 	}
-	outputs := outputPaths{png: f.output, fits: f.fits, sidecar: f.sidecar, exr: f.exr, overlay: f.overlayLayer}
-	if !f.noSidecar && outputs.sidecar == "" {
-		outputs.sidecar = strings.TrimSuffix(f.output, filepath.Ext(f.output)) + ".json"
+	outputs := scene.OutputPaths{PNG: f.output, FITS: f.fits, Sidecar: f.sidecar, EXR: f.exr, Overlay: f.overlayLayer}
+	if !f.noSidecar && outputs.Sidecar == "" {
+		outputs.Sidecar = strings.TrimSuffix(f.output, filepath.Ext(f.output)) + ".json"
 	}
 	if f.noSidecar {
-		outputs.sidecar = ""
+		outputs.Sidecar = ""
 	}
-	if err := outputs.check(); err != nil {
+	if err := outputs.Check(); err != nil {
 		return err
 	}
 	budget, err := parseMemory(f.memory)
@@ -243,63 +141,67 @@ func runStill(e *env, args []string) error {
 	// What the image and its encoder take is not available to the
 	// streaming renderer's chunks.
 	renderBudget := budget - fixed.Image - fixed.Encode
-	if p.stream, err = openStream(&p, kind, w, h, renderBudget); err != nil {
+	if p.Stream, err = scene.OpenStream(p.Catalog, p.CatalogFormat, kind, w, h, renderBudget); err != nil {
 		return err
 	}
-	if p.stream != nil {
-		defer p.stream.Close()
-		p.refs = append([]string{f.frame.Look, p.toward, p.position, f.frame.MarkDestination}, labelStars(f.frame.Label)...)
+	if p.Stream != nil {
+		defer p.Stream.Close()
+		p.Refs = append([]string{f.frame.Look, p.Toward, p.Position, f.frame.MarkDestination}, scene.LabelStars(f.frame.Label)...)
 	}
 	sc, err := p.resolve(e, fs)
 	if err != nil {
 		return err
 	}
-	spec, err := f.build(sc)
+	spec, err := scene.Build(&f.frame, sc)
 	if err != nil {
 		return err
 	}
-	if err := frameDepth(e.stderr, "still", sc, spec, p.skyDepth.v, p.stream != nil); err != nil {
+	warn, err := scene.FrameDepth("still", sc, spec, p.skyDepth.v, p.Stream != nil)
+	if err != nil {
 		return err
 	}
-	if spec.Layers, err = frameLayers(&f.frame, sc, &spec.Opt); err != nil {
+	if warn != "" {
+		fmt.Fprintln(e.stderr, warn)
+	}
+	if spec.Layers, err = scene.FrameLayers(&f.frame, sc, &spec.Opt); err != nil {
 		return err
 	}
-	if outputs.exr != "" {
+	if outputs.EXR != "" {
 		if spec.EXR, err = f.frame.EXR(); err != nil {
 			return usageError{err}
 		}
 		spec.Opt.Doppler = spec.EXR.Layers == nil || slices.Contains(spec.EXR.Layers, framefiles.EXRDoppler)
 	}
-	if outputs.overlay != "" && !spec.Layers.Options.Any() {
-		return usagef("--overlay-layer %s: no overlay is selected (add --grid, --labels, --hud, …)", outputs.overlay)
+	if outputs.Overlay != "" && !spec.Layers.Options.Any() {
+		return usagef("--overlay-layer %s: no overlay is selected (add --grid, --labels, --hud, …)", outputs.Overlay)
 	}
-	rows := sc.stars.Len()
-	if p.stream != nil {
-		rows = p.stream.Len()
+	rows := sc.Stars.Len()
+	if p.Stream != nil {
+		rows = p.Stream.Len()
 	}
-	need := render.EstimateMemory(spec.Opt, spec.Depth, rows, p.stream != nil, renderBudget)
+	need := render.EstimateMemory(spec.Opt, spec.Depth, rows, p.Stream != nil, renderBudget)
 	need.Overlays = overlayBytes(spec.Layers.Options, w, h)
 	if err := checkMemory(need, budget, "reduce --size, --grid-step or --lattice"); err != nil {
 		return err
 	}
-	spec.Credit = namesCredit(sc.index, labelsShown(spec.Layers.Labels))
+	spec.Credit = scene.NamesCredit(sc.Index, scene.LabelsShown(spec.Layers.Labels))
 	if spec.Layers.HUD != nil {
-		if err := checkHUDFit(spec.Layers, spec.Proj, *spec.Layers.HUD, "--hud"); err != nil {
+		if err := scene.CheckHUDFit(spec.Layers, spec.Proj, *spec.Layers.HUD, "--hud"); err != nil {
 			return err
 		}
 	}
 	start := time.Now()
 	var frame *render.Frame
-	if p.stream != nil {
-		frame, err = render.RenderChunks(e.ctx, p.stream, spec.Opt)
+	if p.Stream != nil {
+		frame, err = render.RenderChunks(e.ctx, p.Stream, spec.Opt)
 	} else {
-		frame, err = render.Render(sc.stars, spec.Opt)
+		frame, err = render.Render(sc.Stars, spec.Opt)
 	}
 	if err != nil {
 		return err
 	}
 	var kept []render.Contribution
-	if outputs.exr != "" {
+	if outputs.EXR != "" {
 		kept, err = spec.Layers.AddLinearKept(frame)
 	} else {
 		err = spec.Layers.AddLinear(frame)
@@ -311,63 +213,23 @@ func runStill(e *env, args []string) error {
 	if err := e.ctx.Err(); err != nil {
 		return context.Cause(e.ctx)
 	}
-	if err := writeFrame(e.ctx, frame, kept, sc, spec, outputs); err != nil {
+	if err := scene.WriteFrame(e.ctx, frame, kept, sc, spec, outputs, version); err != nil {
 		return err
 	}
 	total := time.Since(start)
 	printSummary(e.stdout, frame, sc, spec, outputs, took, total)
-	if p.stream != nil {
+	if p.Stream != nil {
 		fmt.Fprintf(e.stdout, "catalogue: %d of %d stars read from disk in chunks of up to %d (--memory %s)%s\n",
-			p.stream.Rows(), frame.Stats.Total, render.ChunkRows(render.Options{Projection: spec.Proj, Doppler: true}, renderBudget), f.memory, sortedNote(p.stream))
+			p.Stream.Rows(), frame.Stats.Total, render.ChunkRows(render.Options{Projection: spec.Proj, Doppler: true}, renderBudget), f.memory, scene.SortedNote(p.Stream))
 	}
 	return nil
 }
 
-// outputPaths are the files one frame writes; empty means not written.
-// With overlay set, the overlays go there alone and png holds the sky
-// without them.
-type outputPaths struct{ png, fits, sidecar, exr, overlay string }
-
-// writeFrame writes the frame's files as one set (framefiles.Spec.Write).
-// A layer --exr-layers asks for that the frame does not have is a usage
-// error.
-func writeFrame(ctx context.Context, frame *render.Frame, kept []render.Contribution, sc *scene, spec *frameSpec, out outputPaths) error {
-	spec.Version, spec.Stars, spec.Heading, spec.Beaming = version, sc.stars, sc.heading, sc.beaming
-	if d := spec.depthRep; d != nil {
-		spec.DepthV, spec.NeededV = finitePtr(d.Have), finitePtr(d.Threshold())
-	}
-	err := spec.Write(ctx, frame, kept, framefiles.Paths{PNG: out.png, FITS: out.fits, Sidecar: out.sidecar, EXR: out.exr, Overlay: out.overlay})
-	if errors.Is(err, framefiles.ErrEXRLayer) {
-		return usagef("--exr-layers: %v", err)
-	}
-	return err
-}
-
-func (o outputPaths) check() error {
-	if o.png == "" {
-		return usagef("--output: a PNG file name is required")
-	}
-	seen := map[string]string{}
-	for _, c := range []struct{ flag, path string }{{"output", o.png}, {"fits", o.fits}, {"exr", o.exr}, {"sidecar", o.sidecar}, {"overlay-layer", o.overlay}} {
-		if c.path == "" {
-			continue
-		}
-		if prev, dup := seen[filepath.Clean(c.path)]; dup {
-			return usagef("--%s %s: the same file as --%s", c.flag, c.path, prev)
-		}
-		seen[filepath.Clean(c.path)] = c.flag
-		if err := checkWritable(c.flag, c.path); err != nil {
-			return err
-		}
-	}
-	return nil
-}
-
-func printSummary(w io.Writer, frame *render.Frame, sc *scene, spec *frameSpec, out outputPaths, took, total time.Duration) {
-	b := sc.observer.Boost
-	ra, dec := camera.RADec(sc.heading)
+func printSummary(w io.Writer, frame *render.Frame, sc *scene.Scene, spec *scene.Spec, out scene.OutputPaths, took, total time.Duration) {
+	b := sc.Observer.Boost
+	ra, dec := camera.RADec(sc.Heading)
 	fmt.Fprintf(w, "skyframe %s: %s, β = %.6g, γ = %.6g toward RA %.3f° Dec %+.3f°, looking %s\n",
-		version, sc.stars.Source, b.Beta(), b.Gamma(), ra, dec, spec.Look)
+		version, sc.Stars.Source, b.Beta(), b.Gamma(), ra, dec, spec.Look)
 	st := frame.Stats
 	fmt.Fprintf(w, "stars: %d drawn, %d fainter than V %.2f, %d off frame (of %d)\n",
 		st.Drawn, st.Culled, frame.Options.Limit, st.OffFrame, st.Total)
@@ -379,8 +241,8 @@ func printSummary(w io.Writer, frame *render.Frame, sc *scene, spec *frameSpec, 
 		}
 		fmt.Fprintf(w, "brightest: %s at V′ = %.2f (D = %.4g, T′ = %.0f K, apparent RA %.3f° Dec %+.3f°)\n", name, s.V, s.D, s.T, s.RA, s.Dec)
 	}
-	files := out.png
-	for _, f := range []string{out.overlay, out.fits, out.exr, out.sidecar} {
+	files := out.PNG
+	for _, f := range []string{out.Overlay, out.FITS, out.EXR, out.Sidecar} {
 		if f != "" {
 			files += ", " + f
 		}

@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/imgfile"
 	"github.com/skyframe/skyframe/render"
 )
@@ -49,8 +50,8 @@ func TestStillUnresolved(t *testing.T) {
 	}
 	on, sOn := sum("on")
 	off, sOff := sum("off", "--unresolved", "off")
-	if sOn.Unresolved == nil || sOn.Unresolved.DepthV != builtInDepth || sOn.Unresolved.Components < 1 {
-		t.Errorf("default sidecar unresolved = %+v, want depth %g", sOn.Unresolved, builtInDepth)
+	if sOn.Unresolved == nil || sOn.Unresolved.DepthV != catalog.DefaultSynthMagLimit || sOn.Unresolved.Components < 1 {
+		t.Errorf("default sidecar unresolved = %+v, want depth %g", sOn.Unresolved, catalog.DefaultSynthMagLimit)
 	}
 	if sOff.Unresolved != nil {
 		t.Errorf("--unresolved off: sidecar unresolved = %+v, want none", sOff.Unresolved)

@@ -1,4 +1,4 @@
-package main
+package scene
 
 import (
 	"fmt"
@@ -23,12 +23,8 @@ const (
 // job.Job.UnresolvedFollows.)
 const builtInDepth = catalog.DefaultSynthMagLimit
 
-// unresolvedMaps keeps the built maps by depth: a map takes a few tenths
-// of a second of CPU to build, and stills, flights and tests come back to
-// the same depths.
-var unresolvedMaps sky.UnresolvedMaps
-
-// unresolvedLayer resolves the unresolved-light options (frameopt
+// unresolvedLayer resolves, with the maps kept in maps (nil: built
+// afresh), the unresolved-light options (frameopt
 // unresolved and unresolved-depth) for stars: mode is auto (""), on or off;
 // depthOpt (nil: not given) is the V magnitude where the catalogue stops
 // resolving stars, and giving it turns auto into on; without it, knownV
@@ -36,7 +32,7 @@ var unresolvedMaps sky.UnresolvedMaps
 // is used. It returns nil when
 // the layer is off, and the depth used. Messages name the flags, as the
 // other frame layers do (a flight prefixes the plan and "overlays").
-func unresolvedLayer(stars *catalog.Stars, mode string, depthOpt *float64, knownV float64) (render.UnresolvedSky, float64, error) {
+func unresolvedLayer(maps *sky.UnresolvedMaps, stars *catalog.Stars, mode string, depthOpt *float64, knownV float64) (render.UnresolvedSky, float64, error) {
 	const what = "--unresolved"
 	builtIn := stars != nil && stars.Source == catalog.SyntheticSource
 	depth := math.NaN()
@@ -66,7 +62,10 @@ func unresolvedLayer(stars *catalog.Stars, mode string, depthOpt *float64, known
 	if math.IsInf(depth, 0) || depth < catalog.MinUnresolvedDepth || depth > catalog.MaxUnresolvedDepth {
 		return nil, 0, usagef("--unresolved-depth %v: want a V magnitude in [%g, %g]", depth, catalog.MinUnresolvedDepth, catalog.MaxUnresolvedDepth)
 	}
-	u, err := unresolvedMaps.At(depth)
+	if maps == nil {
+		maps = new(sky.UnresolvedMaps)
+	}
+	u, err := maps.At(depth)
 	if err != nil {
 		return nil, 0, fmt.Errorf("%s: %w", what, err)
 	}
