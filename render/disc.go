@@ -55,6 +55,10 @@ type discStar struct {
 	lnW  float64 // ln of the rest dilution at the observer, sin²ρ
 	teff float64 // rest temperature, K
 	gRow int     // global row (stream: offset by the earlier chunks)
+	// path is the apparent direction of the centre at each knot of a
+	// blurred frame's exposure, as the middle knot's camera shows it
+	// (RenderMotion; see disc_blur.go); nil for an instant.
+	path []r3.Vec
 }
 
 // pixelsPerRadian returns the image scale at the image centre, used by the
@@ -111,6 +115,14 @@ func drawDiscs(f *Frame, stars []discStar, workers int) error {
 	k := f.Scale / math.Pi
 	norm := 1 / (1 - LimbDarkening/3)
 	for _, ds := range stars {
+		if ds.path != nil {
+			if moved, err := drawMovingDisc(f, &p, &sa, &ds, workers); err != nil || moved {
+				if err != nil {
+					return err
+				}
+				continue
+			}
+		}
 		ns, _ := shipIn.Apply(ds.app)
 		sin2 := math.Exp(ds.lnW)
 		rho := math.Asin(math.Sqrt(sin2))
@@ -185,6 +197,13 @@ func drawDiscs(f *Frame, stars []discStar, workers int) error {
 // each way, clamped to the image; the whole image when a rim point does
 // not project or the disc may straddle an equirect seam.
 func discBox(p *camera.Projection, boost camera.Boost, ns r3.Vec, rho float64) (x0, y0, x1, y1 int) {
+	return discBoxExt(p, boost, ns, rho, 0)
+}
+
+// discBoxExt is discBox clamped to the image widened by ext pixels each
+// way instead of to the image (ext > 0 only for a pinhole, which shows
+// directions beyond its edges too).
+func discBoxExt(p *camera.Projection, boost camera.Boost, ns r3.Vec, rho float64, ext int) (x0, y0, x1, y1 int) {
 	W, H := p.Width, p.Height
 	e1 := r3.Cross(ns, r3.Vec{Z: 1})
 	if r3.Norm2(e1) < 1e-6 {
@@ -229,9 +248,9 @@ func discBox(p *camera.Projection, boost camera.Boost, ns r3.Vec, rho float64) (
 			}
 		}
 	}
-	x0 = max(0, int(math.Floor(minX-m)))
-	y0 = max(0, int(math.Floor(minY-m)))
-	x1 = min(W, int(math.Ceil(maxX+m)))
-	y1 = min(H, int(math.Ceil(maxY+m)))
+	x0 = int(math.Max(-float64(ext), math.Floor(minX-m)))
+	y0 = int(math.Max(-float64(ext), math.Floor(minY-m)))
+	x1 = int(math.Min(float64(W+ext), math.Ceil(maxX+m)))
+	y1 = int(math.Min(float64(H+ext), math.Ceil(maxY+m)))
 	return x0, y0, x1, y1
 }

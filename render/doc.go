@@ -128,7 +128,11 @@
 // image, and its sub-positions listed one by one, each projected on its
 // own: the part in the frame is drawn, and on a cube each sub-position's
 // kernel is renormalised to its face, so the faces share the star's flux
-// by the time it spends on each. Photometry is the middle knot's. ChooseKnots picks K
+// by the time it spends on each. A star drawn as a disc is sampled once at
+// the middle knot and its samples moved along its centre's path, turned
+// with it at sub-positions at most one sample spacing apart and added to
+// the pixels they land in, so its light is kept (disc_blur.go).
+// Photometry is the middle knot's. ChooseKnots picks K
 // from probe paths (the quadratic within KnotTolerance = 0.05 px of the
 // exact path).
 // Layers.AddLinearMotion adds the diffuse layers as their time mean by

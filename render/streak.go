@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sync"
 
 	"gonum.org/v1/gonum/spatial/r3"
@@ -151,10 +152,10 @@ func StreakSamples(ax, ay, bx, by, fwhm float64) int {
 // instant alone (Render); with no knots opt is rendered as it is.
 //
 // Each star is streaked along its apparent path (see the comment at the
-// top of streak.go); stars drawn as discs are drawn at the middle knot,
-// unblurred. A star whose path leaves the projection's domain (behind a
-// pinhole's image plane) or crosses between cube faces within the
-// exposure is streaked through its directions, sub-position by
+// top of streak.go), and a star drawn as a disc is moved along its
+// centre's path (disc_blur.go). A star whose path leaves the projection's
+// domain (behind a pinhole's image plane) or crosses between cube faces
+// within the exposure is streaked through its directions, sub-position by
 // sub-position (streak_edge.go): the part of its streak in the frame is
 // drawn, and on a cube each face gets its share. A star seen at the middle
 // knot is needed: one the middle knot's camera cannot show is off the
@@ -356,7 +357,12 @@ func (s *streaker) star(i, j int, out []streakRec, res *chunkResult) int {
 	t := s.t
 	gb := &t.geom
 	if gb.bad[j] || gb.lnW[j] > t.lnDiscPre {
+		nd := len(res.discs)
 		if done, _ := t.disc(i, j, gb, res); done {
+			if len(res.discs) > nd {
+				// A disc moves along its centre's path (disc_blur.go).
+				res.discs[nd].path = slices.Clone(s.knotDirs(j))
+			}
 			return 0
 		}
 	}

@@ -261,20 +261,27 @@ func (a *streakAcc) explicitStamp(g *streakGrid, ox, oy, tw, th int, path *expli
 	return q0, q1, p0, p1
 }
 
-// listed writes the record of star i (index j of the block, shown at
-// (xm, ym) at the middle knot) whose sub-positions are listed, and returns
-// 1, or 0 when it is off the frame or invalid.
-func (s *streaker) listed(i, j int, xm, ym float64, out []streakRec, res *chunkResult) int {
-	gb := &s.t.geom
+// knotDirs returns the apparent directions of star j of the block at
+// every knot, as the middle knot's camera shows them (equiv), in s.dirs.
+func (s *streaker) knotDirs(j int) []r3.Vec {
 	dirs := s.dirs[:len(s.projs)]
 	for k := range dirs {
-		g := gb
+		g := &s.t.geom
 		if s.geo[k] != nil {
 			g = s.gb[k]
 		}
 		n := r3.Vec{X: g.x[j], Y: g.y[j], Z: g.z[j]}
 		dirs[k] = equiv(&s.views[k], &s.om, s.t.proj.Kind, n)
 	}
+	return dirs
+}
+
+// listed writes the record of star i (index j of the block, shown at
+// (xm, ym) at the middle knot) whose sub-positions are listed, and returns
+// 1, or 0 when it is off the frame or invalid.
+func (s *streaker) listed(i, j int, xm, ym float64, out []streakRec, res *chunkResult) int {
+	gb := &s.t.geom
+	dirs := s.knotDirs(j)
 	s.paths = append(s.paths, explicitPath{})
 	path := &s.paths[len(s.paths)-1]
 	start := len(s.arena)
