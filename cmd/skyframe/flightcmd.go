@@ -1,29 +1,16 @@
 package main
 
 import (
-	"os"
-
-	"context"
 	"fmt"
 	"io"
-	"path/filepath"
-	"slices"
 	"strings"
 	"time"
 
 	"github.com/dustin/go-humanize"
-
 	"github.com/spf13/pflag"
 
-	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/flight"
-	framefiles "github.com/skyframe/skyframe/frame"
-	"github.com/skyframe/skyframe/imgfile"
 	flightjob "github.com/skyframe/skyframe/job"
-	"github.com/skyframe/skyframe/names"
-	"github.com/skyframe/skyframe/render"
-	"github.com/skyframe/skyframe/scene"
-	"github.com/skyframe/skyframe/sky"
 )
 
 const flightHelp = `Usage: skyframe flight PLAN.toml [options]
@@ -179,183 +166,6 @@ func runFlight(e *env, args []string) error {
 	return renderFlight(e, job, f.resume)
 }
 
-// loadFlightJob reads, binds and validates the plan, before any rendering.
-func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightjob.Job, error) {
-	data, err := readPlanFile(e.ctx, planPath)
-	if err != nil {
-		return nil, err
-	}
-	plan, err := flight.ParsePlan(data, planPath)
-	if err != nil {
-		return nil, err
-	}
-	base := filepath.Dir(planPath)
-	loaded, err := planStars(e.ctx, e.stderr, plan, base)
-	if err != nil {
-		return nil, err
-	}
-	// Every frame's catalogue starts with the loaded one and the Sun; the
-	// built-in sky is drawn deeper per frame.
-	src := sky.NewSource(loaded, cataloguePath(plan, base) == "")
-	stars := src.Base()
-	index, err := planNames(plan, base, stars)
-	if err != nil {
-		return nil, err
-	}
-	find := func(q string) (int, bool) {
-		i, err := index.Find(q)
-		return i, err == nil
-	}
-	plan.StandOff = flight.StarsStandOff(stars, find)
-	if err := plan.Bind(flight.StarsResolver(stars, find)); err != nil {
-		return nil, err
-	}
-	inputs, err := flightjob.InputsOf(e.ctx, plan, cataloguePath(plan, base), index, version)
-	if err != nil {
-		return nil, err
-	}
-	job := &flightjob.Job{Plan: plan, Hash: inputs.Hash(), Inputs: inputs, Stars: stars, Index: index, Sky: src, Workers: f.workers,
-		Version: version, FreeSpace: e.freeSpace, Unresolved: &unresolvedMaps}
-	job.OutDir = plan.Output.Dir
-	if !filepath.IsAbs(job.OutDir) {
-		job.OutDir = filepath.Join(base, job.OutDir)
-	}
-	preview := f.preview != 1 || f.every != 1
-	job.Every = f.every
-	if preview && f.out == "" {
-		job.OutDir = filepath.Clean(job.OutDir) + "-preview"
-	}
-	if f.out != "" {
-		job.OutDir = f.out
-	}
-	if fi, err := os.Stat(job.OutDir); err == nil && !fi.IsDir() {
-		if f.out != "" {
-			return nil, usagef("--out %s: exists and is not a directory", f.out)
-		}
-		return nil, usagef("%s: output.dir %s: exists and is not a directory", planPath, job.OutDir)
-	}
-	rng, err := flight.ParseRange(f.frames)
-	if err != nil {
-		return nil, usagef("--frames: %v", err)
-	}
-	total := plan.Frames()
-	if lo, hi := rng.Clip(total); lo >= hi && f.frames != "" {
-		return nil, usagef("--frames %s: the plan has frames 0-%d", f.frames, total-1)
-	}
-	job.Shard = flight.Shard{K: 0, N: 1}
-	if f.shard != "" || !f.verify {
-		sh, why, err := flight.SelectShard(f.shard, e.getenv)
-		if err != nil {
-			if f.shard != "" {
-				return nil, usagef("--shard %s: %v", f.shard, err)
-			}
-			return nil, usagef("shard from the environment: %v", err)
-		}
-		job.Shard = sh
-		if why != "" {
-			fmt.Fprintf(e.stderr, "skyframe: shard %d/%d: %s\n", sh.K, sh.N, why)
-		}
-	}
-	job.Frames = job.Shard.Frames(total, rng)
-	if err := job.CheckOutputNames(planPath); err != nil {
-		return nil, err
-	}
-	if f.every > 1 {
-		job.Frames = slices.DeleteFunc(job.Frames, func(i int) bool { return i%f.every != 0 })
-	}
-	if err := job.CheckCamera(); err != nil {
-		return nil, err
-	}
-	if preview {
-		job.Preview(f.preview, f.every)
-	}
-	if job.Layers, err = scene.PlanLayers(plan, index, &unresolvedMaps); err != nil {
-		return nil, err
-	}
-	job.UnresolvedFollows = src.BuiltIn() && job.Layers.Unresolved != nil && plan.Frame.UnresolvedDepth == nil
-	job.Credit = scene.NamesCredit(index, scene.LabelsShown(job.Layers.Labels))
-	if fs0, err := plan.FrameState(0); err == nil {
-		if p0, err := job.Projection(fs0); err == nil {
-			if err := scene.CheckHUDFit(job.Layers, p0, framefiles.WideHUDValues(plan.Title), planPath+": overlays.hud"); err != nil {
-				return nil, err
-			}
-		}
-	}
-	if plan.Output.OverlayLayer && !job.Layers.Options.Any() {
-		return nil, usagef("%s: output.overlay_layer: no overlay is selected (add overlays.grid, labels, hud, …)", planPath)
-	}
-	if !*plan.Output.PNG && !plan.Output.FITS {
-		return nil, usagef("%s: output: png = false and fits = false: nothing to write", planPath)
-	}
-	if (f.resume || f.verify) && !*plan.Output.Sidecar {
-		return nil, usagef("%s: --resume and --verify need output.sidecar = true (the sidecar records each frame's checksums)", planPath)
-	}
-	return job, nil
-}
-
-func readPlanFile(ctx context.Context, path string) ([]byte, error) {
-	data, err := readSmallFile(ctx, path, flight.MaxPlanBytes)
-	if err != nil {
-		return nil, usagef("flight: %w", err)
-	}
-	return data, nil
-}
-
-// cataloguePath is the plan's catalogue file (relative paths are taken
-// from the plan's directory), or "" for the built-in sky.
-func cataloguePath(plan *flight.Plan, base string) string {
-	p := plan.Catalogue.Path
-	if p == "" || p == "builtin" {
-		return ""
-	}
-	if !filepath.IsAbs(p) {
-		p = filepath.Join(base, p)
-	}
-	return p
-}
-
-// planNames reads the plan's catalogue.names (relative to the plan's
-// directory; see loadNames) and indexes stars with it.
-func planNames(plan *flight.Plan, base string, stars *catalog.Stars) (*names.Index, error) {
-	path := plan.Catalogue.Names
-	if path != "" && path != "none" && !filepath.IsAbs(path) {
-		path = filepath.Join(base, path)
-	}
-	table, err := scene.LoadNames(path)
-	if err != nil {
-		return nil, usagef("%s: catalogue.names: %v", plan.Name, err)
-	}
-	return names.NewIndex(stars, table), nil
-}
-
-// planStars opens the plan's catalogue (relative to the plan's directory)
-// or returns the built-in sky.
-func planStars(ctx context.Context, warn io.Writer, plan *flight.Plan, base string) (*catalog.Stars, error) {
-	c := plan.Catalogue
-	if c.Path == "" || c.Path == "builtin" {
-		if c.Format != "" || len(c.Columns) > 0 {
-			return nil, usagef("%s: catalogue.format and catalogue.columns need a catalogue.path", plan.Name)
-		}
-		return catalog.BuiltIn(), nil
-	}
-	var opt catalog.ReadOptions
-	if c.Format != "" {
-		fm, err := catalog.ParseFormat(c.Format)
-		if err != nil {
-			return nil, usagef("%s: catalogue.format: %v", plan.Name, err)
-		}
-		opt.Format = fm
-	}
-	opt.Columns = c.ColumnMap
-	path := cataloguePath(plan, base)
-	stars, rep, err := scene.OpenCatalog(ctx, []string{path}, opt, nil)
-	if err != nil {
-		return nil, err
-	}
-	scene.WriteSkipped(warn, rep)
-	return stars, nil
-}
-
 // fmtDuration rounds d for progress lines.
 func fmtDuration(d time.Duration) string {
 	if d < 10*time.Second {
@@ -379,54 +189,33 @@ func comfortWarning(w io.Writer, j *flightjob.Job, r flight.Range) error {
 	return nil
 }
 
-// estimate renders one representative frame (the middle one of the job)
-// into a temporary directory, removed afterwards, and prints on e.stderr
-// the measured render time per frame and the disk the job's frames take.
-func estimate(e *env, j *flightjob.Job) error {
-	if len(j.Frames) == 0 {
-		return nil
-	}
-	i := j.Frames[len(j.Frames)/2]
-	tmp, err := os.MkdirTemp("", "skyframe-estimate-")
-	if err != nil {
-		return err
-	}
-	defer os.RemoveAll(tmp)
-	probe := *j
-	probe.OutDir = tmp
-	t0 := time.Now()
-	enc := &imgfile.PNGEncoder{Workers: j.Workers}
-	var prep *render.Prepared
-	if j.Sky == nil {
-		if prep, err = render.Prepare(j.Stars); err != nil {
-			return err
-		}
-	} else if _, err := probe.RenderFrame(nil, enc, i); err != nil {
-		// The first frame draws the sky's cells and the unresolved map
-		// the frame needs; the second is the frame's own cost.
-		return err
-	}
-	t1 := time.Now()
-	if _, err := probe.RenderFrame(prep, enc, i); err != nil {
-		return err
-	}
-	per := time.Since(t1)
-	var bytes int64
-	err = filepath.WalkDir(tmp, func(_ string, d os.DirEntry, err error) error {
-		if err == nil && d.Type().IsRegular() {
-			if info, err := d.Info(); err == nil {
-				bytes += info.Size()
-			}
-		}
-		return err
+// loadFlightJob reads, binds and validates the plan (job.Load) with the
+// flags f, before any rendering; notes go to stderr.
+func loadFlightJob(e *env, planPath string, f *flightFlags) (*flightjob.Job, error) {
+	j, notes, err := flightjob.Load(e.ctx, planPath, flightjob.LoadOptions{
+		Frames: f.frames, Shard: f.shard, Resume: f.resume, Verify: f.verify, Out: f.out,
+		Workers: f.workers, Preview: f.preview, Every: f.every, Version: version,
+		Getenv: e.getenv, FreeSpace: e.freeSpace, Maps: &unresolvedMaps, Warn: e.stderr,
 	})
-	if err != nil {
+	for _, n := range notes {
+		fmt.Fprintf(e.stderr, "skyframe: %s\n", n)
+	}
+	return j, err
+}
+
+// estimate renders one representative frame (job.Job.Estimate) and prints
+// on e.stderr the measured render time per frame and the disk the job's
+// frames take.
+func estimate(e *env, j *flightjob.Job) error {
+	est, ok, err := j.Estimate(time.Now)
+	if err != nil || !ok {
 		return err
 	}
 	n := len(j.Frames)
-	total := time.Duration(n)*per + t1.Sub(t0)
+	per, setup, bytes, i := est.PerFrame, est.Setup, est.FrameBytes, est.Frame
+	total := time.Duration(n)*per + setup
 	fmt.Fprintf(e.stderr, "estimate: frame %d (%dx%d) rendered and written in %v here (the catalogue prepared or the sky drawn once in %v): %d frames ≈ %v; disk ≈ %s (%s for frame %d)\n",
-		i, j.Frame.Width, j.Frame.Height, per.Round(time.Millisecond), t1.Sub(t0).Round(time.Millisecond), n, fmtDuration(total),
+		i, j.Frame.Width, j.Frame.Height, per.Round(time.Millisecond), setup.Round(time.Millisecond), n, fmtDuration(total),
 		humanize.IBytes(uint64(bytes)*uint64(n)), humanize.IBytes(uint64(bytes)), i)
 	return nil
 }
