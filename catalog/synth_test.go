@@ -403,7 +403,7 @@ func TestSyntheticCounts(t *testing.T) {
 // TestSyntheticCountsNakedEyeBinocular compares the counts with the figures
 // of Sky & Telescope, "If you combine the magnitudes of all visible stars,
 // how bright a star will you come up with?" (Astronomy Questions & Answers,
-// https://www.skyandtelescope.com/astronomy-resources/astronomy-questions-answers/if-you-combine-the-magnitudes-of-all-visible-stars-how-bright-a-star-will-you-come-up-with/)
+// http://www.skyandtelescope.com/astronomy-resources/astronomy-questions-answers/if-you-combine-the-magnitudes-of-all-visible-stars-how-bright-a-star-will-you-come-up-with/)
 // [pub]: "About 9,000 stars are brighter than magnitude 6.5" and "The number
 // of stars that are brighter than magnitude 10.5 … is about 600,000"; each
 // within 20 % (the issue's tolerance; the article rounds and states none).

@@ -139,7 +139,7 @@ func TestUnresolvedSplitConservesLight(t *testing.T) {
 //
 // Whole sky [pub]: Sky & Telescope, "If you combine the magnitudes of all
 // visible stars, how bright a star will you come up with?" (Astronomy
-// Questions & Answers, https://www.skyandtelescope.com/astronomy-resources/astronomy-questions-answers/if-you-combine-the-magnitudes-of-all-visible-stars-how-bright-a-star-will-you-come-up-with/):
+// Questions & Answers, http://www.skyandtelescope.com/astronomy-resources/astronomy-questions-answers/if-you-combine-the-magnitudes-of-all-visible-stars-how-bright-a-star-will-you-come-up-with/):
 // the stars brighter than V = 6.5 have a "combined magnitude … almost
 // exactly −5, which is equal to 100 zero-magnitude stars"; those brighter
 // than 10.5 have "a combined brightness equal to 225 zero-magnitude stars.
