@@ -1,77 +1,30 @@
 package main
 
 import (
-	"errors"
 	"fmt"
 	"io"
 	"os"
-	"slices"
 	"strconv"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
 	"golang.org/x/term"
 
-	"github.com/skyframe/skyframe/imgfile"
 	flightjob "github.com/skyframe/skyframe/job"
-	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/sky"
 )
 
 // errInterrupted is wrapped by the error of a render stopped by a signal.
-var errInterrupted = errors.New("interrupted")
+var errInterrupted = flightjob.ErrInterrupted
 
-// flightPace, when positive, is a pause after each frame. Tests set it
-// through SKYFRAME_TEST_PACE to interrupt a run of tiny frames reliably; it
-// does not change any output.
+// envTestPace, when set to a duration, is a pause after each frame. Tests
+// set it to interrupt a run of tiny frames reliably; it does not change
+// any output.
 const envTestPace = "SKYFRAME_TEST_PACE"
 
-// renderFlight renders the job's frames, skipping intact ones with resume.
+// renderFlight renders the job's frames (job.Job.Run), skipping intact
+// ones with resume, with progress, warnings and the summary line.
 func renderFlight(e *env, j *flightjob.Job, resume bool) error {
-	todo := j.Frames
-	// The lock is taken before the resume check when the directory exists
-	// (another run may be writing there), else once it is created, after
-	// the free-space check (which must not create it).
-	var lock *flightjob.Lock
-	defer func() { lock.Release() }()
-	takeLock := func() error {
-		if lock != nil || len(j.Frames) == 0 {
-			return nil
-		}
-		l, notes, err := j.LockFrames(slices.Min(j.Frames), slices.Max(j.Frames), time.Now())
-		for _, n := range notes {
-			fmt.Fprintf(e.stderr, "skyframe: %s\n", n)
-		}
-		lock = l
-		return err
-	}
-	if fi, err := os.Stat(j.OutDir); err == nil && fi.IsDir() {
-		if err := takeLock(); err != nil {
-			return err
-		}
-	}
-	lum := make(map[int]flightjob.Lum, len(j.Frames))
-	if resume {
-		todo = todo[:0:0]
-		for _, i := range j.Frames {
-			if st, l, _ := j.CheckFrame(i); st == flightjob.Intact {
-				lum[i] = l
-				// Temporary files an interrupted run left beside an
-				// intact frame; under the lock no other run writes it.
-				if lock != nil {
-					if err := j.RemoveFrameTemps(i); err != nil {
-						return err
-					}
-				}
-				continue
-			}
-			todo = append(todo, i)
-		}
-		fmt.Fprintf(e.stderr, "resume: %d of %d frames already done\n", len(j.Frames)-len(todo), len(j.Frames))
-	}
-	if err := j.CheckSpace(len(todo)); err != nil {
-		return err
-	}
 	var pace time.Duration
 	if s := e.getenv(envTestPace); s != "" {
 		d, err := time.ParseDuration(s)
@@ -80,75 +33,35 @@ func renderFlight(e *env, j *flightjob.Job, resume bool) error {
 		}
 		pace = d
 	}
-	if err := os.MkdirAll(j.OutDir, 0o755); err != nil {
+	var start time.Time
+	var prog *frameProgress
+	res, err := j.Run(e.ctx, flightjob.RunOptions{
+		Resume: resume, Now: time.Now, Pace: pace,
+		Note: func(n string) { fmt.Fprintf(e.stderr, "skyframe: %s\n", n) },
+		Resumed: func(done, total int) {
+			fmt.Fprintf(e.stderr, "resume: %d of %d frames already done\n", done, total)
+		},
+		Start: func(todo int) {
+			start = time.Now()
+			prog = newFrameProgress(e.stderr, "flight", todo)
+		},
+		Done: func(int) { prog.add() },
+	})
+	if prog != nil {
+		prog.finish()
+	}
+	if err != nil {
 		return err
 	}
-	if err := takeLock(); err != nil {
-		return err
-	}
-	start := time.Now()
-	var prep *render.Prepared
-	if len(todo) > 0 && j.Sky == nil {
-		var err error
-		if prep, err = render.Prepare(j.Stars); err != nil {
-			return err
-		}
-	}
-	var short []int // frames whose catalogue falls short, and their reports
-	reps := map[int]sky.Report{}
-	j.Completeness = func(i int, r sky.Report) {
-		if !r.Complete() {
-			short = append(short, i)
-			reps[i] = r
-		}
-	}
-	enc := &imgfile.PNGEncoder{Workers: j.Workers}
-	prog := newFrameProgress(e.stderr, "flight", len(todo))
-	last := -1
-	var biggest int64 // largest frame written so far, bytes
-	done := 0
-	for _, i := range todo {
-		if err := e.ctx.Err(); err != nil {
-			prog.finish()
-			if last < 0 {
-				return fmt.Errorf("%w before frame %d", errInterrupted, i)
-			}
-			return fmt.Errorf("%w after frame %d", errInterrupted, last)
-		}
-		if err := j.RemoveFrameTemps(i); err != nil {
-			prog.finish()
-			return err
-		}
-		l, err := j.RenderFrame(prep, enc, i)
-		if err != nil {
-			prog.finish()
-			return err
-		}
-		lum[i] = l
-		last = i
-		prog.add()
-		done++
-		if err := j.CheckSpaceLeft(i, len(todo)-done, &biggest); err != nil {
-			prog.finish()
-			return err
-		}
-		if pace > 0 {
-			select {
-			case <-time.After(pace):
-			case <-e.ctx.Done():
-			}
-		}
-	}
-	prog.finish()
 	took := time.Since(start)
-	depthWarning(e.stderr, short, reps)
-	flashWarning(e.stderr, j, lum)
+	depthWarning(e.stderr, res.Short, res.Reports)
+	flashWarning(e.stderr, j, res.Lum)
 	rate := 0.0
 	if took > 0 {
-		rate = float64(len(todo)) / took.Seconds()
+		rate = float64(res.Rendered) / took.Seconds()
 	}
 	fmt.Fprintf(e.stdout, "skyframe %s: %s, shard %s: rendered %d frames (%d already done) into %s in %v (%.2f frames/s)\n",
-		version, j.Plan.Name, j.Shard, len(todo), len(j.Frames)-len(todo), j.OutDir, took.Round(time.Millisecond), rate)
+		version, j.Plan.Name, j.Shard, res.Rendered, len(j.Frames)-res.Rendered, j.OutDir, took.Round(time.Millisecond), rate)
 	return nil
 }
 
@@ -165,23 +78,20 @@ func flashWarning(w io.Writer, j *flightjob.Job, lum map[int]flightjob.Lum) {
 	}
 }
 
-// verifyFlight checks every selected frame and lists the missing and
-// corrupt ones.
+// verifyFlight checks every selected frame (job.Job.Verify) and lists the
+// missing and corrupt ones.
 func verifyFlight(e *env, j *flightjob.Job) error {
+	bad, lum := j.Verify()
 	var missing, corrupt int
-	lum := make(map[int]flightjob.Lum, len(j.Frames))
-	for _, i := range j.Frames {
-		st, l, why := j.CheckFrame(i)
-		switch st {
-		case flightjob.Intact:
-			lum[i] = l
-		case flightjob.Missing:
-			missing++
-			fmt.Fprintf(e.stdout, "missing frame %d: %s\n", i, why)
-		case flightjob.Corrupt:
+	for _, b := range bad {
+		what := "missing"
+		if b.Status == flightjob.Corrupt {
+			what = "corrupt"
 			corrupt++
-			fmt.Fprintf(e.stdout, "corrupt frame %d: %s\n", i, why)
+		} else {
+			missing++
 		}
+		fmt.Fprintf(e.stdout, "%s frame %d: %s\n", what, b.Frame, b.Why)
 	}
 	fmt.Fprintf(e.stdout, "verify %s: %d frames, %d intact, %d missing, %d corrupt\n",
 		j.OutDir, len(j.Frames), len(j.Frames)-missing-corrupt, missing, corrupt)
