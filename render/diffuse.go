@@ -355,9 +355,15 @@ func (d *diffuseSampler) samples(np r3.Vec, D, omega float64) int {
 func (d *diffuseSampler) pixel(i, j int, sc *diffuseScratch, w []float64) (X, Y, Z float64, s int, err error) {
 	np, ok := d.p.Inverse(float64(i)+0.5, float64(j)+0.5)
 	s = 1
+	// The centre's catalogue direction, Doppler factor and solid angle
+	// serve as the single sample when s = 1 (sub(i+½, j+½, 1, np) is
+	// at(i, j, np) bit for bit: the same expressions times 1).
+	var n0 r3.Vec
+	var dInv0, omega0 float64
 	if ok {
-		_, dInv := d.shipIn.Apply(np)
-		s = d.samples(np, 1/dInv, d.sa.at(i, j, np))
+		n0, dInv0 = d.shipIn.Apply(np)
+		omega0 = d.sa.at(i, j, np)
+		s = d.samples(np, 1/dInv0, omega0)
 	} else if d.ms > 1 && d.circle.ok && d.circle.meets(i, j, i+1, j+1) {
 		s = d.ms // the rim of a fisheye: some sub-samples may be inside
 	} else {
@@ -368,13 +374,14 @@ func (d *diffuseSampler) pixel(i, j int, sc *diffuseScratch, w []float64) (X, Y,
 		y := float64(j) + (float64(b)+0.5)*inv
 		for a := 0; a < s; a++ {
 			x := float64(i) + (float64(a)+0.5)*inv
+			n, dInv, omega := n0, dInv0, omega0
 			if s > 1 {
 				if np, ok = d.p.Inverse(x, y); !ok {
 					continue
 				}
+				omega = d.sa.sub(x, y, s, np)
+				n, dInv = d.shipIn.Apply(np)
 			}
-			omega := d.sa.sub(x, y, s, np)
-			n, dInv := d.shipIn.Apply(np)
 			d.sky.Dilutions(n, w)
 			// ln T′_k = ln T_k + ln D, D = 1/dInv: the transform of
 			// DiffuseSeen, in logarithms for the tables.

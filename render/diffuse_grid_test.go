@@ -242,6 +242,7 @@ func BenchmarkAddDiffuseFisheye4096(b *testing.B) {
 	}
 	f := blankFrame(b, looking(b, camera.Fisheye, 4096, 4096, 180, gc), camera.Observer{Boost: boost})
 	b.ReportAllocs()
+	c0 := cpuSeconds()
 	b.ResetTimer()
 	for b.Loop() {
 		if err := AddDiffuse(f, u, DiffuseOptions{}); err != nil {
@@ -249,4 +250,5 @@ func BenchmarkAddDiffuseFisheye4096(b *testing.B) {
 		}
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(f.W*f.H), "ns/pixel")
+	b.ReportMetric((cpuSeconds()-c0)/float64(b.N), "CPU-s/op")
 }

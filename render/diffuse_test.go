@@ -457,6 +457,7 @@ func benchDiffuseModel(b *testing.B, exact bool) {
 	}
 	f := blankFrame(b, looking(b, camera.Pinhole, 1920, 1080, 60, gc), camera.Observer{Boost: boost})
 	b.ReportAllocs()
+	c0 := cpuSeconds()
 	b.ResetTimer()
 	for b.Loop() {
 		if err := AddDiffuse(f, u, DiffuseOptions{Exact: exact}); err != nil {
@@ -464,4 +465,5 @@ func benchDiffuseModel(b *testing.B, exact bool) {
 		}
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(f.W*f.H), "ns/pixel")
+	b.ReportMetric((cpuSeconds()-c0)/float64(b.N), "CPU-s/op")
 }

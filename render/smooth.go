@@ -2,6 +2,7 @@ package render
 
 import (
 	"math"
+	"sync"
 
 	"github.com/skyframe/skyframe/camera"
 )
@@ -97,10 +98,16 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval) error {
 	rows := nodes(0, g.h)
 	bands := max(1, len(rows)-1)
 	errs := make([]error, bands)
+	var leaves sync.Pool // *[]smoothLeaf, one in use per worker
 	parallel(g.workers, bands, func(k int) {
 		ev := newEval()
 		y0, y1 := rows[k], rows[min(k+1, len(rows)-1)]
-		c := smoothCellState{dst: dst, w: g.w, ev: ev, tol: g.tol, circle: g.circle}
+		lp, _ := leaves.Get().(*[]smoothLeaf)
+		if lp == nil {
+			lp = new([]smoothLeaf)
+		}
+		c := smoothCellState{dst: dst, w: g.w, ev: ev, tol: g.tol, circle: g.circle, leaves: (*lp)[:0]}
+		defer func() { *lp = c.leaves[:0]; leaves.Put(lp) }()
 		for _, s := range g.segs {
 			cols := nodes(s[0], s[1])
 			for m := 0; m < max(1, len(cols)-1); m++ {
@@ -112,6 +119,7 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval) error {
 				}
 			}
 		}
+		c.fill(y0, fillEnd(y1, k == bands-1))
 	})
 	for _, err := range errs {
 		if err != nil {
@@ -127,6 +135,18 @@ type smoothCellState struct {
 	ev     pixelEval
 	tol    float64
 	circle imageCircle // pixels wholly outside it get nothing
+	// leaves are the band's interpolated cells, filled row by row once
+	// the band is decided (fill): along whole rows the buffer is read and
+	// written in order, about four times faster than cell by cell, whose
+	// rows are a frame's width apart.
+	leaves []smoothLeaf
+}
+
+// smoothLeaf is a cell to fill by bilinear interpolation of v (corners
+// (x0,y0), (x1,y0), (x0,y1), (x1,y1)) over x0 ≤ x < xe, y0 ≤ y < ye.
+type smoothLeaf struct {
+	x0, x1, xe, y0, y1, ye int
+	v                      [4][3]float64
 }
 
 // cell draws the top-level cell with corner pixels (x0, y0)–(x1, y1): it
@@ -187,7 +207,7 @@ func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nod
 		}
 	}
 	if good {
-		c.interp(x0, x1, y0, y1, lastX, lastY, &cv)
+		c.leaves = append(c.leaves, smoothLeaf{x0: x0, x1: x1, xe: fillEnd(x1, lastX), y0: y0, y1: y1, ye: fillEnd(y1, lastY), v: cv})
 		return nil
 	}
 	if !split {
@@ -239,25 +259,39 @@ func fillEnd(a1 int, last bool) int {
 	return a1
 }
 
-// interp fills the cell by bilinear interpolation of v.
-func (c *smoothCellState) interp(x0, x1, y0, y1 int, lastX, lastY bool, v *[4][3]float64) {
-	xe, ye := fillEnd(x1, lastX), fillEnd(y1, lastY)
-	ix, iy := 1/float64(x1-x0), 1/float64(y1-y0)
+// fill draws the rows y0 ≤ y < ye of the band's leaves, row by row, and
+// empties the list. Each pixel is that of interpolating its cell alone
+// (one addition per pixel, so the order of the cells does not matter).
+func (c *smoothCellState) fill(y0, ye int) {
 	for y := y0; y < ye; y++ {
-		ty := float64(y-y0) * iy
-		var l, d [3]float64
-		for k := range l {
-			l[k] = v[0][k] + ty*(v[2][k]-v[0][k])
-			d[k] = v[1][k] + ty*(v[3][k]-v[1][k]) - l[k]
+		for i := range c.leaves {
+			lf := &c.leaves[i]
+			if y < lf.y0 || y >= lf.ye {
+				continue
+			}
+			c.interpRow(lf, y)
 		}
-		row := c.dst[3*(y*c.w+x0) : 3*(y*c.w+xe)]
-		for x := x0; x < xe; x++ {
-			tx := float64(x-x0) * ix
-			p := row[3*(x-x0) : 3*(x-x0)+3 : 3*(x-x0)+3]
-			p[0] += float32(l[0] + tx*d[0])
-			p[1] += float32(l[1] + tx*d[1])
-			p[2] += float32(l[2] + tx*d[2])
-		}
+	}
+	c.leaves = c.leaves[:0]
+}
+
+// interpRow adds row y of leaf lf's bilinear interpolation to the buffer.
+func (c *smoothCellState) interpRow(lf *smoothLeaf, y int) {
+	v := &lf.v
+	ix, iy := 1/float64(lf.x1-lf.x0), 1/float64(lf.y1-lf.y0)
+	ty := float64(y-lf.y0) * iy
+	var l, d [3]float64
+	for k := range l {
+		l[k] = v[0][k] + ty*(v[2][k]-v[0][k])
+		d[k] = v[1][k] + ty*(v[3][k]-v[1][k]) - l[k]
+	}
+	row := c.dst[3*(y*c.w+lf.x0) : 3*(y*c.w+lf.xe)]
+	l0, l1, l2, d0, d1, d2 := l[0], l[1], l[2], d[0], d[1], d[2]
+	for k, n := 0, 0; k+2 < len(row); k, n = k+3, n+1 {
+		tx := float64(n) * ix
+		row[k] += float32(l0 + tx*d0)
+		row[k+1] += float32(l1 + tx*d1)
+		row[k+2] += float32(l2 + tx*d2)
 	}
 }
 
