@@ -16,8 +16,9 @@ type MemoryNeed struct {
 	// 64 MiB (measured: 10 MB for an 8-bit 8192² frame, 17 MB at 16 bits;
 	// a star field deflates to a small fraction of the image).
 	Encode int64
-	// Work is the renderer's per-chunk working set: a splat record, its
-	// tile copies and ids per star of one chunk (see ChunkRows).
+	// Work is the renderer's per-pass working set: a splat record, its
+	// tile copies and ids per star of one pass or chunk (see RenderRows,
+	// ChunkRows).
 	Work int64
 	// Catalogue is the star columns held in memory (0 when streamed from a
 	// cache file).
@@ -60,10 +61,15 @@ func EstimateMemory(opt Options, depth int, stars int, streamed bool, budget int
 	rows := int64(stars)
 	if streamed {
 		rows = min(rows, int64(ChunkRows(opt, budget)))
-	} else {
-		m.Catalogue = int64(stars) * CatalogueBytesPerStar
-		rows = min(rows, streamMaxChunkRows)
+		m.Work = rows * streamBytesPerRow
+		return m
 	}
-	m.Work = rows * streamBytesPerRow
+	m.Catalogue = int64(stars) * CatalogueBytesPerStar
+	k := 2
+	if psf, err := NewPSF(opt.FWHM); err == nil {
+		k = psf.k
+	}
+	rows = min(rows, int64(RenderRows(opt, DefaultMemoryBudget)))
+	m.Work = rows * RenderBytesPerRow(k)
 	return m
 }

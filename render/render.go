@@ -181,9 +181,9 @@ type splatRec struct {
 
 // Render draws stars as seen by opt.Observer through opt.Projection.
 //
-// A catalogue longer than ChunkRows(opt, DefaultMemoryBudget) is drawn by
-// RenderStream in chunks of that length, which bounds the working memory
-// (see ChunkRows) and gives a bit-identical frame.
+// A catalogue longer than RenderRows(opt, DefaultMemoryBudget) is drawn
+// by RenderStream in equal chunks of at most that length, which bounds
+// the working memory (see RenderRows) and gives a bit-identical frame.
 func Render(stars *catalog.Stars, opt Options) (*Frame, error) {
 	return renderInto(nil, stars, opt)
 }
@@ -206,8 +206,10 @@ func RenderInto(dst *Frame, stars *catalog.Stars, opt Options) error {
 }
 
 func renderInto(dst *Frame, stars *catalog.Stars, opt Options) (*Frame, error) {
-	if rows := ChunkRows(opt, DefaultMemoryBudget); stars != nil && stars.Len() > rows {
-		return renderStream(dst, Chunks(stars, rows), opt)
+	if rows := RenderRows(opt, DefaultMemoryBudget); stars != nil && stars.Len() > rows {
+		n := stars.Len()
+		passes := (n + rows - 1) / rows
+		return renderStream(dst, Chunks(stars, (n+passes-1)/passes), opt)
 	}
 	p := &Prepared{}
 	if err := prepareInto(p, stars, runtime.GOMAXPROCS(0), true); err != nil {
@@ -859,9 +861,70 @@ func (g *grid) addTile(b *Buffer, ti int, psf *PSF) {
 	}
 	win := tileWindow{x0: ox, y0: oy, x1: x1, y1: y1}
 	var wx, wy [maxTaps]float64
+	if t := psf.edges; psf.k == 2 && t != nil && b.Doppler == nil && (g.kind == camera.Fisheye || g.kind == camera.Pinhole) {
+		// The default PSF's 5×5 window without a Doppler channel or
+		// wrap/face clipping: splat5 for a window inside the tile, the
+		// general splat for one that crosses its edge.
+		for k := range list {
+			if r := &list[k]; !splat5(b, win, r, t) {
+				g.splat(b, win, r, psf, &wx, &wy)
+			}
+		}
+		return
+	}
 	for k := range list {
 		g.splat(b, win, &list[k], psf, &wx, &wy)
 	}
+}
+
+// weights5 is PSF.Weights for a window half-width k = 2 from edge table
+// t (4 interior edges), unrolled: the same operations in the same order,
+// so the same bits. It returns ⌊c⌋ − 2.
+func weights5(t *edgeTable, c float64, w *[5]float64) int {
+	fl := math.Floor(c)
+	s := (c - fl) * float64(t.phases)
+	j := min(int(s), t.phases-1)
+	fr := s - float64(j)
+	base := j * 4
+	val, slope := t.val[base:base+4:base+4], t.slope[base:base+4:base+4]
+	e0 := val[0] + fr*slope[0]
+	e1 := val[1] + fr*slope[1]
+	e2 := val[2] + fr*slope[2]
+	e3 := val[3] + fr*slope[3]
+	w[0] = e0 - -0.5
+	w[1] = e1 - e0
+	w[2] = e2 - e1
+	w[3] = e3 - e2
+	w[4] = 0.5 - e3
+	return int(fl) - 2
+}
+
+// splat5 adds record r with the 5×5 window of table t into b (no Doppler
+// channel, no wrap or face clipping) when the whole window lies inside
+// win, and reports whether it did: each pixel gets float32(wx·wy·rgb) per
+// channel, as deposit adds it.
+func splat5(b *Buffer, win tileWindow, r *splatRec, t *edgeTable) bool {
+	var wx, wy [5]float64
+	if !(r.x >= float64(win.x0+2) && r.x < float64(win.x1-2) && r.y >= float64(win.y0+2) && r.y < float64(win.y1-2)) {
+		return false
+	}
+	x0 := weights5(t, r.x, &wx)
+	y0 := weights5(t, r.y, &wy)
+	rgb0, rgb1, rgb2 := float64(r.rgb[0]), float64(r.rgb[1]), float64(r.rgb[2])
+	q := 3 * ((y0-win.oy)*b.W + x0 - win.ox)
+	for j := range 5 {
+		wyj := wy[j]
+		row := b.Pix[q : q+15 : q+15]
+		for i := range 5 {
+			w := wx[i] * wyj
+			px := row[3*i : 3*i+3 : 3*i+3]
+			px[0] += float32(w * rgb0)
+			px[1] += float32(w * rgb1)
+			px[2] += float32(w * rgb2)
+		}
+		q += 3 * b.W
+	}
+	return true
 }
 
 // tileWindow is a rectangle of image pixels [x0, x1)×[y0, y1) that a

@@ -255,3 +255,51 @@ func TestChunkRows(t *testing.T) {
 		}
 	}
 }
+
+// TestRenderBytesPerRowCopies checks the tile-copy term of the per-pass
+// memory model against the binning itself: stars spread over a frame go
+// into (1 + 2k/128)² tiles each on average (the chance that a window of
+// 2k+1 pixels crosses a tile edge along one axis is 2k/128 [cp]), within
+// 3 % for the default PSF and a wide one; and a 10⁷-star 4096² fisheye
+// fits in one pass within the default budget.
+func TestRenderBytesPerRowCopies(t *testing.T) {
+	stars := randomStars(200_000, -1, 9, 31)
+	for _, fwhm := range []float64{0, 20} {
+		opt := Options{Projection: proj(t, camera.Fisheye, 2048, 2048), Observer: observer(t, axisY, 0.3), Exposure: 12, FWHM: fwhm}
+		ropt, psf, _, err := resolveOptions(opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p := &Prepared{}
+		if err := prepareInto(p, stars, 1, true); err != nil {
+			t.Fatal(err)
+		}
+		n := stars.Len()
+		recs := make([]splatRec, n)
+		chunks := make([]chunkResult, (n+chunkSize-1)/chunkSize)
+		drawn := 0
+		for c := range chunks {
+			lo, hi := c*chunkSize, min((c+1)*chunkSize, n)
+			newTransformer(p, &ropt, &psf, 1).run(lo, hi, recs[lo:hi], &chunks[c])
+			drawn += chunks[c].n
+		}
+		if drawn < n/4 {
+			t.Fatalf("FWHM %v: only %d of %d stars drawn", fwhm, drawn, n)
+		}
+		g := newGrid(2048, 2048, psf.Radius(), camera.Fisheye)
+		g.binAll(recs, chunks, 2)
+		have := float64(g.start[len(g.start)-1]) / float64(drawn)
+		c := 1 + 2*psf.Radius()/tileSize
+		t.Logf("FWHM %v (k %v): %.4f tiles per record, model %.4f", fwhm, psf.Radius(), have, c*c)
+		if want := c * c; math.Abs(have/want-1) > 0.03 {
+			t.Errorf("FWHM %v (k %v): %.4f tiles per record, model %.4f", fwhm, psf.Radius(), have, want)
+		}
+		if want := int64(math.Ceil(33 + 36*c*c)); RenderBytesPerRow(psf.k) != want {
+			t.Errorf("RenderBytesPerRow(%d) = %d, want %d", psf.k, RenderBytesPerRow(psf.k), want)
+		}
+	}
+	opt := Options{Projection: proj(t, camera.Fisheye, 4096, 4096)}
+	if r := RenderRows(opt, 0); r < 10_000_000 {
+		t.Errorf("RenderRows(4096² fisheye, default budget) = %d, want ≥ 10⁷ (one pass)", r)
+	}
+}
