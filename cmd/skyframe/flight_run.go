@@ -4,14 +4,12 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"strconv"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
 	"golang.org/x/term"
 
 	flightjob "github.com/skyframe/skyframe/job"
-	"github.com/skyframe/skyframe/sky"
 )
 
 // errInterrupted is wrapped by the error of a render stopped by a signal.
@@ -54,7 +52,9 @@ func renderFlight(e *env, j *flightjob.Job, resume bool) error {
 		return err
 	}
 	took := time.Since(start)
-	depthWarning(e.stderr, res.Short, res.Reports)
+	if msg := flightjob.DepthWarning(res.Short, res.Reports); msg != "" {
+		fmt.Fprintln(e.stderr, msg)
+	}
 	flashWarning(e.stderr, j, res.Lum)
 	rate := 0.0
 	if took > 0 {
@@ -160,34 +160,4 @@ func (p *frameProgress) finish() {
 		fmt.Fprintln(p.w)
 		p.bar = nil
 	}
-}
-
-// depthWarning writes the completeness warning of a flight for the worst
-// of the frames whose catalogue falls short (short, in rendering order,
-// with their reports), naming it and how many fall short.
-func depthWarning(w io.Writer, short []int, reps map[int]sky.Report) {
-	if len(short) == 0 {
-		return
-	}
-	list := make([]sky.Report, len(short))
-	for k, i := range short {
-		list[k] = reps[i]
-	}
-	worst, k := sky.Worst(list)
-	if k < 0 {
-		return
-	}
-	what := fmt.Sprintf("frame %d, the worst of %d frames that fall short (%s),", short[k], len(short), frameSpan(short))
-	if len(short) == 1 {
-		what = fmt.Sprintf("frame %d", short[k])
-	}
-	fmt.Fprintln(w, worst.Warning("flight", what))
-}
-
-// frameSpan describes a sorted list of frame numbers by its first and last.
-func frameSpan(frames []int) string {
-	if len(frames) == 1 {
-		return strconv.Itoa(frames[0])
-	}
-	return fmt.Sprintf("frames %d–%d", frames[0], frames[len(frames)-1])
 }

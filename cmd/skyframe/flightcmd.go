@@ -159,7 +159,7 @@ func runFlight(e *env, args []string) error {
 		return verifyFlight(e, job)
 	}
 	need := job.MemoryNeed()
-	need.Overlays = overlayBytes(job.Layers.Options, job.Frame.Width, job.Frame.Height)
+	need.Overlays = job.Layers.Options.MemoryBytes(job.Frame.Width, job.Frame.Height)
 	if err := checkMemory(need, budget, "reduce camera.width and camera.height (or render a --preview)"); err != nil {
 		return err
 	}

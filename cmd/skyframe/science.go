@@ -20,7 +20,6 @@ import (
 	"github.com/skyframe/skyframe/scene"
 	"github.com/skyframe/skyframe/sky"
 	"github.com/skyframe/skyframe/spectrum"
-	"gonum.org/v1/gonum/spatial/r3"
 )
 
 const curvesHelp = `Usage: skyframe curves [options]
@@ -147,20 +146,6 @@ func figureSize(s string, dpi int) (analysis.Size, error) {
 	return sz, nil
 }
 
-// outputPath joins a prefix or directory with a file name.
-func outputPath(prefix, name string) string {
-	if prefix == "" {
-		return name
-	}
-	if strings.HasSuffix(prefix, "/") || strings.HasSuffix(prefix, string(os.PathSeparator)) {
-		return filepath.Join(prefix, name)
-	}
-	if st, err := os.Stat(prefix); err == nil && st.IsDir() {
-		return filepath.Join(prefix, name)
-	}
-	return prefix + name
-}
-
 func runCurves(e *env, args []string) error {
 	fs := pflag.NewFlagSet("curves", pflag.ContinueOnError)
 	fs.SetOutput(e.stderr)
@@ -220,23 +205,23 @@ func runCurves(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	if dir := filepath.Dir(outputPath(*output, "x")); dir != "" {
+	if dir := filepath.Dir(analysis.OutputPath(*output, "x")); dir != "" {
 		if err := os.MkdirAll(dir, 0o755); err != nil {
 			return fmt.Errorf("curves: %w", err)
 		}
 	}
 	for _, f := range figs {
-		if err := writeFigure(e, f, outputPath(*output, f.Name+".png"), sz, false); err != nil {
+		if err := writeFigure(e, f, analysis.OutputPath(*output, f.Name+".png"), sz, false); err != nil {
 			return err
 		}
 		if *svg {
-			if err := writeFigure(e, f, outputPath(*output, f.Name+".svg"), sz, true); err != nil {
+			if err := writeFigure(e, f, analysis.OutputPath(*output, f.Name+".svg"), sz, true); err != nil {
 				return err
 			}
 		}
 	}
 	for _, t := range cs.Tables() {
-		path := outputPath(*output, t.Name+".csv")
+		path := analysis.OutputPath(*output, t.Name+".csv")
 		if err := render.WriteFileAtomic(path, t.WriteCSV); err != nil {
 			return err
 		}
@@ -257,22 +242,6 @@ func writeFigure(e *env, f *analysis.Figure, path string, sz analysis.Size, svg 
 	}
 	fmt.Fprintln(e.stdout, path)
 	return nil
-}
-
-// rangeSpeed is the i-th of n evenly spaced speeds from from to to,
-// rounded to 12 significant digits so that a range reads as people write
-// it (0.27, not 0.26999999999999996, for the 4th of 12 from 0 to 0.99);
-// the last is to exactly.
-func rangeSpeed(from, to float64, i, n int) float64 {
-	if i == n-1 {
-		return to
-	}
-	b := from + (to-from)*float64(i)/float64(n-1)
-	r, err := strconv.ParseFloat(strconv.FormatFloat(b, 'g', 12, 64), 64)
-	if err != nil || !(r >= 0 && r < 1) {
-		return b
-	}
-	return r
 }
 
 func runCensus(e *env, args []string) error {
@@ -323,7 +292,7 @@ func runCensus(e *env, args []string) error {
 			return usagef("--steps %d: want 2..10000", *steps)
 		}
 		for i := range *steps {
-			sp = append(sp, analysis.Speed{Beta: rangeSpeed(*from, *to, i, *steps)})
+			sp = append(sp, analysis.Speed{Beta: analysis.RangeSpeed(*from, *to, i, *steps)})
 		}
 	} else {
 		var err error
@@ -372,14 +341,14 @@ func runCensus(e *env, args []string) error {
 		return err
 	}
 	builtIn := p.Catalog == ""
-	need, err := censusNeeds(stars, sp, heading, *limit, beam, builtIn)
+	need, err := sky.CensusNeeds(stars, sp, heading, *limit, beam, builtIn)
 	if err != nil {
-		return err
+		return usageError{err}
 	}
 	depthV := catalog.EstimateDepth(stars).V
 	if builtIn {
 		// The built-in sky is drawn as deep as the fastest speed needs.
-		depthV = censusSkyDepth(need)
+		depthV = sky.CensusSkyDepth(need)
 		if depthV > catalog.DefaultSynthMagLimit {
 			stars = catalog.Synthetic(catalog.SynthOptions{MagLimit: depthV})
 		}
@@ -444,46 +413,5 @@ func runCensus(e *env, args []string) error {
 	}
 	return nil
 }
-
-// censusNeeds returns, for each speed, the catalogue depth a whole-sky
-// census to limit needs (render.MaxBrightening over the catalogue's
-// temperatures and the Doppler factors γ(1 ± β) of the whole sky).
-func censusNeeds(stars *catalog.Stars, sp []analysis.Speed, heading r3.Vec, limit float64, beam spectrum.Beaming, builtIn bool) ([]float64, error) {
-	tmin, tmax := sky.BuiltInTemps()
-	if !builtIn {
-		d := catalog.EstimateDepth(stars)
-		tmin, tmax = d.TMin, d.TMax
-		if !(tmin > 0 && tmax >= tmin) {
-			tmin, tmax = catalog.DefaultTeff, catalog.DefaultTeff
-		}
-	}
-	out := make([]float64, len(sp))
-	for i, s := range sp {
-		b, err := s.Boost(heading)
-		if err != nil {
-			return nil, usageError{err}
-		}
-		g := b.Gamma()
-		dmax := g + b.GammaBeta()
-		dmin := 1 / dmax
-		dv, _, _ := render.MaxBrightening(tmin, tmax, dmin, dmax, beam)
-		out[i] = limit - dv
-	}
-	return out, nil
-}
-
-// censusSkyDepth is the depth the built-in sky is drawn to for a census:
-// the deepest speed's need, between the default depth and censusMaxDepth.
-func censusSkyDepth(need []float64) float64 {
-	v := catalog.DefaultSynthMagLimit
-	for _, n := range need {
-		v = math.Max(v, n)
-	}
-	return math.Min(censusMaxDepth, math.Ceil(v*10)/10)
-}
-
-// censusMaxDepth caps the built-in sky of a census: the whole sky to
-// V = 13 is about 5·10⁶ stars, enough for V′ ≤ 6.5 at 0.99 c.
-const censusMaxDepth = 13.0
 
 func fmtBeta(b float64) string { return strconv.FormatFloat(b, 'g', 6, 64) }

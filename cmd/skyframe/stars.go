@@ -3,16 +3,13 @@ package main
 import (
 	"fmt"
 	"io"
-	"slices"
 
 	"github.com/spf13/pflag"
 
 	"github.com/skyframe/skyframe/analysis"
 	"github.com/skyframe/skyframe/camera"
-	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/scene"
-	"github.com/skyframe/skyframe/sky"
 )
 
 const starsHelp = `Usage: skyframe stars [options]
@@ -102,8 +99,12 @@ func runStars(e *env, args []string) error {
 	if err != nil {
 		return err
 	}
-	if err := warnTableDepth(e.stderr, sc, betas); err != nil {
-		return err
+	warn, err := scene.TableDepthWarning(sc, betas)
+	if err != nil {
+		return usageError{err}
+	}
+	if warn != "" {
+		fmt.Fprintln(e.stderr, warn)
 	}
 	write := func(w io.Writer) error {
 		if betas == nil {
@@ -148,37 +149,6 @@ func parseFlags(fs *pflag.FlagSet, args []string) error {
 	}
 	if fs.NArg() > 0 {
 		return usagef("unexpected argument %q (see --help)", fs.Arg(0))
-	}
-	return nil
-}
-
-// tableLimit is the observed V to which the completeness of a star table
-// is judged: the naked-eye limit (common practice), the still's naked-eye
-// preset.
-const tableLimit = 6.5
-
-// warnTableDepth writes the completeness warning of a star table to w
-// when the catalogue cannot list every star that reaches V′ = tableLimit
-// anywhere in the sky at the table's speed (with --speeds, the fastest):
-// the catalogue's depth and the depth needed, the estimated share of stars
-// and light missing, and the V′ to which the rows are complete.
-func warnTableDepth(w io.Writer, sc *scene.Scene, betas []float64) error {
-	b := sc.Observer.Boost
-	what := fmt.Sprintf("a whole-sky list to V′ = %g (the naked-eye limit)", tableLimit)
-	if len(betas) > 0 {
-		fast := slices.Max(betas)
-		var err error
-		if b, err = camera.NewBoost(sc.Heading, fast); err != nil {
-			return usageError{err}
-		}
-		if len(betas) > 1 {
-			what += fmt.Sprintf(" at β = %s (the fastest of --speeds)", fmtBeta(fast))
-		}
-	}
-	rep := sky.WholeSky(catalog.EstimateDepth(sc.Stars), sc.BuiltIn, b, tableLimit, sc.Beaming)
-	rep.Hint = fmt.Sprintf("rows fainter than V′ ≈ %.1f may lack stars; a deeper catalogue lists them", rep.Have+rep.Needed.DeltaV)
-	if msg := rep.Warning("stars", what); msg != "" {
-		fmt.Fprintln(w, msg)
 	}
 	return nil
 }

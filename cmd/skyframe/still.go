@@ -180,7 +180,7 @@ func runStill(e *env, args []string) error {
 		rows = p.Stream.Len()
 	}
 	need := render.EstimateMemory(spec.Opt, spec.Depth, rows, p.Stream != nil, renderBudget)
-	need.Overlays = overlayBytes(spec.Layers.Options, w, h)
+	need.Overlays = spec.Layers.Options.MemoryBytes(w, h)
 	if err := checkMemory(need, budget, "reduce --size, --grid-step or --lattice"); err != nil {
 		return err
 	}
