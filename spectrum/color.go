@@ -222,19 +222,30 @@ func GamutMap(r, g, b float64, Y float64) (float64, float64, float64) {
 	}
 	l := Luminance(r, g, b)
 	dr, dg, db := r-l, g-l, b-l
+	// Y > 0 and Y + d < 0 make Y/−d a number in (0, 1): a plain
+	// comparison is math.Min here, and cheaper (it is not inlined).
 	s := 1.0
 	if dr < 0 && Y+dr < 0 {
-		s = math.Min(s, Y/-dr)
+		s = min(s, Y/-dr)
 	}
 	if dg < 0 && Y+dg < 0 {
-		s = math.Min(s, Y/-dg)
+		s = min(s, Y/-dg)
 	}
 	if db < 0 && Y+db < 0 {
-		s = math.Min(s, Y/-db)
+		s = min(s, Y/-db)
 	}
 	r, g, b = Y+s*dr, Y+s*dg, Y+s*db
 	// Rounding can leave −1e-17; the target is exactly zero there.
-	return math.Max(r, 0), math.Max(g, 0), math.Max(b, 0)
+	return clampZero(r), clampZero(g), clampZero(b)
+}
+
+// clampZero is math.Max(v, 0) inlined: NaN stays NaN, −0 and negatives
+// become +0.
+func clampZero(v float64) float64 {
+	if v <= 0 {
+		return 0
+	}
+	return v
 }
 
 // EncodeSRGB applies the IEC 61966-2-1 transfer function to a linear

@@ -2,6 +2,7 @@ package spectrum
 
 import (
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"github.com/lucasb-eyer/go-colorful"
@@ -140,5 +141,52 @@ func TestGamutMap(t *testing.T) {
 	})
 	if r, g, b := GamutMap(-1, 2, 3, 0); r != 0 || g != 0 || b != 0 {
 		t.Errorf("Y=0: (%g %g %g), want black", r, g, b)
+	}
+}
+
+// TestGamutMapMatchesMathMinMax: GamutMap with plain comparisons gives
+// the bits of the same steps written with math.Min and math.Max (their
+// IEEE 754 definitions [cp]) on random colours, negatives, ±0, NaN and
+// infinities (any NaN for a NaN).
+func TestGamutMapMatchesMathMinMax(t *testing.T) {
+	ref := func(r, g, b, Y float64) (float64, float64, float64) {
+		if !(Y > 0) {
+			if math.IsNaN(Y) {
+				return Y, Y, Y
+			}
+			return 0, 0, 0
+		}
+		l := Luminance(r, g, b)
+		dr, dg, db := r-l, g-l, b-l
+		s := 1.0
+		if dr < 0 && Y+dr < 0 {
+			s = math.Min(s, Y/-dr)
+		}
+		if dg < 0 && Y+dg < 0 {
+			s = math.Min(s, Y/-dg)
+		}
+		if db < 0 && Y+db < 0 {
+			s = math.Min(s, Y/-db)
+		}
+		return math.Max(Y+s*dr, 0), math.Max(Y+s*dg, 0), math.Max(Y+s*db, 0)
+	}
+	special := []float64{0, math.Copysign(0, -1), 1, -1, 1e-17, -1e-17, math.NaN(), math.Inf(1), math.Inf(-1)}
+	rng := rand.New(rand.NewPCG(5, 6))
+	pick := func() float64 {
+		if rng.IntN(4) == 0 {
+			return special[rng.IntN(len(special))]
+		}
+		return 4*rng.Float64() - 1
+	}
+	for i := 0; i < 200_000; i++ {
+		r, g, b, Y := pick(), pick(), pick(), pick()
+		h0, h1, h2 := GamutMap(r, g, b, Y)
+		w0, w1, w2 := ref(r, g, b, Y)
+		same := func(a, b float64) bool { // NaN payloads may differ
+			return math.Float64bits(a) == math.Float64bits(b) || math.IsNaN(a) && math.IsNaN(b)
+		}
+		if !same(h0, w0) || !same(h1, w1) || !same(h2, w2) {
+			t.Fatalf("GamutMap(%v, %v, %v, %v) = %v %v %v, want %v %v %v", r, g, b, Y, h0, h1, h2, w0, w1, w2)
+		}
 	}
 }
