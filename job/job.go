@@ -300,7 +300,15 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 	if err != nil {
 		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
-	f, lay, kept, ex, err := jf.RenderLinear(prep, fs, obs, proj)
+	// The frame's buffers are reused across frames (framePool), like the
+	// 8-bit image below: a new 4096² float buffer costs about 0.6 CPU-s
+	// of page faults on first touch.
+	dst, _ := framePool.Get().(*render.Frame)
+	if dst == nil {
+		dst = new(render.Frame)
+	}
+	defer framePool.Put(dst)
+	f, lay, kept, ex, err := jf.renderLinear(dst, prep, fs, obs, proj)
 	if err != nil {
 		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
@@ -410,6 +418,7 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 var (
 	nrgbaPool  sync.Pool // *image.NRGBA
 	bufferPool sync.Pool // *bytes.Buffer
+	framePool  sync.Pool // *render.Frame: the linear buffer and the star path's memory
 )
 
 // getNRGBA returns an image from the pool, or nil (ToNRGBAInto then
@@ -538,6 +547,12 @@ func (j *Job) RemoveFrameTemps(i int) error {
 // statistics are those of its own instant. With an EXR file it keeps the
 // linear contributions apart and the Doppler channel.
 func (j *Job) RenderLinear(prep *render.Prepared, fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, frame.Layers, []render.Contribution, Exposure, error) {
+	return j.renderLinear(nil, prep, fs, obs, proj)
+}
+
+// renderLinear is RenderLinear drawing into dst (render.Prepared.RenderInto,
+// RenderMotionInto: bit-identical), or into a new frame when dst is nil.
+func (j *Job) renderLinear(dst *render.Frame, prep *render.Prepared, fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, frame.Layers, []render.Contribution, Exposure, error) {
 	fr := j.Frame
 	keep := j.Plan.Output.EXR
 	opt := render.Options{Projection: proj, Observer: obs, Beaming: fr.Beaming, FWHM: fr.FWHM,
@@ -551,7 +566,12 @@ func (j *Job) RenderLinear(prep *render.Prepared, fs flight.FrameState, obs came
 	var f *render.Frame
 	var kept []render.Contribution
 	if ex.Knots == nil {
-		if f, err = prep.Render(opt); err != nil {
+		if dst == nil {
+			f, err = prep.Render(opt)
+		} else {
+			f, err = dst, prep.RenderInto(dst, opt)
+		}
+		if err != nil {
 			return nil, frame.Layers{}, nil, ex, err
 		}
 		if keep {
@@ -565,7 +585,12 @@ func (j *Job) RenderLinear(prep *render.Prepared, fs flight.FrameState, obs came
 	if err != nil {
 		return nil, frame.Layers{}, nil, ex, err
 	}
-	if f, err = prep.RenderMotion(opt, knots); err != nil {
+	if dst == nil {
+		f, err = prep.RenderMotion(opt, knots)
+	} else {
+		f, err = dst, prep.RenderMotionInto(dst, opt, knots)
+	}
+	if err != nil {
 		return nil, frame.Layers{}, nil, ex, err
 	}
 	at, err := Instants(j.Plan, fs.Index, ex.Layers, j.Projection)

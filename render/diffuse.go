@@ -150,19 +150,75 @@ func (b *Buffer) Add(o *Buffer) error {
 // the directions evaluated are seen) and then the buffer holds the rows
 // that were drawn: draw into opt.Into to keep the frame untouched.
 func AddDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) error {
+	d, err := prepareDiffuse(f, sky, opt)
+	if err != nil {
+		return err
+	}
+	return d.draw(d.newEval)
+}
+
+// diffuseDraw is one validated diffuse layer ready to draw: an evaluator
+// per worker, the frame's projection, the destination and the grid's
+// parameters.
+type diffuseDraw struct {
+	newEval func() pixelEval
+	p       camera.Projection
+	dst     *Buffer
+	workers int
+	tol     float64
+	exact   bool
+}
+
+// draw adds the layer given by newEval (pixelEval per worker) to d.dst:
+// on the adaptive grid, or every pixel exactly.
+func (d *diffuseDraw) draw(newEval func() pixelEval) error {
+	if !d.exact {
+		g := newSmoothGrid(&d.p, d.tol, d.workers)
+		return g.add(d.dst.Pix, newEval)
+	}
+	w, h := d.dst.W, d.dst.H
+	rowErr := make([]error, h)
+	parallel(d.workers, h, func(j int) {
+		ev := newEval()
+		row := d.dst.Pix[3*j*w : 3*(j+1)*w]
+		for i := 0; i < w; i++ {
+			v, _, err := ev(i, j)
+			if err != nil {
+				rowErr[j] = err
+				return
+			}
+			if v == [3]float64{} {
+				continue
+			}
+			px := row[3*i : 3*i+3]
+			px[0] += float32(v[0])
+			px[1] += float32(v[1])
+			px[2] += float32(v[2])
+		}
+	})
+	for _, err := range rowErr {
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// prepareDiffuse checks AddDiffuse's arguments and sets up its drawing.
+func prepareDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*diffuseDraw, error) {
 	if f == nil || sky == nil {
-		return fmt.Errorf("%w: nil frame or sky", ErrDiffuse)
+		return nil, fmt.Errorf("%w: nil frame or sky", ErrDiffuse)
 	}
 	temps := slices.Clone(sky.Temperatures())
 	if len(temps) == 0 {
-		return fmt.Errorf("%w: the sky has no temperature components", ErrDiffuse)
+		return nil, fmt.Errorf("%w: the sky has no temperature components", ErrDiffuse)
 	}
 	for k, t := range temps {
 		if !(t > 0) || math.IsInf(t, 0) {
-			return fmt.Errorf("%w: temperature %d is %g K, want finite > 0", ErrDiffuse, k, t)
+			return nil, fmt.Errorf("%w: temperature %d is %g K, want finite > 0", ErrDiffuse, k, t)
 		}
 		if k > 0 && !(t > temps[k-1]) {
-			return fmt.Errorf("%w: temperatures not ascending (%g K after %g K)", ErrDiffuse, t, temps[k-1])
+			return nil, fmt.Errorf("%w: temperatures not ascending (%g K after %g K)", ErrDiffuse, t, temps[k-1])
 		}
 	}
 	fp, mlnD, ms := opt.Footprint, opt.MaxLnD, opt.MaxSamples
@@ -176,38 +232,38 @@ func AddDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) error {
 		ms = DefaultDiffuseSamples
 	}
 	if !(fp > 0) || !(mlnD > 0) || ms < 1 || ms > 64 {
-		return fmt.Errorf("%w: Footprint %g rad, MaxLnD %g, MaxSamples %d: want > 0, > 0 and 1..64", ErrDiffuse, opt.Footprint, opt.MaxLnD, opt.MaxSamples)
+		return nil, fmt.Errorf("%w: Footprint %g rad, MaxLnD %g, MaxSamples %d: want > 0, > 0 and 1..64", ErrDiffuse, opt.Footprint, opt.MaxLnD, opt.MaxSamples)
 	}
 	tol := opt.Tolerance
 	if tol == 0 {
 		tol = DefaultSmoothTolerance
 	}
 	if !(tol > 0) || math.IsInf(tol, 0) {
-		return fmt.Errorf("%w: Tolerance %g, want finite > 0", ErrDiffuse, opt.Tolerance)
+		return nil, fmt.Errorf("%w: Tolerance %g, want finite > 0", ErrDiffuse, opt.Tolerance)
 	}
 	if opt.Workers < 0 {
-		return fmt.Errorf("%w: negative Workers %d", ErrDiffuse, opt.Workers)
+		return nil, fmt.Errorf("%w: negative Workers %d", ErrDiffuse, opt.Workers)
 	}
 	p := f.Options.Projection
 	if err := p.Prepare(); err != nil {
-		return err
+		return nil, err
 	}
 	if p.Width != f.W || p.Height != f.H {
-		return fmt.Errorf("%w: projection %d×%d does not match the buffer %d×%d", ErrDiffuse, p.Width, p.Height, f.W, f.H)
+		return nil, fmt.Errorf("%w: projection %d×%d does not match the buffer %d×%d", ErrDiffuse, p.Width, p.Height, f.W, f.H)
 	}
 	dst := &f.Buffer
 	if opt.Into != nil {
 		dst = opt.Into
 		if dst.W != f.W || dst.H != f.H || len(dst.Pix) != 3*f.W*f.H {
-			return fmt.Errorf("%w: Into is %d×%d, the frame %d×%d", ErrDiffuse, dst.W, dst.H, f.W, f.H)
+			return nil, fmt.Errorf("%w: Into is %d×%d, the frame %d×%d", ErrDiffuse, dst.W, dst.H, f.W, f.H)
 		}
 	}
 	if !(f.Scale > 0) || math.IsInf(f.Scale, 0) {
-		return fmt.Errorf("%w: frame Scale %g, want finite > 0", ErrDiffuse, f.Scale)
+		return nil, fmt.Errorf("%w: frame Scale %g, want finite > 0", ErrDiffuse, f.Scale)
 	}
 	sa, err := newPixelSolidAngle(&p)
 	if err != nil {
-		return fmt.Errorf("%w: %v", ErrDiffuse, err)
+		return nil, fmt.Errorf("%w: %v", ErrDiffuse, err)
 	}
 	workers := opt.Workers
 	if workers == 0 {
@@ -245,35 +301,7 @@ func AddDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) error {
 			return [3]float64{r, g, b}, s == 1, nil
 		}
 	}
-	if !opt.Exact {
-		g := newSmoothGrid(&p, tol, workers)
-		return g.add(dst.Pix, newEval)
-	}
-	rowErr := make([]error, f.H)
-	parallel(workers, f.H, func(j int) {
-		ev := newEval()
-		row := dst.Pix[3*j*f.W : 3*(j+1)*f.W]
-		for i := 0; i < f.W; i++ {
-			v, _, err := ev(i, j)
-			if err != nil {
-				rowErr[j] = err
-				return
-			}
-			if v == [3]float64{} {
-				continue
-			}
-			px := row[3*i : 3*i+3]
-			px[0] += float32(v[0])
-			px[1] += float32(v[1])
-			px[2] += float32(v[2])
-		}
-	})
-	for _, err := range rowErr {
-		if err != nil {
-			return err
-		}
-	}
-	return nil
+	return &diffuseDraw{newEval: newEval, p: p, dst: dst, workers: workers, tol: tol, exact: opt.Exact}, nil
 }
 
 // DiffuseSeen returns what a ship with the given boost sees of sky in the
@@ -411,4 +439,69 @@ func (d *diffuseSampler) pixel(i, j int, sc *diffuseScratch, w []float64) (X, Y,
 		}
 	}
 	return X, Y, Z, s, nil
+}
+
+// addDiffuseMean adds to dst (a buffer of f's size) the weighted mean of
+// the unresolved layer over instants: at instant k (observer and
+// projection at[k]) the layer on f's photometric scale times w[k]. Every
+// instant has f's projection kind and size (so the same cells, cube faces
+// and fisheye circle). The instants share one adaptive grid: each node is
+// evaluated exactly at every instant and the weighted sum is what the
+// cells check and interpolate, so the pixels are filled once, and the
+// grid's bound (TestDiffuseGridBound) holds for the mean itself against
+// the exact per-pixel mean of the instants (TestDiffuseMeanGridBound). A
+// node is smooth only where it is smooth at every instant.
+func addDiffuseMean(f *Frame, sky UnresolvedSky, opt DiffuseOptions, at []Instant, w []float64, dst *Buffer) error {
+	if len(at) == 0 || len(at) != len(w) {
+		return fmt.Errorf("%w: %d instants, %d weights", ErrDiffuse, len(at), len(w))
+	}
+	ds := make([]*diffuseDraw, len(at))
+	for k, in := range at {
+		g := *f
+		g.Options.Observer, g.Options.Projection = in.Observer, in.Projection
+		g.Scale = f.Scale * w[k]
+		o := opt
+		o.Into = dst
+		d, err := prepareDiffuse(&g, sky, o)
+		if err != nil {
+			return err
+		}
+		if d.p.Kind != ds0Kind(ds, d) || d.p.Width != f.W || d.p.Height != f.H {
+			return fmt.Errorf("%w: instant %d is a %v %d×%d, the frame %d×%d", ErrDiffuse, k, d.p.Kind, d.p.Width, d.p.Height, f.W, f.H)
+		}
+		ds[k] = d
+	}
+	if len(ds) == 1 {
+		return ds[0].draw(ds[0].newEval)
+	}
+	return ds[0].draw(func() pixelEval {
+		evs := make([]pixelEval, len(ds))
+		for k, d := range ds {
+			evs[k] = d.newEval()
+		}
+		return func(i, j int) ([3]float64, bool, error) {
+			var s [3]float64
+			smooth := true
+			for _, ev := range evs {
+				v, ok, err := ev(i, j)
+				if err != nil {
+					return [3]float64{}, false, err
+				}
+				s[0] += v[0]
+				s[1] += v[1]
+				s[2] += v[2]
+				smooth = smooth && ok
+			}
+			return s, smooth, nil
+		}
+	})
+}
+
+// ds0Kind returns the projection kind of the first prepared instant, or
+// d's own when there is none yet.
+func ds0Kind(ds []*diffuseDraw, d *diffuseDraw) camera.Kind {
+	if ds[0] != nil {
+		return ds[0].p.Kind
+	}
+	return d.p.Kind
 }

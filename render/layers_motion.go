@@ -51,12 +51,17 @@ func LayerTimes(path float64) (u, w []float64) {
 // starlight) to f's buffer as their weighted time mean over instants: for
 // each instant in at (the observer and camera at time LayerTimes' u), the
 // layer as seen then, on f's photometric scale times w[k] (every layer is
-// linear in the frame's Scale), summed into a black buffer, which is then
-// added to f's — layer by layer, in Names order, as AddLinearMotionKept
-// does, so both leave the same frame. The additions are in a fixed order,
-// so the result does not depend on the worker count. Every instant's
-// projection must have f's kind and size; the weights must be finite and
-// positive. It needs one more buffer of f's size.
+// linear in the frame's Scale) — layer by layer, in Names order, as
+// AddLinearMotionKept does, so both leave the same frame. The CMB is
+// summed over the instants into a black buffer, which is then added to
+// f's (it needs one more buffer of f's size). The unresolved starlight is
+// drawn once on one adaptive grid for all instants (each node evaluated
+// exactly at every instant, the weighted mean checked and interpolated:
+// see AddDiffuse), which costs the instants' node evaluations but fills
+// the pixels once, and holds the grid's bound for the mean itself
+// (TestDiffuseMeanGridBound). The additions are in a fixed order, so the
+// result does not depend on the worker count. Every instant's projection
+// must have f's kind and size; the weights must be finite and positive.
 func (l Layers) AddLinearMotion(f *Frame, at []Instant, w []float64) error {
 	_, err := l.addMotion(f, at, w, false)
 	return err
@@ -88,27 +93,15 @@ func (l Layers) addMotion(f *Frame, at []Instant, w []float64, keep bool) ([]Con
 		out = append(out, Contribution{Name: LayerStars, Pix: slices.Clone(f.Pix)})
 	}
 	var scratch []float32
-	for _, one := range []struct {
-		name string
-		l    Layers
-	}{
-		{LayerCMB, Layers{CMB: l.CMB, CMBOptions: l.CMBOptions}},
-		{LayerUnresolved, Layers{Unresolved: l.Unresolved, DiffuseOptions: l.DiffuseOptions}},
-	} {
-		if !one.l.CMB && one.l.Unresolved == nil {
-			continue
-		}
-		if keep || scratch == nil {
-			scratch = make([]float32, len(f.Pix))
-		} else {
-			clear(scratch)
-		}
+	if l.CMB {
+		scratch = make([]float32, len(f.Pix))
+		cmb := Layers{CMB: true, CMBOptions: l.CMBOptions}
 		for k, in := range at {
 			g := *f
 			g.Buffer = Buffer{W: f.W, H: f.H, Pix: scratch}
 			g.Options.Observer, g.Options.Projection = in.Observer, in.Projection
 			g.Scale = f.Scale * w[k]
-			if err := one.l.AddLinear(&g); err != nil {
+			if err := cmb.AddLinear(&g); err != nil {
 				return nil, err
 			}
 		}
@@ -116,7 +109,26 @@ func (l Layers) addMotion(f *Frame, at []Instant, w []float64, keep bool) ([]Con
 			return nil, err
 		}
 		if keep {
-			out = append(out, Contribution{Name: one.name, Pix: scratch})
+			out = append(out, Contribution{Name: LayerCMB, Pix: scratch})
+		}
+	}
+	if l.Unresolved != nil {
+		// One grid for the mean of the instants (addDiffuseMean). Without
+		// a kept layer it goes straight into the frame: 0 + v is exact,
+		// so that is the frame the kept path leaves (its own buffer, then
+		// Add).
+		dst := &f.Buffer
+		if keep {
+			dst = &Buffer{W: f.W, H: f.H, Pix: make([]float32, len(f.Pix))}
+		}
+		if err := addDiffuseMean(f, l.Unresolved, l.DiffuseOptions, at, w, dst); err != nil {
+			return nil, err
+		}
+		if keep {
+			if err := f.Buffer.Add(dst); err != nil {
+				return nil, err
+			}
+			out = append(out, Contribution{Name: LayerUnresolved, Pix: dst.Pix})
 		}
 	}
 	return out, nil

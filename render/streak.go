@@ -169,12 +169,31 @@ func StreakSamples(ax, ay, bx, by, fwhm float64) int {
 // deposits into a pixel are summed in float64 first, then added to the
 // pixel in float32).
 func (p *Prepared) RenderMotion(opt Options, knots []Instant) (*Frame, error) {
+	return p.renderMotion(nil, opt, knots)
+}
+
+// RenderMotionInto is RenderMotion drawing into dst, which it overwrites:
+// dst's buffers are cleared and reused when they fit, as RenderInto
+// reuses them (a flight drawing its blurred frames into one Frame touches
+// no new frame memory after the first). The frame is bit-identical to
+// RenderMotion's. On error dst's pixels are unspecified.
+func (p *Prepared) RenderMotionInto(dst *Frame, opt Options, knots []Instant) error {
+	if dst == nil {
+		return errors.New("render: RenderMotionInto: nil Frame")
+	}
+	_, err := p.renderMotion(dst, opt, knots)
+	return err
+}
+
+// renderMotion is RenderMotion into dst, or into a new frame when dst is
+// nil.
+func (p *Prepared) renderMotion(dst *Frame, opt Options, knots []Instant) (*Frame, error) {
 	switch k := len(knots); {
 	case k == 0:
-		return p.Render(opt)
+		return p.render(dst, opt)
 	case k == 1:
 		opt.Observer, opt.Projection = knots[0].Observer, knots[0].Projection
-		return p.Render(opt)
+		return p.render(dst, opt)
 	case k%2 == 0 || k > MaxKnots:
 		return nil, fmt.Errorf("%w: %d knots, want an odd number up to %d", ErrMotion, k, MaxKnots)
 	}
@@ -198,11 +217,11 @@ func (p *Prepared) RenderMotion(opt Options, knots []Instant) (*Frame, error) {
 		}
 		same[k] = knots[k].Observer == opt.Observer
 	}
-	buf, err := NewBuffer(opt.Projection.Width, opt.Projection.Height, opt.Doppler)
+	f, sc, err := startFrame(dst, opt, &psf, workers)
 	if err != nil {
 		return nil, err
 	}
-	f := &Frame{Buffer: *buf, Options: opt, Scale: ExposureScale(opt.Exposure)}
+	f.release(sc) // the streaks keep their own working memory
 	n := p.Stars.Len()
 	f.Stats.Total = n
 	segs := (len(knots) - 1) / 2

@@ -457,3 +457,51 @@ func BenchmarkRenderMotion(b *testing.B) {
 		}
 	}
 }
+
+// TestRenderMotionIntoMatchesRenderMotion: one Frame drawn into again and
+// again by RenderMotionInto — blurred pans of several projections, with
+// and without the Doppler channel, a size change and back, and a frame
+// with one knot (drawn as Render) — holds each time the bits
+// RenderMotion gives, with the buffer reused whenever it fits [cp:
+// determinism of IEEE 754 arithmetic in fixed order].
+func TestRenderMotionIntoMatchesRenderMotion(t *testing.T) {
+	stars := randomStars(20_000, -1, 9, 29)
+	p, err := Prepare(stars)
+	if err != nil {
+		t.Fatal(err)
+	}
+	obs := observer(t, r3.Unit(r3.Vec{X: 1, Y: 0.3, Z: 0.2}), 0.6)
+	var dst Frame
+	var pix0 *float32
+	for i, c := range []struct {
+		kind    camera.Kind
+		w, h    int
+		doppler bool
+		knots   int
+	}{
+		{camera.Pinhole, 320, 180, false, 3}, {camera.Pinhole, 320, 180, true, 5}, {camera.Fisheye, 300, 300, false, 3},
+		{camera.Pinhole, 320, 180, false, 1}, {camera.Equirect, 400, 200, false, 3}, {camera.Equirect, 400, 200, false, 3},
+	} {
+		knots := panKnots(t, c.kind, c.w, c.h, 60, 2, max(3, c.knots), obs)
+		if c.knots == 1 {
+			knots = knots[1:2]
+		}
+		opt := Options{Exposure: 3, Doppler: c.doppler, Workers: 1 + i%2}
+		want, err := p.RenderMotion(opt, knots)
+		if err != nil {
+			t.Fatal(err)
+		}
+		reuse := len(dst.Pix) == 3*c.w*c.h && (dst.Doppler != nil) == c.doppler
+		if err := p.RenderMotionInto(&dst, opt, knots); err != nil {
+			t.Fatal(err)
+		}
+		sameFrame(t, &dst, want)
+		if reuse != (pix0 == &dst.Pix[0]) {
+			t.Errorf("case %d: buffer reused %v, want %v", i, pix0 == &dst.Pix[0], reuse)
+		}
+		pix0 = &dst.Pix[0]
+	}
+	if err := p.RenderMotionInto(nil, Options{}, nil); err == nil {
+		t.Error("RenderMotionInto(nil): no error")
+	}
+}
