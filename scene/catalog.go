@@ -11,6 +11,8 @@ import (
 	"github.com/skyframe/skyframe/render"
 )
 
+// ReadOptions builds catalogue read options from --catalog-format and
+// --column values, naming the flag in an error.
 func ReadOptions(format string, columns []string) (catalog.ReadOptions, error) {
 	var opt catalog.ReadOptions
 	if format != "" {

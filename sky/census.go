@@ -50,3 +50,42 @@ func CensusSkyDepth(need []float64) float64 {
 // CensusMaxDepth caps the built-in sky of a census: the whole sky to
 // V = 13 is about 5·10⁶ stars, enough for V′ ≤ 6.5 at 0.99 c.
 const CensusMaxDepth = 13.0
+
+// SpeedError is Census's error for a speed that gives no boost along the
+// heading; its message is the boost's.
+type SpeedError struct{ Err error }
+
+func (e *SpeedError) Error() string { return e.Err.Error() }
+func (e *SpeedError) Unwrap() error { return e.Err }
+
+// Census takes the census of stars (analysis.Census) at the speeds sp with
+// each row's needed depth (CensusNeeds) and the catalogue's depth set, so
+// that CensusTable.Incomplete tells the speeds the catalogue cannot serve.
+// The built-in sky (builtIn) is drawn first as deep as the fastest speed
+// needs (CensusSkyDepth). It returns the table, the depth each speed needs
+// and the catalogue's depth (V; NaN when unknown).
+func Census(stars *catalog.Stars, builtIn bool, sp []analysis.Speed, o analysis.CensusOptions) (*analysis.CensusTable, []float64, float64, error) {
+	need, err := CensusNeeds(stars, sp, o.Heading, o.LimitMag, o.Beaming, builtIn)
+	if err != nil {
+		return nil, nil, 0, &SpeedError{err}
+	}
+	depthV := catalog.EstimateDepth(stars).V
+	if builtIn {
+		// The built-in sky is drawn as deep as the fastest speed needs.
+		depthV = CensusSkyDepth(need)
+		if depthV > catalog.DefaultSynthMagLimit {
+			stars = catalog.Synthetic(catalog.SynthOptions{MagLimit: depthV})
+		}
+	}
+	tab, err := analysis.Census(stars, sp, o)
+	if err != nil {
+		return nil, nil, 0, err
+	}
+	if !math.IsNaN(depthV) {
+		tab.DepthV = depthV
+	}
+	for i := range tab.Rows {
+		tab.Rows[i].NeededV = need[i]
+	}
+	return tab, need, depthV, nil
+}

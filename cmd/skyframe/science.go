@@ -14,7 +14,6 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"github.com/skyframe/skyframe/analysis"
-	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/scene"
@@ -341,33 +340,18 @@ func runCensus(e *env, args []string) error {
 		return err
 	}
 	builtIn := p.Catalog == ""
-	need, err := sky.CensusNeeds(stars, sp, heading, *limit, beam, builtIn)
-	if err != nil {
-		return usageError{err}
-	}
-	depthV := catalog.EstimateDepth(stars).V
-	if builtIn {
-		// The built-in sky is drawn as deep as the fastest speed needs.
-		depthV = sky.CensusSkyDepth(need)
-		if depthV > catalog.DefaultSynthMagLimit {
-			stars = catalog.Synthetic(catalog.SynthOptions{MagLimit: depthV})
-		}
-	}
-	tab, err := analysis.Census(stars, sp, analysis.CensusOptions{
+	tab, need, depthV, err := sky.Census(stars, builtIn, sp, analysis.CensusOptions{
 		Heading: heading, Position: pos, LimitMag: *limit, Beaming: beam,
 	})
+	var speedErr *sky.SpeedError
 	if err != nil {
-		if errors.Is(err, analysis.ErrNoStars) || errors.Is(err, analysis.ErrSpeed) || errors.Is(err, analysis.ErrLimit) || errors.Is(err, analysis.ErrHeading) {
+		if errors.Is(err, analysis.ErrNoStars) || errors.Is(err, analysis.ErrSpeed) || errors.Is(err, analysis.ErrLimit) || errors.Is(err, analysis.ErrHeading) || errors.As(err, &speedErr) {
 			return usageError{err}
 		}
 		return err
 	}
-	if !math.IsNaN(depthV) {
-		tab.DepthV = depthV
-	}
 	var incomplete []string
 	for i := range tab.Rows {
-		tab.Rows[i].NeededV = need[i]
 		if tab.Incomplete(i) {
 			incomplete = append(incomplete, fmtBeta(tab.Rows[i].Beta))
 		}
