@@ -91,7 +91,12 @@
 // is split into chunks (the rule: a pixel's value is the float32 sum of
 // its deposits in catalogue order; tiles only decide which worker adds
 // them, never their order). A record whose window crosses a tile edge is
-// binned into each tile it lights and adds only that tile's pixels. For a pixel
+// binned into each tile it lights and adds only that tile's pixels. Hence
+// nothing that only regroups the work changes a bit: the number of passes
+// Render makes over an in-memory catalogue (RenderRows), a stream's chunk
+// lengths, a shard or resumed flight, a --memory budget, a reused frame
+// (RenderInto) or the unrolled 5×5 splat (TestRenderStreamMatchesRender,
+// TestRenderIntoMatchesRender, TestDeterministicAcrossWorkers). For a pixel
 // lit by k stars the rounding error of the sum is at most about k·6·10⁻⁸
 // of its value [cp: float32 has a 24-bit significand]. Library code never reads the
 // clock, never uses global randomness and never sets GOMAXPROCS.

@@ -123,12 +123,14 @@ var scaleSizes = []int{100_000, 1_000_000, 10_000_000}
 // benchScale renders n stars with render (in memory or streamed) and
 // reports throughput and memory per star.
 func benchScale(b *testing.B, kind camera.Kind, w, h int, stream bool) {
-	benchScaleInto(b, kind, w, h, stream, false)
+	benchScaleInto(b, kind, w, h, stream, false, false)
 }
 
 // benchScaleInto is benchScale, with reuse drawing every frame into one
-// Frame (RenderInto, RenderStreamInto) instead of a new one.
-func benchScaleInto(b *testing.B, kind camera.Kind, w, h int, stream, reuse bool) {
+// Frame (RenderInto, RenderStreamInto) instead of a new one; with
+// freshBuffer that Frame gets a new pixel buffer each time and keeps
+// only its working memory.
+func benchScaleInto(b *testing.B, kind camera.Kind, w, h int, stream, reuse, freshBuffer bool) {
 	for _, n := range scaleSizes {
 		b.Run(fmt.Sprintf("n=%.0e", float64(n)), func(b *testing.B) {
 			if n > 1_000_000 && testing.Short() {
@@ -145,6 +147,9 @@ func benchScaleInto(b *testing.B, kind camera.Kind, w, h int, stream, reuse bool
 			if reuse {
 				dst := new(Frame)
 				run = func() (*Frame, error) {
+					if freshBuffer {
+						dst.Buffer = Buffer{}
+					}
 					if stream {
 						return dst, RenderStreamInto(dst, Chunks(stars, rows), opt)
 					}
@@ -175,7 +180,7 @@ func benchScaleInto(b *testing.B, kind camera.Kind, w, h int, stream, reuse bool
 			b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mstars/s")
 			b.ReportMetric(cpu/float64(b.N), "CPU-s/op")
 			alloc := frame // allocated per frame unless reused
-			if reuse {
+			if reuse && !freshBuffer {
 				alloc = 0
 			}
 			b.ReportMetric((float64(peak)+37*float64(n)-alloc)/float64(n), "peak-B/star")
@@ -192,7 +197,14 @@ func BenchmarkScaleFisheye4096(b *testing.B) { benchScale(b, camera.Fisheye, 409
 // every frame into the same Frame (RenderInto): the buffer is cleared,
 // not allocated, and the working memory kept.
 func BenchmarkScaleFisheye4096Reuse(b *testing.B) {
-	benchScaleInto(b, camera.Fisheye, 4096, 4096, false, true)
+	benchScaleInto(b, camera.Fisheye, 4096, 4096, false, true, false)
+}
+
+// BenchmarkScaleFisheye4096FreshBuffer is BenchmarkScaleFisheye4096Reuse
+// with a new pixel buffer for every frame (its first touch included) and
+// the working memory kept: what the C reference's "fresh" mode does.
+func BenchmarkScaleFisheye4096FreshBuffer(b *testing.B) {
+	benchScaleInto(b, camera.Fisheye, 4096, 4096, false, true, true)
 }
 
 // BenchmarkScalePinhole1080 is the same for a 1920×1080 pinhole (60° wide).

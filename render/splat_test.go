@@ -7,6 +7,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
+
+	"github.com/skyframe/skyframe/camera"
 )
 
 // A Gaussian's FWHM is 2√(2 ln 2)·σ ≈ 2.35482σ [pub: any statistics text].
@@ -226,5 +228,48 @@ func TestWeightsVsErf(t *testing.T) {
 			t.Errorf("FWHM %v: worst weight error %.2g, want ≤ 8e-7", fwhm, worst)
 		}
 		t.Logf("FWHM %v: worst weight error %.2g", fwhm, worst)
+	}
+}
+
+// TestSplat5MatchesSplat: the unrolled 5×5 splat of the default PSF adds
+// the same bits as the general splat for records anywhere in a tile, and
+// declines a window that crosses the tile's edge [cp: the same IEEE 754
+// operations in the same order give the same result].
+func TestSplat5MatchesSplat(t *testing.T) {
+	psf, err := NewPSF(0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if psf.k != 2 || psf.edges == nil {
+		t.Fatalf("default PSF: k %d, table %v; splat5 would not run", psf.k, psf.edges != nil)
+	}
+	g := newGrid(512, 512, psf.Radius(), camera.Fisheye)
+	win := tileWindow{x0: 256, y0: 128, x1: 384, y1: 256} // one tile of the frame
+	a, _ := NewBuffer(512, 512, false)
+	b, _ := NewBuffer(512, 512, false)
+	var wx, wy [maxTaps]float64
+	rng := rand.New(rand.NewPCG(3, 4))
+	inside, outside := 0, 0
+	for i := 0; i < 20000; i++ {
+		r := splatRec{x: 250 + 140*rng.Float64(), y: 122 + 140*rng.Float64(),
+			rgb: [3]float32{rng.Float32(), rng.Float32(), 3 * rng.Float32()}, d: 1}
+		if i%7 == 0 { // exact pixel edges and centres
+			r.x, r.y = math.Floor(r.x), math.Floor(r.y)+0.5
+		}
+		if splat5(a, win, &r, psf.edges) {
+			inside++
+		} else {
+			outside++
+			g.splat(a, win, &r, &psf, &wx, &wy)
+		}
+		g.splat(b, win, &r, &psf, &wx, &wy)
+	}
+	if inside < 1000 || outside < 1000 {
+		t.Fatalf("inside %d, outside %d: both paths must be exercised", inside, outside)
+	}
+	for i := range a.Pix {
+		if math.Float32bits(a.Pix[i]) != math.Float32bits(b.Pix[i]) {
+			t.Fatalf("Pix[%d]: splat5 %v, splat %v", i, a.Pix[i], b.Pix[i])
+		}
 	}
 }
