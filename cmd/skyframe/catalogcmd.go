@@ -271,8 +271,8 @@ func catalogFetch(e *env, args []string) error {
 	fs := catalogFlagSet(e, "fetch", "Usage: skyframe catalog fetch [options] NAME\n\nNAME: "+sourceNames()+"\n\nOptions:\n")
 	url := fs.String("url", "", "download from this address instead of the CDS archive (a mirror)")
 	out := fs.StringP("output", "o", "", "file to write (default: the user cache directory)")
-	size := fs.Int64("size", 0, "expected length in bytes: required when the server marks the end of the file by closing the connection only")
-	sum := fs.String("sha256", "", "expected SHA-256 of the file (hex), e.g. as printed by an earlier fetch")
+	size := fs.Int64("size", 0, "expected length in bytes of the file as served (pins another edition: replaces the published sizes and digests)")
+	sum := fs.String("sha256", "", "expected SHA-256 of the file as served (hex), e.g. as printed by an earlier fetch (pins another edition: replaces the published sizes and digests; the published record count and length still apply)")
 	if err := fs.Parse(args); err != nil {
 		if err == pflag.ErrHelp {
 			return errHelp
@@ -291,10 +291,6 @@ func catalogFetch(e *env, args []string) error {
 	src, ok := catalog.KnownSources[fs.Arg(0)]
 	if !ok {
 		return usagef("catalog fetch: unknown catalogue %q (want %s)", fs.Arg(0), sourceNames())
-	}
-	u := src.URL
-	if *url != "" {
-		u = *url
 	}
 	dst := *out
 	if dst == "" {
@@ -316,7 +312,7 @@ func catalogFetch(e *env, args []string) error {
 		return usagef("--size %d: want a length in bytes", *size)
 	}
 	var digest string
-	err := catalog.FetchWith(e.ctx, client, u, dst, progress.update, catalog.FetchOptions{Format: src.Format, Size: *size, SHA256: *sum, Digest: &digest})
+	err := catalog.FetchSource(e.ctx, client, src, *url, dst, progress.update, catalog.FetchOptions{Size: *size, SHA256: *sum, Digest: &digest})
 	progress.finish()
 	if err != nil {
 		return err

@@ -2,7 +2,9 @@ package main
 
 import (
 	"bytes"
+	"crypto/sha256"
 	"encoding/binary"
+	"encoding/hex"
 	"fmt"
 	"hash/crc32"
 	"math"
@@ -224,14 +226,14 @@ func TestSmallInputsAreBounded(t *testing.T) {
 
 // TestCatalogFetchRefusesUnverifiable (item 10): "catalog fetch" from a
 // server that sends a body without Content-Length or chunking (its end is
-// the connection closing, RFC 9112 §6.3) refuses it with status 1 and a
-// message saying why, leaving no file; --size makes the same body
-// verifiable, and the SHA-256 is printed for pinning.
+// the connection closing, RFC 9112 §6.3) keeps it only when the published
+// description proves it whole: a body cut short is refused with status 2
+// and a message saying why, leaving no file; the whole file (V/50's
+// layout, pinned with --sha256 as its bytes are not the published ones) is
+// kept, and its SHA-256 is printed for pinning.
 func TestCatalogFetchRefusesUnverifiable(t *testing.T) {
-	raw, err := os.ReadFile(filepath.Join(hostileFixtures, "bsc5_good.dat"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	_, gz := v50Like(t)
+	body := gz
 	srv := httptest.NewServer(http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		c, bw, err := w.(http.Hijacker).Hijack()
 		if err != nil {
@@ -239,22 +241,26 @@ func TestCatalogFetchRefusesUnverifiable(t *testing.T) {
 		}
 		defer c.Close()
 		bw.WriteString("HTTP/1.1 200 OK\r\nConnection: close\r\n\r\n")
-		bw.Write(raw)
+		bw.Write(body)
 		bw.Flush()
 	}))
 	defer srv.Close()
 	dir := t.TempDir()
 	dst := filepath.Join(dir, "bsc5.dat")
-	code, out, errs := runIn(t, "catalog", "fetch", "bsc5", "--url", srv.URL+"/catalog", "-o", dst)
-	if code != exitFailure || !strings.Contains(errs, "cannot tell whether the download is complete") || out != "" {
-		t.Errorf("status %d, stdout %q, stderr %q", code, out, errs)
+	sum := sha256.Sum256(gz)
+	pin := hex.EncodeToString(sum[:])
+	body = gz[:len(gz)*2/3]
+	code, out, errs := runIn(t, "catalog", "fetch", "bsc5", "--url", srv.URL+"/catalog", "-o", dst, "--size", strconv.Itoa(len(gz)))
+	if code != exitUsage || !strings.Contains(errs, "download failed verification") || out != "" {
+		t.Errorf("cut short: status %d, stdout %q, stderr %q", code, out, errs)
 	}
 	if ents, _ := os.ReadDir(dir); len(ents) != 0 {
 		t.Errorf("left behind: %v", ents)
 	}
-	code, out, errs = runIn(t, "catalog", "fetch", "bsc5", "--url", srv.URL+"/catalog", "-o", dst, "--size", strconv.Itoa(len(raw)))
-	if code != exitOK || strings.TrimSpace(out) != dst || !strings.Contains(errs, "sha256 ") {
-		t.Errorf("with --size: status %d, stdout %q, stderr %q", code, out, errs)
+	body = gz
+	code, out, errs = runIn(t, "catalog", "fetch", "bsc5", "--url", srv.URL+"/catalog", "-o", dst, "--sha256", pin)
+	if code != exitOK || strings.TrimSpace(out) != dst || !strings.Contains(errs, "sha256 "+pin) {
+		t.Errorf("whole: status %d, stdout %q, stderr %q", code, out, errs)
 	}
 }
 

@@ -22,5 +22,6 @@ func isInputError(err error) bool {
 	var je *flightjob.InputError
 	var se *scene.InputError
 	return errors.As(err, &pe) || errors.As(err, &ple) || errors.As(err, &le) || errors.As(err, &je) || errors.As(err, &se) ||
-		errors.Is(err, render.ErrNotRegular) || errors.Is(err, overlay.ErrHUDFit) || errors.Is(err, render.ErrInsideStar)
+		errors.Is(err, render.ErrNotRegular) || errors.Is(err, overlay.ErrHUDFit) || errors.Is(err, render.ErrInsideStar) ||
+		errors.Is(err, catalog.ErrVerify)
 }
