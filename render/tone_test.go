@@ -155,3 +155,41 @@ func BenchmarkToneNRGBA(b *testing.B) {
 	}
 	b.ReportMetric(b.Elapsed().Seconds()*1e9/float64(b.N)/float64(buf.W*buf.H), "ns/px")
 }
+
+// TestCode8: the table lookup gives the 8-bit code the sRGB encoding
+// gives, uint8(encode(v)·255 + ½), for every threshold and its float64
+// neighbours, every bucket edge, and a million random values of [0, 1]
+// spread evenly in v and in log v [cp: the same function, exactly].
+func TestCode8(t *testing.T) {
+	check := func(v float64) {
+		if v < 0 || v > 1 {
+			return
+		}
+		if have, want := code8(v), code8Of(v); have != want {
+			t.Fatalf("code8(%v) = %d, want %d", v, have, want)
+		}
+	}
+	for k := 1; k < 256; k++ {
+		v := code8Min[k]
+		check(v)
+		check(math.Nextafter(v, 0))
+		check(math.Nextafter(v, 2))
+		if k > 1 && !(code8Min[k] > code8Min[k-1]) {
+			t.Errorf("thresholds %d, %d not increasing: %v, %v", k-1, k, code8Min[k-1], code8Min[k])
+		}
+	}
+	for i := 0; i <= code8Buckets; i++ {
+		v := float64(i) / code8Buckets
+		check(v)
+		check(math.Nextafter(v, 0))
+		check(math.Nextafter(v, 2))
+	}
+	rng := rand.New(rand.NewPCG(8, 255))
+	for range 500_000 {
+		check(rng.Float64())
+		check(math.Exp(-30 * rng.Float64()))
+	}
+	if code8(1) != 255 || code8(0) != 0 {
+		t.Errorf("code8(1) = %d, code8(0) = %d", code8(1), code8(0))
+	}
+}
