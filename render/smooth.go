@@ -163,7 +163,7 @@ func (c *smoothCellState) cell(x0, x1, y0, y1 int, lastX, lastY bool) error {
 			return err
 		}
 	}
-	return c.refine(x0, x1, y0, y1, lastX, lastY, v)
+	return c.refine(x0, x1, y0, y1, lastX, lastY, v, nil)
 }
 
 // nodeVal is an exact value at a node and whether it is smooth.
@@ -175,7 +175,10 @@ type nodeVal struct {
 // refine draws a cell whose corner values are v, in the order (x0,y0),
 // (x1,y0), (x0,y1), (x1,y1): by interpolation when every corner and check
 // is smooth and the checks pass, else split into four, else exactly.
-func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nodeVal) error {
+// centre, when not nil, is the value at the cell's centre check, known
+// from the parent's checks (a quarter's centre is its parent's quarter
+// check).
+func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nodeVal, centre *nodeVal) error {
 	if x1-x0 < 2 || y1-y0 < 2 {
 		return c.exact(x0, x1, y0, y1, lastX, lastY)
 	}
@@ -196,9 +199,13 @@ func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nod
 	pts := [9][2]int{{xm, ym}, {xm, y0}, {xm, y1}, {x0, ym}, {x1, ym}, {qx0, qy0}, {qx1, qy0}, {qx0, qy1}, {qx1, qy1}}
 	var e [9]nodeVal
 	for q, p := range pts {
-		var err error
-		if e[q].v, e[q].ok, err = c.ev(p[0], p[1]); err != nil {
-			return err
+		if q == 0 && centre != nil {
+			e[0] = *centre
+		} else {
+			var err error
+			if e[q].v, e[q].ok, err = c.ev(p[0], p[1]); err != nil {
+				return err
+			}
 		}
 		if good {
 			tx := float64(p[0]-x0) / float64(x1-x0)
@@ -214,16 +221,18 @@ func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nod
 		return c.exact(x0, x1, y0, y1, lastX, lastY)
 	}
 	cc, t, b, l, r := e[0], e[1], e[2], e[3], e[4]
-	if err := c.refine(x0, xm, y0, ym, false, false, [4]nodeVal{v[0], t, l, cc}); err != nil {
+	// The quarters' centres ((x0+xm)/2, (y0+ym)/2) … are the checks
+	// e[5:9].
+	if err := c.refine(x0, xm, y0, ym, false, false, [4]nodeVal{v[0], t, l, cc}, &e[5]); err != nil {
 		return err
 	}
-	if err := c.refine(xm, x1, y0, ym, lastX, false, [4]nodeVal{t, v[1], cc, r}); err != nil {
+	if err := c.refine(xm, x1, y0, ym, lastX, false, [4]nodeVal{t, v[1], cc, r}, &e[6]); err != nil {
 		return err
 	}
-	if err := c.refine(x0, xm, ym, y1, false, lastY, [4]nodeVal{l, cc, v[2], b}); err != nil {
+	if err := c.refine(x0, xm, ym, y1, false, lastY, [4]nodeVal{l, cc, v[2], b}, &e[7]); err != nil {
 		return err
 	}
-	return c.refine(xm, x1, ym, y1, lastX, lastY, [4]nodeVal{cc, r, b, v[3]})
+	return c.refine(xm, x1, ym, y1, lastX, lastY, [4]nodeVal{cc, r, b, v[3]}, &e[8])
 }
 
 // within reports whether the interpolated value a is within tol of the
