@@ -181,9 +181,10 @@ type splatRec struct {
 
 // Render draws stars as seen by opt.Observer through opt.Projection.
 //
-// A catalogue longer than RenderRows(opt, DefaultMemoryBudget) is drawn
-// by RenderStream in equal chunks of at most that length, which bounds
-// the working memory (see RenderRows) and gives a bit-identical frame.
+// A catalogue longer than ChunkRows(opt, DefaultMemoryBudget) is drawn
+// by RenderStream in equal chunks of at most that length (RenderRows for
+// RenderInto), which bounds the working memory and gives a bit-identical
+// frame.
 func Render(stars *catalog.Stars, opt Options) (*Frame, error) {
 	return renderInto(nil, stars, opt)
 }
@@ -206,7 +207,17 @@ func RenderInto(dst *Frame, stars *catalog.Stars, opt Options) error {
 }
 
 func renderInto(dst *Frame, stars *catalog.Stars, opt Options) (*Frame, error) {
-	if rows := RenderRows(opt, DefaultMemoryBudget); stars != nil && stars.Len() > rows {
+	// A frame that keeps its working memory (RenderInto) draws in as few
+	// passes as the budget allows; a one-off Render in passes of
+	// ChunkRows, whose smaller working memory is touched for the first
+	// time once and then reused pass after pass (first touch of a 4 KiB
+	// page costs about 12 µs here: 0.55 CPU-s for the 190 MB of 2²¹-row
+	// passes, 2 CPU-s for the 680 MB of one 10⁷-star pass).
+	rows := ChunkRows(opt, DefaultMemoryBudget)
+	if dst != nil {
+		rows = RenderRows(opt, DefaultMemoryBudget)
+	}
+	if stars != nil && stars.Len() > rows {
 		n := stars.Len()
 		passes := (n + rows - 1) / rows
 		return renderStream(dst, Chunks(stars, (n+passes-1)/passes), opt)

@@ -63,8 +63,8 @@ func ChunkRows(opt Options, memoryBudget int64) int {
 	return int(min(max(rows, streamMinChunkRows), streamMaxChunkRows))
 }
 
-// RenderRows returns how many stars of a catalogue held in memory Render
-// draws in one pass for the frame of opt within memoryBudget bytes (0
+// RenderRows returns how many stars of a catalogue held in memory
+// RenderInto draws in one pass for the frame of opt within memoryBudget bytes (0
 // means DefaultMemoryBudget): the budget left after the frame buffers
 // divided by RenderBytesPerRow, at least 65 536. The catalogue's own
 // columns are not counted: they are in memory already. Each pass adds
