@@ -37,8 +37,9 @@ var srgbToLinear = func() (t [256]float64) {
 // 0.0722 B, IEC 61966-2-1; 0 black, 1 white) and that of each window of the
 // regional flash check: window (a, b), a the column, is the image's
 // columns [a·W/6, (a+2)·W/6) and rows [b·H/6, (b+2)·H/6), at index
-// b·Regions + a.
-func MeanLuminance(img *image.NRGBA) Lum {
+// b·Regions + a. It runs on workers goroutines (0: GOMAXPROCS); the
+// result does not depend on their number.
+func MeanLuminance(img *image.NRGBA, workers int) Lum {
 	b := img.Bounds()
 	w, h := b.Dx(), b.Dy()
 	if w*h == 0 {
@@ -46,7 +47,7 @@ func MeanLuminance(img *image.NRGBA) Lum {
 	}
 	// Sums over a 6 × 6 grid of cells; a window is 2 × 2 cells. Each row's
 	// sum over each cell's columns is computed in parallel (bands of rows
-	// over GOMAXPROCS goroutines), then the row sums are added in row
+	// over the workers), then the row sums are added in row
 	// order: the result does not depend on the number of goroutines.
 	const cells = Regions + 1
 	var x0s, x1s [cells]int
@@ -58,7 +59,10 @@ func MeanLuminance(img *image.NRGBA) Lum {
 	bands := (h + band - 1) / band
 	var next atomic.Int64
 	var wg sync.WaitGroup
-	for range min(runtime.GOMAXPROCS(0), bands) {
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	for range min(workers, bands) {
 		wg.Go(func() {
 			for {
 				k := int(next.Add(1)) - 1

@@ -27,7 +27,7 @@ func TestMeanLuminanceRegions(t *testing.T) {
 			img.SetNRGBA(x, y, c)
 		}
 	}
-	l := MeanLuminance(img)
+	l := MeanLuminance(img, 0)
 	if len(l.Regions) != Regions*Regions {
 		t.Fatalf("%d regions", len(l.Regions))
 	}
@@ -104,7 +104,7 @@ func TestMeanLuminanceParallel(t *testing.T) {
 	var ref Lum
 	for k, procs := range []int{1, 2, 5} {
 		runtime.GOMAXPROCS(procs)
-		l := MeanLuminance(img)
+		l := MeanLuminance(img, 0)
 		if k == 0 {
 			ref = l
 			if math.Abs(l.Mean-plain) > 1e-12*plain {
@@ -114,6 +114,11 @@ func TestMeanLuminanceParallel(t *testing.T) {
 		}
 		if l.Mean != ref.Mean || !slices.Equal(l.Regions, ref.Regions) {
 			t.Errorf("GOMAXPROCS %d: %v, with 1: %v", procs, l, ref)
+		}
+	}
+	for _, workers := range []int{1, 3, 8} { // --workers: the same result
+		if l := MeanLuminance(img, workers); l.Mean != ref.Mean || !slices.Equal(l.Regions, ref.Regions) {
+			t.Errorf("workers %d: %v, with 1 CPU: %v", workers, l, ref)
 		}
 	}
 }

@@ -327,7 +327,7 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 	// more than tone mapping at 4096².
 	img8 := f.ToNRGBAInto(getNRGBA(), fr.Tone)
 	defer nrgbaPool.Put(img8)
-	lum := MeanLuminance(img8)
+	lum := MeanLuminance(img8, j.Workers)
 	var img draw.Image = img8
 	if fr.Depth == 16 {
 		img = spec.Image(f)

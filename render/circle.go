@@ -75,13 +75,14 @@ func maskRows(w, h int, cx, cy, r float64, zero func(j, i0, i1 int), apply func(
 // ToNRGBA is Buffer.ToNRGBA with, for a Fisheye frame, everything outside
 // the image circle black (the domemaster convention: nothing is projected
 // there) and the rim anti-aliased (CircleCoverage). The linear buffer, and
-// so the FITS data, is not masked.
+// so the FITS data, is not masked. The tone map runs on the frame's
+// Options.Workers goroutines.
 func (f *Frame) ToNRGBA(m ToneMode) *image.NRGBA { return f.ToNRGBAInto(nil, m) }
 
 // ToNRGBAInto is ToNRGBA writing into dst when it fits (see
 // Buffer.ToNRGBAInto).
 func (f *Frame) ToNRGBAInto(dst *image.NRGBA, m ToneMode) *image.NRGBA {
-	img := f.Buffer.ToNRGBAInto(dst, m)
+	img := f.Buffer.toNRGBAInto(dst, m, f.Options.Workers)
 	if cx, cy, r, ok := f.Options.Projection.ImageCircle(); ok {
 		maskNRGBA(img, cx, cy, r)
 	}
@@ -109,7 +110,7 @@ func (f *Frame) ToNRGBA64(m ToneMode) *image.NRGBA64 { return f.ToNRGBA64Into(ni
 // ToNRGBA64Into is ToNRGBA64 writing into dst when it fits (see
 // Buffer.ToNRGBAInto).
 func (f *Frame) ToNRGBA64Into(dst *image.NRGBA64, m ToneMode) *image.NRGBA64 {
-	img := f.Buffer.ToNRGBA64Into(dst, m)
+	img := f.Buffer.toNRGBA64Into(dst, m, f.Options.Workers)
 	if cx, cy, r, ok := f.Options.Projection.ImageCircle(); ok {
 		maskRows(img.Rect.Dx(), img.Rect.Dy(), cx, cy, r, func(j, i0, i1 int) {
 			row := img.Pix[j*img.Stride : j*img.Stride+8*img.Rect.Dx()]

@@ -43,9 +43,9 @@ func TestAddLinearKept(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	ref.Splat(10.3, 7.7, [3]float64{1, 0.5, 0.25}, 1.2, &psf)
+	ref.splat(10.3, 7.7, [3]float64{1, 0.5, 0.25}, 1.2, &psf)
 	f := blankFrame(t, p, camera.Observer{Boost: b})
-	f.Splat(10.3, 7.7, [3]float64{1, 0.5, 0.25}, 1.2, &psf)
+	f.splat(10.3, 7.7, [3]float64{1, 0.5, 0.25}, 1.2, &psf)
 	stars := slices.Clone(f.Pix)
 	if err := l.AddLinear(ref); err != nil {
 		t.Fatal(err)

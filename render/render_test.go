@@ -130,6 +130,10 @@ func TestDeterministicAcrossWorkers(t *testing.T) {
 					t.Errorf("%v: brightest[%d] differs", c.kind, i)
 				}
 			}
+			// The tone map runs on the frame's Workers too.
+			if !bytes.Equal(a.ToNRGBA(ToneShoulder).Pix, b.ToNRGBA(ToneShoulder).Pix) || !bytes.Equal(a.ToNRGBA64(ToneShoulder).Pix, b.ToNRGBA64(ToneShoulder).Pix) {
+				t.Errorf("%v: tone-mapped images differ across Workers", c.kind)
+			}
 		}
 		if s := a.Stats; s.Drawn+s.Culled+s.OffFrame+s.Invalid != s.Total {
 			t.Errorf("%v: counts %+v do not add up", c.kind, s)

@@ -44,7 +44,7 @@ func TestSplatProperties(t *testing.T) {
 		x := float64(margin) + rapid.Float64Range(0, float64(w-2*margin)).Draw(rt, "x")
 		y := float64(margin) + rapid.Float64Range(0, float64(h-2*margin)).Draw(rt, "y")
 		in, _ := NewBuffer(w, h, true)
-		in.Splat(x, y, rgb, d1, &p)
+		in.splat(x, y, rgb, d1, &p)
 		got := sum3(in)
 		for c := range rgb {
 			if !scalar.EqualWithinAbsOrRel(got[c], rgb[c], 1e-12, 1e-4) {
@@ -57,7 +57,7 @@ func TestSplatProperties(t *testing.T) {
 		x2 := rapid.Float64Range(-span, float64(w)+span).Draw(rt, "x2")
 		y2 := rapid.Float64Range(-span, float64(h)+span).Draw(rt, "y2")
 		alone, _ := NewBuffer(w, h, false)
-		alone.Splat(x2, y2, rgb, d2, &p)
+		alone.splat(x2, y2, rgb, d2, &p)
 		a := sum3(alone)
 		for c := range rgb {
 			if math.IsNaN(a[c]) || a[c] < 0 || a[c] > rgb[c]*(1+1e-4) {
@@ -69,7 +69,7 @@ func TestSplatProperties(t *testing.T) {
 				rt.Fatalf("pixel value %d = %v", i, v)
 			}
 		}
-		in.Splat(x2, y2, rgb, d2, &p)
+		in.splat(x2, y2, rgb, d2, &p)
 		both := sum3(in)
 		for c := range rgb {
 			if !scalar.EqualWithinAbsOrRel(both[c], got[c]+a[c], 1e-9, 1e-5) {

@@ -87,7 +87,7 @@ func TestSplatConservesFlux(t *testing.T) {
 			b, _ := NewBuffer(80, 80, true)
 			x, y := 30+20*rng.Float64(), 30+20*rng.Float64()
 			f := [3]float64{1, 0.5, 2}
-			b.Splat(x, y, f, 1.7, &p)
+			b.splat(x, y, f, 1.7, &p)
 			r, g, bl := b.Sum()
 			for c, have := range []float64{r, g, bl} {
 				if !scalar.EqualWithinRel(have, f[c], 1e-4) {
@@ -108,7 +108,7 @@ func TestSplatCentroid(t *testing.T) {
 		for k := 0; k < 50; k++ {
 			b, _ := NewBuffer(64, 64, false)
 			x, y := 24+16*rng.Float64(), 24+16*rng.Float64()
-			b.Splat(x, y, [3]float64{1, 1, 1}, 1, &p)
+			b.splat(x, y, [3]float64{1, 1, 1}, 1, &p)
 			var sx, sy, s float64
 			for j := 0; j < b.H; j++ {
 				for i := 0; i < b.W; i++ {
@@ -130,13 +130,13 @@ func TestSplatCentroid(t *testing.T) {
 func TestSplatEdge(t *testing.T) {
 	p, _ := NewPSF(2)
 	b, _ := NewBuffer(40, 40, false)
-	b.Splat(0, 20, [3]float64{1, 1, 1}, 1, &p)
+	b.splat(0, 20, [3]float64{1, 1, 1}, 1, &p)
 	r, _, _ := b.Sum()
 	if !scalar.EqualWithinAbs(r, 0.5, 1e-6) {
 		t.Errorf("edge star: have %v, want 0.5", r)
 	}
-	b.Splat(math.NaN(), 3, [3]float64{1, 1, 1}, 1, &p)
-	b.Splat(-1e9, 3, [3]float64{1, 1, 1}, 1, &p)
+	b.splat(math.NaN(), 3, [3]float64{1, 1, 1}, 1, &p)
+	b.splat(-1e9, 3, [3]float64{1, 1, 1}, 1, &p)
 	if r2, _, _ := b.Sum(); r2 != r {
 		t.Errorf("NaN/far star changed the buffer: %v → %v", r, r2)
 	}
@@ -152,8 +152,8 @@ func TestSplatDopplerMean(t *testing.T) {
 		{1, 1, 3, 3, 2.5},
 	} {
 		b, _ := NewBuffer(16, 16, true)
-		b.Splat(8.5, 8.5, [3]float64{c.f1, c.f1, c.f1}, c.d1, &p)
-		b.Splat(8.5, 8.5, [3]float64{c.f2, c.f2, c.f2}, c.d2, &p)
+		b.splat(8.5, 8.5, [3]float64{c.f1, c.f1, c.f1}, c.d1, &p)
+		b.splat(8.5, 8.5, [3]float64{c.f2, c.f2, c.f2}, c.d2, &p)
 		if have := float64(b.Doppler[8*16+8]); !scalar.EqualWithinRel(have, c.want, 1e-6) {
 			t.Errorf("%+v: have %v, want %v", c, have, c.want)
 		}
@@ -166,7 +166,7 @@ func TestSplatDopplerMean(t *testing.T) {
 func TestSplatAllocs(t *testing.T) {
 	p, _ := NewPSF(3)
 	b, _ := NewBuffer(64, 64, true)
-	if n := testing.AllocsPerRun(100, func() { b.Splat(20.3, 30.7, [3]float64{1, 1, 1}, 1, &p) }); n != 0 {
+	if n := testing.AllocsPerRun(100, func() { b.splat(20.3, 30.7, [3]float64{1, 1, 1}, 1, &p) }); n != 0 {
 		t.Errorf("Splat allocates %v times per call, want 0", n)
 	}
 }
@@ -181,7 +181,7 @@ func BenchmarkSplat(b *testing.B) {
 	}
 	b.ReportAllocs()
 	for i := 0; b.Loop(); i++ {
-		buf.Splat(xs[i&1023], xs[(i+7)&1023], [3]float64{1, 1, 1}, 1, &p)
+		buf.splat(xs[i&1023], xs[(i+7)&1023], [3]float64{1, 1, 1}, 1, &p)
 	}
 }
 

@@ -198,11 +198,16 @@ func reusable(r image.Rectangle, stride, bpp, w, h int) bool {
 // frame (about 64 MB at 4096²; first-touch page faults cost about 12 µs
 // per 4 KiB page on these machines).
 func (b *Buffer) ToNRGBAInto(dst *image.NRGBA, m ToneMode) *image.NRGBA {
+	return b.toNRGBAInto(dst, m, 0)
+}
+
+// toNRGBAInto is ToNRGBAInto on workers goroutines (0: GOMAXPROCS).
+func (b *Buffer) toNRGBAInto(dst *image.NRGBA, m ToneMode, workers int) *image.NRGBA {
 	img := dst
 	if img == nil || !reusable(img.Rect, img.Stride, 4, b.W, b.H) {
 		img = image.NewNRGBA(image.Rect(0, 0, b.W, b.H))
 	}
-	b.rows(func(y int) {
+	b.rows(workers, func(y int) {
 		src := b.Pix[3*y*b.W : 3*(y+1)*b.W]
 		dst := img.Pix[y*img.Stride : y*img.Stride+4*b.W]
 		for x := 0; x < b.W; x++ {
@@ -227,11 +232,16 @@ func (b *Buffer) ToNRGBA64(m ToneMode) *image.NRGBA64 { return b.ToNRGBA64Into(n
 
 // ToNRGBA64Into is ToNRGBAInto with 16 bits per channel.
 func (b *Buffer) ToNRGBA64Into(dst *image.NRGBA64, m ToneMode) *image.NRGBA64 {
+	return b.toNRGBA64Into(dst, m, 0)
+}
+
+// toNRGBA64Into is ToNRGBA64Into on workers goroutines (0: GOMAXPROCS).
+func (b *Buffer) toNRGBA64Into(dst *image.NRGBA64, m ToneMode, workers int) *image.NRGBA64 {
 	img := dst
 	if img == nil || !reusable(img.Rect, img.Stride, 8, b.W, b.H) {
 		img = image.NewNRGBA64(image.Rect(0, 0, b.W, b.H))
 	}
-	b.rows(func(y int) {
+	b.rows(workers, func(y int) {
 		src := b.Pix[3*y*b.W : 3*(y+1)*b.W]
 		dst := img.Pix[y*img.Stride : y*img.Stride+8*b.W]
 		for x := 0; x < b.W; x++ {
@@ -255,10 +265,13 @@ func put16(p []byte, v float64) {
 	p[0], p[1] = byte(u>>8), byte(u)
 }
 
-// rows runs fn for every row on runtime.GOMAXPROCS(0) goroutines; each
-// pixel is computed independently, so the result does not depend on it.
-func (b *Buffer) rows(fn func(y int)) {
-	workers := runtime.GOMAXPROCS(0)
+// rows runs fn for every row on workers goroutines (0:
+// runtime.GOMAXPROCS(0)); each pixel is computed independently, so the
+// result does not depend on it.
+func (b *Buffer) rows(workers int, fn func(y int)) {
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
 	const band = 16
 	parallel(workers, (b.H+band-1)/band, func(k int) {
 		for y := k * band; y < min(b.H, (k+1)*band); y++ {
