@@ -4,9 +4,11 @@ import (
 	"context"
 	"errors"
 	"path/filepath"
+	"slices"
 	"strings"
 
 	"github.com/skyframe/skyframe/camera"
+	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/render"
@@ -154,4 +156,51 @@ func (o OutputPaths) Check() error {
 		}
 	}
 	return nil
+}
+
+// AddLayers completes spec for scene sc from the frame options o: the
+// linear layers and overlays (FrameLayers), the OpenEXR content when out
+// has an EXR file (a Doppler channel when its layers want one); an overlay
+// layer file with no overlay selected is refused.
+func AddLayers(o *frameopt.Options, sc *Scene, spec *Spec, out OutputPaths) error {
+	var err error
+	if spec.Layers, err = FrameLayers(o, sc, &spec.Opt); err != nil {
+		return err
+	}
+	if out.EXR != "" {
+		if spec.EXR, err = o.EXR(); err != nil {
+			return &InputError{err}
+		}
+		spec.Opt.Doppler = spec.EXR.Layers == nil || slices.Contains(spec.EXR.Layers, frame.EXRDoppler)
+	}
+	if out.Overlay != "" && !spec.Layers.Options.Any() {
+		return usagef("--overlay-layer %s: no overlay is selected (add --grid, --labels, --hud, …)", out.Overlay)
+	}
+	return nil
+}
+
+// Render draws the frame of spec for scene sc: its stars (from stream
+// chunk by chunk when it is set, else sc.Stars), then its linear layers,
+// keeping each layer's contribution when keep (for the EXR layers).
+func Render(ctx context.Context, sc *Scene, spec *Spec, stream *catalog.ChunkReader, keep bool) (*render.Frame, []render.Contribution, error) {
+	var f *render.Frame
+	var err error
+	if stream != nil {
+		f, err = render.RenderChunks(ctx, stream, spec.Opt)
+	} else {
+		f, err = render.Render(sc.Stars, spec.Opt)
+	}
+	if err != nil {
+		return nil, nil, err
+	}
+	var kept []render.Contribution
+	if keep {
+		kept, err = spec.Layers.AddLinearKept(f)
+	} else {
+		err = spec.Layers.AddLinear(f)
+	}
+	if err != nil {
+		return nil, nil, err
+	}
+	return f, kept, nil
 }

@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
-	"slices"
 	"strings"
 	"time"
 
@@ -13,7 +12,6 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
-	framefiles "github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/scene"
@@ -163,17 +161,8 @@ func runStill(e *env, args []string) error {
 	if warn != "" {
 		fmt.Fprintln(e.stderr, warn)
 	}
-	if spec.Layers, err = scene.FrameLayers(&f.frame, sc, &spec.Opt); err != nil {
+	if err := scene.AddLayers(&f.frame, sc, spec, outputs); err != nil {
 		return err
-	}
-	if outputs.EXR != "" {
-		if spec.EXR, err = f.frame.EXR(); err != nil {
-			return usageError{err}
-		}
-		spec.Opt.Doppler = spec.EXR.Layers == nil || slices.Contains(spec.EXR.Layers, framefiles.EXRDoppler)
-	}
-	if outputs.Overlay != "" && !spec.Layers.Options.Any() {
-		return usagef("--overlay-layer %s: no overlay is selected (add --grid, --labels, --hud, …)", outputs.Overlay)
 	}
 	rows := sc.Stars.Len()
 	if p.Stream != nil {
@@ -191,21 +180,7 @@ func runStill(e *env, args []string) error {
 		}
 	}
 	start := time.Now()
-	var frame *render.Frame
-	if p.Stream != nil {
-		frame, err = render.RenderChunks(e.ctx, p.Stream, spec.Opt)
-	} else {
-		frame, err = render.Render(sc.Stars, spec.Opt)
-	}
-	if err != nil {
-		return err
-	}
-	var kept []render.Contribution
-	if outputs.EXR != "" {
-		kept, err = spec.Layers.AddLinearKept(frame)
-	} else {
-		err = spec.Layers.AddLinear(frame)
-	}
+	frame, kept, err := scene.Render(e.ctx, sc, spec, p.Stream, outputs.EXR != "")
 	if err != nil {
 		return err
 	}
