@@ -451,9 +451,14 @@ func slerpQuat(a, b quat, w float64) quat {
 }
 
 // AngleBetween returns the rotation angle in degrees between two
-// orientations.
+// orientations: 2·atan2(|v|, |w|) of the relative rotation qa⁻¹qb = (w, v),
+// accurate at small angles too (2·acos w bottoms out at 1.7·10⁻⁶°).
 func AngleBetween(a, b camera.Orientation) float64 {
 	qa, qb := quatOf(a), quatOf(b)
-	d := math.Abs(qa.w*qb.w + qa.x*qb.x + qa.y*qb.y + qa.z*qb.z)
-	return 2 * math.Acos(math.Min(1, d)) * 180 / math.Pi
+	w := qa.w*qb.w + qa.x*qb.x + qa.y*qb.y + qa.z*qb.z
+	// v = wa·vb − wb·va − va × vb.
+	vx := qa.w*qb.x - qb.w*qa.x - (qa.y*qb.z - qa.z*qb.y)
+	vy := qa.w*qb.y - qb.w*qa.y - (qa.z*qb.x - qa.x*qb.z)
+	vz := qa.w*qb.z - qb.w*qa.z - (qa.x*qb.y - qa.y*qb.x)
+	return 2 * math.Atan2(math.Sqrt(vx*vx+vy*vy+vz*vz), math.Abs(w)) * 180 / math.Pi
 }

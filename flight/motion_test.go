@@ -19,7 +19,11 @@ func loadPlan(t *testing.T, path string) *Plan {
 		t.Fatal(err)
 	}
 	if p.NeedsResolver() {
-		stars := catalog.BuiltIn()
+		// The built-in sky with the Sun and the stand-off of a voyage,
+		// as job.Load binds a plan that does not start at the Sun (the
+		// sample starts 1 au from it).
+		stars := catalog.WithSun(catalog.BuiltIn(), [3]float64{1, 0, 0})
+		p.StandOff = StarsStandOff(stars, stars.Find)
 		if err := p.Bind(StarsResolver(stars, stars.Find)); err != nil {
 			t.Fatal(err)
 		}

@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/spatial/r3"
 
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/frameopt"
 )
 
 // parseBound parses a plan and binds its star names to the built-in sky.
@@ -195,5 +196,41 @@ look = "Ambrel"
 	t.Logf("%d frames tracked; Ambrel's apparent direction moved %.1f°", n, sweep)
 	if n < 100 || sweep < 5 {
 		t.Errorf("%d frames, sweep %.2f°: the test wants a long track across a large aberration sweep", n, sweep)
+	}
+}
+
+// The sample plan shows the camera moves (issue 15, item 6): a key on a
+// star (tracked), an exposure ramp between keys, a swing of more than 90°
+// between keys with easing (TestCameraMovesSmooth checks it eases), and a
+// 180° shutter (job's TestSamplePlanBlur checks it blurs).
+func TestSamplePlanMoves(t *testing.T) {
+	p := loadPlan(t, "../samples/plan.toml")
+	tracked, ramp := false, false
+	var prevExpo float64
+	for i, k := range p.looks {
+		if k.look.Kind == frameopt.Star {
+			tracked = true
+		}
+		if i > 0 && k.expo != prevExpo {
+			ramp = true
+		}
+		prevExpo = k.expo
+	}
+	swing := 0.0
+	for i := 1; i < len(p.looks); i++ {
+		a, err := p.FrameState(int(math.Round(p.looks[i-1].at * p.Show.FPS)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := p.FrameState(min(int(math.Round(p.looks[i].at*p.Show.FPS)), p.Frames()-1))
+		if err != nil {
+			t.Fatal(err)
+		}
+		swing = max(swing, AngleBetween(a.Camera.Orient, b.Camera.Orient))
+	}
+	fr := p.Frame.Frame()
+	t.Logf("tracked star %v, exposure ramp %v, largest swing between keys %.1f°, shutter %v°", tracked, ramp, swing, fr.Shutter)
+	if !tracked || !ramp || swing < 90 || fr.Shutter != 180 {
+		t.Errorf("the sample lacks a move: tracked star %v, exposure ramp %v, swing %.1f° (want > 90°), shutter %v° (want 180°)", tracked, ramp, swing, fr.Shutter)
 	}
 }

@@ -114,7 +114,11 @@ func TestSamplePlanBlur(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	stars := catalog.BuiltIn()
+	// The built-in sky with the Sun and the voyage's stand-off, as Load
+	// binds the sample (which starts 1 au from the Sun and keys the
+	// camera on it).
+	stars := catalog.WithSun(catalog.BuiltIn(), [3]float64{1, 0, 0})
+	p.StandOff = flight.StarsStandOff(stars, stars.Find)
 	if err := p.Bind(flight.StarsResolver(stars, stars.Find)); err != nil {
 		t.Fatal(err)
 	}
