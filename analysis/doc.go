@@ -57,5 +57,13 @@
 // Library code here never prints, never reads the clock and keeps no mutable
 // global state; errors are prefixed "analysis:" and wrap the sentinels below.
 //
-// Imports: analysis uses catalog, camera and spectrum; cmd/skyframe uses it.
+// # Star table
+//
+// ObserveStars lists every star as seen from the ship (catalogue values,
+// rest and apparent angle to the heading, apparent RA/Dec, D, T′, V′, B−V′,
+// bolometric flux ratio, chromaticity), sorted by V′; WriteStarRows writes
+// it as CSV, TSV, JSON or Parquet (the `stars` command).
+//
+// Imports: analysis uses catalog, camera and spectrum; sky, scene and
+// cmd/skyframe use it.
 package analysis

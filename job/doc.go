@@ -1,5 +1,10 @@
 // Package job is the batch logic of a flight: a bound plan (Job) rendered
-// frame by frame into an output directory. It names each frame's files and
+// frame by frame into an output directory. Load reads, binds and checks a
+// plan with the run's settings (LoadOptions: frames, shard, output
+// directory, preview); Run renders the job's frames (the lock, the resume
+// check, space checks, stale temporary files; the clock and progress come
+// in through RunOptions), Verify checks a finished directory and Estimate
+// measures one representative frame. It names each frame's files and
 // refuses patterns under which two would collide (Files,
 // CheckOutputNames), renders and writes a frame (RenderFrame: PNG, FITS,
 // EXR and overlay layer through package frame, then the sealed JSON

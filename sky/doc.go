@@ -4,7 +4,9 @@
 // misses when it does not, and, for the built-in synthetic sky, which
 // stars to draw for the frame — as deep as it needs, only in the sky cells
 // whose light can reach it — with the Sun added, so that the unresolved
-// layer can take over exactly where the drawn stars stop.
+// layer can take over exactly where the drawn stars stop. For a census
+// (Census) it finds the depth each speed needs over the whole sky and draws
+// the built-in sky that deep.
 //
 // Units and conventions: magnitudes are Johnson V as the renderer computes
 // them (render.BrighteningV), catalogue V as seen from the origin (the
