@@ -54,7 +54,7 @@ func FrameLayers(o *frameopt.Options, sc *Scene, opt *render.Options) (frame.Lay
 	custom := map[int64]string{}
 	for _, v := range o.Label {
 		q, text := splitLabel(v)
-		i, err := FindStar(sc.Index, "label", "", q)
+		i, err := findStar(sc.Index, "label", "", q)
 		if err != nil {
 			return l, err
 		}

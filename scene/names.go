@@ -37,10 +37,10 @@ func LoadNames(path string) (*names.Table, error) {
 	return t, nil
 }
 
-// FindStar resolves a star reference of option flag (e.g. "toward") with
+// findStar resolves a star reference of option flag (e.g. "toward") with
 // the index, wording a failure as a usage error that says what else the
 // option takes.
-func FindStar(x *names.Index, flag, other, s string) (int, error) {
+func findStar(x *names.Index, flag, other, s string) (int, error) {
 	i, err := x.Find(s)
 	if err == nil {
 		return i, nil

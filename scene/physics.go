@@ -36,7 +36,7 @@ type Physics struct {
 
 	// Stream, when set, is the cache file the frame is rendered from in
 	// chunks; the scene's stars then hold only the rows Refs name (see
-	// ReferencedStars).
+	// referencedStars).
 	Stream *catalog.ChunkReader
 	Refs   []string
 
@@ -88,7 +88,7 @@ func (p *Physics) Resolve(ctx context.Context, warn io.Writer) (*Scene, error) {
 		if p.Epoch != 0 {
 			return nil, usagef("--epoch: %s is rendered from disk chunk by chunk (it is longer than one chunk of --memory), where proper motions are not propagated; raise --memory to load it", p.Catalog)
 		}
-		stars, err = ReferencedStars(p.Stream, p.Refs, table)
+		stars, err = referencedStars(p.Stream, p.Refs, table)
 	} else {
 		stars, err = LoadStars(ctx, warn, p.Catalog, p.CatalogFormat, p.Columns, p.Epoch)
 	}
@@ -178,10 +178,10 @@ func LoadStars(ctx context.Context, warn io.Writer, path, format string, columns
 
 // ResolvePosition reads X,Y,Z in parsecs or a star reference (names.Index.Find).
 func ResolvePosition(x *names.Index, flag, s string) (r3.Vec, error) {
-	if v, err := ParseFloats(flag, s, 3); err == nil {
+	if v, err := parseFloats(flag, s, 3); err == nil {
 		return r3.Vec{X: v[0], Y: v[1], Z: v[2]}, nil
 	}
-	i, err := FindStar(x, flag, "X,Y,Z in parsecs", s)
+	i, err := findStar(x, flag, "X,Y,Z in parsecs", s)
 	if err != nil {
 		return r3.Vec{}, err
 	}
@@ -198,12 +198,12 @@ func ResolveDirection(x *names.Index, flag, s string, pos r3.Vec) (r3.Vec, error
 	if rest, ok := strings.CutPrefix(s, frameopt.CataloguePrefix); ok {
 		s = rest
 	}
-	if ra, dec, err := ParseRADec(flag, s); err == nil {
+	if ra, dec, err := parseRADec(flag, s); err == nil {
 		return camera.FromRADec(ra, dec), nil
-	} else if _, ferr := ParseFloats(flag, s, 2); ferr == nil {
+	} else if _, ferr := parseFloats(flag, s, 2); ferr == nil {
 		return r3.Vec{}, err
 	}
-	i, err := FindStar(x, flag, "RA,DEC in degrees", s)
+	i, err := findStar(x, flag, "RA,DEC in degrees", s)
 	if err != nil {
 		return r3.Vec{}, err
 	}
@@ -219,9 +219,9 @@ func ResolveDirection(x *names.Index, flag, s string, pos r3.Vec) (r3.Vec, error
 	return r3.Unit(d), nil
 }
 
-// ParseFloats splits "a,b[,c]" into exactly n finite numbers, naming the flag
+// parseFloats splits "a,b[,c]" into exactly n finite numbers, naming the flag
 // in any error.
-func ParseFloats(flag, s string, n int) ([]float64, error) {
+func parseFloats(flag, s string, n int) ([]float64, error) {
 	parts := strings.Split(s, ",")
 	if len(parts) != n {
 		return nil, usagef("--%s %q: want %d comma-separated numbers", flag, s, n)
@@ -237,9 +237,9 @@ func ParseFloats(flag, s string, n int) ([]float64, error) {
 	return out, nil
 }
 
-// ParseRADec reads "RA,DEC" in ICRS degrees.
-func ParseRADec(flag, s string) (ra, dec float64, err error) {
-	v, err := ParseFloats(flag, s, 2)
+// parseRADec reads "RA,DEC" in ICRS degrees.
+func parseRADec(flag, s string) (ra, dec float64, err error) {
+	v, err := parseFloats(flag, s, 2)
 	if err != nil {
 		return 0, 0, err
 	}

@@ -42,7 +42,7 @@ func (sc *Scene) starFinder() frameopt.StarFinder {
 func Build(o *frameopt.Options, sc *Scene) (*Spec, error) {
 	spec := &Spec{}
 	fr := o.Frame()
-	forward, desc, err := LookDirection(sc, o.Look)
+	forward, desc, err := lookDirection(sc, o.Look)
 	if err != nil {
 		return nil, err
 	}
@@ -81,15 +81,15 @@ func Build(o *frameopt.Options, sc *Scene) (*Spec, error) {
 // (names.Index.Find's message: candidates or close matches), saying what
 // else the option takes.
 func (sc *Scene) starError(flag, other, q string) error {
-	if _, err := FindStar(sc.Index, flag, other, q); err != nil {
+	if _, err := findStar(sc.Index, flag, other, q); err != nil {
 		return err
 	}
 	return usagef("--%s %q: want %s in %s", flag, q, other, sc.Stars.Source)
 }
 
-// LookDirection resolves --look into an apparent (ship-frame) direction and
+// lookDirection resolves --look into an apparent (ship-frame) direction and
 // its description.
-func LookDirection(sc *Scene, s string) (r3.Vec, string, error) {
+func lookDirection(sc *Scene, s string) (r3.Vec, string, error) {
 	if s == "" {
 		s = "ahead"
 	}

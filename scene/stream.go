@@ -41,14 +41,14 @@ func OpenStream(path, format string, kind camera.Kind, w, h int, budget int64) (
 	return cr, nil
 }
 
-// ReferencedStars scans the chunks of cr once for the stars the options
+// referencedStars scans the chunks of cr once for the stars the options
 // name (--look, --toward, --position, --mark-destination, --label) and
 // returns them as a small catalogue, in catalogue order and with their
 // columns copied exactly, so that every reference resolves as it would
 // against the whole catalogue, each chunk looked up through a names.Index
 // with the names table (a name is taken from the first chunk where it
 // fits one star). cr is rewound for the render.
-func ReferencedStars(cr *catalog.ChunkReader, refs []string, table *names.Table) (*catalog.Stars, error) {
+func referencedStars(cr *catalog.ChunkReader, refs []string, table *names.Table) (*catalog.Stars, error) {
 	pending := map[string]bool{}
 	for _, r := range refs {
 		if isStarRef(r) {
@@ -112,10 +112,10 @@ func isStarRef(s string) bool {
 	case "", "ahead", "behind":
 		return false
 	}
-	if _, err := ParseFloats("", s, 2); err == nil {
+	if _, err := parseFloats("", s, 2); err == nil {
 		return false
 	}
-	_, err := ParseFloats("", s, 3)
+	_, err := parseFloats("", s, 3)
 	return err != nil
 }
 
