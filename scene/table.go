@@ -5,6 +5,7 @@ import (
 	"slices"
 	"strconv"
 
+	"github.com/skyframe/skyframe/analysis"
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
 	"github.com/skyframe/skyframe/sky"
@@ -36,4 +37,33 @@ func TableDepthWarning(sc *Scene, betas []float64) (string, error) {
 	rep := sky.WholeSky(catalog.EstimateDepth(sc.Stars), sc.BuiltIn, b, tableLimit, sc.Beaming)
 	rep.Hint = fmt.Sprintf("rows fainter than V′ ≈ %.1f may lack stars; a deeper catalogue lists them", rep.Have+rep.Needed.DeltaV)
 	return rep.Warning("stars", what), nil
+}
+
+// StarTable observes every star of sc (analysis.ObserveStars), brightest
+// first, keeping the limit brightest (0: all): from sc's observer when
+// betas is nil, else at each speed of betas toward sc's heading in turn,
+// with beta holding each row's speed.
+func StarTable(sc *Scene, betas []float64, limit int) (rows []analysis.StarRow, beta []float64, err error) {
+	observe := func(obs camera.Observer) []analysis.StarRow {
+		r := analysis.ObserveStars(sc.Stars, sc.Index.Name, sc.Heading, sc.Beaming, obs)
+		if limit > 0 && len(r) > limit {
+			r = r[:limit]
+		}
+		return r
+	}
+	if betas == nil {
+		return observe(sc.Observer), nil, nil
+	}
+	for _, b := range betas {
+		bo, err := camera.NewBoost(sc.Heading, b)
+		if err != nil {
+			return nil, nil, err
+		}
+		r := observe(camera.Observer{Position: sc.Observer.Position, Boost: bo})
+		rows = append(rows, r...)
+		for range r {
+			beta = append(beta, b)
+		}
+	}
+	return rows, beta, nil
 }

@@ -7,7 +7,6 @@ import (
 	"github.com/spf13/pflag"
 
 	"github.com/skyframe/skyframe/analysis"
-	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/scene"
 )
@@ -107,30 +106,11 @@ func runStars(e *env, args []string) error {
 		fmt.Fprintln(e.stderr, warn)
 	}
 	write := func(w io.Writer) error {
-		if betas == nil {
-			rows := analysis.ObserveStars(sc.Stars, sc.Index.Name, sc.Heading, sc.Beaming, sc.Observer)
-			if *limit > 0 && len(rows) > *limit {
-				rows = rows[:*limit]
-			}
-			return analysis.WriteStarRows(w, rows, nil, *format, scene.NamesCredit(sc.Index, true))
+		rows, beta, err := scene.StarTable(sc, betas, *limit)
+		if err != nil {
+			return usageError{err}
 		}
-		var all []analysis.StarRow
-		var beta []float64
-		for _, b := range betas {
-			bo, err := camera.NewBoost(sc.Heading, b)
-			if err != nil {
-				return usageError{err}
-			}
-			rows := analysis.ObserveStars(sc.Stars, sc.Index.Name, sc.Heading, sc.Beaming, camera.Observer{Position: sc.Observer.Position, Boost: bo})
-			if *limit > 0 && len(rows) > *limit {
-				rows = rows[:*limit]
-			}
-			all = append(all, rows...)
-			for range rows {
-				beta = append(beta, b)
-			}
-		}
-		return analysis.WriteStarRows(w, all, beta, *format, scene.NamesCredit(sc.Index, true))
+		return analysis.WriteStarRows(w, rows, beta, *format, scene.NamesCredit(sc.Index, true))
 	}
 	if *out == "-" {
 		return write(e.stdout)
