@@ -70,7 +70,7 @@ func renderFlight(e *env, j *flightjob.Job, resume bool) error {
 // when it fails.
 func flashWarning(w io.Writer, j *flightjob.Job, lum map[int]flightjob.Lum) {
 	if j.Every > 1 {
-		fmt.Fprintf(w, "skyframe: flash check skipped: --every %d renders every %dth frame, not a sequence at the plan's frame rate\n", j.Every, j.Every)
+		fmt.Fprintf(w, "skyframe: flash check skipped: --every %d renders one frame in %d, not a sequence at the plan's frame rate\n", j.Every, j.Every)
 		return
 	}
 	if msg := flightjob.FlashWarning(j.Frames, lum, j.Plan.Show.FPS); msg != "" {
