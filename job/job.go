@@ -303,11 +303,8 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 	// The frame's buffers are reused across frames (framePool), like the
 	// 8-bit image below: a new 4096² float buffer costs about 0.6 CPU-s
 	// of page faults on first touch.
-	dst, _ := framePool.Get().(*render.Frame)
-	if dst == nil {
-		dst = new(render.Frame)
-	}
-	defer framePool.Put(dst)
+	dst := getFrame()
+	defer putFrame(dst)
 	f, lay, kept, ex, err := jf.renderLinear(dst, prep, fs, obs, proj)
 	if err != nil {
 		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
@@ -418,8 +415,36 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 var (
 	nrgbaPool  sync.Pool // *image.NRGBA
 	bufferPool sync.Pool // *bytes.Buffer
-	framePool  sync.Pool // *render.Frame: the linear buffer and the star path's memory
 )
+
+// frameSlot keeps the last flight frame (its linear buffer and the star
+// path's memory) for the next one. Not a sync.Pool: a pool drops its
+// items at the second garbage collection, which a 201 MB frame brings on
+// within the next frame, so the buffer was faulted in anew about every
+// other frame. Frames rendered concurrently take new ones.
+var frameSlot struct {
+	sync.Mutex
+	f *render.Frame
+}
+
+// getFrame returns the kept frame, or a new empty one.
+func getFrame() *render.Frame {
+	frameSlot.Lock()
+	defer frameSlot.Unlock()
+	f := frameSlot.f
+	frameSlot.f = nil
+	if f == nil {
+		f = new(render.Frame)
+	}
+	return f
+}
+
+// putFrame keeps f for the next frame.
+func putFrame(f *render.Frame) {
+	frameSlot.Lock()
+	defer frameSlot.Unlock()
+	frameSlot.f = f
+}
 
 // getNRGBA returns an image from the pool, or nil (ToNRGBAInto then
 // allocates one; it also replaces one of the wrong size).
