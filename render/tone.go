@@ -129,58 +129,6 @@ func encode(v float64) float64 {
 	return a + f*(b-a)
 }
 
-// code8 returns uint8(encode(v)·255 + ½), the 8-bit sRGB code of v in
-// [0, 1], without the square root: from the code at the start of v's
-// bucket (code8Start) it steps up past the thresholds code8Min that v
-// reaches (at most one or two: the codes are at least 1/4096 apart in v
-// except near 0, where the curve is linear and under one code per
-// bucket). The result is the same bit for bit (TestCode8), because the
-// code is a non-decreasing function of v and code8Min[k] is the smallest
-// float64 with code ≥ k.
-func code8(v float64) uint8 {
-	i := int(v * code8Buckets)
-	if i >= code8Buckets {
-		return code8Of(v)
-	}
-	c := code8Start[i]
-	for c < 255 && v >= code8Min[c+1] {
-		c++
-	}
-	return c
-}
-
-// code8Of is the 8-bit code as encode gives it.
-func code8Of(v float64) uint8 { return uint8(encode(v)*255 + 0.5) }
-
-// code8Buckets is the number of even buckets of [0, 1] code8 starts from.
-const code8Buckets = 4096
-
-var code8Min, code8Start = buildCode8()
-
-// buildCode8 finds, by bisection over the float64 values of [0, 1] in
-// order, the smallest v with code8Of(v) ≥ k for each k (code8Min[0] = 0),
-// and the code at the start of each bucket.
-func buildCode8() (*[256]float64, *[code8Buckets]uint8) {
-	var t [256]float64
-	for k := 1; k < 256; k++ {
-		lo, hi := uint64(0), math.Float64bits(1) // code8Of(hi) = 255 ≥ k
-		for lo < hi {
-			mid := lo + (hi-lo)/2
-			if int(code8Of(math.Float64frombits(mid))) >= k {
-				hi = mid
-			} else {
-				lo = mid + 1
-			}
-		}
-		t[k] = math.Float64frombits(lo)
-	}
-	var st [code8Buckets]uint8
-	for i := range st {
-		st[i] = code8Of(float64(i) / code8Buckets)
-	}
-	return &t, &st
-}
-
 // ToNRGBA tone-maps the buffer with mode m, sRGB-encodes it
 // (IEC 61966-2-1) and rounds to 8 bits, with opaque alpha.
 func (b *Buffer) ToNRGBA(m ToneMode) *image.NRGBA { return b.ToNRGBAInto(nil, m) }
@@ -218,9 +166,9 @@ func (b *Buffer) toNRGBAInto(dst *image.NRGBA, m ToneMode, workers int) *image.N
 				continue
 			}
 			r, g, bl := Tone(m, float64(s[0]), float64(s[1]), float64(s[2]))
-			d[0] = code8(r)
-			d[1] = code8(g)
-			d[2] = code8(bl)
+			d[0] = uint8(encode(r)*255 + 0.5)
+			d[1] = uint8(encode(g)*255 + 0.5)
+			d[2] = uint8(encode(bl)*255 + 0.5)
 			d[3] = 255
 		}
 	})

@@ -74,18 +74,4 @@ func BenchmarkToNRGBA4096(b *testing.B) {
 		}
 		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(f.W*f.H), "ns/pixel")
 	})
-	// Every pixel lit, as under the unresolved starlight: no pixel takes
-	// the black shortcut.
-	b.Run("reused-lit", func(b *testing.B) {
-		g := &Buffer{W: f.W, H: f.H, Pix: make([]float32, len(f.Pix))}
-		for i := range g.Pix {
-			g.Pix[i] = f.Pix[i] + 0.002 + 0.05*float32(i%4099)/4099
-		}
-		img := g.ToNRGBA(ToneShoulder)
-		b.ReportAllocs()
-		for b.Loop() {
-			g.ToNRGBAInto(img, ToneShoulder)
-		}
-		b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(f.W*f.H), "ns/pixel")
-	})
 }
