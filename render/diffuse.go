@@ -129,7 +129,7 @@ func (b *Buffer) Add(o *Buffer) error {
 // sub-sampled pixel or a pixel without a direction (a fisheye's rim). Cells never straddle an
 // image edge or a cube face. The tests hold every pixel of frames of each
 // projection to twice the tolerance of the exact evaluation
-// (TestDiffuseGridBound). At 4096² it evaluates under 0.1 directions per
+// (TestDiffuseGridBound). At 4096² it evaluates about 0.1–0.15 directions per
 // pixel instead of one or more.
 //
 // Sampling. Each pixel is sampled on an s×s grid of sub-pixel centres,

@@ -12,9 +12,6 @@ import (
 	flightjob "github.com/skyframe/skyframe/job"
 )
 
-// errInterrupted is wrapped by the error of a render stopped by a signal.
-var errInterrupted = flightjob.ErrInterrupted
-
 // envTestPace, when set to a duration, is a pause after each frame. Tests
 // set it to interrupt a run of tiny frames reliably; it does not change
 // any output.
