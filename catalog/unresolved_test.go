@@ -148,6 +148,18 @@ func TestUnresolvedSplitConservesLight(t *testing.T) {
 // figures without errors; each light is checked within 20 % (0.2 mag, the
 // issue's tolerance for counts) and "about half" as 0.4–0.6.
 //
+// Galactic poles [pub]: Beecher 1940 (PASP 52, 1940; doi:10.1086/125140;
+// https://scholar.archive.org/work/5gpg2gzmrjag5eqtx6stisighi) reports
+// Seares' 1920 estimate, from the star distribution and luminosity
+// functions of Kapteyn and van Rhijn, that the Galaxy in the region of the
+// Sun seen from a distant point normal to its plane has "a surface
+// brightness of 23 visual magnitudes per square second". Seen from the
+// mid-plane, each pole looks through half of that column (a slab symmetric
+// about the plane, no dust at the poles), so the mean of the two poles is
+// 23 + 2.5 log₁₀ 2 = 23.75 mag arcsec⁻² = 40.8 S10. The estimate is a
+// century old, rounded to the magnitude, and the Sun sits a little above
+// the plane; it is checked within 30 % (0.28 mag).
+//
 // Galactic poles and plane [mem]: the V-band integrated starlight of
 // Leinert et al. 1998, A&AS 127, 1, §10 (tables after Roach & Megill 1961
 // and Toller 1981). The stored copy of §10
@@ -187,6 +199,11 @@ func TestUnresolvedPublished(t *testing.T) {
 	}
 	plane /= 360 * s10PerSr
 	t.Logf("poles %.1f S10, plane (mean over l) %.1f S10, contrast %.1f", pole, plane, plane/pole)
+	seares := math.Pow(10, 0.4*(27.78-(23+2.5*math.Log10(2))))
+	t.Logf("poles against Seares' face-on 23 mag arcsec⁻² halved: %.1f S10 against %.1f (%+.1f %%)", pole, seares, 100*(pole/seares-1))
+	if math.Abs(pole/seares-1) > 0.3 {
+		t.Errorf("galactic poles: %.1f S10, want %.1f ± 30 %% (Seares 1920 via Beecher 1940: 23 visual mag arcsec⁻² face-on, half the column from the mid-plane)", pole, seares)
+	}
 	if pole < 20 || pole > 80 {
 		t.Errorf("galactic poles: %.1f S10, want 20–80 S10 (Leinert et al. 1998 §10 [mem])", pole)
 	}
