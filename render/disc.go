@@ -113,7 +113,6 @@ func drawDiscs(f *Frame, stars []discStar, workers int) error {
 	shipIn := boost.Inverse()
 	ppr := pixelsPerRadian(&p)
 	k := f.Scale / math.Pi
-	norm := 1 / (1 - LimbDarkening/3)
 	for _, ds := range stars {
 		if ds.path != nil {
 			if moved, err := drawMovingDisc(f, &p, &sa, &ds, workers); err != nil || moved {
@@ -123,23 +122,12 @@ func drawDiscs(f *Frame, stars []discStar, workers int) error {
 				continue
 			}
 		}
-		ns, _ := shipIn.Apply(ds.app)
-		sin2 := math.Exp(ds.lnW)
-		rho := math.Asin(math.Sqrt(sin2))
-		x0, y0, x1, y1 := discBox(&p, boost, ns, rho)
+		g := newDiscGeom(boost, shipIn, &ds, ppr)
+		s := g.s
+		x0, y0, x1, y1 := discBox(&p, boost, g.ns, g.rho)
 		if x0 >= x1 || y0 >= y1 {
 			continue
 		}
-		_, dc := boost.Apply(ns)
-		rpx := rho / dc * ppr
-		s := 2
-		switch {
-		case rpx < 4:
-			s = 8
-		case rpx < 32:
-			s = 4
-		}
-		lnT0 := math.Log(ds.teff)
 		color := f.Options.Color
 		parallel(workers, y1-y0, func(jj int) {
 			j := y0 + jj
@@ -151,22 +139,10 @@ func drawDiscs(f *Frame, stars []discStar, workers int) error {
 					y := float64(j) + (float64(b)+0.5)*inv
 					for a := 0; a < s; a++ {
 						x := float64(i) + (float64(a)+0.5)*inv
-						np, ok := p.Inverse(x, y)
+						sm, yk, _, ok := g.sample(&p, &sa, x, y)
 						if !ok {
 							continue
 						}
-						n, dInv := shipIn.Apply(np)
-						if r3.Dot(n, ns) <= 0 {
-							continue
-						}
-						st2 := r3.Norm2(r3.Cross(n, ns))
-						if st2 >= sin2 {
-							continue
-						}
-						mu := math.Sqrt(1 - st2/sin2)
-						ld := (1 - LimbDarkening*(1-mu)) * norm
-						sm := spectrum.Lookup(lnT0 - math.Log(dInv))
-						yk := ld * math.Exp(sm.LnY) * sa.sub(x, y, s, np)
 						X += sm.X / sm.Y * yk
 						Y += yk
 						Z += (1 - sm.X - sm.Y) / sm.Y * yk
@@ -253,4 +229,59 @@ func discBoxExt(p *camera.Projection, boost camera.Boost, ns r3.Vec, rho float64
 	x1 = int(math.Min(float64(W+ext), math.Ceil(maxX+m)))
 	y1 = int(math.Min(float64(H+ext), math.Ceil(maxY+m)))
 	return x0, y0, x1, y1
+}
+
+// discGeom is one disc's geometry in a frame: its centre ns in the ship's
+// rest frame (catalogue frame boosted back), sin²ρ and ρ of its angular
+// radius there, its sub-sampling s per pixel axis, ln T of its surface and
+// the limb-darkening normalisation. Sharp and blurred discs sample it alike.
+type discGeom struct {
+	shipIn     camera.Boost
+	ns         r3.Vec
+	sin2, rho  float64
+	s          int
+	lnT0, norm float64
+}
+
+// newDiscGeom returns ds's geometry (ppr the projection's pixels per
+// radian at the centre): s = 8 for discs under 4 px of radius, 4 under 32,
+// 2 beyond, the radius taken at the disc's Doppler factor.
+func newDiscGeom(boost, shipIn camera.Boost, ds *discStar, ppr float64) discGeom {
+	g := discGeom{shipIn: shipIn, sin2: math.Exp(ds.lnW), lnT0: math.Log(ds.teff), norm: 1 / (1 - LimbDarkening/3)}
+	g.ns, _ = shipIn.Apply(ds.app)
+	g.rho = math.Asin(math.Sqrt(g.sin2))
+	_, dc := boost.Apply(g.ns)
+	rpx := g.rho / dc * ppr
+	g.s = 2
+	switch {
+	case rpx < 4:
+		g.s = 8
+	case rpx < 32:
+		g.s = 4
+	}
+	return g
+}
+
+// sample returns the disc's spectrum and luminance weight yk (limb
+// darkening × D-shifted Y × the sub-sample's solid angle) at sub-pixel
+// centre (x, y) of p, with the direction np there; ok is false where the
+// point has no direction or misses the disc.
+func (g *discGeom) sample(p *camera.Projection, sa *pixelSolidAngle, x, y float64) (sm spectrum.Sample, yk float64, np r3.Vec, ok bool) {
+	np, ok = p.Inverse(x, y)
+	if !ok {
+		return sm, 0, np, false
+	}
+	n, dInv := g.shipIn.Apply(np)
+	if r3.Dot(n, g.ns) <= 0 {
+		return sm, 0, np, false
+	}
+	st2 := r3.Norm2(r3.Cross(n, g.ns))
+	if st2 >= g.sin2 {
+		return sm, 0, np, false
+	}
+	mu := math.Sqrt(1 - st2/g.sin2)
+	ld := (1 - LimbDarkening*(1-mu)) * g.norm
+	sm = spectrum.Lookup(g.lnT0 - math.Log(dInv))
+	yk = ld * math.Exp(sm.LnY) * sa.sub(x, y, g.s, np)
+	return sm, yk, np, true
 }

@@ -137,20 +137,9 @@ func discSteps(p *camera.Projection, path []r3.Vec, s int, ppr float64) ([]rot3,
 // false when the disc hardly moves and is to be drawn sharp.
 func drawMovingDisc(f *Frame, p *camera.Projection, sa *pixelSolidAngle, ds *discStar, workers int) (bool, error) {
 	boost := f.Options.Observer.Boost
-	shipIn := boost.Inverse()
 	ppr := pixelsPerRadian(p)
-	ns, _ := shipIn.Apply(ds.app)
-	sin2 := math.Exp(ds.lnW)
-	rho := math.Asin(math.Sqrt(sin2))
-	_, dc := boost.Apply(ns)
-	rpx := rho / dc * ppr
-	s := 2
-	switch {
-	case rpx < 4:
-		s = 8
-	case rpx < 32:
-		s = 4
-	}
+	g := newDiscGeom(boost, boost.Inverse(), ds, ppr)
+	s := g.s
 	rots, ws, pathPx := discSteps(p, ds.path, s, ppr)
 	if rots == nil {
 		return false, nil
@@ -161,13 +150,11 @@ func drawMovingDisc(f *Frame, p *camera.Projection, sa *pixelSolidAngle, ds *dis
 		// disc there as far as the path can bring it into the image.
 		ext = int(math.Ceil(math.Min(pathPx, float64(2*max(p.Width, p.Height))))) + 1
 	}
-	x0, y0, x1, y1 := discBoxExt(p, boost, ns, rho, ext)
+	x0, y0, x1, y1 := discBoxExt(p, boost, g.ns, g.rho, ext)
 	if x0 >= x1 || y0 >= y1 {
 		return true, nil
 	}
-	lnT0 := math.Log(ds.teff)
 	k := f.Scale / math.Pi
-	norm := 1 / (1 - LimbDarkening/3)
 	color := f.Options.Color
 	inv, fs := 1/float64(s), float64(s)
 	rows := make([][]discSample, discBand)
@@ -182,22 +169,10 @@ func drawMovingDisc(f *Frame, p *camera.Projection, sa *pixelSolidAngle, ds *dis
 					y := float64(j) + (float64(b)+0.5)*inv
 					for a := 0; a < s; a++ {
 						x := float64(i) + (float64(a)+0.5)*inv
-						np, ok := p.Inverse(x, y)
+						sm, yk, np, ok := g.sample(p, sa, x, y)
 						if !ok {
 							continue
 						}
-						n, dInv := shipIn.Apply(np)
-						if r3.Dot(n, ns) <= 0 {
-							continue
-						}
-						st2 := r3.Norm2(r3.Cross(n, ns))
-						if st2 >= sin2 {
-							continue
-						}
-						mu := math.Sqrt(1 - st2/sin2)
-						ld := (1 - LimbDarkening*(1-mu)) * norm
-						sm := spectrum.Lookup(lnT0 - math.Log(dInv))
-						yk := ld * math.Exp(sm.LnY) * sa.sub(x, y, s, np)
 						xl, yl, zl := k*sm.X/sm.Y*yk, k*yk, k*(1-sm.X-sm.Y)/sm.Y*yk
 						r, g, bl := spectrum.XYZToLinearSRGB(xl, yl, zl, color)
 						r, g, bl = spectrum.GamutMap(r, g, bl, yl)
