@@ -11,6 +11,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"regexp"
+	"runtime"
 	"strconv"
 	"strings"
 	"syscall"
@@ -654,5 +655,40 @@ func TestFrameProgressLine(t *testing.T) {
 	// 120 frames in 40 s: 3 frames/s, 480 left: 160 s.
 	if want := "flight: frame 120/600 (20%), 3.0 frames/s, ETA 2m40s"; line != want {
 		t.Errorf("have %q, want %q", line, want)
+	}
+}
+
+// --workers N bounds the CPUs of the whole run: while the frames render,
+// GOMAXPROCS is N (the sky's preparation, the unresolved maps and the
+// writers size themselves by it), and it is restored when the run ends.
+func TestFlightWorkersCapCPUs(t *testing.T) {
+	if runtime.GOMAXPROCS(0) < 2 {
+		t.Skip("one CPU: nothing to cap")
+	}
+	before := runtime.GOMAXPROCS(0)
+	dir := t.TempDir()
+	plan := writePlan(t, dir, voyagePlan(2))
+	for _, c := range []struct {
+		workers string
+		want    int
+	}{{"1", 1}, {"0", before}} {
+		seen := -1
+		getenv := func(k string) string {
+			if k == envTestPace {
+				seen = runtime.GOMAXPROCS(0)
+			}
+			return os.Getenv(k)
+		}
+		var out, errb bytes.Buffer
+		e := &env{ctx: context.Background(), stdout: &out, stderr: &errb, getenv: getenv}
+		if code := e.dispatch([]string{"flight", plan, "--workers", c.workers, "--out", filepath.Join(dir, "w"+c.workers)}); code != 0 {
+			t.Fatalf("--workers %s: exit %d: %s", c.workers, code, errb.String())
+		}
+		if seen != c.want {
+			t.Errorf("--workers %s: GOMAXPROCS %d while rendering, want %d", c.workers, seen, c.want)
+		}
+		if got := runtime.GOMAXPROCS(0); got != before {
+			t.Errorf("--workers %s: GOMAXPROCS %d after the run, want it restored to %d", c.workers, got, before)
+		}
 	}
 }

@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"io"
+	"runtime"
 	"strings"
 	"time"
 
@@ -96,7 +97,7 @@ func (f *flightFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&f.shard, "shard", "", "render shard K/N (0-based K), or auto: from a scheduler's variables (Kubernetes Indexed Job, Slurm array); default SKYFRAME_SHARD, else the whole job")
 	fs.BoolVar(&f.verify, "verify", false, "check the output directory for missing or corrupt frames instead of rendering (exit 1 if any)")
 	fs.StringVar(&f.out, "out", "", "output directory, replacing the plan's output.dir")
-	fs.IntVar(&f.workers, "workers", 0, "goroutines per frame for rendering and PNG compression (0: all CPUs; output does not depend on it)")
+	fs.IntVar(&f.workers, "workers", 0, "CPUs the run uses: goroutines per frame for rendering and PNG compression, and at most N running at once for everything else (0: all CPUs; output does not depend on it)")
 	fs.Float64Var(&f.preview, "preview", 1, "render a preview at this scale of the frame size (0 < SCALE ≤ 1) into OUTPUT-preview (or --out), never touching the real frames")
 	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget for the whole run: the catalogue, its prepared values and the largest frame's buffers, images and encoders are estimated before anything renders, and a plan over the budget is refused (exit 2) with the figures")
 	fs.IntVar(&f.every, "every", 1, "render every Nth frame only (N ≥ 1; frames keep their numbers); with N > 1 the output goes to OUTPUT-preview (or --out)")
@@ -124,6 +125,12 @@ func runFlight(e *env, args []string) error {
 	}
 	if f.workers < 0 {
 		return usagef("--workers %d: want N ≥ 0", f.workers)
+	}
+	if f.workers > 0 {
+		// The sky's preparation, the unresolved maps and the writers
+		// size themselves by GOMAXPROCS: capping it makes --workers
+		// bound the CPUs of the whole run, not only the frame passes.
+		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(f.workers))
 	}
 	if f.dryRun && f.verify {
 		return usagef("give only one of --dry-run and --verify")
