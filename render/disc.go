@@ -110,7 +110,6 @@ func drawDiscs(f *Frame, stars []discStar, workers int) error {
 		return err
 	}
 	boost := f.Options.Observer.Boost
-	shipIn := boost.Inverse()
 	ppr := pixelsPerRadian(&p)
 	k := f.Scale / math.Pi
 	for _, ds := range stars {
@@ -122,9 +121,9 @@ func drawDiscs(f *Frame, stars []discStar, workers int) error {
 				continue
 			}
 		}
-		g := newDiscGeom(boost, shipIn, &ds, ppr)
-		s := g.s
-		x0, y0, x1, y1 := discBox(&p, boost, g.ns, g.rho)
+		dg := newDiscGeom(boost, &ds, ppr)
+		s := dg.s
+		x0, y0, x1, y1 := discBox(&p, boost, dg.ns, dg.rho)
 		if x0 >= x1 || y0 >= y1 {
 			continue
 		}
@@ -139,7 +138,7 @@ func drawDiscs(f *Frame, stars []discStar, workers int) error {
 					y := float64(j) + (float64(b)+0.5)*inv
 					for a := 0; a < s; a++ {
 						x := float64(i) + (float64(a)+0.5)*inv
-						sm, yk, _, ok := g.sample(&p, &sa, x, y)
+						sm, yk, _, ok := dg.sample(&p, &sa, x, y)
 						if !ok {
 							continue
 						}
@@ -246,9 +245,9 @@ type discGeom struct {
 // newDiscGeom returns ds's geometry (ppr the projection's pixels per
 // radian at the centre): s = 8 for discs under 4 px of radius, 4 under 32,
 // 2 beyond, the radius taken at the disc's Doppler factor.
-func newDiscGeom(boost, shipIn camera.Boost, ds *discStar, ppr float64) discGeom {
-	g := discGeom{shipIn: shipIn, sin2: math.Exp(ds.lnW), lnT0: math.Log(ds.teff), norm: 1 / (1 - LimbDarkening/3)}
-	g.ns, _ = shipIn.Apply(ds.app)
+func newDiscGeom(boost camera.Boost, ds *discStar, ppr float64) discGeom {
+	g := discGeom{shipIn: boost.Inverse(), sin2: math.Exp(ds.lnW), lnT0: math.Log(ds.teff), norm: 1 / (1 - LimbDarkening/3)}
+	g.ns, _ = g.shipIn.Apply(ds.app)
 	g.rho = math.Asin(math.Sqrt(g.sin2))
 	_, dc := boost.Apply(g.ns)
 	rpx := g.rho / dc * ppr

@@ -138,8 +138,8 @@ func discSteps(p *camera.Projection, path []r3.Vec, s int, ppr float64) ([]rot3,
 func drawMovingDisc(f *Frame, p *camera.Projection, sa *pixelSolidAngle, ds *discStar, workers int) (bool, error) {
 	boost := f.Options.Observer.Boost
 	ppr := pixelsPerRadian(p)
-	g := newDiscGeom(boost, boost.Inverse(), ds, ppr)
-	s := g.s
+	dg := newDiscGeom(boost, ds, ppr)
+	s := dg.s
 	rots, ws, pathPx := discSteps(p, ds.path, s, ppr)
 	if rots == nil {
 		return false, nil
@@ -150,7 +150,7 @@ func drawMovingDisc(f *Frame, p *camera.Projection, sa *pixelSolidAngle, ds *dis
 		// disc there as far as the path can bring it into the image.
 		ext = int(math.Ceil(math.Min(pathPx, float64(2*max(p.Width, p.Height))))) + 1
 	}
-	x0, y0, x1, y1 := discBoxExt(p, boost, g.ns, g.rho, ext)
+	x0, y0, x1, y1 := discBoxExt(p, boost, dg.ns, dg.rho, ext)
 	if x0 >= x1 || y0 >= y1 {
 		return true, nil
 	}
@@ -169,7 +169,7 @@ func drawMovingDisc(f *Frame, p *camera.Projection, sa *pixelSolidAngle, ds *dis
 					y := float64(j) + (float64(b)+0.5)*inv
 					for a := 0; a < s; a++ {
 						x := float64(i) + (float64(a)+0.5)*inv
-						sm, yk, np, ok := g.sample(p, sa, x, y)
+						sm, yk, np, ok := dg.sample(p, sa, x, y)
 						if !ok {
 							continue
 						}
