@@ -83,6 +83,17 @@ func Tone(m ToneMode, r, g, b float64) (float64, float64, float64) {
 	return min1(r), min1(g), min1(b)
 }
 
+// toneIdentity reports whether Tone(m, r, g, b) is (min1(pos(r)),
+// min1(pos(g)), min1(pos(b))): always for ToneLinear; for ToneShoulder
+// when the luminance is at most ShoulderKnee and no channel exceeds 1.
+func toneIdentity(m ToneMode, r, g, b float32) bool {
+	if m != ToneShoulder {
+		return true
+	}
+	r64, g64, b64 := pos(float64(r)), pos(float64(g)), pos(float64(b))
+	return lumR*r64+lumG*g64+lumB*b64 <= ShoulderKnee && r64 <= 1 && g64 <= 1 && b64 <= 1
+}
+
 // pos returns v for v > 0 and 0 otherwise (NaN included).
 func pos(v float64) float64 {
 	if v > 0 {
@@ -155,6 +166,7 @@ func (b *Buffer) toNRGBAInto(dst *image.NRGBA, m ToneMode, workers int) *image.N
 	if img == nil || !reusable(img.Rect, img.Stride, 4, b.W, b.H) {
 		img = image.NewNRGBA(image.Rect(0, 0, b.W, b.H))
 	}
+	tab := code8Table()
 	b.rows(workers, func(y int) {
 		src := b.Pix[3*y*b.W : 3*(y+1)*b.W]
 		dst := img.Pix[y*img.Stride : y*img.Stride+4*b.W]
@@ -163,6 +175,12 @@ func (b *Buffer) toNRGBAInto(dst *image.NRGBA, m ToneMode, workers int) *image.N
 			d := dst[4*x : 4*x+4 : 4*x+4]
 			if s[0] == 0 && s[1] == 0 && s[2] == 0 {
 				d[0], d[1], d[2], d[3] = 0, 0, 0, 255
+				continue
+			}
+			if toneIdentity(m, s[0], s[1], s[2]) {
+				// Tone returns the channels themselves (clipped to
+				// [0, 1]), float32 values: their codes by table.
+				d[0], d[1], d[2], d[3] = tab.code8(s[0]), tab.code8(s[1]), tab.code8(s[2]), 255
 				continue
 			}
 			r, g, bl := Tone(m, float64(s[0]), float64(s[1]), float64(s[2]))

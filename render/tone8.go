@@ -1,0 +1,89 @@
+package render
+
+import (
+	"math"
+	"sync"
+)
+
+// The 8-bit sRGB code of a buffer value, by table.
+//
+// code8Exact(v) = uint8(encode(v)·255 + 0.5) for v in [0, 1] is what every
+// 8-bit output stores. encode is the interpolated sRGB table above; it is
+// non-decreasing in v (TestCode8Exhaustive checks every float32 in [0, 1]),
+// so each code c ≥ 1 begins at one float32 threshold. A pixel whose tone
+// map is the identity (every channel ≤ 1 and, for ToneShoulder, luminance
+// ≤ ShoulderKnee: the diffuse light and dim stars, nearly every lit pixel
+// of a frame) holds float32 values, and code8 finds their codes from the
+// float32 bits: the value's exponent and top code8Bits mantissa bits pick a
+// bucket, which holds the code at its start and, when the next code begins
+// inside it, that code's first value. No bucket holds two thresholds: the
+// code rises by at most 255·dE/dv·v·2⁻¹⁰ ≤ 0.12 across a bucket (the sRGB
+// slope times the bucket's width v·2⁻¹⁰), and TestCode8Table checks it.
+// code8 equals code8Exact bit for bit, at about a fifth of its cost.
+const (
+	code8Bits  = 10             // mantissa bits per bucket index
+	code8Shift = 23 - code8Bits // float32 mantissa bits below the index
+	code8Low   = 0x39000000     // float32 bits of 2⁻¹³: below, the code is 0
+	code8One   = 0x3F800000     // float32 bits of 1
+	code8N     = (code8One-code8Low)>>code8Shift + 1
+	code8None  = uint32(math.MaxUint32) // no threshold in the bucket
+)
+
+// code8Tab holds, per bucket, the code at the bucket's first value and the
+// float32 bits of the first value of the next code (code8None if that
+// begins beyond the bucket).
+type code8Tab struct {
+	lo  [code8N]uint8
+	thr [code8N]uint32
+}
+
+var code8Table = sync.OnceValue(buildCode8)
+
+// code8Exact is the 8-bit code of v as the tone map writes it.
+func code8Exact(v float64) uint8 { return uint8(encode(v)*255 + 0.5) }
+
+func buildCode8() *code8Tab {
+	t := new(code8Tab)
+	for k := range code8N {
+		start := uint32(code8Low + k<<code8Shift)
+		end := min(start+1<<code8Shift-1, code8One) // last value of the bucket
+		lo := code8Exact(float64(math.Float32frombits(start)))
+		t.lo[k], t.thr[k] = lo, code8None
+		if code8Exact(float64(math.Float32frombits(end))) == lo {
+			continue
+		}
+		// The first value above lo: binary search over the bucket's bits.
+		a, b := start, end // code(a) = lo < code(b)
+		for b-a > 1 {
+			m := a + (b-a)/2
+			if code8Exact(float64(math.Float32frombits(m))) == lo {
+				a = m
+			} else {
+				b = m
+			}
+		}
+		t.thr[k] = b
+	}
+	return t
+}
+
+// code8 returns code8Exact(pos(min1(v))) for a float32 v: 0 for v ≤ 0 or
+// NaN, 255 for v ≥ 1.
+func (t *code8Tab) code8(v float32) uint8 {
+	if !(v > 0) {
+		return 0
+	}
+	u := math.Float32bits(v)
+	if u >= code8One {
+		return 255
+	}
+	if u < code8Low {
+		return 0
+	}
+	k := (u - code8Low) >> code8Shift
+	c := t.lo[k]
+	if u >= t.thr[k] {
+		c++
+	}
+	return c
+}
