@@ -179,14 +179,15 @@ type nodeVal struct {
 // from the parent's checks (a quarter's centre is its parent's quarter
 // check).
 func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nodeVal, centre *nodeVal) error {
+	corners := [4]knownVal{{x0, y0, v[0].v}, {x1, y0, v[1].v}, {x0, y1, v[2].v}, {x1, y1, v[3].v}}
 	if x1-x0 < 2 || y1-y0 < 2 {
-		return c.exact(x0, x1, y0, y1, lastX, lastY)
+		return c.exact(x0, x1, y0, y1, lastX, lastY, corners[:])
 	}
 	xm, ym := (x0+x1)/2, (y0+y1)/2
 	good := v[0].ok && v[1].ok && v[2].ok && v[3].ok
 	split := max(x1-x0, y1-y0) > smoothMinCell
 	if !good && !split {
-		return c.exact(x0, x1, y0, y1, lastX, lastY)
+		return c.exact(x0, x1, y0, y1, lastX, lastY, corners[:])
 	}
 	var cv [4][3]float64
 	for q := range cv {
@@ -218,7 +219,14 @@ func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nod
 		return nil
 	}
 	if !split {
-		return c.exact(x0, x1, y0, y1, lastX, lastY)
+		// The corners and checks are pixels of the cell: their exact
+		// values are not evaluated again.
+		var known [13]knownVal
+		copy(known[:], corners[:])
+		for q, p := range pts {
+			known[4+q] = knownVal{p[0], p[1], e[q].v}
+		}
+		return c.exact(x0, x1, y0, y1, lastX, lastY, known[:])
 	}
 	cc, t, b, l, r := e[0], e[1], e[2], e[3], e[4]
 	// The quarters' centres ((x0+xm)/2, (y0+ym)/2) … are the checks
@@ -233,6 +241,12 @@ func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nod
 		return err
 	}
 	return c.refine(xm, x1, ym, y1, lastX, lastY, [4]nodeVal{cc, r, b, v[3]}, &e[8])
+}
+
+// knownVal is the exact value of pixel (x, y), already evaluated.
+type knownVal struct {
+	x, y int
+	v    [3]float64
 }
 
 // within reports whether the interpolated value a is within tol of the
@@ -304,25 +318,38 @@ func (c *smoothCellState) interpRow(lf *smoothLeaf, y int) {
 	}
 }
 
-// exact evaluates every pixel of the cell.
-func (c *smoothCellState) exact(x0, x1, y0, y1 int, lastX, lastY bool) error {
+// exact evaluates every pixel of the cell, taking the values of pixels in
+// known (the cell's corners and checks) as they are.
+func (c *smoothCellState) exact(x0, x1, y0, y1 int, lastX, lastY bool, known []knownVal) error {
 	xe, ye := fillEnd(x1, lastX), fillEnd(y1, lastY)
 	for y := y0; y < ye; y++ {
+	pixels:
 		for x := x0; x < xe; x++ {
+			for _, k := range known {
+				if k.x == x && k.y == y {
+					c.put(x, y, k.v)
+					continue pixels
+				}
+			}
 			v, _, err := c.ev(x, y)
 			if err != nil {
 				return err
 			}
-			if v == [3]float64{} {
-				continue
-			}
-			p := c.dst[3*(y*c.w+x) : 3*(y*c.w+x)+3 : 3*(y*c.w+x)+3]
-			p[0] += float32(v[0])
-			p[1] += float32(v[1])
-			p[2] += float32(v[2])
+			c.put(x, y, v)
 		}
 	}
 	return nil
+}
+
+// put adds the exact value v to pixel (x, y).
+func (c *smoothCellState) put(x, y int, v [3]float64) {
+	if v == [3]float64{} {
+		return
+	}
+	p := c.dst[3*(y*c.w+x) : 3*(y*c.w+x)+3 : 3*(y*c.w+x)+3]
+	p[0] += float32(v[0])
+	p[1] += float32(v[1])
+	p[2] += float32(v[2])
 }
 
 // imageCircle is a fisheye's image circle (camera.Projection.ImageCircle),
