@@ -114,6 +114,8 @@ type pixelSolidAngle struct {
 	axis   r3.Vec  // Pinhole, Fisheye: optical axis
 	faces  [6]r3.Vec
 	invK2  float64 // Fisheye: 1/k², k pixels per radian
+	invK   float64 // Fisheye: 1/k
+	cx, cy float64 // Fisheye: the image centre, px
 	lonPix float64 // Equirect: 2π/W
 }
 
@@ -125,7 +127,8 @@ func newPixelSolidAngle(p *camera.Projection) (pixelSolidAngle, error) {
 		s.invF2 = 1 / (f * f)
 	case camera.Fisheye:
 		k := (math.Min(s.w, s.h) / 2) / (p.FieldOfView() * math.Pi / 360)
-		s.invK2 = 1 / (k * k)
+		s.invK2, s.invK = 1/(k*k), 1/k
+		s.cx, s.cy = s.w/2, s.h/2
 	case camera.Equirect:
 		s.lonPix = 2 * math.Pi / s.w
 	case camera.Cube:
@@ -167,12 +170,7 @@ func (s *pixelSolidAngle) at(i, j int, n r3.Vec) float64 {
 		c := r3.Dot(n, s.faces[face])
 		return c * c * c * s.invF2
 	case camera.Fisheye:
-		// r = kα, dA = r dr dφ = k²α dα dφ, dΩ = sin α dα dφ.
-		a := math.Atan2(r3.Norm(r3.Cross(n, s.axis)), r3.Dot(n, s.axis))
-		if a < 1e-8 {
-			return s.invK2
-		}
-		return math.Sin(a) / a * s.invK2
+		return s.fisheye(float64(i)+0.5, float64(j)+0.5)
 	default: // Equirect: lat = (H/2 − y)·π/H, exact over the row.
 		top := (s.h/2 - float64(j)) * math.Pi / s.h
 		bot := (s.h/2 - float64(j) - 1) * math.Pi / s.h
@@ -195,16 +193,25 @@ func (s *pixelSolidAngle) sub(x, y float64, ns int, n r3.Vec) float64 {
 		c := r3.Dot(n, s.faces[face])
 		return c * c * c * s.invF2 * inv * inv
 	case camera.Fisheye:
-		a := math.Atan2(r3.Norm(r3.Cross(n, s.axis)), r3.Dot(n, s.axis))
-		if a < 1e-8 {
-			return s.invK2 * inv * inv
-		}
-		return math.Sin(a) / a * s.invK2 * inv * inv
+		return s.fisheye(x, y) * inv * inv
 	default:
 		top := (s.h/2 - (y - 0.5*inv)) * math.Pi / s.h
 		bot := (s.h/2 - (y + 0.5*inv)) * math.Pi / s.h
 		return s.lonPix * inv * (math.Sin(top) - math.Sin(bot))
 	}
+}
+
+// fisheye returns the Jacobian of the equidistant fisheye at the image
+// position (x, y): r = kα, so dA = r dr dφ = k²α dα dφ and dΩ = sin α dα
+// dφ, and α = r/k from the distance r to the image centre (the direction's
+// angle from the axis, without finding it from the direction).
+func (s *pixelSolidAngle) fisheye(x, y float64) float64 {
+	dx, dy := x-s.cx, y-s.cy
+	a := math.Sqrt(dx*dx+dy*dy) * s.invK
+	if a < 1e-8 {
+		return s.invK2
+	}
+	return math.Sin(a) / a * s.invK2
 }
 
 // AddCMB adds the cosmic microwave background, as seen from the frame's

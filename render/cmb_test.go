@@ -332,3 +332,44 @@ func BenchmarkAddCMB(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(f.W*f.H), "ns/pixel")
 }
+
+// The fisheye's pixel solid angle, found from the distance to the image
+// centre, equals the Jacobian |∂n/∂x × ∂n/∂y| of the projection's own
+// Inverse by central differences (to 1e-6), across the image of a 180°
+// and a 360° fisheye, tilted and not.
+func TestFisheyePixelSolidAngle(t *testing.T) {
+	for _, c := range []struct{ fov, tilt float64 }{{180, 0}, {360, 0}, {180, 35}, {200, -20}} {
+		p := looking(t, camera.Fisheye, 200, 200, c.fov, r3.Unit(r3.Vec{X: 0.2, Y: 1, Z: 0.4}))
+		p.Tilt = c.tilt
+		if err := p.Prepare(); err != nil {
+			t.Fatal(err)
+		}
+		s, err := newPixelSolidAngle(&p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		checked := 0
+		for j := 3; j < 200; j += 7 {
+			for i := 5; i < 200; i += 11 {
+				x, y := float64(i)+0.5, float64(j)+0.5
+				n, ok := p.Inverse(x, y)
+				if !ok || math.Hypot(x-100, y-100) > 97 {
+					continue
+				}
+				const h = 1e-3
+				xp, _ := p.Inverse(x+h, y)
+				xm, _ := p.Inverse(x-h, y)
+				yp, _ := p.Inverse(x, y+h)
+				ym, _ := p.Inverse(x, y-h)
+				want := r3.Norm(r3.Cross(r3.Scale(1/(2*h), r3.Sub(xp, xm)), r3.Scale(1/(2*h), r3.Sub(yp, ym))))
+				if got := s.at(i, j, n); !scalar.EqualWithinRel(got, want, 1e-6) {
+					t.Fatalf("fov %g° tilt %g°, pixel (%d, %d): Ω %.9g sr, want %.9g", c.fov, c.tilt, i, j, got, want)
+				}
+				checked++
+			}
+		}
+		if checked < 300 {
+			t.Fatalf("fov %g°: %d pixels checked", c.fov, checked)
+		}
+	}
+}
