@@ -331,11 +331,11 @@ func seenDiffuse(shipIn camera.Boost, sky UnresolvedSky, temps []float64, np r3.
 
 // diffuseScratch holds one worker's per-component values.
 type diffuseScratch struct {
-	lnT, lnY, lnV, x, y []float64
+	lnT, lnY, x, y []float64
 }
 
 func newDiffuseScratch(k int) *diffuseScratch {
-	return &diffuseScratch{lnT: make([]float64, k), lnY: make([]float64, k), lnV: make([]float64, k),
+	return &diffuseScratch{lnT: make([]float64, k), lnY: make([]float64, k),
 		x: make([]float64, k), y: make([]float64, k)}
 }
 
@@ -417,7 +417,7 @@ func (d *diffuseSampler) pixel(i, j int, sc *diffuseScratch, w []float64) (X, Y,
 			for k, l := range d.lnT {
 				sc.lnT[k] = l + lnD
 			}
-			spectrum.LookupBatch(sc.lnT, sc.lnY, sc.lnV, sc.x, sc.y)
+			spectrum.LookupBatch(sc.lnT, sc.lnY, nil, sc.x, sc.y)
 			var sx, sy, sz float64
 			for k, wk := range w {
 				if wk == 0 {

@@ -230,3 +230,18 @@ func BenchmarkObserveBatch(b *testing.B) {
 	}
 	b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds()/1e6, "Mstars/s")
 }
+
+// LookupBatch without the V band gives the other fields of Lookup bit for
+// bit, inside the table and beyond both ends of it.
+func TestLookupBatchWithoutV(t *testing.T) {
+	lnT := []float64{math.Log(2530), math.Log(40000), math.Log(580), -5, 0.3, 30, math.Log(1e13), math.Inf(1), math.Inf(-1)}
+	n := len(lnT)
+	lnY, x, y := make([]float64, n), make([]float64, n), make([]float64, n)
+	LookupBatch(lnT, lnY, nil, x, y)
+	for k, l := range lnT {
+		s := Lookup(l)
+		if s.LnY != lnY[k] || s.X != x[k] || s.Y != y[k] {
+			t.Errorf("ln T %g: (%v, %v, %v), Lookup (%v, %v, %v)", l, lnY[k], x[k], y[k], s.LnY, s.X, s.Y)
+		}
+	}
+}

@@ -176,18 +176,31 @@ func Lookup(lnT float64) Sample {
 // LookupBatch is Lookup over a slice, in struct-of-arrays form: for each
 // k < len(lnT) it sets lnY[k], lnV[k], x[k], y[k] to the fields of
 // Lookup(lnT[k]) (Lookup is this function on one value). The output
-// slices must be at least as long as lnT. It allocates nothing; the table
+// slices must be at least as long as lnT; lnV may be nil, and then the
+// V band is not computed (the others are unchanged). It allocates nothing; the table
 // is fetched once for the whole slice, so per value it costs less than
 // Lookup.
 func LookupBatch(lnT, lnY, lnV, x, y []float64) {
 	p := getPhot()
 	n := len(lnT)
-	lnY, lnV, x, y = lnY[:n], lnV[:n], x[:n], y[:n]
+	lnY, x, y = lnY[:n], x[:n], y[:n]
+	if lnV == nil {
+		p.batch(lnT, lnY, nil, x, y)
+		return
+	}
+	p.batch(lnT, lnY, lnV[:n], x, y)
+}
+
+// batch is LookupBatch on slices of len(lnT); lnV nil skips the V band.
+func (p *photometry) batch(lnT, lnY, lnV, x, y []float64) {
 	for k, l := range lnT {
 		s := (l - tabLnT0) * tabInvH
 		if !(s >= 0 && s < tabN) {
 			o := p.outside(l)
-			lnY[k], lnV[k], x[k], y[k] = o.LnY, o.LnV, o.X, o.Y
+			lnY[k], x[k], y[k] = o.LnY, o.X, o.Y
+			if lnV != nil {
+				lnV[k] = o.LnV
+			}
 			continue
 		}
 		i := int(s)
@@ -201,7 +214,9 @@ func LookupBatch(lnT, lnY, lnV, x, y []float64) {
 		e := ((1 - z) + z2*(1.0/2-z*(1.0/6))) + z4*((1.0/24-z*(1.0/120))+z2*(1.0/720-z*(1.0/5040)))
 		t2 := t * t
 		lnY[k] = estrin(&c.gy, t, t2) - c.wy*e
-		lnV[k] = estrin(&c.gv, t, t2) - c.wv*e
+		if lnV != nil {
+			lnV[k] = estrin(&c.gv, t, t2) - c.wv*e
+		}
 		x[k] = estrin(&c.cx, t, t2)
 		y[k] = estrin(&c.cy, t, t2)
 	}
