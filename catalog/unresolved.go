@@ -172,7 +172,8 @@ func (u *UnresolvedSky) Depth() float64 { return u.depth }
 func (u *UnresolvedSky) Temperatures() []float64 { return u.temps }
 
 // Dilutions writes W_k(n) for the ICRS unit vector n into w, which must
-// have len(Temperatures()) elements. n need not be exactly unit; a zero
+// have len(Temperatures()) elements. n need not be exactly unit (any
+// length below 10¹⁵⁰ gives its direction's values); a zero
 // vector gives the value at the galactic centre's direction of the grid's
 // origin (l = 0, b = 0). No allocation.
 func (u *UnresolvedSky) Dilutions(n r3.Vec, w []float64) {
@@ -228,7 +229,9 @@ func (u *UnresolvedSky) interp(n r3.Vec, w []float64) {
 	if l < 0 {
 		l += 360
 	}
-	b := math.Atan2(gz, math.Hypot(gx, gy)) * 180 / math.Pi
+	// |n| < 10¹⁵⁰ (Dilutions): the sum of squares cannot overflow, and
+	// math.Hypot's scaling is not needed.
+	b := math.Atan2(gz, math.Sqrt(gx*gx+gy*gy)) * 180 / math.Pi
 	fl := l * unresNL / 360
 	il := int(fl)
 	fl -= float64(il)
