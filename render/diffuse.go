@@ -282,6 +282,13 @@ func prepareDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*diffuseDr
 		sa: &sa, p: &p, fp: fp, mlnD: mlnD, ms: ms,
 	}
 	d.circle.cx, d.circle.cy, d.circle.r, d.circle.ok = p.ImageCircle()
+	// samples never asks for more than one sample per side when even the
+	// largest pixel (sa.max bounds every pixel's solid angle) at the
+	// largest Doppler factor, D = γ(1 + β), with sin θ′ = 1, stays below
+	// both criteria (with room for rounding): then it is not called.
+	gb := boost.GammaBeta()
+	dMax := math.Sqrt(1+gb*gb) + gb
+	d.one = ms == 1 || math.Sqrt(sa.max())*dMax*max(1/fp, gb/mlnD) < 0.999
 	k := f.Scale / math.Pi // buffer luminance per (cd/m² · sr)
 	color := f.Options.Color
 	newEval := func() pixelEval {
@@ -353,6 +360,7 @@ type diffuseSampler struct {
 	fp, mlnD float64
 	ms       int
 	circle   imageCircle // a fisheye's image circle: no light outside it
+	one      bool        // every pixel with a centre direction takes one sample
 }
 
 // samples returns the number of samples per side for the pixel whose centre
@@ -391,7 +399,9 @@ func (d *diffuseSampler) pixel(i, j int, sc *diffuseScratch, w []float64) (X, Y,
 	if ok {
 		n0, dInv0 = d.shipIn.Apply(np)
 		omega0 = d.sa.at(i, j, np)
-		s = d.samples(np, 1/dInv0, omega0)
+		if !d.one {
+			s = d.samples(np, 1/dInv0, omega0)
+		}
 	} else if d.ms > 1 && d.circle.ok && d.circle.meets(i, j, i+1, j+1) {
 		s = d.ms // the rim of a fisheye: some sub-samples may be inside
 	} else {
