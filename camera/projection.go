@@ -416,7 +416,7 @@ func (fr *frame) inverse(kind Kind, width, height int, x, y float64) (r3.Vec, bo
 		return fr.combine(cb*cl, cb*sl, sb), true
 	case Fisheye:
 		dx, dy := x-fr.cx, fr.cy-y
-		s := math.Hypot(dx, dy)
+		s := hypot(dx, dy)
 		th := s / fr.k
 		if th > fr.half {
 			return r3.Vec{}, false
