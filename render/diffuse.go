@@ -85,6 +85,10 @@ type DiffuseOptions struct {
 	// the interpolation, relative to the pixel's largest channel; 0 means
 	// DefaultSmoothTolerance.
 	Tolerance float64
+	// Memo, when not nil, keeps the layer for the next frame with the
+	// same one, which replays it bit for bit (see DiffuseMemo). Layers
+	// averaged over a shutter (AddLinearMotion) do not use it.
+	Memo *DiffuseMemo
 }
 
 // Add adds o's pixels to b's (same size); the Doppler channel is left as
@@ -154,6 +158,11 @@ func AddDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) error {
 	if err != nil {
 		return err
 	}
+	if opt.Memo != nil {
+		if key, ok := memoKey(f, sky, opt); ok {
+			return opt.Memo.draw(d, key)
+		}
+	}
 	return d.draw(d.newEval)
 }
 
@@ -172,9 +181,15 @@ type diffuseDraw struct {
 // draw adds the layer given by newEval (pixelEval per worker) to d.dst:
 // on the adaptive grid, or every pixel exactly.
 func (d *diffuseDraw) draw(newEval func() pixelEval) error {
+	return d.drawRecord(newEval, nil)
+}
+
+// drawRecord is draw, recording the grid's layer in rec when not nil (not
+// with exact).
+func (d *diffuseDraw) drawRecord(newEval func() pixelEval, rec *gridRecord) error {
 	if !d.exact {
 		g := newSmoothGrid(&d.p, d.tol, d.workers)
-		return g.add(d.dst.Pix, newEval)
+		return g.add(d.dst.Pix, newEval, rec)
 	}
 	w, h := d.dst.W, d.dst.H
 	rowErr := make([]error, h)

@@ -164,7 +164,11 @@
 // bolometric surface brightness goes as D⁴ (AddDiffuse; sub-sampled where
 // D or the catalogue-frame footprint changes fast within a pixel). A
 // uniform layer and stars carrying the same flux give the same buffer
-// total. Tone mapping and sRGB encoding follow.
+// total. A DiffuseMemo keeps the layer for the next frame with the same
+// one (a view held on the ship at constant velocity), which replays it bit
+// for bit. Tone mapping and sRGB encoding follow; the 8-bit codes of
+// pixels the tone map leaves as they are come from a table on the float32
+// bits, equal to the computed codes for every value.
 // The overlays (coordinate graticule, the D = 1 circle, the lattice of
 // beacons, markers, star labels and the heads-up display) are drawn on
 // the encoded image by package overlay; they never reach the FITS data.

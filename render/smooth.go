@@ -3,6 +3,7 @@ package render
 import (
 	"math"
 	"sync"
+	"unsafe"
 
 	"github.com/skyframe/skyframe/camera"
 )
@@ -93,11 +94,20 @@ func nodes(a, b int) []int {
 }
 
 // add draws the layer into dst (W×H interleaved RGB) with one pixelEval per
-// worker from newEval. It returns the first error in band order.
-func (g *smoothGrid) add(dst []float32, newEval func() pixelEval) error {
+// worker from newEval. It returns the first error in band order. With rec
+// not nil it also records the layer there (rec.bands, one per band of
+// cells), for replay.
+func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecord) error {
 	rows := nodes(0, g.h)
 	bands := max(1, len(rows)-1)
 	errs := make([]error, bands)
+	if rec != nil {
+		// A record drawn before lends its bands' storage.
+		rec.w, rec.workers = g.w, g.workers
+		if len(rec.bands) != bands {
+			rec.bands = make([]gridBand, bands)
+		}
+	}
 	var leaves sync.Pool // *[]smoothLeaf, one in use per worker
 	parallel(g.workers, bands, func(k int) {
 		ev := newEval()
@@ -107,6 +117,11 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval) error {
 			lp = new([]smoothLeaf)
 		}
 		c := smoothCellState{dst: dst, w: g.w, ev: ev, tol: g.tol, circle: g.circle, leaves: (*lp)[:0]}
+		if rec != nil {
+			c.rec = &rec.bands[k]
+			c.rec.y0, c.rec.ye = y0, fillEnd(y1, k == bands-1)
+			c.rec.exact = c.rec.exact[:0]
+		}
 		defer func() { *lp = c.leaves[:0]; leaves.Put(lp) }()
 		for _, s := range g.segs {
 			cols := nodes(s[0], s[1])
@@ -140,6 +155,8 @@ type smoothCellState struct {
 	// written in order, about four times faster than cell by cell, whose
 	// rows are a frame's width apart.
 	leaves []smoothLeaf
+	// rec, when not nil, records the band's leaves and exact pixels.
+	rec *gridBand
 }
 
 // smoothLeaf is a cell to fill by bilinear interpolation of v (corners
@@ -286,20 +303,29 @@ func fillEnd(a1 int, last bool) int {
 // empties the list. Each pixel is that of interpolating its cell alone
 // (one addition per pixel, so the order of the cells does not matter).
 func (c *smoothCellState) fill(y0, ye int) {
-	for y := y0; y < ye; y++ {
-		for i := range c.leaves {
-			lf := &c.leaves[i]
-			if y < lf.y0 || y >= lf.ye {
-				continue
-			}
-			c.interpRow(lf, y)
-		}
+	fillLeaves(c.dst, c.w, c.leaves, y0, ye)
+	if c.rec != nil {
+		c.rec.leaves = append(c.rec.leaves[:0], c.leaves...)
 	}
 	c.leaves = c.leaves[:0]
 }
 
-// interpRow adds row y of leaf lf's bilinear interpolation to the buffer.
-func (c *smoothCellState) interpRow(lf *smoothLeaf, y int) {
+// fillLeaves adds rows y0 ≤ y < ye of the leaves' interpolation to dst (w
+// pixels wide), row by row.
+func fillLeaves(dst []float32, w int, leaves []smoothLeaf, y0, ye int) {
+	for y := y0; y < ye; y++ {
+		for i := range leaves {
+			lf := &leaves[i]
+			if y < lf.y0 || y >= lf.ye {
+				continue
+			}
+			interpRow(dst, w, lf, y)
+		}
+	}
+}
+
+// interpRow adds row y of leaf lf's bilinear interpolation to dst.
+func interpRow(dst []float32, w int, lf *smoothLeaf, y int) {
 	v := &lf.v
 	ix, iy := 1/float64(lf.x1-lf.x0), 1/float64(lf.y1-lf.y0)
 	ty := float64(y-lf.y0) * iy
@@ -308,7 +334,7 @@ func (c *smoothCellState) interpRow(lf *smoothLeaf, y int) {
 		l[k] = v[0][k] + ty*(v[2][k]-v[0][k])
 		d[k] = v[1][k] + ty*(v[3][k]-v[1][k]) - l[k]
 	}
-	row := c.dst[3*(y*c.w+lf.x0) : 3*(y*c.w+lf.xe)]
+	row := dst[3*(y*w+lf.x0) : 3*(y*w+lf.xe)]
 	l0, l1, l2, d0, d1, d2 := l[0], l[1], l[2], d[0], d[1], d[2]
 	for k, n := 0, 0; k+2 < len(row); k, n = k+3, n+1 {
 		tx := float64(n) * ix
@@ -346,10 +372,64 @@ func (c *smoothCellState) put(x, y int, v [3]float64) {
 	if v == [3]float64{} {
 		return
 	}
-	p := c.dst[3*(y*c.w+x) : 3*(y*c.w+x)+3 : 3*(y*c.w+x)+3]
-	p[0] += float32(v[0])
-	p[1] += float32(v[1])
-	p[2] += float32(v[2])
+	e := exactPix{i: int32(y*c.w + x), v: [3]float32{float32(v[0]), float32(v[1]), float32(v[2])}}
+	e.add(c.dst)
+	if c.rec != nil {
+		c.rec.exact = append(c.rec.exact, e)
+	}
+}
+
+// exactPix is an exactly evaluated pixel: its index and its value as
+// added to the buffer.
+type exactPix struct {
+	i int32
+	v [3]float32
+}
+
+func (e exactPix) add(dst []float32) {
+	p := dst[3*e.i : 3*e.i+3 : 3*e.i+3]
+	p[0] += e.v[0]
+	p[1] += e.v[1]
+	p[2] += e.v[2]
+}
+
+// gridRecord is a layer as the adaptive grid drew it: per band of cells
+// its interpolated leaves and its exact pixels. Replaying it adds the same
+// value to each pixel as drawing did.
+type gridRecord struct {
+	w, workers int
+	bands      []gridBand
+}
+
+// gridBand is one band's part of a gridRecord: rows y0 ≤ y < ye.
+type gridBand struct {
+	y0, ye int
+	leaves []smoothLeaf
+	exact  []exactPix
+}
+
+// bytes returns the record's size.
+func (r *gridRecord) bytes() int64 {
+	n := int64(0)
+	for _, b := range r.bands {
+		n += int64(len(b.leaves))*int64(unsafe.Sizeof(smoothLeaf{})) + int64(len(b.exact))*int64(unsafe.Sizeof(exactPix{}))
+	}
+	return n
+}
+
+// replay adds the recorded layer to dst (of the recorded width), bands in
+// parallel on workers goroutines (0: the recorded count).
+func (r *gridRecord) replay(dst []float32, workers int) {
+	if workers <= 0 {
+		workers = r.workers
+	}
+	parallel(workers, len(r.bands), func(k int) {
+		b := &r.bands[k]
+		for _, e := range b.exact {
+			e.add(dst)
+		}
+		fillLeaves(dst, r.w, b.leaves, b.y0, b.ye)
+	})
 }
 
 // imageCircle is a fisheye's image circle (camera.Projection.ImageCircle),
