@@ -27,7 +27,7 @@ func cpuSeconds() float64 {
 // lines and loads it. The ship starts 1 au from the Sun (as in
 // samples/plan.toml) and cruises at 0.5 c toward RA 0, Dec 0, so frames
 // show the unresolved light, the Sun and aberration.
-func benchLoad(b *testing.B, camera string) *Job {
+func benchLoad(b testing.TB, camera string) *Job {
 	b.Helper()
 	dir := b.TempDir()
 	plan := filepath.Join(dir, "plan.toml")
@@ -51,14 +51,22 @@ func benchLoad(b *testing.B, camera string) *Job {
 // compression + sidecar, atomically) successive frames of a fisheye flight
 // of the built-in sky with its unresolved light, as Job.Run does:
 // catalogue depth, stars, the diffuse layer, tone map, mean luminance,
-// encode, files.
+// encode, files. With the camera held on the ship (4096, 8192) every frame
+// after the first replays the unresolved layer (render.DiffuseMemo); with
+// it panning (4096pan: 15°/s, the shutter closed) every frame draws it.
 func BenchmarkFlightFrameFisheye(b *testing.B) {
-	for _, size := range []int{4096, 8192} {
-		b.Run(fmt.Sprint(size), func(b *testing.B) {
+	const pan = "\nshutter = 0\n[[camera.look]]\nat = 0\nlook = \"0,-10\"\n[[camera.look]]\nat = 2\nlook = \"0,10\""
+	for _, c := range []struct {
+		name string
+		size int
+		look string
+	}{{"4096", 4096, ""}, {"8192", 8192, ""}, {"4096pan", 4096, pan}} {
+		size := c.size
+		b.Run(c.name, func(b *testing.B) {
 			if testing.Short() && size > 4096 {
 				b.Skip("8192² frames: not with -short")
 			}
-			j := benchLoad(b, fmt.Sprintf("projection = \"fisheye\"\nsize = \"%dx%d\"", size, size))
+			j := benchLoad(b, fmt.Sprintf("projection = \"fisheye\"\nsize = \"%dx%d\"%s", size, size, c.look))
 			enc := &imgfile.PNGEncoder{}
 			n := j.Plan.Frames()
 			if _, err := j.RenderFrame(nil, enc, 0); err != nil { // the maps and pools, once

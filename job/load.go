@@ -14,6 +14,7 @@ import (
 	"github.com/skyframe/skyframe/flight"
 	"github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/names"
+	"github.com/skyframe/skyframe/render"
 	"github.com/skyframe/skyframe/scene"
 	"github.com/skyframe/skyframe/sky"
 )
@@ -147,6 +148,12 @@ func Load(ctx context.Context, planPath string, f LoadOptions) (*Job, []string, 
 		return nil, notes, err
 	}
 	job.UnresolvedFollows = src.BuiltIn() && job.Layers.Unresolved != nil && plan.Frame.UnresolvedDepth == nil
+	if job.Layers.Unresolved != nil {
+		// Frames of a view held on the ship at constant velocity and
+		// exposure share their unresolved layer: drawn once, replayed
+		// bit for bit (render.DiffuseMemo).
+		job.Layers.DiffuseOptions.Memo = new(render.DiffuseMemo)
+	}
 	job.Credit = scene.NamesCredit(index, scene.LabelsShown(job.Layers.Labels))
 	if fs0, err := plan.FrameState(0); err == nil {
 		if p0, err := job.Projection(fs0); err == nil {

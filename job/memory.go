@@ -22,6 +22,7 @@ const PreparedBytesPerStar = 40
 // and the PNG encoder, and the renderer's working set; then what only a
 // flight holds: the accumulator of the sub-frames a shutter angle above 0
 // averages (one more buffer beside the sub-frame being rendered), the
+// unresolved layer kept for the next frame (render.MemoLimit), the
 // OpenEXR file's contributions kept apart (one buffer each: stars and
 // every linear layer), and the other encoded outputs (FITS: the float32
 // data; OpenEXR: its channels as float32 and their encoding; the overlay
@@ -43,6 +44,9 @@ func (j *Job) MemoryNeed() render.MemoryNeed {
 	const rgb = 12 // float32 RGB bytes per pixel
 	if fr.Shutter > 0 {
 		m.Buffer += px * rgb
+	}
+	if j.Layers.Unresolved != nil {
+		m.Buffer += render.MemoLimit(fr.Width, fr.Height) // the layer kept for the next frame
 	}
 	if o.FITS {
 		m.Files += px*rgb + 2880

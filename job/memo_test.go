@@ -1,0 +1,55 @@
+package job
+
+import (
+	"bytes"
+	"os"
+	"path/filepath"
+	"testing"
+
+	"github.com/skyframe/skyframe/imgfile"
+)
+
+// A cruise held on one view (0.5 c, the camera fixed on the ship) draws the
+// unresolved layer once: later frames replay it, and their files (PNG,
+// FITS, sidecar) are byte-identical to the frames of the same plan drawn
+// without the memo. Frames 2048² fisheye (smaller frames' layers exceed
+// render.MemoBytesPerPixel and are drawn anew).
+func TestFlightDiffuseMemo(t *testing.T) {
+	if testing.Short() {
+		t.Skip("2048² frames: not with -short")
+	}
+	cam := "projection = \"fisheye\"\nsize = \"2048x2048\""
+	with, without := benchLoad(t, cam), benchLoad(t, cam)
+	if with.Layers.DiffuseOptions.Memo == nil {
+		t.Fatal("the job has no memo for its unresolved layer")
+	}
+	without.Layers.DiffuseOptions.Memo = nil
+	for _, j := range []*Job{with, without} {
+		j.Plan.Output.FITS = true
+	}
+	enc := &imgfile.PNGEncoder{}
+	for _, i := range []int{3, 4, 5} {
+		for _, j := range []*Job{with, without} {
+			if _, err := j.RenderFrame(nil, enc, i); err != nil {
+				t.Fatal(err)
+			}
+		}
+		p := with.Files(i)
+		for _, name := range []string{p.PNG, p.FITS, p.Sidecar} {
+			a, err := os.ReadFile(filepath.Join(with.OutDir, name))
+			if err != nil {
+				t.Fatal(err)
+			}
+			b, err := os.ReadFile(filepath.Join(without.OutDir, name))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !bytes.Equal(a, b) {
+				t.Errorf("frame %d: %s differs with the memo", i, name)
+			}
+		}
+	}
+	if n := with.Layers.DiffuseOptions.Memo.Replays(); n != 2 {
+		t.Errorf("%d replays over 3 frames, want 2", n)
+	}
+}
