@@ -119,8 +119,9 @@ func BuiltIn() *Stars {
 // each component's density equals its share of φ at the Sun (Jurić et al.
 // 2008, ApJ 673, 864 for the disk and halo parameters [mem]; Bland-Hawthorn &
 // Gerhard 2016, ARA&A 54, 529 for R0 and z⊙ [mem]). Light is dimmed by a
-// dust layer (1.1 mag/kpc in the plane, scale height 112.5 pc) and reddened by
-// E(B−V) = A_V/3.1 (Cardelli, Clayton & Mathis 1989). There is no bulge,
+// dust disk (1.1 mag/kpc in the plane at the Sun, scale height 112.5 pc,
+// scale length 2.34 kpc, so that the dust thickens toward the inner Galaxy)
+// and reddened by E(B−V) = A_V/3.1 (Cardelli, Clayton & Mathis 1989). There is no bulge,
 // no spiral structure and no clusters: to V = 8 the bulge contributes no
 // stars and the rest only modulates the counts.
 //
@@ -487,7 +488,7 @@ func (g *synthGen) lineOfSight(cbl, sb float64) {
 		r3 := r * r * r
 		dust := 0.0
 		if g.dust {
-			dust = synthDustA0 / 1000 * dustSun * ipow(e, synthDustN)
+			dust = synthDustA0 / 1000 * dustSun * ipow(e, synthDustN) * ipow(er, synthDustLN)
 		}
 		if k == 0 {
 			for i := range rho {

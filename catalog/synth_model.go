@@ -23,12 +23,18 @@ const (
 	synthHaloQ    = 0.64                      // halo axis ratio c/a (ibid.: 0.64) [mem]
 	synthHaloCore = 500.0                     // halo core radius, pc, keeps ρ finite at the centre [cal]
 
-	// Dust: a thin exponential layer with extinction a0 per kpc in the plane.
-	// About 1 mag/kpc in V near the plane is the usual textbook figure
-	// (e.g. Binney & Merrifield 1998, §3.7) [mem]; the scale height of the dust
-	// is ~100–130 pc (Marshall et al. 2006, A&A 453, 635: 125 pc) [mem].
-	synthDustA0 = 1.1                     // mag per kpc at the plane [cal, close to the textbook 1 mag/kpc]
-	synthDustH  = synthHBase / synthDustN // 112.5 pc [mem, rounded]
+	// Dust: a thin exponential disk with extinction a0 per kpc in the plane
+	// at the Sun. About 1 mag/kpc in V near the plane is the usual textbook
+	// figure (e.g. Binney & Merrifield 1998, §3.7) [mem]; the scale height of
+	// the dust is ~100–130 pc (Marshall et al. 2006, A&A 453, 635: 125 pc)
+	// [mem]; its scale length about 0.28 R⊙ (Drimmel & Spergel 2001, ApJ
+	// 556, 181) [mem], 2.3 kpc at R0. Without the radial fall-off (a layer
+	// of the same density everywhere) the inner Galaxy is seen through too
+	// little dust and the model's brightest Milky Way, stars fainter than
+	// V = 6 near l = 0°, b = 3°, was 756 S10, against at most 400 published
+	// (Cinzano 1998, TestUnresolvedPublished); with it, 350.
+	synthDustA0 = 1.1                     // mag per kpc at the plane at the Sun [cal, close to the textbook 1 mag/kpc]
+	synthDustH  = synthHBase / synthDustN // 112.5 pc [mem, rounded]; scale length synthLBase/synthDustLN
 	// Ratio of total to selective extinction R_V = A_V/E(B−V) = 3.1
 	// (Cardelli, Clayton & Mathis 1989, ApJ 345, 245) [pub].
 	synthRV = 3.1
@@ -104,12 +110,13 @@ var synthRGBBV = [...]float64{1.62, 1.58, 1.50, 1.35, 1.15, 1.00, 0.95, 0.85}
 var synthThinH = [...]float64{50, 60, 90, 120, 180, 300}
 var synthThinN = [...]int{36, 30, 20, 15, 10, 6}
 
-// The two radial scale lengths are likewise synthLBase/n: thin 46800/18 =
-// 2600 pc, thick 46800/13 = 3600 pc.
+// The radial scale lengths are likewise synthLBase/n: thin 46800/18 =
+// 2600 pc, thick 46800/13 = 3600 pc, dust 46800/20 = 2340 pc.
 const (
 	synthLBase   = 46800.0
 	synthThinLN  = 18
 	synthThickLN = 13
+	synthDustLN  = 20 // dust: 2340 pc [mem: 0.28 R⊙ at R0 = 8.2 kpc]
 )
 
 const (

@@ -160,6 +160,24 @@ func TestUnresolvedSplitConservesLight(t *testing.T) {
 // century old, rounded to the magnitude, and the Sun sits a little above
 // the plane; it is checked within 30 % (0.28 mag).
 //
+// Poles, plane and the brightest Milky Way [pub]: P. Cinzano,
+// "Inquinamento luminoso e protezione del cielo notturno" (Istituto Veneto
+// di Scienze, Lettere ed Arti; online edition of 3 December 1998), Table
+// 2.9 (http://lightpollution.it/cinzano/libro/node47.html), gives the
+// natural sky brightness by source in S10,vis: integrated starlight
+// ("luce stellare int.") 110 typical at the zenith, over the range
+// 30–400, 30 at its minimum; §2.5.1 (node48.html) says this is the light
+// of the stars too faint to be seen with the naked eye, least toward the
+// galactic poles and greatest in the brightest parts of the Milky Way. So
+// for the stars fainter than V = 6 the model's darkest direction (a
+// galactic pole) is checked against 30 S10 and its brightest (near the
+// galactic centre) against 400 S10, each within 30 % (the table's values
+// are rounded typical figures), their ratio — the contrast of the Milky
+// Way's brightest parts against the poles — against 400/30 within 30 %,
+// and the whole galactic plane (b = 0, every longitude) against the range
+// 30–400. (Before the model's dust thickened toward the inner Galaxy, its
+// brightest point was 756 S10: 1.9 times the table's maximum.)
+//
 // Galactic poles and plane [mem]: the V-band integrated starlight of
 // Leinert et al. 1998, A&AS 127, 1, §10 (tables after Roach & Megill 1961
 // and Toller 1981). The stored copy of §10
@@ -212,6 +230,33 @@ func TestUnresolvedPublished(t *testing.T) {
 	}
 	if c := plane / pole; c < 3 || c > 20 {
 		t.Errorf("plane/pole contrast %.1f, want 3–20 (Leinert et al. 1998; Masana et al. 2021 [mem])", c)
+	}
+	// Cinzano 1998, Table 2.9: stars fainter than the naked eye.
+	eye := unresMust(t, 6)
+	lo, hi := math.Inf(1), 0.0
+	var hiL, hiB float64
+	for b := -90.0; b <= 90; b += 0.5 {
+		for l := 0.0; l < 360; l += 1 {
+			v := eye.VRadiance(galDir(l, b)) / s10PerSr
+			lo = math.Min(lo, v)
+			if v > hi {
+				hi, hiL, hiB = v, l, b
+			}
+		}
+	}
+	t.Logf("stars fainter than V = 6: darkest %.1f S10, brightest %.1f S10 at (l, b) = (%g°, %g°), ratio %.1f (Cinzano 1998: 30, 400, 13.3)", lo, hi, hiL, hiB, hi/lo)
+	for _, c := range []struct {
+		what      string
+		have, pub float64
+	}{{"darkest direction", lo, 30}, {"brightest direction", hi, 400}, {"brightest/darkest", hi / lo, 400.0 / 30}} {
+		if math.Abs(c.have/c.pub-1) > 0.3 {
+			t.Errorf("stars fainter than V = 6, %s: %.1f, want %.1f ± 30 %% (Cinzano 1998, Table 2.9)", c.what, c.have, c.pub)
+		}
+	}
+	for l := 0.0; l < 360; l += 1 {
+		if v := eye.VRadiance(galDir(l, 0)) / s10PerSr; v < 30 || v > 400 {
+			t.Errorf("stars fainter than V = 6 on the galactic plane at l = %g°: %.1f S10, want 30–400 (Cinzano 1998, Table 2.9)", l, v)
+		}
 	}
 	// The galactic centre's side of the plane is brighter than the
 	// anticentre's (the disks are exponential in radius) [cp].
