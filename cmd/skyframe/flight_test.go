@@ -692,3 +692,62 @@ func TestFlightWorkersCapCPUs(t *testing.T) {
 		}
 	}
 }
+
+// procsWriter records GOMAXPROCS at every write: what the command printed
+// while its work ran.
+type procsWriter struct {
+	bytes.Buffer
+	procs []int
+}
+
+func (w *procsWriter) Write(p []byte) (int, error) {
+	w.procs = append(w.procs, runtime.GOMAXPROCS(0))
+	return w.Buffer.Write(p)
+}
+
+// still --workers N runs the still on N CPUs (GOMAXPROCS while it prints
+// its report, restored after) and writes the same bytes as with all CPUs;
+// a negative count is a usage error naming the flag.
+func TestStillWorkers(t *testing.T) {
+	if runtime.GOMAXPROCS(0) < 2 {
+		t.Skip("one CPU: nothing to cap")
+	}
+	before := runtime.GOMAXPROCS(0)
+	dir := t.TempDir()
+	files := map[string][]byte{}
+	for _, c := range []struct {
+		workers string
+		want    int
+	}{{"1", 1}, {"0", before}} {
+		out := filepath.Join(dir, "w"+c.workers+".png")
+		var stdout procsWriter
+		var stderr bytes.Buffer
+		e := &env{ctx: context.Background(), stdout: &stdout, stderr: &stderr, getenv: os.Getenv}
+		if code := e.dispatch([]string{"still", "--size", "320x180", "--workers", c.workers, "-o", out, "--fits", out + ".fits"}); code != 0 {
+			t.Fatalf("--workers %s: exit %d: %s", c.workers, code, stderr.String())
+		}
+		if len(stdout.procs) == 0 {
+			t.Fatalf("--workers %s: nothing printed", c.workers)
+		}
+		for _, p := range stdout.procs {
+			if p != c.want {
+				t.Errorf("--workers %s: GOMAXPROCS %d while the still ran, want %d", c.workers, p, c.want)
+			}
+		}
+		if got := runtime.GOMAXPROCS(0); got != before {
+			t.Errorf("--workers %s: GOMAXPROCS %d after the run, want it restored to %d", c.workers, got, before)
+		}
+		for _, ext := range []string{"", ".fits"} {
+			b, err := os.ReadFile(out + ext)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if prev, ok := files[ext]; ok && !bytes.Equal(prev, b) {
+				t.Errorf("%q: --workers 1 and 0 write different bytes", ext)
+			}
+			files[ext] = b
+		}
+	}
+	code, msg := hostileRun(t, "still", "--workers", "-2", "-o", filepath.Join(dir, "bad.png"))
+	hostileExpect(t, code, msg, []string{"--workers -2"}, dir, "w0.png", "w0.png.fits", "w0.json", "w1.png", "w1.png.fits", "w1.json")
+}

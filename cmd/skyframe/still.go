@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"time"
 
@@ -73,6 +74,7 @@ type stillFlags struct {
 	overlayLayer          string
 	noSidecar             bool
 	memory                string
+	workers               int
 }
 
 func (f *stillFlags) register(fs *pflag.FlagSet) {
@@ -84,6 +86,7 @@ func (f *stillFlags) register(fs *pflag.FlagSet) {
 	fs.StringVar(&f.overlayLayer, "overlay-layer", "", "write the overlays alone to this file as an RGBA PNG with a transparent background (sRGB, straight alpha), for a compositor; the --output PNG then holds the sky without them")
 	fs.BoolVar(&f.noSidecar, "no-sidecar", false, "do not write the JSON sidecar")
 	fs.StringVar(&f.memory, "memory", "1GiB", "memory budget for the render; a cache-file catalogue (skyframe catalog pack) with more stars than one chunk this budget allows is read from disk chunk by chunk instead of loaded whole, with the same result")
+	fs.IntVar(&f.workers, "workers", 0, "CPUs the still uses: at most N goroutines running at once, for the sky, the render, the layers and the encoders (0: all CPUs; output does not depend on it)")
 }
 
 // checkFrameFlags checks every frame option given on the command line
@@ -114,6 +117,14 @@ func runStill(e *env, args []string) error {
 	}
 	if err := checkFrameFlags(fs, &f.frame); err != nil {
 		return err
+	}
+	if f.workers < 0 {
+		return usagef("--workers %d: want N ≥ 0", f.workers)
+	}
+	if f.workers > 0 {
+		// Everything a still runs in parallel sizes itself by GOMAXPROCS,
+		// as a flight's does (flight --workers).
+		defer runtime.GOMAXPROCS(runtime.GOMAXPROCS(f.workers))
 	}
 	outputs := scene.OutputPaths{PNG: f.output, FITS: f.fits, Sidecar: f.sidecar, EXR: f.exr, Overlay: f.overlayLayer}
 	if !f.noSidecar && outputs.Sidecar == "" {
