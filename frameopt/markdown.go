@@ -27,6 +27,7 @@ var Elsewhere = []struct{ Flag, Plan string }{
 	{"no-sidecar", "output.sidecar = false"},
 	{"overlay-layer", "output.overlay_layer = true"},
 	{"memory", "— (still only: flights hold the catalogue in memory)"},
+	{"workers", "— (flight --workers on the command line)"},
 }
 
 // Markdown returns the README's table of frame options: flag, plan key,
