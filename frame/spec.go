@@ -156,7 +156,7 @@ func (s *Spec) FITSCards(f *render.Frame) ([]imgfile.Card, error) {
 		Position: [3]float64{pos.X, pos.Y, pos.Z}, Exposure: f.Options.Exposure, Limit: limit,
 		FWHM: f.Options.FWHM, Beaming: s.Beaming.String(), Projection: s.Proj.Kind.String(),
 		FOV: s.Proj.FieldOfView(), Tilt: s.Proj.Tilt, Catalog: s.Stars.SourceName(), Stars: f.Stats.Drawn,
-		ScalePerLux: f.Scale, White: f.Options.Color.White.String(), Layers: s.Layers.Layers.Names(),
+		ScalePerLux: f.Scale, ExtendedScale: f.Options.ExtendedScale, White: f.Options.Color.White.String(), Layers: s.Layers.Layers.Names(),
 	}
 	cards, err := meta.Cards()
 	if err != nil {

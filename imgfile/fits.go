@@ -547,6 +547,10 @@ type FITSMeta struct {
 	// illuminance in lux that the light falling in that pixel gives (for
 	// the G plane and a white source; R, G and B are linear sRGB).
 	ScalePerLux float64
+	// ExtendedScale, when positive and not 1, is the factor on extended
+	// light (star discs, CMB, unresolved starlight) against ScalePerLux in
+	// the data, as a reduced preview draws it (EXTSCALE).
+	ExtendedScale float64
 	// White names the white point the colours are adapted to (WHITEPT).
 	White string
 	// Layers lists the linear contributions summed in the data, e.g.
@@ -607,6 +611,9 @@ func (m FITSMeta) Cards() ([]Card, error) {
 	}
 	if m.ScalePerLux > 0 {
 		c = append(c, Card{"LUXSCALE", m.ScalePerLux, "[1/lx] value per lux: lux = value / LUXSCALE"})
+	}
+	if m.ExtendedScale > 0 && m.ExtendedScale != 1 {
+		c = append(c, Card{"EXTSCALE", m.ExtendedScale, "extended light x this (a preview)"})
 	}
 	str("WHITEPT", m.White, "white point the sRGB is adapted to")
 	if len(m.Layers) > 0 {

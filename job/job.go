@@ -61,6 +61,10 @@ type Job struct {
 	Shard        flight.Shard
 	Frame        frameopt.Frame // the plan's frame options, parsed (a preview's size)
 	Every        int            // every Nth frame only (Preview); 0 or 1: all
+	// ExtendedScale is a preview's render.Options.ExtendedScale: the
+	// solid angle of a full frame's pixel over a preview pixel's (Preview);
+	// 0 for full frames.
+	ExtendedScale float64
 	// Workers bounds the goroutines per frame for rendering and encoding
 	// (0: all CPUs); the bytes written do not depend on it.
 	Workers int
@@ -188,14 +192,42 @@ func SignalRates(tr *flight.Trajectory, s flight.State) (home, dest float64) {
 // (frames keep their numbers). Its sidecars record a hash of their own, so
 // resume and verify in the preview directory never take a preview frame
 // for a full one, or one preview for another. Call it after CheckCamera.
+//
+// Point stars keep their peak in a preview (the PSF's width is in pixels),
+// and extended light — the Sun's and the destination's discs, the CMB, the
+// unresolved starlight — keeps the full frame's value per pixel: its light
+// is scaled by the ratio of the pixels' solid angles (ExtendedScale), so a
+// preview shows what the frames will, not the Milky Way and discs 1/scale²
+// times brighter.
 func (j *Job) Preview(scale float64, every int) {
 	fr := &j.Frame
+	w0, h0 := fr.Width, fr.Height
 	fr.Width = max(1, int(math.Round(float64(fr.Width)*scale)))
 	fr.Height = max(1, int(math.Round(float64(fr.Height)*scale)))
 	if fr.Kind == camera.Cube {
 		fr.Width = 6 * fr.Height
 	}
+	j.ExtendedScale = pixelAreaRatio(fr.Kind, w0, h0, fr.Width, fr.Height)
 	j.Hash = SHA256([]byte(fmt.Sprintf("%s preview scale %v every %d", j.Hash, scale, every)))
+}
+
+// pixelAreaRatio returns the solid angle of a pixel of a w0×h0 frame of
+// the given kind over that of a w×h one at the same field (1/16 for a
+// quarter-size preview): the pixel scale goes as 1/W for a pinhole (its
+// field is horizontal), 1/min(W, H) for a fisheye (its circle fits the
+// shorter side), 1/H for a cube strip (faces H pixels square) and as 1/W
+// by 1/H for an equirect frame.
+func pixelAreaRatio(kind camera.Kind, w0, h0, w, h int) float64 {
+	r := func(a0, a int) float64 { return float64(a) / float64(a0) }
+	switch kind {
+	case camera.Pinhole:
+		return r(w0, w) * r(w0, w)
+	case camera.Fisheye:
+		return r(min(w0, h0), min(w, h)) * r(min(w0, h0), min(w, h))
+	case camera.Cube:
+		return r(h0, h) * r(h0, h)
+	}
+	return r(w0, w) * r(h0, h)
 }
 
 // CheckCamera parses the plan's frame options into j.Frame (and the
@@ -580,9 +612,8 @@ func (j *Job) RenderLinear(prep *render.Prepared, fs flight.FrameState, obs came
 func (j *Job) renderLinear(dst *render.Frame, prep *render.Prepared, fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, frame.Layers, []render.Contribution, Exposure, error) {
 	fr := j.Frame
 	keep := j.Plan.Output.EXR
-	opt := render.Options{Projection: proj, Observer: obs, Beaming: fr.Beaming, FWHM: fr.FWHM,
-		Exposure: fs.Camera.Exposure, Limit: fr.Limit, Color: spectrum.ColorOptions{White: fr.White}, Workers: j.Workers,
-		Doppler: keep && (j.EXR.Layers == nil || slices.Contains(j.EXR.Layers, frame.EXRDoppler))}
+	opt := j.instantOptions(fs, obs, proj)
+	opt.Doppler = keep && (j.EXR.Layers == nil || slices.Contains(j.EXR.Layers, frame.EXRDoppler))
 	ex, err := PlanExposure(j.Plan, fs.Index, fr.Shutter, fr.FWHM, j.Projection)
 	if err != nil {
 		return nil, frame.Layers{}, nil, ex, err
@@ -702,7 +733,8 @@ func (j *Job) frameSky(prep *render.Prepared, i int, fs flight.FrameState, obs c
 func (j *Job) instantOptions(fs flight.FrameState, obs camera.Observer, proj camera.Projection) render.Options {
 	fr := j.Frame
 	return render.Options{Projection: proj, Observer: obs, Beaming: fr.Beaming, FWHM: fr.FWHM,
-		Exposure: fs.Camera.Exposure, Limit: fr.Limit, Color: spectrum.ColorOptions{White: fr.White}, Workers: j.Workers}
+		Exposure: fs.Camera.Exposure, Limit: fr.Limit, Color: spectrum.ColorOptions{White: fr.White}, Workers: j.Workers,
+		ExtendedScale: j.ExtendedScale}
 }
 
 // finitePtr returns &v, or nil for NaN and ±Inf.

@@ -252,8 +252,8 @@ func AddCMB(f *Frame, opt CMBOptions) error {
 	if p.Width != f.W || p.Height != f.H {
 		return fmt.Errorf("%w: projection %d×%d does not match the buffer %d×%d", ErrCMB, p.Width, p.Height, f.W, f.H)
 	}
-	if !(f.Scale > 0) || math.IsInf(f.Scale, 0) {
-		return fmt.Errorf("%w: frame Scale %g, want finite > 0", ErrCMB, f.Scale)
+	if k := f.extended(); !(k > 0) || math.IsInf(k, 0) {
+		return fmt.Errorf("%w: frame Scale %g × ExtendedScale %g, want finite > 0", ErrCMB, f.Scale, f.Options.ExtendedScale)
 	}
 	sa, err := newPixelSolidAngle(&p)
 	if err != nil {
@@ -268,7 +268,7 @@ func AddCMB(f *Frame, opt CMBOptions) error {
 		workers = runtime.GOMAXPROCS(0)
 	}
 	// Buffer luminance per (cd/m² · sr): Scale, and L = e^LnY/π.
-	k := f.Scale / math.Pi
+	k := f.extended() / math.Pi
 	// Pixels whose luminance would be below the smallest normal float32
 	// (e^−87.3) even at the largest pixel solid angle skip the exponential.
 	lnMin := -87.3 - math.Log(k*sa.max())

@@ -273,8 +273,8 @@ func prepareDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*diffuseDr
 			return nil, fmt.Errorf("%w: Into is %d×%d, the frame %d×%d", ErrDiffuse, dst.W, dst.H, f.W, f.H)
 		}
 	}
-	if !(f.Scale > 0) || math.IsInf(f.Scale, 0) {
-		return nil, fmt.Errorf("%w: frame Scale %g, want finite > 0", ErrDiffuse, f.Scale)
+	if k := f.extended(); !(k > 0) || math.IsInf(k, 0) {
+		return nil, fmt.Errorf("%w: frame Scale %g × ExtendedScale %g, want finite > 0", ErrDiffuse, f.Scale, f.Options.ExtendedScale)
 	}
 	sa, err := newPixelSolidAngle(&p)
 	if err != nil {
@@ -304,7 +304,7 @@ func prepareDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*diffuseDr
 	gb := boost.GammaBeta()
 	dMax := math.Sqrt(1+gb*gb) + gb
 	d.one = ms == 1 || math.Sqrt(sa.max())*dMax*max(1/fp, gb/mlnD) < 0.999
-	k := f.Scale / math.Pi // buffer luminance per (cd/m² · sr)
+	k := f.extended() / math.Pi // buffer luminance per (cd/m² · sr)
 	color := f.Options.Color
 	newEval := func() pixelEval {
 		// Scratch per worker: rows run concurrently.

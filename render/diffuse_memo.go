@@ -82,7 +82,7 @@ func memoKey(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (diffuseKey, bool)
 	}
 	p := f.Options.Projection
 	return diffuseKey{sky: sky, boost: f.Options.Observer.Boost, kind: p.Kind, w: p.Width, h: p.Height,
-		fov: p.FOV, tilt: p.Tilt, orient: p.Orient, scale: f.Scale, color: f.Options.Color,
+		fov: p.FOV, tilt: p.Tilt, orient: p.Orient, scale: f.extended(), color: f.Options.Color,
 		fp: opt.Footprint, mlnD: opt.MaxLnD, ms: opt.MaxSamples, tol: opt.Tolerance}, true
 }
 

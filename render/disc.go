@@ -111,7 +111,7 @@ func drawDiscs(f *Frame, stars []discStar, workers int) error {
 	}
 	boost := f.Options.Observer.Boost
 	ppr := pixelsPerRadian(&p)
-	k := f.Scale / math.Pi
+	k := f.extended() / math.Pi
 	for _, ds := range stars {
 		if ds.path != nil {
 			if moved, err := drawMovingDisc(f, &p, &sa, &ds, workers); err != nil || moved {

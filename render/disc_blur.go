@@ -154,7 +154,7 @@ func drawMovingDisc(f *Frame, p *camera.Projection, sa *pixelSolidAngle, ds *dis
 	if x0 >= x1 || y0 >= y1 {
 		return true, nil
 	}
-	k := f.Scale / math.Pi
+	k := f.extended() / math.Pi
 	color := f.Options.Color
 	inv, fs := 1/float64(s), float64(s)
 	rows := make([][]discSample, discBand)

@@ -88,6 +88,16 @@ type Options struct {
 	// Brightest is how many of the brightest drawn stars Stats lists:
 	// 0 means DefaultBrightest, negative means none.
 	Brightest int
+	// ExtendedScale multiplies the light of extended sources — star
+	// discs, the CMB and the unresolved starlight, whose value per pixel
+	// is their surface brightness times the pixel's solid angle — against
+	// point stars; 0 means 1. A reduced preview of a frame, whose pixels
+	// each cover 1/s² times the solid angle of the full frame's, sets s²:
+	// extended light then keeps the full frame's value per pixel, as point
+	// stars keep their peak (the PSF's width is in pixels). Without it a
+	// quarter-size preview shows the Milky Way and the Sun's disc 16 times
+	// brighter, against the stars, than the frames it previews.
+	ExtendedScale float64
 }
 
 // The range of Options.Exposure, in V magnitudes: from brighter than the
@@ -107,6 +117,7 @@ var (
 	ErrExposure = errors.New("render: Exposure is outside [MinExposure, MaxExposure]")
 	ErrStars    = errors.New("render: no star list")
 	ErrBeaming  = errors.New("render: unknown beaming convention")
+	ErrExtended = errors.New("render: ExtendedScale is negative, NaN or infinite")
 )
 
 // Frame is a rendered image with what went into it.
@@ -123,6 +134,16 @@ type Frame struct {
 	// work is the star path's working memory, kept for the next
 	// RenderInto this frame is given to (nil otherwise).
 	work *starScratch
+}
+
+// extended returns the buffer scale of extended light (star discs, the
+// CMB, the unresolved starlight): Scale times Options.ExtendedScale, or
+// Scale when that is 0.
+func (f *Frame) extended() float64 {
+	if e := f.Options.ExtendedScale; e != 0 {
+		return f.Scale * e
+	}
+	return f.Scale
 }
 
 // Prepared holds per-star values that do not depend on the observer, so a

@@ -32,12 +32,16 @@ type Sidecar struct {
 
 	ExposureV float64 `json:"exposure_v"`
 	// LimitV is the cull limit; absent when culling is off (+Inf).
-	LimitV  *float64 `json:"limit_v,omitempty"`
-	FWHMPx  float64  `json:"fwhm_px"`
-	Scale   float64  `json:"scale_per_lux"`
-	Tone    string   `json:"tone"`
-	Beaming string   `json:"beaming"`
-	White   string   `json:"white_point"`
+	LimitV *float64 `json:"limit_v,omitempty"`
+	FWHMPx float64  `json:"fwhm_px"`
+	Scale  float64  `json:"scale_per_lux"`
+	// ExtendedScale is Options.ExtendedScale when set (a preview): the
+	// factor on extended light (star discs, CMB, unresolved starlight)
+	// against the point stars' scale_per_lux.
+	ExtendedScale float64 `json:"extended_scale,omitempty"`
+	Tone          string  `json:"tone"`
+	Beaming       string  `json:"beaming"`
+	White         string  `json:"white_point"`
 	// PSF is the point spread function model.
 	PSF string `json:"psf"`
 
@@ -133,7 +137,7 @@ func (f *Frame) Sidecar(tool, version string, stars *catalog.Stars, tone ToneMod
 		Look:       Look{Forward: DirectionOf(look.Forward), Up: DirectionOf(look.Up), Right: DirectionOf(look.Right)},
 		Projection: ProjectionInfo{Kind: o.Projection.Kind.String(), Width: o.Projection.Width,
 			Height: o.Projection.Height, FOV: o.Projection.FieldOfView(), Tilt: o.Projection.Tilt},
-		ExposureV: o.Exposure, FWHMPx: o.FWHM, Scale: f.Scale,
+		ExposureV: o.Exposure, FWHMPx: o.FWHM, Scale: f.Scale, ExtendedScale: o.ExtendedScale,
 		Tone: tone.String(), Beaming: o.Beaming.String(), White: o.Color.White.String(),
 		PSF: "gaussian, pixel-integrated, truncated at 4 sigma",
 		Counts: Counts{Total: f.Stats.Total, Drawn: f.Stats.Drawn, Culled: f.Stats.Culled,

@@ -359,6 +359,9 @@ func resolveOptions(opt Options) (Options, PSF, int, error) {
 	if math.IsNaN(opt.Limit) {
 		return opt, psf, 0, ErrLimit
 	}
+	if !(opt.ExtendedScale >= 0) || math.IsInf(opt.ExtendedScale, 0) {
+		return opt, psf, 0, fmt.Errorf("%w: %v", ErrExtended, opt.ExtendedScale)
+	}
 	if err := opt.Projection.Prepare(); err != nil {
 		return opt, psf, 0, fmt.Errorf("render: %w", err)
 	}
