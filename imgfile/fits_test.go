@@ -247,7 +247,7 @@ func TestFITSMetaCards(t *testing.T) {
 		Beta: 0.9, Gamma: 2.294157338705618, MotionRA: 279.23, MotionDec: 38.78,
 		Position: [3]float64{1, -2, 3}, Exposure: 2, Limit: 12, FWHM: 1.5,
 		Beaming: "exact", Projection: "fisheye", FOV: 180, Tilt: 30,
-		Catalog: "BSC5", Stars: 9000, ScalePerLux: 123456.75, White: "d65", Layers: []string{"stars", "cmb"},
+		Catalog: "BSC5", Stars: 9000, ScalePerLux: 123456.75, ExtendedScale: 0.0625, White: "d65", Layers: []string{"stars", "cmb"},
 	}
 	cards, err := m.Cards()
 	if err != nil {
@@ -264,7 +264,7 @@ func TestFITSMetaCards(t *testing.T) {
 	for key, want := range map[string]float64{
 		"BETA": 0.9, "GAMMA": 2.294157338705618, "VELRA": 279.23, "VELDEC": 38.78,
 		"OBSX": 1, "OBSY": -2, "OBSZ": 3, "EXPOSURE": 2, "MAGLIM": 12, "PSFFWHM": 1.5,
-		"FOV": 180, "TILT": 30, "NSTARS": 9000, "LUXSCALE": 123456.75,
+		"FOV": 180, "TILT": 30, "NSTARS": 9000, "LUXSCALE": 123456.75, "EXTSCALE": 0.0625,
 	} {
 		if have, err := h.Float(key); err != nil || have != want {
 			t.Errorf("%s: have %v (%v), want %v", key, have, err, want)
@@ -285,8 +285,18 @@ func TestFITSMetaCards(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, c := range zc {
-		if c.Key == "DATE" || c.Key == "BETA" || c.Key == "VELRA" {
+		if c.Key == "DATE" || c.Key == "BETA" || c.Key == "VELRA" || c.Key == "EXTSCALE" {
 			t.Errorf("zero FITSMeta wrote %s", c.Key)
+		}
+	}
+	// A full-size frame's extended scale of 1 is not written either.
+	one, err := FITSMeta{ExtendedScale: 1}.Cards()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range one {
+		if c.Key == "EXTSCALE" {
+			t.Error("ExtendedScale 1 wrote EXTSCALE")
 		}
 	}
 	for _, bad := range []string{"1.12.2026", "2026-12-01 10:00", "2026-12-01T10:00"} {
