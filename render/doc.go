@@ -164,7 +164,9 @@
 // bolometric surface brightness goes as D⁴ (AddDiffuse; sub-sampled where
 // D or the catalogue-frame footprint changes fast within a pixel). A
 // uniform layer and stars carrying the same flux give the same buffer
-// total. A DiffuseMemo keeps the layer for the next frame with the same
+// total. Options.ExtendedScale scales all extended light (discs and these
+// layers) against point stars, so that a reduced preview keeps the full
+// frame's value per pixel. A DiffuseMemo keeps the layer for the next frame with the same
 // one (a view held on the ship at constant velocity), which replays it bit
 // for bit. Tone mapping and sRGB encoding follow; the 8-bit codes of
 // pixels the tone map leaves as they are come from a table on the float32
