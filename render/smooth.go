@@ -387,7 +387,8 @@ type exactPix struct {
 }
 
 func (e exactPix) add(dst []float32) {
-	p := dst[3*e.i : 3*e.i+3 : 3*e.i+3]
+	j := 3 * int(e.i) // in int: 3i overflows int32 beyond 26 754² pixels
+	p := dst[j : j+3 : j+3]
 	p[0] += e.v[0]
 	p[1] += e.v[1]
 	p[2] += e.v[2]
