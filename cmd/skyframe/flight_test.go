@@ -748,6 +748,16 @@ func TestStillWorkers(t *testing.T) {
 			files[ext] = b
 		}
 	}
-	code, msg := hostileRun(t, "still", "--workers", "-2", "-o", filepath.Join(dir, "bad.png"))
-	hostileExpect(t, code, msg, []string{"--workers -2"}, dir, "w0.png", "w0.png.fits", "w0.json", "w1.png", "w1.png.fits", "w1.json")
+	// Out of range (10⁵ goroutines would exceed the Go runtime's thread
+	// limit and crash): exit 2 naming the flag, nothing written, for
+	// still and flight alike.
+	plan := writePlan(t, dir, voyagePlan(2))
+	for _, args := range [][]string{
+		{"still", "--workers", "-2", "-o", filepath.Join(dir, "bad.png")},
+		{"still", "--workers", "100000", "-o", filepath.Join(dir, "bad.png")},
+		{"flight", plan, "--workers", "100000", "--out", filepath.Join(dir, "badflight")},
+	} {
+		code, msg := hostileRun(t, args...)
+		hostileExpect(t, code, msg, []string{"--workers " + args[len(args)-3]}, dir, "w0.png", "w0.png.fits", "w0.json", "w1.png", "w1.png.fits", "w1.json", filepath.Base(plan))
+	}
 }

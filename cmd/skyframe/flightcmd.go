@@ -123,8 +123,8 @@ func runFlight(e *env, args []string) error {
 	if fs.NArg() != 1 {
 		return usagef("flight: want exactly one PLAN.toml (see --help)")
 	}
-	if f.workers < 0 {
-		return usagef("--workers %d: want N ≥ 0", f.workers)
+	if f.workers < 0 || f.workers > maxWorkers {
+		return usagef("--workers %d: want 0 ≤ N ≤ %d", f.workers, maxWorkers)
 	}
 	if f.workers > 0 {
 		// The sky's preparation, the unresolved maps and the writers

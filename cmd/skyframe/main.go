@@ -118,6 +118,11 @@ type usageError struct{ err error }
 func (u usageError) Error() string { return u.err.Error() }
 func (u usageError) Unwrap() error { return u.err }
 
+// maxWorkers bounds --workers (still and flight), which sets GOMAXPROCS:
+// far more than any machine's CPUs, far fewer than the Go runtime's limit
+// of 10 000 threads, which GOMAXPROCS 10⁵ exceeds and crashes on.
+const maxWorkers = 1024
+
 func usagef(format string, a ...any) error {
 	return usageError{fmt.Errorf(format, a...)}
 }

@@ -118,8 +118,8 @@ func runStill(e *env, args []string) error {
 	if err := checkFrameFlags(fs, &f.frame); err != nil {
 		return err
 	}
-	if f.workers < 0 {
-		return usagef("--workers %d: want N ≥ 0", f.workers)
+	if f.workers < 0 || f.workers > maxWorkers {
+		return usagef("--workers %d: want 0 ≤ N ≤ %d", f.workers, maxWorkers)
 	}
 	if f.workers > 0 {
 		// Everything a still runs in parallel sizes itself by GOMAXPROCS,
