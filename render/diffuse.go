@@ -301,9 +301,8 @@ func prepareDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*diffuseDr
 	// largest pixel (sa.max bounds every pixel's solid angle) at the
 	// largest Doppler factor, D = γ(1 + β), with sin θ′ = 1, stays below
 	// both criteria (with room for rounding): then it is not called.
-	gb := boost.GammaBeta()
-	dMax := math.Sqrt(1+gb*gb) + gb
-	d.one = ms == 1 || math.Sqrt(sa.max())*dMax*max(1/fp, gb/mlnD) < 0.999
+	dMax := math.Sqrt(1+d.gb*d.gb) + d.gb // γ + γβ
+	d.one = ms == 1 || math.Sqrt(sa.max())*dMax*max(1/fp, d.gb/mlnD) < 0.999
 	k := f.extended() / math.Pi // buffer luminance per (cd/m² · sr)
 	color := f.Options.Color
 	newEval := func() pixelEval {

@@ -91,7 +91,7 @@ func memoKey(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (diffuseKey, bool)
 func (m *DiffuseMemo) draw(d *diffuseDraw, key diffuseKey) error {
 	m.mu.Lock()
 	defer m.mu.Unlock()
-	if m.rec != nil && m.key == key && m.rec.w == d.dst.W && len(d.dst.Pix) == 3*d.dst.W*d.dst.H {
+	if m.rec != nil && m.key == key { // the key holds the size: d.dst is that size (prepareDiffuse)
 		m.rec.replay(d.dst.Pix, d.workers)
 		m.replays++
 		return nil

@@ -184,9 +184,7 @@ func (b *Buffer) toNRGBAInto(dst *image.NRGBA, m ToneMode, workers int) *image.N
 				continue
 			}
 			r, g, bl := Tone(m, float64(s[0]), float64(s[1]), float64(s[2]))
-			d[0] = uint8(encode(r)*255 + 0.5)
-			d[1] = uint8(encode(g)*255 + 0.5)
-			d[2] = uint8(encode(bl)*255 + 0.5)
+			d[0], d[1], d[2] = code8Exact(r), code8Exact(g), code8Exact(bl)
 			d[3] = 255
 		}
 	})

@@ -19,7 +19,8 @@ import (
 // inside it, that code's first value. No bucket holds two thresholds: the
 // code rises by at most 255·dE/dv·v·2⁻¹⁰ ≤ 0.12 across a bucket (the sRGB
 // slope times the bucket's width v·2⁻¹⁰), and TestCode8Table checks it.
-// code8 equals code8Exact bit for bit, at about a fifth of its cost.
+// code8 equals code8Exact bit for bit without the square root and
+// interpolation (a lit 4096² frame tone-maps in half the time).
 const (
 	code8Bits  = 10             // mantissa bits per bucket index
 	code8Shift = 23 - code8Bits // float32 mantissa bits below the index

@@ -177,18 +177,17 @@ func Lookup(lnT float64) Sample {
 // k < len(lnT) it sets lnY[k], lnV[k], x[k], y[k] to the fields of
 // Lookup(lnT[k]) (Lookup is this function on one value). The output
 // slices must be at least as long as lnT; lnV may be nil, and then the
-// V band is not computed (the others are unchanged). It allocates nothing; the table
-// is fetched once for the whole slice, so per value it costs less than
-// Lookup.
+// V band is not computed (the others are unchanged). It allocates
+// nothing; the table is fetched once for the whole slice, so per value it
+// costs less than Lookup.
 func LookupBatch(lnT, lnY, lnV, x, y []float64) {
 	p := getPhot()
 	n := len(lnT)
 	lnY, x, y = lnY[:n], x[:n], y[:n]
-	if lnV == nil {
-		p.batch(lnT, lnY, nil, x, y)
-		return
+	if lnV != nil {
+		lnV = lnV[:n]
 	}
-	p.batch(lnT, lnY, lnV[:n], x, y)
+	p.batch(lnT, lnY, lnV, x, y)
 }
 
 // batch is LookupBatch on slices of len(lnT); lnV nil skips the V band.
