@@ -80,6 +80,15 @@ func opaque8(m *image.NRGBA) *image.NRGBA {
 	return m
 }
 
+// lastTranslucent makes every pixel opaque but the last of the last row,
+// whose alpha the encoder's eight-byte opacity scan reaches only in its
+// tail when the width is odd.
+func lastTranslucent(m *image.NRGBA) *image.NRGBA {
+	opaque8(m)
+	m.Pix[len(m.Pix)-1] = 0xc8
+	return m
+}
+
 func alpha16(m *image.NRGBA64) *image.NRGBA64 {
 	m.Pix[6], m.Pix[7] = 0x12, 0x34
 	return m
@@ -118,6 +127,8 @@ func TestWritePNGRoundTrip(t *testing.T) {
 	}{
 		{"nrgba8 alpha", testNRGBA(37, 23, 1), 8},
 		{"nrgba8 opaque", opaque8(testNRGBA(29, 31, 11)), 8},
+		{"nrgba8 opaque one column", opaque8(testNRGBA(1, 7, 14)), 8},
+		{"nrgba8 last pixel translucent", lastTranslucent(testNRGBA(29, 5, 15)), 8},
 		{"nrgba64 opaque", testNRGBA64(19, 41, 2), 16},
 		{"nrgba64 alpha", alpha16(testNRGBA64(23, 17, 12)), 16},
 		{"nrgba8 many strips", sparseStars(700, 900, false), 8},

@@ -1,6 +1,7 @@
 package render
 
 import (
+	"encoding/binary"
 	"fmt"
 	"image"
 	"math"
@@ -167,28 +168,51 @@ func (b *Buffer) toNRGBAInto(dst *image.NRGBA, m ToneMode, workers int) *image.N
 		img = image.NewNRGBA(image.Rect(0, 0, b.W, b.H))
 	}
 	tab := code8Table()
+	fast := toneFastBits(m)
 	b.rows(workers, func(y int) {
 		src := b.Pix[3*y*b.W : 3*(y+1)*b.W]
 		dst := img.Pix[y*img.Stride : y*img.Stride+4*b.W]
 		for x := 0; x < b.W; x++ {
 			s := src[3*x : 3*x+3 : 3*x+3]
-			d := dst[4*x : 4*x+4 : 4*x+4]
-			if s[0] == 0 && s[1] == 0 && s[2] == 0 {
-				d[0], d[1], d[2], d[3] = 0, 0, 0, 255
-				continue
-			}
-			if toneIdentity(m, s[0], s[1], s[2]) {
+			ur, ug, ub := math.Float32bits(s[0]), math.Float32bits(s[1]), math.Float32bits(s[2])
+			var px uint32
+			switch {
+			case ur|ug|ub == 0:
+				px = 0xff000000
+			case ur < fast && ug < fast && ub < fast:
+				// Every channel in [0, toneFast): the identity (see
+				// toneFastBits), float32 values in [0, 1) coded by table.
+				px = uint32(tab.code8Unit(ur)) | uint32(tab.code8Unit(ug))<<8 | uint32(tab.code8Unit(ub))<<16 | 0xff000000
+			case toneIdentity(m, s[0], s[1], s[2]):
 				// Tone returns the channels themselves (clipped to
 				// [0, 1]), float32 values: their codes by table.
-				d[0], d[1], d[2], d[3] = tab.code8(s[0]), tab.code8(s[1]), tab.code8(s[2]), 255
-				continue
+				px = uint32(tab.code8(s[0])) | uint32(tab.code8(s[1]))<<8 | uint32(tab.code8(s[2]))<<16 | 0xff000000
+			default:
+				r, g, bl := Tone(m, float64(s[0]), float64(s[1]), float64(s[2]))
+				px = uint32(code8Exact(r)) | uint32(code8Exact(g))<<8 | uint32(code8Exact(bl))<<16 | 0xff000000
 			}
-			r, g, bl := Tone(m, float64(s[0]), float64(s[1]), float64(s[2]))
-			d[0], d[1], d[2] = code8Exact(r), code8Exact(g), code8Exact(bl)
-			d[3] = 255
+			binary.LittleEndian.PutUint32(dst[4*x:4*x+4], px)
 		}
 	})
 	return img
+}
+
+// toneFast is a channel value below which ToneShoulder is the identity
+// whatever the other channels are (below it too): the luminance is then
+// below (lumR + lumG + lumB)·toneFast = toneFast < ShoulderKnee, with room
+// for rounding, and no channel exceeds 1. TestToneFast checks it.
+const toneFast = 0.45
+
+// toneFastBits returns the float32 bits below which a pixel whose three
+// channels' bits all are is mapped by m as the identity: for ToneShoulder
+// those of toneFast, for ToneLinear those of 1. Negative values and NaN
+// have larger bits (the sign bit, or the exponent all ones) and take the
+// general path.
+func toneFastBits(m ToneMode) uint32 {
+	if m == ToneShoulder {
+		return math.Float32bits(toneFast)
+	}
+	return code8One
 }
 
 // ToNRGBA64 is ToNRGBA with 16 bits per channel.

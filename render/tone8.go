@@ -88,3 +88,14 @@ func (t *code8Tab) code8(v float32) uint8 {
 	}
 	return c
 }
+
+// code8Unit is code8 for the bits u of a float32 in [0, 1): values below
+// code8Low share bucket 0's start, whose code is 0 and which lies below
+// the bucket's threshold (a threshold is above its bucket's start).
+func (t *code8Tab) code8Unit(u uint32) uint8 {
+	u = max(u, code8Low)
+	k := (u - code8Low) >> code8Shift
+	// One more than lo when u ≥ thr, without a branch (the sign of
+	// thr − u − 1 in 64 bits; thr may be code8None).
+	return t.lo[k] + uint8((uint64(t.thr[k])-uint64(u)-1)>>63)
+}

@@ -57,7 +57,8 @@ func TestCode8Exhaustive(t *testing.T) {
 	}
 	check := func(u uint32) bool {
 		v := math.Float32frombits(u)
-		return tab.code8(v) == code8Exact(float64(v))
+		want := code8Exact(float64(v))
+		return tab.code8(v) == want && (u >= code8One || tab.code8Unit(u) == want)
 	}
 	if testing.Short() {
 		r := rand.New(rand.NewPCG(8, 255))
@@ -110,6 +111,10 @@ func TestToNRGBATable(t *testing.T) {
 			b.Pix[i] = float32(math.NaN())
 		case 3:
 			b.Pix[i] = 0
+		case 4:
+			b.Pix[i] = float32(math.Copysign(0, -1))
+		case 5: // either side of the fast path's bound
+			b.Pix[i] = math.Nextafter32(toneFast, float32(r.IntN(2)))
 		default:
 			b.Pix[i] = float32(math.Exp(-8 * r.Float64()))
 		}
@@ -131,5 +136,29 @@ func TestToNRGBATable(t *testing.T) {
 		if identity == 0 || (m == ToneShoulder && identity == b.W*b.H) {
 			t.Errorf("%v: %d of %d pixels on the table path: the test wants both paths", m, identity, b.W*b.H)
 		}
+	}
+}
+
+// TestToneFast checks the bound of the tone map's fast path: a pixel whose
+// channels are all in [0, toneFast) has luminance below ShoulderKnee even
+// at its largest (every channel the last float32 below toneFast), so
+// ToneShoulder leaves it unchanged; the weights sum to 1 (IEC 61966-2-1's
+// Y row, common practice).
+func TestToneFast(t *testing.T) {
+	if s := lumR + lumG + lumB; math.Abs(s-1) > 1e-12 {
+		t.Fatalf("lumR + lumG + lumB = %v, want 1", s)
+	}
+	top := math.Nextafter32(toneFast, 0)
+	if math.Float32bits(top) >= toneFastBits(ToneShoulder) || math.Float32bits(toneFast) != toneFastBits(ToneShoulder) {
+		t.Fatalf("toneFastBits(ToneShoulder) = %#x, want the bits of %v", toneFastBits(ToneShoulder), toneFast)
+	}
+	if !toneIdentity(ToneShoulder, top, top, top) {
+		t.Fatalf("ToneShoulder is not the identity at (%v, %v, %v)", top, top, top)
+	}
+	if l := lumR*float64(top) + lumG*float64(top) + lumB*float64(top); l >= ShoulderKnee {
+		t.Fatalf("luminance %v at the bound, want < %v", l, ShoulderKnee)
+	}
+	if toneFastBits(ToneLinear) != math.Float32bits(1) {
+		t.Errorf("toneFastBits(ToneLinear) = %#x, want the bits of 1", toneFastBits(ToneLinear))
 	}
 }

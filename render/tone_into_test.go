@@ -90,4 +90,12 @@ func BenchmarkToNRGBA4096(b *testing.B) {
 		lit.Pix[i] += float32(math.Exp(-9.2 * r.Float64()))
 	}
 	b.Run("lit", reused(&lit))
+	// The same a tenth as bright: every channel below the shoulder's knee,
+	// as the unresolved light of a flight frame is.
+	dim := lit
+	dim.Buffer.Pix = slices.Clone(lit.Pix)
+	for i := range dim.Pix {
+		dim.Pix[i] *= 0.1
+	}
+	b.Run("dim", reused(&dim))
 }
