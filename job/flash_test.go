@@ -122,3 +122,18 @@ func TestMeanLuminanceParallel(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkMeanLuminance4096 measures the flash check's luminance pass
+// over a lit 4096² frame (every pixel non-black, as the unresolved light
+// makes a flight frame).
+func BenchmarkMeanLuminance4096(b *testing.B) {
+	img := image.NewNRGBA(image.Rect(0, 0, 4096, 4096))
+	for i := range img.Pix {
+		img.Pix[i] = byte(1 + (i*7919+i/13)%200)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		MeanLuminance(img, 0)
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/(4096*4096), "ns/pixel")
+}
