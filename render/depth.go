@@ -3,6 +3,7 @@ package render
 import (
 	"fmt"
 	"math"
+	"sync"
 
 	"gonum.org/v1/gonum/spatial/r3"
 
@@ -192,16 +193,47 @@ type DepthProfile struct {
 	ld0, ld1   float64 // ln D range in view
 	minDV      []float64
 	tmin, tmax float64
+	beaming    spectrum.Beaming
 }
 
 // NewDepthProfile tabulates min over T of ΔV on 257 values of ln D over the
 // frame's range of Doppler factors; see NeededDepth for the arguments.
 func NewDepthProfile(opt Options, tmin, tmax float64) (*DepthProfile, error) {
+	return new(DepthProfiles).New(opt, tmin, tmax)
+}
+
+// DepthProfiles makes depth profiles (NewDepthProfile), reusing the table
+// of a recent one whose inputs — the range of Doppler factors in view,
+// the temperature range and the beaming convention — were the same: the
+// frames of a cruise with the camera held have one range, and the table's
+// 257 × 65 brightenings cost more than the rest of the frame's depth. The
+// profiles are identical to NewDepthProfile's. Its zero value is ready to
+// use; it is safe for concurrent use.
+type DepthProfiles struct {
+	mu     sync.Mutex
+	recent [4]*DepthProfile // newest first
+}
+
+// New is NewDepthProfile, with a recent profile's table when it has one
+// for the same inputs.
+func (c *DepthProfiles) New(opt Options, tmin, tmax float64) (*DepthProfile, error) {
 	dep, err := NeededDepth(opt, tmin, tmax)
 	if err != nil {
 		return nil, err
 	}
-	p := &DepthProfile{Depth: dep, limit: dep.Needed + dep.DeltaV, ld0: math.Log(dep.DMin), ld1: math.Log(dep.DMax), tmin: tmin, tmax: tmax}
+	p := &DepthProfile{Depth: dep, limit: dep.Needed + dep.DeltaV, ld0: math.Log(dep.DMin), ld1: math.Log(dep.DMax),
+		tmin: tmin, tmax: tmax, beaming: opt.Beaming}
+	c.mu.Lock()
+	for _, q := range c.recent {
+		if q != nil && q.ld0 == p.ld0 && q.ld1 == p.ld1 && q.tmin == tmin && q.tmax == tmax && q.beaming == p.beaming {
+			p.minDV = q.minDV // read-only once made
+			break
+		}
+	}
+	c.mu.Unlock()
+	if p.minDV != nil {
+		return p, nil
+	}
 	const n = 256
 	p.minDV = make([]float64, n+1)
 	for i := range p.minDV {
@@ -213,6 +245,10 @@ func NewDepthProfile(opt Options, tmin, tmax float64) (*DepthProfile, error) {
 		}
 		p.minDV[i] = best
 	}
+	c.mu.Lock()
+	copy(c.recent[1:], c.recent[:len(c.recent)-1])
+	c.recent[0] = p
+	c.mu.Unlock()
 	return p, nil
 }
 

@@ -2,6 +2,7 @@ package render
 
 import (
 	"math"
+	"reflect"
 	"testing"
 
 	"gonum.org/v1/gonum/spatial/r3"
@@ -193,6 +194,50 @@ func TestDepthProfile(t *testing.T) {
 		}
 		if v := prof.NeededFor(r[0], r[1]); v < 10-best-1e-9 || v > 10-best+0.05 {
 			t.Errorf("D in %v: %.3f, brute force %.3f", r, v, 10-best)
+		}
+	}
+}
+
+// TestDepthProfilesReuse: DepthProfiles gives NewDepthProfile's profile
+// field for field, sharing the table only between frames with the same
+// Doppler range, temperatures and beaming (a fainter limit shares it; a
+// faster ship, another beaming convention or temperature range do not).
+func TestDepthProfilesReuse(t *testing.T) {
+	p := looking(t, camera.Pinhole, 192, 108, 60, r3.Vec{X: 1})
+	opt := func(beta, limit float64, beaming spectrum.Beaming) Options {
+		b, _ := camera.NewBoost(r3.Vec{X: 1}, beta)
+		return Options{Projection: p, Observer: camera.Observer{Boost: b}, Limit: limit, Beaming: beaming}
+	}
+	var c DepthProfiles
+	first, err := c.New(opt(0.9, 10, spectrum.BeamingExact), 2500, 40000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []struct {
+		name       string
+		opt        Options
+		tmin, tmax float64
+		shared     bool
+	}{
+		{"same frame", opt(0.9, 10, spectrum.BeamingExact), 2500, 40000, true},
+		{"fainter limit", opt(0.9, 12, spectrum.BeamingExact), 2500, 40000, true},
+		{"faster", opt(0.95, 10, spectrum.BeamingExact), 2500, 40000, false},
+		{"beaming", opt(0.9, 10, spectrum.BeamingD3), 2500, 40000, false},
+		{"temperatures", opt(0.9, 10, spectrum.BeamingExact), 3000, 40000, false},
+	} {
+		have, err := c.New(k.opt, k.tmin, k.tmax)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want, err := NewDepthProfile(k.opt, k.tmin, k.tmax)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(have, want) {
+			t.Errorf("%s: %+v, want %+v", k.name, *have, *want)
+		}
+		if shared := &have.minDV[0] == &first.minDV[0]; shared != k.shared {
+			t.Errorf("%s: table shared %v, want %v", k.name, shared, k.shared)
 		}
 	}
 }

@@ -116,6 +116,9 @@
 // differing only by the float32 rounding of a different order of
 // addition; sorting it (catalog pack does) makes it bit-identical. The
 // fainter remainder is what the unresolved-light layer stands for.
+// NewDepthProfile refines the bound by Doppler factor (a patch of sky);
+// DepthProfiles reuses a recent profile's table for frames with the same
+// Doppler range, temperatures and beaming, with the same result.
 //
 // # Motion blur
 //

@@ -30,6 +30,8 @@ type Source struct {
 
 	mu   sync.Mutex
 	last [2]entry // the most recent frame catalogues, newest first
+
+	profiles render.DepthProfiles // the built-in sky's depth profiles, recent tables reused
 }
 
 // entry is one frame catalogue and its prepared form.
@@ -114,7 +116,7 @@ func (src *Source) Frame(instants []render.Options, maxV float64) (*Frame, error
 	var rep Report
 	vis := math.Inf(-1)
 	for k, opt := range instants {
-		p, err := render.NewDepthProfile(opt, tmin, tmax)
+		p, err := src.profiles.New(opt, tmin, tmax)
 		if err != nil {
 			return nil, err
 		}
