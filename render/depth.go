@@ -191,24 +191,34 @@ type DepthProfile struct {
 	Depth              // the frame's bound
 	limit      float64 // the frame's limit
 	ld0, ld1   float64 // ln D range in view
+	tl0, tl1   float64 // ln D range of the table: ld0, ld1 rounded out to ldQuantum
 	minDV      []float64
 	tmin, tmax float64
 	beaming    spectrum.Beaming
 }
 
 // NewDepthProfile tabulates min over T of ΔV on 257 values of ln D over the
-// frame's range of Doppler factors; see NeededDepth for the arguments.
+// frame's range of Doppler factors (rounded out to ldQuantum); see
+// NeededDepth for the arguments.
 func NewDepthProfile(opt Options, tmin, tmax float64) (*DepthProfile, error) {
 	return new(DepthProfiles).New(opt, tmin, tmax)
 }
 
+// ldQuantum is the step to which a depth profile's table range is rounded
+// out (ln D, about 1.5·10⁻⁵): the table of a frame is a function of its
+// rounded range, so frames whose Doppler ranges differ in their last bits
+// (the heading of a flight is renormalised at every frame) share one.
+const ldQuantum = 1.0 / (1 << 16)
+
 // DepthProfiles makes depth profiles (NewDepthProfile), reusing the table
-// of a recent one whose inputs — the range of Doppler factors in view,
-// the temperature range and the beaming convention — were the same: the
-// frames of a cruise with the camera held have one range, and the table's
-// 257 × 65 brightenings cost more than the rest of the frame's depth. The
-// profiles are identical to NewDepthProfile's. Its zero value is ready to
-// use; it is safe for concurrent use.
+// of a recent one whose inputs — the range of Doppler factors in view
+// rounded out to ldQuantum, the temperature range and the beaming
+// convention — were the same: the frames of a cruise with the camera held
+// have one range, and the table's 257 × 65 brightenings cost more than the
+// rest of the frame's depth. The profiles are identical to
+// NewDepthProfile's, so a frame's depth does not depend on the frames
+// drawn before it. Its zero value is ready to use; it is safe for
+// concurrent use.
 type DepthProfiles struct {
 	mu     sync.Mutex
 	recent [4]*DepthProfile // newest first
@@ -221,11 +231,13 @@ func (c *DepthProfiles) New(opt Options, tmin, tmax float64) (*DepthProfile, err
 	if err != nil {
 		return nil, err
 	}
-	p := &DepthProfile{Depth: dep, limit: dep.Needed + dep.DeltaV, ld0: math.Log(dep.DMin), ld1: math.Log(dep.DMax),
+	ld0, ld1 := math.Log(dep.DMin), math.Log(dep.DMax)
+	p := &DepthProfile{Depth: dep, limit: dep.Needed + dep.DeltaV, ld0: ld0, ld1: ld1,
+		tl0: math.Floor(ld0/ldQuantum) * ldQuantum, tl1: math.Ceil(ld1/ldQuantum) * ldQuantum,
 		tmin: tmin, tmax: tmax, beaming: opt.Beaming}
 	c.mu.Lock()
 	for _, q := range c.recent {
-		if q != nil && q.ld0 == p.ld0 && q.ld1 == p.ld1 && q.tmin == tmin && q.tmax == tmax && q.beaming == p.beaming {
+		if q != nil && q.tl0 == p.tl0 && q.tl1 == p.tl1 && q.tmin == tmin && q.tmax == tmax && q.beaming == p.beaming {
 			p.minDV = q.minDV // read-only once made
 			break
 		}
@@ -237,7 +249,7 @@ func (c *DepthProfiles) New(opt Options, tmin, tmax float64) (*DepthProfile, err
 	const n = 256
 	p.minDV = make([]float64, n+1)
 	for i := range p.minDV {
-		ld := p.ld0 + (p.ld1-p.ld0)*float64(i)/n
+		ld := p.tl0 + (p.tl1-p.tl0)*float64(i)/n
 		best := math.Inf(1)
 		for j := 0; j <= 64; j++ {
 			T := tmin * math.Pow(tmax/tmin, float64(j)/64)
@@ -268,8 +280,8 @@ func (p *DepthProfile) NeededFor(dmin, dmax float64) float64 {
 	if p.ld1 == p.ld0 {
 		return p.Needed
 	}
-	i0 := int(math.Floor((a - p.ld0) / (p.ld1 - p.ld0) * float64(n)))
-	i1 := int(math.Ceil((b - p.ld0) / (p.ld1 - p.ld0) * float64(n)))
+	i0 := int(math.Floor((a - p.tl0) / (p.tl1 - p.tl0) * float64(n)))
+	i1 := int(math.Ceil((b - p.tl0) / (p.tl1 - p.tl0) * float64(n)))
 	i0, i1 = max(0, i0), min(n, i1)
 	best := math.Inf(1)
 	for i := i0; i <= i1; i++ {

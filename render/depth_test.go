@@ -208,6 +208,8 @@ func TestDepthProfilesReuse(t *testing.T) {
 		b, _ := camera.NewBoost(r3.Vec{X: 1}, beta)
 		return Options{Projection: p, Observer: camera.Observer{Boost: b}, Limit: limit, Beaming: beaming}
 	}
+	nudged := opt(0.9, 10, spectrum.BeamingExact) // the heading off in its last bits, as a flight's renormalised one
+	nudged.Observer.Boost, _ = camera.NewBoost(r3.Vec{X: 1, Y: 3e-15}, 0.9)
 	var c DepthProfiles
 	first, err := c.New(opt(0.9, 10, spectrum.BeamingExact), 2500, 40000)
 	if err != nil {
@@ -221,6 +223,7 @@ func TestDepthProfilesReuse(t *testing.T) {
 	}{
 		{"same frame", opt(0.9, 10, spectrum.BeamingExact), 2500, 40000, true},
 		{"fainter limit", opt(0.9, 12, spectrum.BeamingExact), 2500, 40000, true},
+		{"heading's last bits", nudged, 2500, 40000, true},
 		{"faster", opt(0.95, 10, spectrum.BeamingExact), 2500, 40000, false},
 		{"beaming", opt(0.9, 10, spectrum.BeamingD3), 2500, 40000, false},
 		{"temperatures", opt(0.9, 10, spectrum.BeamingExact), 3000, 40000, false},
@@ -235,6 +238,9 @@ func TestDepthProfilesReuse(t *testing.T) {
 		}
 		if !reflect.DeepEqual(have, want) {
 			t.Errorf("%s: %+v, want %+v", k.name, *have, *want)
+		}
+		if k.opt.Observer.Boost == nudged.Observer.Boost && have.ld0 == first.ld0 && have.ld1 == first.ld1 {
+			t.Errorf("%s: the Doppler range is unchanged, the case tests nothing", k.name)
 		}
 		if shared := &have.minDV[0] == &first.minDV[0]; shared != k.shared {
 			t.Errorf("%s: table shared %v, want %v", k.name, shared, k.shared)
