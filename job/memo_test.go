@@ -12,13 +12,10 @@ import (
 // A cruise held on one view (0.5 c, the camera fixed on the ship) draws the
 // unresolved layer once: later frames replay it, and their files (PNG,
 // FITS, sidecar) are byte-identical to the frames of the same plan drawn
-// without the memo. Frames 2048² fisheye (smaller frames' layers exceed
-// render.MemoBytesPerPixel and are drawn anew).
+// without the memo. Frames 512² fisheye: their layers are kept too
+// (render.MemoLimit), at about 12 bytes per pixel.
 func TestFlightDiffuseMemo(t *testing.T) {
-	if testing.Short() {
-		t.Skip("2048² frames: not with -short")
-	}
-	cam := "projection = \"fisheye\"\nsize = \"2048x2048\""
+	cam := "projection = \"fisheye\"\nsize = \"512x512\""
 	with, without := benchLoad(t, cam), benchLoad(t, cam)
 	if with.Layers.DiffuseOptions.Memo == nil {
 		t.Fatal("the job has no memo for its unresolved layer")

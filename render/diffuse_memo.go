@@ -8,21 +8,38 @@ import (
 	"github.com/skyframe/skyframe/spectrum"
 )
 
-// MemoBytesPerPixel caps what a DiffuseMemo keeps, per pixel of the frame:
-// a third of its float32 RGB buffer. A layer whose record would be larger
-// is drawn and not kept. The built-in sky's layer needs 0.6 to 2.1 bytes
-// per pixel in a 4096² fisheye at rest to 0.9 c, but 4 to 13 in a 1024²
-// one (the sky's structure is finer there, relative to the pixels), which
-// is then drawn anew each frame — cheaply, being small.
+// MemoBytesPerPixel caps what a DiffuseMemo keeps, per pixel of a large
+// frame: a third of its float32 RGB buffer. The built-in sky's layer needs
+// 0.6 to 3.6 bytes per pixel in a 2048² to 4096² fisheye at rest to
+// 0.99 c.
 const MemoBytesPerPixel = 4
 
-// MemoLimit returns the most a DiffuseMemo keeps for a w×h frame, bytes.
+// A smaller frame's layer needs more per pixel — 4.5 to 8 bytes at 1024²,
+// 11 to 13 at 512² and below, where the sky's structure is finer than the
+// pixels and most of them are evaluated exactly (16 bytes each) — so a
+// frame may keep memoSmallPerPixel bytes per pixel up to MemoSmallBytes in
+// all: every layer of a frame up to 2048² is kept. Drawing it anew costs a
+// 512² fisheye held on one view 0.36 CPU-s a frame, more than a 4096² one
+// replaying it.
+const (
+	memoSmallPerPixel = 16
+	MemoSmallBytes    = 64 << 20
+)
+
+// MemoLimit returns the most a DiffuseMemo keeps for a w×h frame, bytes:
+// MemoBytesPerPixel per pixel, or memoSmallPerPixel up to MemoSmallBytes
+// when that is more. A layer whose record would be larger is drawn and not
+// kept.
 func MemoLimit(w, h int) int64 {
-	return max(MemoBytesPerPixel*int64(w)*int64(h), memoFloor)
+	if memoTestLimit > 0 {
+		return memoTestLimit
+	}
+	px := int64(w) * int64(h)
+	return max(MemoBytesPerPixel*px, min(memoSmallPerPixel*px, MemoSmallBytes))
 }
 
-// memoFloor raises MemoLimit for tests.
-var memoFloor int64
+// memoTestLimit replaces MemoLimit's value in tests (0: not).
+var memoTestLimit int64
 
 // DiffuseMemo keeps the last unresolved layer AddDiffuse drew with it
 // (DiffuseOptions.Memo), so that a later frame whose layer has the same

@@ -69,10 +69,6 @@ func (c memoCase) draw(t *testing.T, m *DiffuseMemo) []float32 {
 func TestDiffuseMemoReplay(t *testing.T) {
 	u := builtInUnresolved(t)
 	base := memoCase{beta: 0.5, look: camera.FromGalacticLB(0, 2), fov: 40, sky: u, workers: 1}
-	// A 192² frame's layer takes more than MemoBytesPerPixel (see
-	// TestDiffuseMemoNotKept): the limit is raised to keep it.
-	defer func(f int64) { memoFloor = f }(memoFloor)
-	memoFloor = 1 << 30
 	m := new(DiffuseMemo)
 	if got, want := base.draw(t, m), base.draw(t, nil); !slices.Equal(got, want) {
 		t.Fatal("the first frame drawn with the memo differs from the frame drawn without")
@@ -125,7 +121,7 @@ func TestDiffuseMemoReplay(t *testing.T) {
 }
 
 // A sky that is not comparable (UniformSky holds slices) and an Exact layer
-// are not kept, and a record is kept exactly when it is within MemoLimit.
+// are not kept, and a record is kept exactly when it is within the limit.
 func TestDiffuseMemoNotKept(t *testing.T) {
 	u := builtInUnresolved(t)
 	uni := UniformSky{T: []float64{5000}, W: []float64{1e-13}}
@@ -140,8 +136,7 @@ func TestDiffuseMemoNotKept(t *testing.T) {
 	if m.Replays() != 0 || m.rec != nil {
 		t.Errorf("%d replays, record kept %v: want none", m.Replays(), m.rec != nil)
 	}
-	// The 192² frame's record is more than MemoBytesPerPixel per pixel:
-	// not kept, unless the limit is raised to its size.
+	// A record is kept exactly when it is within the limit.
 	c := memoCase{beta: 0.5, look: camera.FromGalacticLB(0, 2), fov: 180, sky: u}
 	rec := new(gridRecord)
 	f := c.frame(t)
@@ -153,17 +148,36 @@ func TestDiffuseMemoNotKept(t *testing.T) {
 		t.Fatal(err)
 	}
 	b := rec.bytes()
-	if px := int64(192 * 192); b <= MemoBytesPerPixel*px {
-		t.Fatalf("record %d bytes, %d pixels: the test wants more than %d per pixel", b, px, MemoBytesPerPixel)
+	if b > MemoLimit(192, 192) {
+		t.Errorf("record %d bytes, above the %d a 192² frame keeps", b, MemoLimit(192, 192))
 	}
-	defer func(f int64) { memoFloor = f }(memoFloor)
-	for _, floor := range []int64{0, b - 1, b} {
-		memoFloor = floor
+	defer func(l int64) { memoTestLimit = l }(memoTestLimit)
+	for _, limit := range []int64{b - 1, b} {
+		memoTestLimit = limit
 		m := new(DiffuseMemo)
 		c.draw(t, m)
 		c.draw(t, m)
-		if want := map[bool]int{true: 1, false: 0}[floor >= b]; m.Replays() != want {
-			t.Errorf("record %d bytes, limit %d: %d replays, want %d", b, MemoLimit(192, 192), m.Replays(), want)
+		if want := map[bool]int{true: 1, false: 0}[limit >= b]; m.Replays() != want {
+			t.Errorf("record %d bytes, limit %d: %d replays, want %d", b, limit, m.Replays(), want)
+		}
+	}
+}
+
+// MemoLimit: 16 bytes per pixel (an exactly evaluated pixel's record) for
+// small frames, at most 64 MiB unless 4 bytes per pixel is more.
+func TestMemoLimit(t *testing.T) {
+	for _, c := range []struct {
+		w, h int
+		want int64
+	}{
+		{192, 192, 16 * 192 * 192},
+		{1920, 1080, 16 * 1920 * 1080},
+		{2048, 2048, 64 << 20},
+		{4096, 4096, 4 * 4096 * 4096},
+		{8192, 8192, 4 * 8192 * 8192},
+	} {
+		if have := MemoLimit(c.w, c.h); have != c.want {
+			t.Errorf("MemoLimit(%d, %d) = %d, want %d", c.w, c.h, have, c.want)
 		}
 	}
 }

@@ -33,7 +33,8 @@ func TestFlightMemoryRefusedUpFront(t *testing.T) {
 
 	// The same flight previewed at 64×64 (1/128 of the size) fits in
 	// 24 MiB; voyage.toml's own 640×360 does not fit in 4 MiB (buffers
-	// 5.5 MB and the kept layer 0.9 MB, 6.5 MB in all).
+	// 5.5 MB and the kept layer, 16 B per pixel at this size, 3.7 MB:
+	// 9.2 MB in all).
 	code, msg = hostileRun(t, "flight", plan, "--frames", "0", "--preview", "0.0078125", "--memory", "24MiB", "--out", filepath.Join(dir, "small"))
 	if code != 0 {
 		t.Fatalf("64×64 preview in 24 MiB: status %d\n%s", code, msg)
@@ -43,6 +44,6 @@ func TestFlightMemoryRefusedUpFront(t *testing.T) {
 		t.Fatal(err)
 	}
 	code, msg = hostileRun(t, "flight", orig, "--frames", "0", "--memory", "4MiB", "--out", filepath.Join(dir, "o"))
-	hostileExpect(t, code, msg, []string{"--memory 4.0 MiB", "frame buffer 6.5 MB"}, dir, "big.toml", "orig.toml", "small", "small/frames",
+	hostileExpect(t, code, msg, []string{"--memory 4.0 MiB", "frame buffer 9.2 MB"}, dir, "big.toml", "orig.toml", "small", "small/frames",
 		"small/frames/00000.png", "small/frames/00000.json")
 }
