@@ -332,11 +332,11 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 	if err != nil {
 		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
-	// The frame's buffers are reused across frames (framePool), like the
+	// The frame's buffers are reused across frames (keeper), like the
 	// 8-bit image below: a new 4096² float buffer costs about 0.6 CPU-s
 	// of page faults on first touch.
 	dst := getFrame()
-	defer putFrame(dst)
+	defer frames.put(dst)
 	f, lay, kept, ex, err := jf.renderLinear(dst, prep, fs, obs, proj)
 	if err != nil {
 		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
@@ -352,10 +352,10 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 	}
 	side := spec.Sidecar(f)
 	// The 8-bit image and the encoders' byte buffers are reused across
-	// frames (framePools): allocating and first touching them anew costs
+	// frames (keeper): allocating and first touching them anew costs
 	// more than tone mapping at 4096².
 	img8 := f.ToNRGBAInto(getNRGBA(), fr.Tone)
-	defer nrgbaPool.Put(img8)
+	defer images.put(img8)
 	lum := MeanLuminance(img8, j.Workers)
 	var img draw.Image = img8
 	if fr.Depth == 16 {
@@ -382,7 +382,7 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 	if ff.PNG != "" {
 		meta := append(spec.PNGMeta(side), frameKV...)
 		buf := getBuffer()
-		defer bufferPool.Put(buf)
+		defer buffers.put(buf)
 		if err := enc.Encode(buf, img, meta); err != nil {
 			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
@@ -395,7 +395,7 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 		meta := append(append(spec.PNGMeta(side), frameKV...),
 			imgfile.KV{Key: "Description", Value: "skyframe overlays alone (sRGB, straight alpha)"})
 		buf := getBuffer()
-		defer bufferPool.Put(buf)
+		defer buffers.put(buf)
 		if err := enc.Encode(buf, layer, meta); err != nil {
 			return Lum{}, fmt.Errorf("flight: frame %d: overlay layer: %w", i, err)
 		}
@@ -411,7 +411,7 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 		}
 		cards = append(cards, imgfile.Card{Key: "FRAME", Value: i, Comment: "frame index in the flight"})
 		buf := getBuffer()
-		defer bufferPool.Put(buf)
+		defer buffers.put(buf)
 		if err := imgfile.WriteFITS(buf, f.W, f.H, f.Pix, cards); err != nil {
 			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
@@ -442,53 +442,69 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 	return lum, nil
 }
 
-// Buffers reused across the frames of a flight (and safe for frames
-// rendered concurrently): the 8-bit image and the encoded files' bytes.
+// keeper holds up to n values (0: one) for reuse by the next frames of a
+// flight, and is safe for frames rendered concurrently (they take new
+// ones when it is empty). Not a sync.Pool: a pool drops its items at the
+// second garbage collection, which a large frame brings on within a frame
+// or two, so a 4096² linear buffer (201 MB) or an 8192² 8-bit image
+// (268 MB) was allocated and faulted in anew every few frames, at about
+// 12 µs per 4 KiB page.
+type keeper[T any] struct {
+	mu    sync.Mutex
+	n     int
+	items []T
+}
+
+// get returns a kept value and true, or the zero value and false.
+func (k *keeper[T]) get() (T, bool) {
+	k.mu.Lock()
+	defer k.mu.Unlock()
+	var v T
+	if len(k.items) == 0 {
+		return v, false
+	}
+	v = k.items[len(k.items)-1]
+	k.items = k.items[:len(k.items)-1]
+	return v, true
+}
+
+// put keeps v for a later frame, unless n values are kept already.
+func (k *keeper[T]) put(v T) {
+	k.mu.Lock()
+	defer k.mu.Unlock()
+	if len(k.items) < max(1, k.n) {
+		k.items = append(k.items, v)
+	}
+}
+
+// What flights keep from frame to frame: the linear frame (its buffer and
+// the star path's memory), the 8-bit image, and the encoded files' bytes
+// (PNG, overlay layer and FITS of one frame).
 var (
-	nrgbaPool  sync.Pool // *image.NRGBA
-	bufferPool sync.Pool // *bytes.Buffer
+	frames  keeper[*render.Frame]
+	images  keeper[*image.NRGBA]
+	buffers = keeper[*bytes.Buffer]{n: 3}
 )
 
-// frameSlot keeps the last flight frame (its linear buffer and the star
-// path's memory) for the next one. Not a sync.Pool: a pool drops its
-// items at the second garbage collection, which a 201 MB frame brings on
-// within the next frame, so the buffer was faulted in anew about every
-// other frame. Frames rendered concurrently take new ones.
-var frameSlot struct {
-	sync.Mutex
-	f *render.Frame
-}
-
-// getFrame returns the kept frame, or a new empty one.
+// getFrame returns a kept frame, or a new empty one.
 func getFrame() *render.Frame {
-	frameSlot.Lock()
-	defer frameSlot.Unlock()
-	f := frameSlot.f
-	frameSlot.f = nil
-	if f == nil {
-		f = new(render.Frame)
+	if f, ok := frames.get(); ok {
+		return f
 	}
-	return f
+	return new(render.Frame)
 }
 
-// putFrame keeps f for the next frame.
-func putFrame(f *render.Frame) {
-	frameSlot.Lock()
-	defer frameSlot.Unlock()
-	frameSlot.f = f
-}
-
-// getNRGBA returns an image from the pool, or nil (ToNRGBAInto then
-// allocates one; it also replaces one of the wrong size).
+// getNRGBA returns a kept image, or nil (ToNRGBAInto then allocates one;
+// it also replaces one of the wrong size).
 func getNRGBA() *image.NRGBA {
-	img, _ := nrgbaPool.Get().(*image.NRGBA)
+	img, _ := images.get()
 	return img
 }
 
-// getBuffer returns an empty buffer from the pool or a new one.
+// getBuffer returns an empty kept buffer or a new one.
 func getBuffer() *bytes.Buffer {
-	b, _ := bufferPool.Get().(*bytes.Buffer)
-	if b == nil {
+	b, ok := buffers.get()
+	if !ok {
 		return new(bytes.Buffer)
 	}
 	b.Reset()
