@@ -6,8 +6,6 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-
-	"github.com/skyframe/skyframe/render"
 )
 
 // SHA256 returns the lower-case hex SHA-256 of b.
@@ -20,14 +18,23 @@ func SHA256(b []byte) string {
 // the files names (relative to outDir, slash-separated; empty ones are
 // skipped) left behind: names starting with render.TempPrefix of one of
 // them. Only these names are touched, so shards sharing a directory never
-// remove each other's files in flight.
+// remove each other's files in flight. Each directory is read once,
+// however many names it holds (a show's frames directory holds thousands).
 func RemoveStaleTemps(outDir string, names ...string) error {
+	byDir := map[string]map[string]bool{} // directory → base names
+	var dirs []string
 	for _, name := range names {
 		if name == "" {
 			continue
 		}
-		p := filepath.Join(outDir, filepath.FromSlash(name))
-		dir := filepath.Dir(p)
+		dir, base := filepath.Split(filepath.Join(outDir, filepath.FromSlash(name)))
+		if byDir[dir] == nil {
+			byDir[dir] = map[string]bool{}
+			dirs = append(dirs, dir)
+		}
+		byDir[dir][base] = true
+	}
+	for _, dir := range dirs {
 		ents, err := os.ReadDir(dir)
 		if os.IsNotExist(err) {
 			continue
@@ -35,9 +42,8 @@ func RemoveStaleTemps(outDir string, names ...string) error {
 		if err != nil {
 			return err
 		}
-		prefix := render.TempPrefix(p)
 		for _, e := range ents {
-			if !strings.HasPrefix(e.Name(), prefix) {
+			if !isTempOf(e.Name(), byDir[dir]) {
 				continue
 			}
 			if err := os.Remove(filepath.Join(dir, e.Name())); err != nil && !os.IsNotExist(err) {
@@ -46,4 +52,19 @@ func RemoveStaleTemps(outDir string, names ...string) error {
 		}
 	}
 	return nil
+}
+
+// isTempOf reports whether name starts with render.TempPrefix of one of
+// bases (".<base>.tmp-").
+func isTempOf(name string, bases map[string]bool) bool {
+	const sep = ".tmp-"
+	if !strings.HasPrefix(name, ".") {
+		return false
+	}
+	for i := 1; i+len(sep) <= len(name); i++ {
+		if name[i:i+len(sep)] == sep && bases[name[1:i]] {
+			return true
+		}
+	}
+	return false
 }

@@ -601,12 +601,16 @@ func (j *Job) CheckFrame(i int) (Status, Lum, string) {
 }
 
 // RemoveFrameTemps deletes temporary files that an interrupted writer of
-// frame i left behind (see RemoveStaleTemps). Only this frame's names are
-// touched, so shards sharing a directory never remove each other's files
-// in flight.
-func (j *Job) RemoveFrameTemps(i int) error {
-	ff := j.Files(i)
-	return RemoveStaleTemps(j.OutDir, ff.PNG, ff.FITS, ff.Sidecar, ff.Overlay, ff.EXR)
+// the frames given left behind (see RemoveStaleTemps), reading each
+// directory once. Only these frames' names are touched, so shards sharing
+// a directory never remove each other's files in flight.
+func (j *Job) RemoveFrameTemps(frames ...int) error {
+	var names []string
+	for _, i := range frames {
+		ff := j.Files(i)
+		names = append(names, ff.PNG, ff.FITS, ff.Sidecar, ff.Overlay, ff.EXR)
+	}
+	return RemoveStaleTemps(j.OutDir, names...)
 }
 
 // RenderLinear renders the linear buffer of frame state fs (observer obs,

@@ -87,13 +87,6 @@ func (j *Job) Run(ctx context.Context, o RunOptions) (RunResult, error) {
 		for _, i := range j.Frames {
 			if st, l, _ := j.CheckFrame(i); st == Intact {
 				res.Lum[i] = l
-				// Temporary files an interrupted run left beside an
-				// intact frame; under the lock no other run writes it.
-				if lock != nil {
-					if err := j.RemoveFrameTemps(i); err != nil {
-						return res, err
-					}
-				}
 				continue
 			}
 			todo = append(todo, i)
@@ -109,6 +102,13 @@ func (j *Job) Run(ctx context.Context, o RunOptions) (RunResult, error) {
 		return res, err
 	}
 	if err := takeLock(); err != nil {
+		return res, err
+	}
+	// Temporary files an interrupted run left for the job's frames, done
+	// or to do, all at once (each directory read once: removing them
+	// frame by frame read a show's frames directory for every frame);
+	// under the lock no other run writes these frames.
+	if err := j.RemoveFrameTemps(j.Frames...); err != nil {
 		return res, err
 	}
 	if o.Start != nil {
@@ -141,9 +141,6 @@ func (j *Job) Run(ctx context.Context, o RunOptions) (RunResult, error) {
 				return res, fmt.Errorf("%w before frame %d", ErrInterrupted, i)
 			}
 			return res, fmt.Errorf("%w after frame %d", ErrInterrupted, last)
-		}
-		if err := j.RemoveFrameTemps(i); err != nil {
-			return res, err
 		}
 		l, err := j.RenderFrame(prep, enc, i)
 		if err != nil {
