@@ -9,7 +9,6 @@ import (
 	"testing"
 
 	"github.com/skyframe/skyframe/flight"
-	"github.com/skyframe/skyframe/imgfile"
 	"github.com/skyframe/skyframe/sky"
 )
 
@@ -49,36 +48,48 @@ func benchLoad(b testing.TB, camera string) *Job {
 
 // BenchmarkFlightFrameFisheye renders and writes (8-bit PNG at the default
 // compression + sidecar, atomically) successive frames of a fisheye flight
-// of the built-in sky with its unresolved light, as Job.Run does:
-// catalogue depth, stars, the diffuse layer, tone map, mean luminance,
-// encode, files. With the camera held on the ship (4096, 8192) every frame
-// after the first replays the unresolved layer (render.DiffuseMemo); with
-// it panning (4096pan: 15°/s, the shutter closed) every frame draws it.
+// of the built-in sky with its unresolved light through Job.Run, as the
+// flight command does: catalogue depth, stars, the diffuse layer, tone
+// map, mean luminance, encode, files, each frame drawn while the previous
+// one is written (RunOptions.Overlap; "seq": one frame at a time). With
+// the camera held on the ship (4096, 8192) every frame after the first
+// replays the unresolved layer (render.DiffuseMemo); with it panning
+// (4096pan: 15°/s, the shutter closed) every frame draws it.
 func BenchmarkFlightFrameFisheye(b *testing.B) {
 	const pan = "\nshutter = 0\n[[camera.look]]\nat = 0\nlook = \"0,-10\"\n[[camera.look]]\nat = 2\nlook = \"0,10\""
 	for _, c := range []struct {
-		name string
-		size int
-		look string
-	}{{"4096", 4096, ""}, {"8192", 8192, ""}, {"4096pan", 4096, pan}} {
-		size := c.size
+		name    string
+		size    int
+		look    string
+		overlap bool
+	}{
+		{"4096", 4096, "", true}, {"4096seq", 4096, "", false},
+		{"8192", 8192, "", true}, {"8192seq", 8192, "", false},
+		{"4096pan", 4096, pan, true},
+	} {
 		b.Run(c.name, func(b *testing.B) {
-			if testing.Short() && size > 4096 {
+			if testing.Short() && c.size > 4096 {
 				b.Skip("8192² frames: not with -short")
 			}
-			j := benchLoad(b, fmt.Sprintf("projection = \"fisheye\"\nsize = \"%dx%d\"%s", size, size, c.look))
-			enc := &imgfile.PNGEncoder{}
+			j := benchLoad(b, fmt.Sprintf("projection = \"fisheye\"\nsize = \"%dx%d\"%s", c.size, c.size, c.look))
 			n := j.Plan.Frames()
-			if _, err := j.RenderFrame(nil, enc, 0); err != nil { // the maps and pools, once
+			j.Frames = []int{0} // the maps, pools and memo, once
+			if _, err := j.Run(context.Background(), RunOptions{}); err != nil {
 				b.Fatal(err)
+			}
+			j.Frames = j.Frames[:0]
+			for i := range b.N {
+				j.Frames = append(j.Frames, 1+i%(n-1))
 			}
 			b.ReportAllocs()
 			c0 := cpuSeconds()
 			b.ResetTimer()
-			for i := 0; i < b.N; i++ {
-				if _, err := j.RenderFrame(nil, enc, 1+i%(n-1)); err != nil {
-					b.Fatal(err)
-				}
+			res, err := j.Run(context.Background(), RunOptions{Overlap: c.overlap})
+			if err != nil {
+				b.Fatal(err)
+			}
+			if res.Rendered != b.N {
+				b.Fatalf("%d frames rendered, want %d", res.Rendered, b.N)
 			}
 			b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "frames/s")
 			b.ReportMetric((cpuSeconds()-c0)/float64(b.N), "CPU-s/op")

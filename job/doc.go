@@ -23,7 +23,10 @@
 // observer and camera at those offsets.
 //
 // A frame depends only on the plan and its index, so shards and resumed
-// runs write the same bytes as a single run. The command owns flags,
+// runs write the same bytes as a single run. With RunOptions.Overlap a
+// run draws each frame while the previous one is encoded and written
+// (one goroutine writes; frames are written, and Done called, in order),
+// for a second frame's image and files in memory (OverlapBytes). The command owns flags,
 // printing, progress, the clock (times such as a lock's start are passed
 // in) and signals; this package returns values and errors (*InputError for
 // problems with the plan, settings or output directory, exit status 2) and

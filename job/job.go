@@ -315,22 +315,65 @@ func (j *Job) FrameLayers(fs flight.FrameState, obs camera.Observer) frame.Layer
 // sidecar last so that its presence marks a complete frame. It returns
 // the frame's luminance for the flash check.
 func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int) (Lum, error) {
-	fs, err := j.Plan.FrameState(i)
+	d, err := j.drawFrame(prep, i)
 	if err != nil {
 		return Lum{}, err
 	}
+	if err := j.writeFrame(d, enc); err != nil {
+		return Lum{}, err
+	}
+	return d.lum, nil
+}
+
+// drawnFrame is a frame drawn and ready to be written (drawFrame): its
+// image with the overlays, its overlay layer, its FITS and OpenEXR files
+// encoded (they need the linear frame, which drawFrame hands on to the
+// next frame), and what its PNG and sidecar record.
+type drawnFrame struct {
+	i     int
+	img   draw.Image   // the 8- or 16-bit image the PNG is encoded from
+	img8  *image.NRGBA // the kept 8-bit image, returned by release
+	layer *image.NRGBA // the overlay layer, when the plan writes one
+	fits  *bytes.Buffer
+	exr   []byte
+	meta  []imgfile.KV // PNG text: the sidecar's and the frame's
+	side  render.Sidecar
+	info  Info
+	lum   Lum
+}
+
+// release returns the frame's kept buffers for the next frames.
+func (d *drawnFrame) release() {
+	if d.img8 != nil {
+		images.put(d.img8)
+		d.img8 = nil
+	}
+	if d.fits != nil {
+		buffers.put(d.fits)
+		d.fits = nil
+	}
+}
+
+// drawFrame renders frame i up to its files' contents: the linear frame,
+// the tone-mapped image and its luminance, the overlays, and the FITS and
+// OpenEXR files. writeFrame encodes the PNG files and writes everything.
+func (j *Job) drawFrame(prep *render.Prepared, i int) (*drawnFrame, error) {
+	fs, err := j.Plan.FrameState(i)
+	if err != nil {
+		return nil, err
+	}
 	obs, err := flight.Observer(fs.State)
 	if err != nil {
-		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	proj, err := j.Projection(fs)
 	if err != nil {
-		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	fr := j.Frame
 	jf, stars, prep, rep, err := j.frameSky(prep, i, fs, obs, proj)
 	if err != nil {
-		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	// The frame's buffers are reused across frames (keeper), like the
 	// 8-bit image below: a new 4096² float buffer costs about 0.6 CPU-s
@@ -339,7 +382,7 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 	defer frames.put(dst)
 	f, lay, kept, ex, err := jf.renderLinear(dst, prep, fs, obs, proj)
 	if err != nil {
-		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	spec := &frame.Spec{Proj: proj, Opt: f.Options, Tone: fr.Tone, Depth: fr.Depth, Look: fs.Look.Look, Source: "skyframe flight",
 		Credit: j.Credit, Layers: lay, EXR: j.EXR, Version: j.Version, Stars: stars, Heading: fs.State.Dir,
@@ -350,96 +393,114 @@ func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int)
 			j.Completeness(i, *rep)
 		}
 	}
-	side := spec.Sidecar(f)
+	d := &drawnFrame{i: i, side: spec.Sidecar(f)}
+	done := false
+	defer func() {
+		if !done {
+			d.release()
+		}
+	}()
 	// The 8-bit image and the encoders' byte buffers are reused across
 	// frames (keeper): allocating and first touching them anew costs
 	// more than tone mapping at 4096².
-	img8 := f.ToNRGBAInto(getNRGBA(), fr.Tone)
-	defer images.put(img8)
-	lum := MeanLuminance(img8, j.Workers)
-	var img draw.Image = img8
+	d.img8 = f.ToNRGBAInto(getNRGBA(), fr.Tone)
+	d.lum = MeanLuminance(d.img8, j.Workers)
+	d.img = d.img8
 	if fr.Depth == 16 {
-		img = spec.Image(f)
+		d.img = spec.Image(f)
 	}
 	ff := j.Files(i)
-	var layer *image.NRGBA
 	if ff.Overlay != "" {
-		if layer, err = spec.OverlayLayer(f); err != nil {
-			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		if d.layer, err = spec.OverlayLayer(f); err != nil {
+			return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
-	} else if err := spec.DrawOverlays(img, f); err != nil {
-		return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+	} else if err := spec.DrawOverlays(d.img, f); err != nil {
+		return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
 	home, dest := SignalRates(j.Plan.Trajectory(), fs.State)
-	info := Info{
+	d.info = Info{
 		Title: j.Plan.Title, PlanHash: j.Hash, Inputs: j.Inputs, Frame: i, Frames: j.Plan.Frames(), Phase: fs.Phase.String(),
 		VideoSeconds: fs.Seconds, ShipYears: fs.State.Tau, CatalogueYrs: fs.State.T,
 		RateHome: home, RateDest: dest, TravelledPc: fs.State.Travelled, RemainingPc: fs.State.Remaining,
-		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: lum.Mean, RegionLuminance: lum.Regions,
+		LookKey: fs.Look.Look, RollDeg: fs.Roll, MeanLuminance: d.lum.Mean, RegionLuminance: d.lum.Regions,
 		Shutter: fr.Shutter, BlurKnots: len(ex.Knots), BlurPathPx: ex.Path,
 	}
 	frameKV := []imgfile.KV{{Key: "skyframe:frame", Value: strconv.Itoa(i)}, {Key: "skyframe:plan_hash", Value: j.Hash}}
-	if ff.PNG != "" {
-		meta := append(spec.PNGMeta(side), frameKV...)
-		buf := getBuffer()
-		defer buffers.put(buf)
-		if err := enc.Encode(buf, img, meta); err != nil {
-			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
-		}
-		if err := j.writeFile(ff.PNG, buf.Bytes()); err != nil {
-			return Lum{}, err
-		}
-		info.Files = append(info.Files, FileRecord{Kind: "png", Name: ff.PNG, Bytes: int64(buf.Len()), SHA256: SHA256(buf.Bytes())})
-	}
-	if layer != nil {
-		meta := append(append(spec.PNGMeta(side), frameKV...),
-			imgfile.KV{Key: "Description", Value: "skyframe overlays alone (sRGB, straight alpha)"})
-		buf := getBuffer()
-		defer buffers.put(buf)
-		if err := enc.Encode(buf, layer, meta); err != nil {
-			return Lum{}, fmt.Errorf("flight: frame %d: overlay layer: %w", i, err)
-		}
-		if err := j.writeFile(ff.Overlay, buf.Bytes()); err != nil {
-			return Lum{}, err
-		}
-		info.Files = append(info.Files, FileRecord{Kind: "overlay", Name: ff.Overlay, Bytes: int64(buf.Len()), SHA256: SHA256(buf.Bytes())})
-	}
+	d.meta = append(spec.PNGMeta(d.side), frameKV...)
 	if ff.FITS != "" {
 		cards, err := spec.FITSCards(f)
 		if err != nil {
-			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+			return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
 		cards = append(cards, imgfile.Card{Key: "FRAME", Value: i, Comment: "frame index in the flight"})
-		buf := getBuffer()
-		defer buffers.put(buf)
-		if err := imgfile.WriteFITS(buf, f.W, f.H, f.Pix, cards); err != nil {
-			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		d.fits = getBuffer()
+		if err := imgfile.WriteFITS(d.fits, f.W, f.H, f.Pix, cards); err != nil {
+			return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
-		if err := j.writeFile(ff.FITS, buf.Bytes()); err != nil {
-			return Lum{}, err
-		}
-		info.Files = append(info.Files, FileRecord{Kind: "fits", Name: ff.FITS, Bytes: int64(buf.Len()), SHA256: SHA256(buf.Bytes())})
 	}
 	if ff.EXR != "" {
-		b, err := j.frameEXR(spec, f, kept, side, layer)
-		if err != nil {
-			return Lum{}, fmt.Errorf("flight: frame %d: %w", i, err)
+		if d.exr, err = j.frameEXR(spec, f, kept, d.side, d.layer); err != nil {
+			return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 		}
-		if err := j.writeFile(ff.EXR, b); err != nil {
-			return Lum{}, err
+	}
+	done = true
+	return d, nil
+}
+
+// writeFrame encodes frame d's PNG files and writes its files, each
+// atomically, in the order PNG, overlay layer, FITS, OpenEXR, then the
+// sidecar, whose presence marks a complete frame. It releases d's buffers.
+func (j *Job) writeFrame(d *drawnFrame, enc *imgfile.PNGEncoder) error {
+	defer d.release()
+	i := d.i
+	ff := j.Files(i)
+	info := d.info
+	if ff.PNG != "" {
+		buf := getBuffer()
+		defer buffers.put(buf)
+		if err := enc.Encode(buf, d.img, d.meta); err != nil {
+			return fmt.Errorf("flight: frame %d: %w", i, err)
 		}
-		info.Files = append(info.Files, FileRecord{Kind: "exr", Name: ff.EXR, Bytes: int64(len(b)), SHA256: SHA256(b)})
+		if err := j.writeFile(ff.PNG, buf.Bytes()); err != nil {
+			return err
+		}
+		info.Files = append(info.Files, FileRecord{Kind: "png", Name: ff.PNG, Bytes: int64(buf.Len()), SHA256: SHA256(buf.Bytes())})
+	}
+	if d.layer != nil {
+		meta := append(slices.Clip(d.meta), imgfile.KV{Key: "Description", Value: "skyframe overlays alone (sRGB, straight alpha)"})
+		buf := getBuffer()
+		defer buffers.put(buf)
+		if err := enc.Encode(buf, d.layer, meta); err != nil {
+			return fmt.Errorf("flight: frame %d: overlay layer: %w", i, err)
+		}
+		if err := j.writeFile(ff.Overlay, buf.Bytes()); err != nil {
+			return err
+		}
+		info.Files = append(info.Files, FileRecord{Kind: "overlay", Name: ff.Overlay, Bytes: int64(buf.Len()), SHA256: SHA256(buf.Bytes())})
+	}
+	if d.fits != nil {
+		b := d.fits.Bytes()
+		if err := j.writeFile(ff.FITS, b); err != nil {
+			return err
+		}
+		info.Files = append(info.Files, FileRecord{Kind: "fits", Name: ff.FITS, Bytes: int64(len(b)), SHA256: SHA256(b)})
+	}
+	if d.exr != nil {
+		if err := j.writeFile(ff.EXR, d.exr); err != nil {
+			return err
+		}
+		info.Files = append(info.Files, FileRecord{Kind: "exr", Name: ff.EXR, Bytes: int64(len(d.exr)), SHA256: SHA256(d.exr)})
 	}
 	if ff.Sidecar != "" {
-		data, err := json.MarshalIndent(Sidecar{Sidecar: side, Flight: info}, "", "  ")
+		data, err := json.MarshalIndent(Sidecar{Sidecar: d.side, Flight: info}, "", "  ")
 		if err != nil {
-			return Lum{}, fmt.Errorf("flight: frame %d: sidecar: %w", i, err)
+			return fmt.Errorf("flight: frame %d: sidecar: %w", i, err)
 		}
 		if err := j.writeFile(ff.Sidecar, append(Seal(data), '\n')); err != nil {
-			return Lum{}, err
+			return err
 		}
 	}
-	return lum, nil
+	return nil
 }
 
 // keeper holds up to n values (0: one) for reuse by the next frames of a
@@ -482,8 +543,8 @@ func (k *keeper[T]) put(v T) {
 // (PNG, overlay layer and FITS of one frame).
 var (
 	frames  keeper[*render.Frame]
-	images  keeper[*image.NRGBA]
-	buffers = keeper[*bytes.Buffer]{n: 3}
+	images  = keeper[*image.NRGBA]{n: 2}  // one drawn, one being written
+	buffers = keeper[*bytes.Buffer]{n: 6} // PNG, overlay layer and FITS, twice
 )
 
 // getFrame returns a kept frame, or a new empty one.

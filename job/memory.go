@@ -70,3 +70,10 @@ func (j *Job) MemoryNeed() render.MemoryNeed {
 	}
 	return m
 }
+
+// OverlapBytes is what RunOptions.Overlap adds to need (MemoryNeed): a
+// second frame's image, PNG encoder and other files, held while the next
+// frame is drawn.
+func OverlapBytes(need render.MemoryNeed) int64 {
+	return need.Image + need.Encode + need.Files
+}

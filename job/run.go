@@ -36,6 +36,12 @@ type RunOptions struct {
 	// Pace, when positive, is a pause after each frame (tests use it to
 	// interrupt a run of tiny frames reliably; the output does not change).
 	Pace time.Duration
+	// Overlap draws each frame while the previous one is encoded and
+	// written, which keeps both CPUs busy through the parts of a frame
+	// that run on one (settling its catalogue, writing and syncing its
+	// files). It holds a second frame's image, PNG and other files
+	// (MemoryNeed.Overlap). The files are the same either way.
+	Overlap bool
 }
 
 // RunResult is what a run did: the frames it rendered (Rendered), the
@@ -135,25 +141,27 @@ func (j *Job) Run(ctx context.Context, o RunOptions) (RunResult, error) {
 	enc := &imgfile.PNGEncoder{Workers: j.Workers}
 	last := -1
 	var biggest int64 // largest frame written so far, bytes
-	for _, i := range todo {
-		if err := ctx.Err(); err != nil {
-			if last < 0 {
-				return res, fmt.Errorf("%w before frame %d", ErrInterrupted, i)
-			}
-			return res, fmt.Errorf("%w after frame %d", ErrInterrupted, last)
+	// A frame being written while the next one is drawn (o.Overlap).
+	var writing *drawnFrame
+	var written chan error
+	// finish waits for the frame being written and accounts for it.
+	finish := func() error {
+		if writing == nil {
+			return nil
 		}
-		l, err := j.RenderFrame(prep, enc, i)
-		if err != nil {
-			return res, err
+		d := writing
+		writing = nil
+		if err := <-written; err != nil {
+			return err
 		}
-		res.Lum[i] = l
-		last = i
+		res.Lum[d.i] = d.lum
+		last = d.i
 		res.Rendered++
 		if o.Done != nil {
-			o.Done(i)
+			o.Done(d.i)
 		}
-		if err := j.CheckSpaceLeft(i, len(todo)-res.Rendered, &biggest); err != nil {
-			return res, err
+		if err := j.CheckSpaceLeft(d.i, len(todo)-res.Rendered, &biggest); err != nil {
+			return err
 		}
 		if o.Pace > 0 {
 			select {
@@ -161,6 +169,42 @@ func (j *Job) Run(ctx context.Context, o RunOptions) (RunResult, error) {
 			case <-ctx.Done():
 			}
 		}
+		return nil
+	}
+	for _, i := range todo {
+		if err := ctx.Err(); err != nil {
+			if err := finish(); err != nil {
+				return res, err
+			}
+			if last < 0 {
+				return res, fmt.Errorf("%w before frame %d", ErrInterrupted, i)
+			}
+			return res, fmt.Errorf("%w after frame %d", ErrInterrupted, last)
+		}
+		d, err := j.drawFrame(prep, i)
+		if err != nil {
+			if ferr := finish(); ferr != nil {
+				return res, ferr
+			}
+			return res, err
+		}
+		if o.Overlap {
+			if err := finish(); err != nil {
+				d.release()
+				return res, err
+			}
+			writing, written = d, make(chan error, 1)
+			go func() { written <- j.writeFrame(d, enc) }()
+			continue
+		}
+		writing, written = d, make(chan error, 1)
+		written <- j.writeFrame(d, enc)
+		if err := finish(); err != nil {
+			return res, err
+		}
+	}
+	if err := finish(); err != nil {
+		return res, err
 	}
 	return res, nil
 }

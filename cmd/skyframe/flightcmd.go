@@ -170,7 +170,10 @@ func runFlight(e *env, args []string) error {
 	if err := checkMemory(need, budget, "reduce camera.width and camera.height (or render a --preview)"); err != nil {
 		return err
 	}
-	return renderFlight(e, job, f.resume)
+	// Each frame is drawn while the previous one is written when the
+	// budget holds both.
+	overlap := need.Total()+flightjob.OverlapBytes(need) <= budget
+	return renderFlight(e, job, f.resume, overlap)
 }
 
 // fmtDuration rounds d for progress lines.

@@ -1,0 +1,82 @@
+package job
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"os"
+	"path/filepath"
+	"reflect"
+	"testing"
+)
+
+// A run that draws each frame while the previous one is written
+// (RunOptions.Overlap) writes the very files of a run that does one frame
+// at a time, reports the same luminances and calls Done in frame order;
+// interrupted, it stops after a whole frame, leaving no partial files.
+func TestRunOverlap(t *testing.T) {
+	cam := "size = \"160x90\"\nfov = 70"
+	seq, ovl := benchLoad(t, cam), benchLoad(t, cam)
+	frames := []int{0, 1, 2, 3, 4, 5}
+	for _, j := range []*Job{seq, ovl} {
+		j.Frames = frames
+		j.Plan.Output.FITS = true
+	}
+	var order []int
+	rs, err := seq.Run(context.Background(), RunOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ro, err := ovl.Run(context.Background(), RunOptions{Overlap: true, Done: func(i int) { order = append(order, i) }})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(order, frames) {
+		t.Errorf("Done called for %v, want %v", order, frames)
+	}
+	if rs.Rendered != len(frames) || ro.Rendered != len(frames) || !reflect.DeepEqual(rs.Lum, ro.Lum) {
+		t.Errorf("rendered %d and %d frames; luminances equal: %v", rs.Rendered, ro.Rendered, reflect.DeepEqual(rs.Lum, ro.Lum))
+	}
+	for _, i := range frames {
+		ff := seq.Files(i)
+		for _, name := range []string{ff.PNG, ff.FITS, ff.Sidecar} {
+			a, err := os.ReadFile(filepath.Join(seq.OutDir, name))
+			if err != nil {
+				t.Fatal(err)
+			}
+			b, err := os.ReadFile(filepath.Join(ovl.OutDir, name))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !bytes.Equal(a, b) {
+				t.Errorf("frame %d: %s differs with overlap", i, name)
+			}
+		}
+	}
+
+	// Interrupted after frame 2 is drawn: frames 0–2 are written whole,
+	// nothing of 3–5.
+	again := benchLoad(t, cam)
+	again.Frames = frames
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	res, err := again.Run(ctx, RunOptions{Overlap: true, Done: func(i int) {
+		if i == 1 { // frame 2 is drawn by now; it is written before the run stops
+			cancel()
+		}
+	}})
+	if !errors.Is(err, ErrInterrupted) || res.Rendered != 3 {
+		t.Fatalf("interrupted run: %d frames, error %v; want 3 and ErrInterrupted", res.Rendered, err)
+	}
+	ents, err := os.ReadDir(filepath.Join(again.OutDir, "frames"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var names []string
+	for _, e := range ents {
+		names = append(names, e.Name())
+	}
+	if want := []string{"00000.json", "00000.png", "00001.json", "00001.png", "00002.json", "00002.png"}; !reflect.DeepEqual(names, want) {
+		t.Errorf("after the interruption: %v, want %v", names, want)
+	}
+}
