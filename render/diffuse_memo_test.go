@@ -181,3 +181,34 @@ func TestMemoLimit(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkDiffuseReplay4096 replays a held 4096² fisheye's unresolved
+// layer (0.9 c toward the galactic centre) from its memo: the per-pixel
+// interpolation of the adaptive grid's cells and the exact pixels' sums,
+// all a held flight frame spends on the layer.
+func BenchmarkDiffuseReplay4096(b *testing.B) {
+	u := builtInUnresolved(b)
+	gc := camera.FromGalacticLB(0, 0)
+	boost, err := camera.NewBoost(gc, 0.9)
+	if err != nil {
+		b.Fatal(err)
+	}
+	f := blankFrame(b, looking(b, camera.Fisheye, 4096, 4096, 180, gc), camera.Observer{Boost: boost})
+	m := new(DiffuseMemo)
+	if err := AddDiffuse(f, u, DiffuseOptions{Memo: m}); err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	c0 := cpuSeconds()
+	b.ResetTimer()
+	for b.Loop() {
+		if err := AddDiffuse(f, u, DiffuseOptions{Memo: m}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	if m.Replays() == 0 {
+		b.Fatal("the layer was not replayed")
+	}
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(f.W*f.H), "ns/pixel")
+	b.ReportMetric((cpuSeconds()-c0)/float64(b.N), "CPU-s/op")
+}
