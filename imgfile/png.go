@@ -5,7 +5,6 @@ import (
 	"encoding/binary"
 	"errors"
 	"fmt"
-	"hash/adler32"
 	"hash/crc32"
 	"image"
 	"image/png"
@@ -546,7 +545,7 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 	} else {
 		clear(prev)
 	}
-	ad := adler32.New()
+	ad := uint32(1) // Adler-32 of nothing
 	var n int64
 	for y := y0; y < y1; y++ {
 		rowOf(y, cur)
@@ -558,7 +557,7 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 		} else {
 			line = filterRow(cur, prev, bpp, filt)
 		}
-		ad.Write(line)
+		ad = adler32Update(ad, line)
 		n += int64(len(line))
 		if _, err := fw.Write(line); err != nil {
 			return nil, 0, 0, fmt.Errorf("imgfile: encoding PNG: %w", err)
@@ -574,23 +573,58 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 	if err != nil {
 		return nil, 0, 0, fmt.Errorf("imgfile: encoding PNG: %w", err)
 	}
-	return out, ad.Sum32(), n, nil
+	return out, ad, n, nil
+}
+
+// adler32Update returns the Adler-32 (RFC 1950 §8.2) of the bytes summed
+// into adler followed by p, as hash/adler32 computes it, eight bytes a step:
+// over bytes b₀…b₇, s2 gains 8·s1 + Σ(8−i)·bᵢ and s1 gains Σbᵢ, the two
+// sums formed in 16-bit lanes of one 64-bit word (the even and the odd
+// bytes; every lane stays below 2¹⁶) and gathered into the top lane by a
+// multiplication. The sums are reduced modulo 65521 every MiB, before a
+// uint64 can overflow.
+func adler32Update(adler uint32, p []byte) uint32 {
+	const mod = 65521
+	const lanes = 0x00ff00ff00ff00ff
+	s1, s2 := uint64(adler&0xffff), uint64(adler>>16)
+	for len(p) > 0 {
+		chunk := p[:min(len(p), 1<<20)]
+		p = p[len(chunk):]
+		for ; len(chunk) >= 8; chunk = chunk[8:] {
+			x := binary.LittleEndian.Uint64(chunk)
+			even, odd := x&lanes, x>>8&lanes
+			s2 += 8*s1 + (even*0x0008000600040002)>>48 + (odd*0x0007000500030001)>>48
+			s1 += ((even + odd) * 0x0001000100010001) >> 48
+		}
+		for _, b := range chunk {
+			s1 += uint64(b)
+			s2 += s1
+		}
+		s1 %= mod
+		s2 %= mod
+	}
+	return uint32(s2<<16 | s1)
 }
 
 // rgbaToRGB copies the RGB bytes of len(dst)/3 RGBA pixels of src into
-// dst. All but the last pixel move as one 32-bit word each, whose fourth
-// byte the next pixel overwrites.
+// dst: four pixels at a time as two 64-bit words in and a 64- and a 32-bit
+// word out, then one by one.
 func rgbaToRGB(dst, src []byte) {
 	n := len(dst) / 3
-	if n == 0 {
-		return
-	}
 	src = src[:4*n]
-	for k := 0; k < n-1; k++ {
-		binary.LittleEndian.PutUint32(dst[3*k:3*k+4], binary.LittleEndian.Uint32(src[4*k:4*k+4]))
+	const rgb = 0x00ffffff
+	k := 0
+	for ; k+4 <= n; k += 4 {
+		s := src[4*k : 4*k+16 : 4*k+16]
+		a, b := binary.LittleEndian.Uint64(s[:8]), binary.LittleEndian.Uint64(s[8:])
+		p0, p1, p2, p3 := a&rgb, a>>32&rgb, b&rgb, b>>32&rgb
+		d := dst[3*k : 3*k+12 : 3*k+12]
+		binary.LittleEndian.PutUint64(d[:8], p0|p1<<24|p2<<48)
+		binary.LittleEndian.PutUint32(d[8:], uint32(p2>>16|p3<<8))
 	}
-	k := n - 1
-	dst[3*k], dst[3*k+1], dst[3*k+2] = src[4*k], src[4*k+1], src[4*k+2]
+	for ; k < n; k++ {
+		dst[3*k], dst[3*k+1], dst[3*k+2] = src[4*k], src[4*k+1], src[4*k+2]
+	}
 }
 
 // isOpaque reports whether every pixel of the RGBA (depth 8) or RGBA64

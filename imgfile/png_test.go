@@ -128,6 +128,8 @@ func TestWritePNGRoundTrip(t *testing.T) {
 		{"nrgba8 alpha", testNRGBA(37, 23, 1), 8},
 		{"nrgba8 opaque", opaque8(testNRGBA(29, 31, 11)), 8},
 		{"nrgba8 opaque one column", opaque8(testNRGBA(1, 7, 14)), 8},
+		{"nrgba8 opaque six columns", opaque8(testNRGBA(6, 5, 16)), 8},
+		{"nrgba8 opaque seven columns", opaque8(testNRGBA(7, 5, 17)), 8},
 		{"nrgba8 last pixel translucent", lastTranslucent(testNRGBA(29, 5, 15)), 8},
 		{"nrgba64 opaque", testNRGBA64(19, 41, 2), 16},
 		{"nrgba64 alpha", alpha16(testNRGBA64(23, 17, 12)), 16},
@@ -237,6 +239,18 @@ func TestWritePNGWorkers(t *testing.T) {
 			}
 		}
 	}
+	// The largest sums: 3 MiB of 0xff bytes, past the MiB between
+	// reductions, from the first sums and from the largest ones (against
+	// the combination rule, checked below, since hash/adler32 cannot start
+	// from given sums).
+	ones := bytes.Repeat([]byte{0xff}, 3<<20+5)
+	if have, want := adler32Update(1, ones), adler32.Checksum(ones); have != want {
+		t.Fatalf("adler32Update (3 MiB of 0xff): have %08x, want %08x", have, want)
+	}
+	const top = 65520<<16 | 65520
+	if have, want := adler32Update(top, ones), adler32Combine(top, adler32.Checksum(ones), int64(len(ones))); have != want {
+		t.Fatalf("adler32Update from %08x over 3 MiB of 0xff: have %08x, want %08x", uint32(top), have, want)
+	}
 	rng := rand.New(rand.NewPCG(5, 5))
 	for range 50 {
 		a := make([]byte, rng.IntN(200000))
@@ -246,6 +260,12 @@ func TestWritePNGWorkers(t *testing.T) {
 		}
 		for i := range b {
 			b[i] = byte(rng.UintN(256))
+		}
+		if have, want := adler32Update(1, a), adler32.Checksum(a); have != want {
+			t.Fatalf("adler32Update (%d bytes): have %08x, want hash/adler32's %08x", len(a), have, want)
+		}
+		if have, want := adler32Update(adler32.Checksum(a), b), adler32.Checksum(append(append([]byte{}, a...), b...)); have != want {
+			t.Fatalf("adler32Update (%d + %d bytes): have %08x, want hash/adler32's %08x", len(a), len(b), have, want)
 		}
 		want := adler32.Checksum(append(append([]byte{}, a...), b...))
 		if have := adler32Combine(adler32.Checksum(a), adler32.Checksum(b), int64(len(b))); have != want {
