@@ -82,26 +82,11 @@ func (f *Frame) ToNRGBA(m ToneMode) *image.NRGBA { return f.ToNRGBAInto(nil, m) 
 // ToNRGBAInto is ToNRGBA writing into dst when it fits (see
 // Buffer.ToNRGBAInto).
 func (f *Frame) ToNRGBAInto(dst *image.NRGBA, m ToneMode) *image.NRGBA {
-	img := f.Buffer.toNRGBAInto(dst, m, f.Options.Workers)
+	var mask *circleMask
 	if cx, cy, r, ok := f.Options.Projection.ImageCircle(); ok {
-		maskNRGBA(img, cx, cy, r)
+		mask = newCircleMask(f.W, f.H, cx, cy, r)
 	}
-	return img
-}
-
-// maskNRGBA applies the circle mask to an opaque image.
-func maskNRGBA(img *image.NRGBA, cx, cy, r float64) {
-	maskRows(img.Rect.Dx(), img.Rect.Dy(), cx, cy, r, func(j, i0, i1 int) {
-		row := img.Pix[j*img.Stride : j*img.Stride+4*img.Rect.Dx()]
-		for i := i0; i < i1; i++ {
-			row[4*i], row[4*i+1], row[4*i+2] = 0, 0, 0
-		}
-	}, func(i, j int, c float64) {
-		p := img.Pix[j*img.Stride+4*i : j*img.Stride+4*i+3 : j*img.Stride+4*i+3]
-		for k := range p {
-			p[k] = uint8(float64(p[k])*c + 0.5)
-		}
-	})
+	return f.Buffer.toNRGBAMasked(dst, m, f.Options.Workers, mask)
 }
 
 // ToNRGBA64 is ToNRGBA with 16 bits per channel.

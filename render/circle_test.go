@@ -1,7 +1,10 @@
 package render
 
 import (
+	"image"
 	"math"
+	"math/rand/v2"
+	"slices"
 	"testing"
 
 	"gonum.org/v1/gonum/spatial/r3"
@@ -84,8 +87,8 @@ func TestFisheyeMaskedOutsideCircle(t *testing.T) {
 }
 
 // BenchmarkFisheyeToNRGBA: tone mapping, encoding and the circle mask of a
-// 2048² fisheye frame (the mask touches only the pixels near and outside
-// the rim).
+// 2048² fisheye frame, in one pass (pixels outside the circle are not
+// tone-mapped), against the same without the mask.
 func BenchmarkFisheyeToNRGBA(b *testing.B) {
 	p := proj(b, camera.Fisheye, 2048, 2048)
 	f, err := Render(randomStars(100000, -1, 8, 3), Options{Projection: p, Exposure: 1})
@@ -98,17 +101,55 @@ func BenchmarkFisheyeToNRGBA(b *testing.B) {
 			f.ToNRGBA(ToneShoulder)
 		}
 	})
-	b.Run("mask-only", func(b *testing.B) {
-		img := f.Buffer.ToNRGBA(ToneShoulder)
-		b.ReportAllocs()
-		for b.Loop() {
-			maskNRGBA(img, 1024, 1024, 1024)
-		}
-	})
 	b.Run("unmasked", func(b *testing.B) {
 		b.ReportAllocs()
 		for b.Loop() {
 			f.Buffer.ToNRGBA(ToneShoulder)
 		}
 	})
+}
+
+// maskNRGBA applies the circle mask to an opaque image after the tone map:
+// the reference for toNRGBAMasked, which does both in one pass.
+func maskNRGBA(img *image.NRGBA, cx, cy, r float64) {
+	maskRows(img.Rect.Dx(), img.Rect.Dy(), cx, cy, r, func(j, i0, i1 int) {
+		row := img.Pix[j*img.Stride : j*img.Stride+4*img.Rect.Dx()]
+		for i := i0; i < i1; i++ {
+			row[4*i], row[4*i+1], row[4*i+2] = 0, 0, 0
+		}
+	}, func(i, j int, c float64) {
+		p := img.Pix[j*img.Stride+4*i : j*img.Stride+4*i+3 : j*img.Stride+4*i+3]
+		for k := range p {
+			p[k] = uint8(float64(p[k])*c + 0.5)
+		}
+	})
+}
+
+// The one-pass masked tone map equals the tone map followed by the mask,
+// byte for byte, for frames lit everywhere (outside the circle too), odd
+// and even sizes, circles off centre, both tone modes and 1 or 3 workers.
+func TestToNRGBAMaskedOnePass(t *testing.T) {
+	r := rand.New(rand.NewPCG(9, 10))
+	for _, c := range []struct {
+		w, h      int
+		cx, cy, r float64
+	}{{64, 64, 32, 32, 32}, {63, 41, 31.5, 20.5, 20.5}, {50, 50, 20.3, 27.9, 19.2}, {7, 7, 3.5, 3.5, 0.7}} {
+		b, err := NewBuffer(c.w, c.h, false)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := range b.Pix {
+			b.Pix[i] = float32(math.Exp(-6 * r.Float64()))
+		}
+		for _, m := range []ToneMode{ToneLinear, ToneShoulder} {
+			want := b.toNRGBAInto(nil, m, 1)
+			maskNRGBA(want, c.cx, c.cy, c.r)
+			for _, workers := range []int{1, 3} {
+				have := b.toNRGBAMasked(nil, m, workers, newCircleMask(c.w, c.h, c.cx, c.cy, c.r))
+				if !slices.Equal(have.Pix, want.Pix) {
+					t.Errorf("%d×%d circle (%g, %g, %g), %v, %d workers: the one-pass image differs", c.w, c.h, c.cx, c.cy, c.r, m, workers)
+				}
+			}
+		}
+	}
 }

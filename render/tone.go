@@ -163,6 +163,31 @@ func (b *Buffer) ToNRGBAInto(dst *image.NRGBA, m ToneMode) *image.NRGBA {
 
 // toNRGBAInto is ToNRGBAInto on workers goroutines (0: GOMAXPROCS).
 func (b *Buffer) toNRGBAInto(dst *image.NRGBA, m ToneMode, workers int) *image.NRGBA {
+	return b.toNRGBAMasked(dst, m, workers, nil)
+}
+
+// circleMask is an image circle of centre (cx, cy) and radius r, pixels,
+// with each row's spans (circleSpans): pixels in [in0, in1) have coverage
+// above 0, those in [full0, full1) coverage 1.
+type circleMask struct {
+	cx, cy, r float64
+	rows      []struct{ in0, in1, full0, full1 int }
+}
+
+// newCircleMask returns the mask of the circle (cx, cy, r) over a w×h
+// image.
+func newCircleMask(w, h int, cx, cy, r float64) *circleMask {
+	m := &circleMask{cx: cx, cy: cy, r: r, rows: make([]struct{ in0, in1, full0, full1 int }, h)}
+	circleSpans(w, h, cx, cy, r, func(j, in0, in1, f0, f1 int) {
+		m.rows[j].in0, m.rows[j].in1, m.rows[j].full0, m.rows[j].full1 = in0, in1, f0, f1
+	})
+	return m
+}
+
+// toNRGBAMasked is toNRGBAInto with, when mask is not nil, the pixels of
+// coverage 0 black without being tone-mapped and the rim's scaled by their
+// coverage: the image maskNRGBA leaves, in one pass.
+func (b *Buffer) toNRGBAMasked(dst *image.NRGBA, m ToneMode, workers int, mask *circleMask) *image.NRGBA {
 	img := dst
 	if img == nil || !reusable(img.Rect, img.Stride, 4, b.W, b.H) {
 		img = image.NewNRGBA(image.Rect(0, 0, b.W, b.H))
@@ -172,7 +197,17 @@ func (b *Buffer) toNRGBAInto(dst *image.NRGBA, m ToneMode, workers int) *image.N
 	b.rows(workers, func(y int) {
 		src := b.Pix[3*y*b.W : 3*(y+1)*b.W]
 		dst := img.Pix[y*img.Stride : y*img.Stride+4*b.W]
-		for x := 0; x < b.W; x++ {
+		x0, x1 := 0, b.W
+		if mask != nil {
+			x0, x1 = mask.rows[y].in0, mask.rows[y].in1
+			for x := 0; x < x0; x++ {
+				binary.LittleEndian.PutUint32(dst[4*x:4*x+4], 0xff000000)
+			}
+			for x := x1; x < b.W; x++ {
+				binary.LittleEndian.PutUint32(dst[4*x:4*x+4], 0xff000000)
+			}
+		}
+		for x := x0; x < x1; x++ {
 			s := src[3*x : 3*x+3 : 3*x+3]
 			ur, ug, ub := math.Float32bits(s[0]), math.Float32bits(s[1]), math.Float32bits(s[2])
 			var px uint32
@@ -192,6 +227,20 @@ func (b *Buffer) toNRGBAInto(dst *image.NRGBA, m ToneMode, workers int) *image.N
 				px = uint32(code8Exact(r)) | uint32(code8Exact(g))<<8 | uint32(code8Exact(bl))<<16 | 0xff000000
 			}
 			binary.LittleEndian.PutUint32(dst[4*x:4*x+4], px)
+		}
+		if mask != nil {
+			mk := mask.rows[y]
+			for x := mk.in0; x < mk.in1; x++ {
+				if x == mk.full0 {
+					x = max(mk.full1, mk.full0) - 1
+					continue
+				}
+				c := CircleCoverage(mask.cx, mask.cy, mask.r, x, y)
+				p := dst[4*x : 4*x+3 : 4*x+3]
+				for k := range p {
+					p[k] = uint8(float64(p[k])*c + 0.5)
+				}
+			}
 		}
 	})
 	return img
