@@ -890,6 +890,8 @@ func (g *grid) addTile(b *Buffer, ti int, psf *PSF) {
 	x1, y1 := min(ox+tileSize, g.w), min(oy+tileSize, g.h)
 	if len(list) >= pretouchRecs {
 		pretouch(b, ox, oy, x1, y1)
+	} else {
+		pretouchRecords(b, list, tileWindow{x0: ox, y0: oy, x1: x1, y1: y1})
 	}
 	win := tileWindow{x0: ox, y0: oy, x1: x1, y1: y1}
 	var wx, wy [maxTaps]float64
@@ -1039,6 +1041,28 @@ func pretouch(b *Buffer, x0, y0, x1, y1 int) {
 		row := b.Pix[3*(j*b.W+x0) : 3*(j*b.W+x1)]
 		for i := 0; i < len(row); i += 16 {
 			s += row[i]
+		}
+	}
+	if s == 1.5e-45 { // never in practice; keeps the loads
+		pretouchSink = s
+	}
+}
+
+// pretouchRecords reads, for each record of a sparse tile, the first and
+// last value of the rows of its 5×5 window inside win: the loads of
+// different records are independent, so their cache misses overlap before
+// the deposits need the lines.
+func pretouchRecords(b *Buffer, list []splatRec, win tileWindow) {
+	var s float32
+	for k := range list {
+		r := &list[k]
+		i0, i1 := max(win.x0, int(r.x)-2), min(win.x1, int(r.x)+3)
+		j0, j1 := max(win.y0, int(r.y)-2), min(win.y1, int(r.y)+3)
+		if i0 >= i1 {
+			continue
+		}
+		for j := j0; j < j1; j++ {
+			s += b.Pix[3*(j*b.W+i0)] + b.Pix[3*(j*b.W+i1)-1]
 		}
 	}
 	if s == 1.5e-45 { // never in practice; keeps the loads
