@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/spatial/r3"
 
+	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/spectrum"
 )
 
@@ -47,7 +48,11 @@ type Depth struct {
 // direction of motion and its opposite when they are in view, else found on
 // a grid of 257 × 257 pixel positions (borders included), refined on a
 // 33 × 33 grid around each, and widened by the fine grid's step, so the
-// range contains the exact one.
+// range contains the exact one. A fisheye images exactly the directions
+// within half its field of its centre direction (its circle lies inside
+// the frame), so its extremes are at the angles α ∓ FOV/2 from the
+// direction of motion, α the centre's, clipped to [0, π]: exact, widened
+// by 10⁻⁹ rad for rounding.
 func DopplerRange(opt Options) (dmin, dmax float64, err error) {
 	p := opt.Projection
 	if err := p.Validate(); err != nil {
@@ -57,6 +62,21 @@ func DopplerRange(opt Options) (dmin, dmax float64, err error) {
 	if b.Beta() == 0 {
 		return 1, 1, nil
 	}
+	inv := b.Inverse()
+	dir := b.Dir()
+	if p.Kind == camera.Fisheye {
+		const eps = 1e-9
+		alpha := math.Acos(math.Max(-1, math.Min(1, r3.Dot(r3.Unit(p.CentreOrientation().Forward), dir))))
+		half := p.FieldOfView() * math.Pi / 180 / 2
+		thMin, thMax := math.Max(0, alpha-half-eps), math.Min(math.Pi, alpha+half+eps)
+		return 1 / inv.Doppler(unitAt(dir, thMax)), 1 / inv.Doppler(unitAt(dir, thMin)), nil
+	}
+	return dopplerRangeGrid(p, b)
+}
+
+// dopplerRangeGrid is DopplerRange by the grid of pixel positions, for any
+// projection.
+func dopplerRangeGrid(p camera.Projection, b camera.Boost) (dmin, dmax float64, err error) {
 	inv := b.Inverse()
 	dir := b.Dir()
 	// cos θ′ extremes.
