@@ -54,19 +54,7 @@ var lumWeighted = func() (t [3][256]float64) {
 func MeanLuminance(img *image.NRGBA, workers int) Lum {
 	b := img.Bounds()
 	w, h := b.Dx(), b.Dy()
-	if w*h == 0 {
-		return Lum{}
-	}
-	// Sums over a 6 × 6 grid of cells; a window is 2 × 2 cells. Each row's
-	// sum over each cell's columns is computed in parallel (bands of rows
-	// over the workers), then the row sums are added in row
-	// order: the result does not depend on the number of goroutines.
-	const cells = Regions + 1
-	var x0s, x1s [cells]int
-	for cx := range cells {
-		x0s[cx], x1s[cx] = (cx*w+cells-1)/cells, ((cx+1)*w+cells-1)/cells // first x with x·6/w ≥ cx
-	}
-	rowSums := make([]float64, h*cells)
+	a := newLumSums(w, h)
 	const band = 32
 	bands := (h + band - 1) / band
 	var next atomic.Int64
@@ -82,40 +70,78 @@ func MeanLuminance(img *image.NRGBA, workers int) Lum {
 					return
 				}
 				for y := k * band; y < min(h, (k+1)*band); y++ {
-					row := img.Pix[y*img.Stride : y*img.Stride+4*w]
-					wr, wg, wb := &lumWeighted[0], &lumWeighted[1], &lumWeighted[2]
-					for cx := range cells {
-						// Four running sums, pixel by pixel in turn, so
-						// that the additions do not wait on each other.
-						var s0, s1, s2, s3 float64
-						x, end := 4*x0s[cx], 4*x1s[cx]
-						for ; x+16 <= end; x += 16 {
-							p := row[x : x+16 : x+16]
-							s0 += wr[p[0]] + wg[p[1]] + wb[p[2]]
-							s1 += wr[p[4]] + wg[p[5]] + wb[p[6]]
-							s2 += wr[p[8]] + wg[p[9]] + wb[p[10]]
-							s3 += wr[p[12]] + wg[p[13]] + wb[p[14]]
-						}
-						for ; x < end; x += 4 {
-							s0 += wr[row[x]] + wg[row[x+1]] + wb[row[x+2]]
-						}
-						rowSums[y*cells+cx] = (s0 + s1) + (s2 + s3)
-					}
+					a.row(y, img.Pix[y*img.Stride:y*img.Stride+4*w])
 				}
 			}
 		})
 	}
 	wg.Wait()
+	return a.lum()
+}
+
+// lumCells is the number of cells per axis MeanLuminance sums over: a
+// window is 2 × 2 cells.
+const lumCells = Regions + 1
+
+// lumSums gathers MeanLuminance's sums row by row: each row's sum over
+// each cell's columns (row, from any goroutine, each row once), then
+// the row sums added in row order (lum), so the result does not depend on
+// the order or the goroutines the rows came from. The tone map feeds it
+// each row as it finishes it (render.Frame.ToNRGBARows), while the row is
+// in cache.
+type lumSums struct {
+	w, h     int
+	x0s, x1s [lumCells]int
+	rowSums  []float64
+}
+
+func newLumSums(w, h int) *lumSums {
+	a := &lumSums{w: w, h: h, rowSums: make([]float64, h*lumCells)}
+	for cx := range lumCells {
+		a.x0s[cx], a.x1s[cx] = (cx*w+lumCells-1)/lumCells, ((cx+1)*w+lumCells-1)/lumCells // first x with x·6/w ≥ cx
+	}
+	return a
+}
+
+// row sums row y's pixels (4·w bytes, RGBA) per cell.
+func (a *lumSums) row(y int, row []byte) {
+	wr, wg, wb := &lumWeighted[0], &lumWeighted[1], &lumWeighted[2]
+	for cx := range lumCells {
+		// Four running sums, pixel by pixel in turn, so that the
+		// additions do not wait on each other.
+		var s0, s1, s2, s3 float64
+		x, end := 4*a.x0s[cx], 4*a.x1s[cx]
+		for ; x+16 <= end; x += 16 {
+			p := row[x : x+16 : x+16]
+			s0 += wr[p[0]] + wg[p[1]] + wb[p[2]]
+			s1 += wr[p[4]] + wg[p[5]] + wb[p[6]]
+			s2 += wr[p[8]] + wg[p[9]] + wb[p[10]]
+			s3 += wr[p[12]] + wg[p[13]] + wb[p[14]]
+		}
+		for ; x < end; x += 4 {
+			s0 += wr[row[x]] + wg[row[x+1]] + wb[row[x+2]]
+		}
+		a.rowSums[y*lumCells+cx] = (s0 + s1) + (s2 + s3)
+	}
+}
+
+// lum adds the row sums in row order into the mean and the windows'.
+func (a *lumSums) lum() Lum {
+	w, h := a.w, a.h
+	if w*h == 0 {
+		return Lum{}
+	}
+	const cells = lumCells
 	var cell [cells][cells]float64
 	var cnt [cells][cells]int
 	var sum float64
 	for y := 0; y < h; y++ {
 		cy := y * cells / h
 		for cx := range cells {
-			s := rowSums[y*cells+cx]
+			s := a.rowSums[y*cells+cx]
 			sum += s
 			cell[cy][cx] += s
-			cnt[cy][cx] += x1s[cx] - x0s[cx]
+			cnt[cy][cx] += a.x1s[cx] - a.x0s[cx]
 		}
 	}
 	out := Lum{Mean: sum / float64(w*h), Regions: make([]float64, Regions*Regions)}

@@ -4,6 +4,7 @@ import (
 	"image"
 	"image/color"
 	"math"
+	"reflect"
 	"runtime"
 	"slices"
 	"strings"
@@ -136,4 +137,21 @@ func BenchmarkMeanLuminance4096(b *testing.B) {
 		MeanLuminance(img, 0)
 	}
 	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/(4096*4096), "ns/pixel")
+}
+
+// A flight frame's luminance, summed row by row as the tone map finishes
+// each row, equals MeanLuminance of its image.
+func TestFrameLuminanceFused(t *testing.T) {
+	j := benchLoad(t, "projection = \"fisheye\"\nsize = \"150x150\"")
+	d, err := j.drawFrame(nil, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer d.release()
+	if want := MeanLuminance(d.img8, 0); !reflect.DeepEqual(d.lum, want) {
+		t.Errorf("fused %v, MeanLuminance %v", d.lum, want)
+	}
+	if !(d.lum.Mean > 0) {
+		t.Errorf("mean luminance %v: the frame should be lit", d.lum.Mean)
+	}
 }

@@ -403,8 +403,11 @@ func (j *Job) drawFrame(prep *render.Prepared, i int) (*drawnFrame, error) {
 	// The 8-bit image and the encoders' byte buffers are reused across
 	// frames (keeper): allocating and first touching them anew costs
 	// more than tone mapping at 4096².
-	d.img8 = f.ToNRGBAInto(getNRGBA(), fr.Tone)
-	d.lum = MeanLuminance(d.img8, j.Workers)
+	// The flash check's luminance is summed row by row as the tone map
+	// finishes each row (the same sums as MeanLuminance).
+	sums := newLumSums(f.W, f.H)
+	d.img8 = f.ToNRGBARows(getNRGBA(), fr.Tone, sums.row)
+	d.lum = sums.lum()
 	d.img = d.img8
 	if fr.Depth == 16 {
 		d.img = spec.Image(f)

@@ -82,11 +82,19 @@ func (f *Frame) ToNRGBA(m ToneMode) *image.NRGBA { return f.ToNRGBAInto(nil, m) 
 // ToNRGBAInto is ToNRGBA writing into dst when it fits (see
 // Buffer.ToNRGBAInto).
 func (f *Frame) ToNRGBAInto(dst *image.NRGBA, m ToneMode) *image.NRGBA {
+	return f.ToNRGBARows(dst, m, nil)
+}
+
+// ToNRGBARows is ToNRGBAInto calling row(y, pix) with each row of the image
+// (pix its 4·W bytes, to be read only) as soon as the row is final, while
+// it is still in cache: once per row, from the tone map's goroutines, in
+// no set order. A nil row is not called.
+func (f *Frame) ToNRGBARows(dst *image.NRGBA, m ToneMode, row func(y int, pix []byte)) *image.NRGBA {
 	var mask *circleMask
 	if cx, cy, r, ok := f.Options.Projection.ImageCircle(); ok {
 		mask = newCircleMask(f.W, f.H, cx, cy, r)
 	}
-	return f.Buffer.toNRGBAMasked(dst, m, f.Options.Workers, mask)
+	return f.Buffer.toNRGBAMasked(dst, m, f.Options.Workers, mask, row)
 }
 
 // ToNRGBA64 is ToNRGBA with 16 bits per channel.

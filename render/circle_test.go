@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"sync"
 	"testing"
 
 	"gonum.org/v1/gonum/spatial/r3"
@@ -145,11 +146,39 @@ func TestToNRGBAMaskedOnePass(t *testing.T) {
 			want := b.toNRGBAInto(nil, m, 1)
 			maskNRGBA(want, c.cx, c.cy, c.r)
 			for _, workers := range []int{1, 3} {
-				have := b.toNRGBAMasked(nil, m, workers, newCircleMask(c.w, c.h, c.cx, c.cy, c.r))
+				have := b.toNRGBAMasked(nil, m, workers, newCircleMask(c.w, c.h, c.cx, c.cy, c.r), nil)
 				if !slices.Equal(have.Pix, want.Pix) {
 					t.Errorf("%d×%d circle (%g, %g, %g), %v, %d workers: the one-pass image differs", c.w, c.h, c.cx, c.cy, c.r, m, workers)
 				}
 			}
+		}
+	}
+}
+
+// ToNRGBARows hands over every row once, with the bytes the image ends
+// with (the mask applied), from any number of workers.
+func TestToNRGBARows(t *testing.T) {
+	p := proj(t, camera.Fisheye, 61, 47)
+	f, err := Render(randomStars(3000, -1, 8, 3), Options{Projection: p, Exposure: 1, Workers: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var mu sync.Mutex
+	got := make([][]byte, f.H)
+	img := f.ToNRGBARows(nil, ToneShoulder, func(y int, pix []byte) {
+		mu.Lock()
+		defer mu.Unlock()
+		if got[y] != nil {
+			t.Errorf("row %d handed over twice", y)
+		}
+		got[y] = slices.Clone(pix)
+	})
+	if want := f.ToNRGBA(ToneShoulder); !slices.Equal(img.Pix, want.Pix) {
+		t.Fatal("the image differs from ToNRGBA's")
+	}
+	for y, row := range got {
+		if !slices.Equal(row, img.Pix[y*img.Stride:y*img.Stride+4*f.W]) {
+			t.Errorf("row %d: the bytes handed over are not the image's", y)
 		}
 	}
 }

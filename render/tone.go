@@ -163,7 +163,7 @@ func (b *Buffer) ToNRGBAInto(dst *image.NRGBA, m ToneMode) *image.NRGBA {
 
 // toNRGBAInto is ToNRGBAInto on workers goroutines (0: GOMAXPROCS).
 func (b *Buffer) toNRGBAInto(dst *image.NRGBA, m ToneMode, workers int) *image.NRGBA {
-	return b.toNRGBAMasked(dst, m, workers, nil)
+	return b.toNRGBAMasked(dst, m, workers, nil, nil)
 }
 
 // circleMask is an image circle of centre (cx, cy) and radius r, pixels,
@@ -186,8 +186,9 @@ func newCircleMask(w, h int, cx, cy, r float64) *circleMask {
 
 // toNRGBAMasked is toNRGBAInto with, when mask is not nil, the pixels of
 // coverage 0 black without being tone-mapped and the rim's scaled by their
-// coverage: the image maskNRGBA leaves, in one pass.
-func (b *Buffer) toNRGBAMasked(dst *image.NRGBA, m ToneMode, workers int, mask *circleMask) *image.NRGBA {
+// coverage: the image maskNRGBA leaves, in one pass. When done is not nil
+// it is called with each row (its 4·W bytes) once the row is final.
+func (b *Buffer) toNRGBAMasked(dst *image.NRGBA, m ToneMode, workers int, mask *circleMask, done func(y int, row []byte)) *image.NRGBA {
 	img := dst
 	if img == nil || !reusable(img.Rect, img.Stride, 4, b.W, b.H) {
 		img = image.NewNRGBA(image.Rect(0, 0, b.W, b.H))
@@ -241,6 +242,9 @@ func (b *Buffer) toNRGBAMasked(dst *image.NRGBA, m ToneMode, workers int, mask *
 					p[k] = uint8(float64(p[k])*c + 0.5)
 				}
 			}
+		}
+		if done != nil {
+			done(y, dst)
 		}
 	})
 	return img
