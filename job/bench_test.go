@@ -52,8 +52,8 @@ func benchLoad(b testing.TB, camera string) *Job {
 // flight command does: catalogue depth, stars, the diffuse layer, tone
 // map, mean luminance, encode, files, each frame drawn while the previous
 // one is written (RunOptions.Overlap; "seq": one frame at a time). With
-// the camera held on the ship (4096, 8192) every frame after the first
-// replays the unresolved layer (render.DiffuseMemo); with it panning
+// the camera held on the ship (1024, 4096, 8192) every frame after the
+// first replays the unresolved layer (render.DiffuseMemo); with it panning
 // (4096pan: 15°/s, the shutter closed) every frame draws it.
 func BenchmarkFlightFrameFisheye(b *testing.B) {
 	const pan = "\nshutter = 0\n[[camera.look]]\nat = 0\nlook = \"0,-10\"\n[[camera.look]]\nat = 2\nlook = \"0,10\""
@@ -63,6 +63,7 @@ func BenchmarkFlightFrameFisheye(b *testing.B) {
 		look    string
 		overlap bool
 	}{
+		{"1024", 1024, "", true},
 		{"4096", 4096, "", true}, {"4096seq", 4096, "", false},
 		{"8192", 8192, "", true}, {"8192seq", 8192, "", false},
 		{"4096pan", 4096, pan, true},
@@ -73,8 +74,10 @@ func BenchmarkFlightFrameFisheye(b *testing.B) {
 			}
 			j := benchLoad(b, fmt.Sprintf("projection = \"fisheye\"\nsize = \"%dx%d\"%s", c.size, c.size, c.look))
 			n := j.Plan.Frames()
-			j.Frames = []int{0} // the maps, pools and memo, once
-			if _, err := j.Run(context.Background(), RunOptions{}); err != nil {
+			// The maps, pools and memo, and with overlap the second
+			// frame's buffers, before the clock starts.
+			j.Frames = []int{0, n - 1}
+			if _, err := j.Run(context.Background(), RunOptions{Overlap: c.overlap}); err != nil {
 				b.Fatal(err)
 			}
 			j.Frames = j.Frames[:0]
