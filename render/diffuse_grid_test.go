@@ -231,16 +231,22 @@ func (c *countingSky) Dilutions(n r3.Vec, w []float64) {
 // every pixel.
 func BenchmarkAddDiffuseModelExact(b *testing.B) { benchDiffuseModel(b, true) }
 
-// BenchmarkAddDiffuseFisheye4096 draws the built-in sky's unresolved light
-// into a 4096² fisheye at 0.9 c toward the galactic centre.
-func BenchmarkAddDiffuseFisheye4096(b *testing.B) {
+// galacticCentre4096 is the built-in sky's unresolved light and a black
+// 4096² fisheye frame at 0.9 c toward the galactic centre, looking there.
+func galacticCentre4096(b *testing.B) (UnresolvedSky, *Frame) {
 	u := builtInUnresolved(b)
 	gc := camera.FromGalacticLB(0, 0)
 	boost, err := camera.NewBoost(gc, 0.9)
 	if err != nil {
 		b.Fatal(err)
 	}
-	f := blankFrame(b, looking(b, camera.Fisheye, 4096, 4096, 180, gc), camera.Observer{Boost: boost})
+	return u, blankFrame(b, looking(b, camera.Fisheye, 4096, 4096, 180, gc), camera.Observer{Boost: boost})
+}
+
+// BenchmarkAddDiffuseFisheye4096 draws the built-in sky's unresolved light
+// into a 4096² fisheye at 0.9 c toward the galactic centre.
+func BenchmarkAddDiffuseFisheye4096(b *testing.B) {
+	u, f := galacticCentre4096(b)
 	b.ReportAllocs()
 	c0 := cpuSeconds()
 	b.ResetTimer()

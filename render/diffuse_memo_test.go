@@ -187,13 +187,7 @@ func TestMemoLimit(t *testing.T) {
 // interpolation of the adaptive grid's cells and the exact pixels' sums,
 // all a held flight frame spends on the layer.
 func BenchmarkDiffuseReplay4096(b *testing.B) {
-	u := builtInUnresolved(b)
-	gc := camera.FromGalacticLB(0, 0)
-	boost, err := camera.NewBoost(gc, 0.9)
-	if err != nil {
-		b.Fatal(err)
-	}
-	f := blankFrame(b, looking(b, camera.Fisheye, 4096, 4096, 180, gc), camera.Observer{Boost: boost})
+	u, f := galacticCentre4096(b)
 	m := new(DiffuseMemo)
 	if err := AddDiffuse(f, u, DiffuseOptions{Memo: m}); err != nil {
 		b.Fatal(err)
