@@ -40,7 +40,7 @@ type RunOptions struct {
 	// written, which keeps both CPUs busy through the parts of a frame
 	// that run on one (settling its catalogue, writing and syncing its
 	// files). It holds a second frame's image, PNG and other files
-	// (MemoryNeed.Overlap). The files are the same either way.
+	// (OverlapBytes). The files are the same either way.
 	Overlap bool
 }
 
