@@ -383,11 +383,46 @@ type pngStrip struct {
 	done  chan struct{}
 }
 
-var flatePools [4]sync.Pool // indexed by PNGCompression
+// freeList keeps up to n values for reuse by later encodes. Unlike a
+// sync.Pool it does not drop them at garbage collections, which the large
+// frames of a flight bring on every frame or two: the buffers and deflate
+// states were then allocated and faulted in anew.
+type freeList[T any] struct {
+	mu    sync.Mutex
+	n     int
+	items []T
+}
 
-// stripBufs holds the strips' output buffers (*bytes.Buffer) for reuse:
-// growing new ones cost a 4096² frame about a tenth of its encode time.
-var stripBufs sync.Pool
+// get returns a kept value and true, or the zero value and false.
+func (l *freeList[T]) get() (T, bool) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	var v T
+	if len(l.items) == 0 {
+		return v, false
+	}
+	v = l.items[len(l.items)-1]
+	l.items = l.items[:len(l.items)-1]
+	return v, true
+}
+
+// put keeps v unless n values are kept already.
+func (l *freeList[T]) put(v T) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	if len(l.items) < l.n {
+		l.items = append(l.items, v)
+	}
+}
+
+// flateWriters keeps deflate states per PNGCompression (one per worker is
+// in use at a time).
+var flateWriters = [4]freeList[*flate.Writer]{{n: 8}, {n: 8}, {n: 8}, {n: 8}}
+
+// stripBufs keeps the strips' output buffers (a few are in use at a time:
+// the workers' and those waiting for their turn); growing new ones cost a
+// 4096² frame about a tenth of its encode time.
+var stripBufs = freeList[*bytes.Buffer]{n: 32}
 
 // pngStripBytes is the target size of the filtered data deflated as one
 // strip: large enough that restarting the deflate dictionary costs nothing
@@ -492,7 +527,7 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 			werr = fmt.Errorf("imgfile: writing PNG: %w", err)
 			abort.Store(true)
 		}
-		stripBufs.Put(s.data)
+		stripBufs.put(s.data)
 		s.data = nil
 	}
 	if werr != nil {
@@ -508,14 +543,14 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 // flush (or, for the last strip, the final block).
 func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque bool, y0, y1 int, last bool, level int,
 	cur, prev []byte, filt *[5][]byte) (*bytes.Buffer, uint32, int64, error) {
-	out, _ := stripBufs.Get().(*bytes.Buffer)
-	if out == nil {
+	out, ok := stripBufs.get()
+	if !ok {
 		out = new(bytes.Buffer)
 	}
 	out.Reset()
-	pool := &flatePools[e.Compression]
-	fw, _ := pool.Get().(*flate.Writer)
-	if fw == nil {
+	pool := &flateWriters[e.Compression]
+	fw, ok := pool.get()
+	if !ok {
 		var err error
 		if fw, err = flate.NewWriter(out, level); err != nil {
 			return nil, 0, 0, fmt.Errorf("imgfile: encoding PNG: %w", err)
@@ -523,7 +558,7 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 	} else {
 		fw.Reset(out)
 	}
-	defer pool.Put(fw)
+	defer pool.put(fw)
 
 	bpp := len(cur) / width
 	rowOf := func(y int, dst []byte) {
