@@ -122,10 +122,14 @@ func TestRenderIntoMatchesRender(t *testing.T) {
 	}{
 		{camera.Fisheye, 300, 300, false, "stars"}, {camera.Fisheye, 300, 300, false, "prepared"},
 		{camera.Fisheye, 300, 300, true, "stream"}, {camera.Equirect, 400, 200, true, "stars"},
+		{camera.Equirect, 400, 200, true, "prepared"},
 		{camera.Cube, 600, 100, false, "prepared"}, {camera.Pinhole, 320, 180, false, "stream"},
+		{camera.Pinhole, 320, 180, false, "prepared"}, {camera.Pinhole, 320, 180, false, "prepared"},
 		{camera.Fisheye, 300, 300, false, "stars"},
 	} {
-		opt := Options{Projection: proj(t, c.kind, c.w, c.h), Observer: obs, Exposure: 3, Doppler: c.doppler, Workers: 1 + i%3}
+		// The exposure changes from case to case, so a reused buffer
+		// holds another frame's values until it is cleared.
+		opt := Options{Projection: proj(t, c.kind, c.w, c.h), Observer: obs, Exposure: 3 + float64(i%2), Doppler: c.doppler, Workers: 1 + i%3}
 		want, err := Render(stars, opt)
 		if err != nil {
 			t.Fatal(err)
