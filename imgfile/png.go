@@ -17,6 +17,8 @@ import (
 	"unicode/utf8"
 
 	"github.com/klauspost/compress/flate"
+
+	"github.com/skyframe/skyframe/internal/keep"
 )
 
 // KV is one metadata entry written into a PNG text chunk: Key becomes the
@@ -383,46 +385,14 @@ type pngStrip struct {
 	done  chan struct{}
 }
 
-// freeList keeps up to n values for reuse by later encodes. Unlike a
-// sync.Pool it does not drop them at garbage collections, which the large
-// frames of a flight bring on every frame or two: the buffers and deflate
-// states were then allocated and faulted in anew.
-type freeList[T any] struct {
-	mu    sync.Mutex
-	n     int
-	items []T
-}
-
-// get returns a kept value and true, or the zero value and false.
-func (l *freeList[T]) get() (T, bool) {
-	l.mu.Lock()
-	defer l.mu.Unlock()
-	var v T
-	if len(l.items) == 0 {
-		return v, false
-	}
-	v = l.items[len(l.items)-1]
-	l.items = l.items[:len(l.items)-1]
-	return v, true
-}
-
-// put keeps v unless n values are kept already.
-func (l *freeList[T]) put(v T) {
-	l.mu.Lock()
-	defer l.mu.Unlock()
-	if len(l.items) < l.n {
-		l.items = append(l.items, v)
-	}
-}
-
 // flateWriters keeps deflate states per PNGCompression (one per worker is
-// in use at a time).
-var flateWriters = [4]freeList[*flate.Writer]{{n: 8}, {n: 8}, {n: 8}, {n: 8}}
+// in use at a time), across garbage collections (package keep).
+var flateWriters = [4]keep.List[*flate.Writer]{{Max: 8}, {Max: 8}, {Max: 8}, {Max: 8}}
 
 // stripBufs keeps the strips' output buffers (a few are in use at a time:
 // the workers' and those waiting for their turn); growing new ones cost a
 // 4096² frame about a tenth of its encode time.
-var stripBufs = freeList[*bytes.Buffer]{n: 32}
+var stripBufs = keep.List[*bytes.Buffer]{Max: 32}
 
 // pngStripBytes is the target size of the filtered data deflated as one
 // strip: large enough that restarting the deflate dictionary costs nothing
@@ -527,7 +497,7 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 			werr = fmt.Errorf("imgfile: writing PNG: %w", err)
 			abort.Store(true)
 		}
-		stripBufs.put(s.data)
+		stripBufs.Put(s.data)
 		s.data = nil
 	}
 	if werr != nil {
@@ -543,13 +513,13 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 // flush (or, for the last strip, the final block).
 func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque bool, y0, y1 int, last bool, level int,
 	cur, prev []byte, filt *[5][]byte) (*bytes.Buffer, uint32, int64, error) {
-	out, ok := stripBufs.get()
+	out, ok := stripBufs.Get()
 	if !ok {
 		out = new(bytes.Buffer)
 	}
 	out.Reset()
 	pool := &flateWriters[e.Compression]
-	fw, ok := pool.get()
+	fw, ok := pool.Get()
 	if !ok {
 		var err error
 		if fw, err = flate.NewWriter(out, level); err != nil {
@@ -558,7 +528,7 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 	} else {
 		fw.Reset(out)
 	}
-	defer pool.put(fw)
+	defer pool.Put(fw)
 
 	bpp := len(cur) / width
 	rowOf := func(y int, dst []byte) {

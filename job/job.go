@@ -14,7 +14,6 @@ import (
 	"slices"
 	"strconv"
 	"strings"
-	"sync"
 
 	"gonum.org/v1/gonum/spatial/r3"
 
@@ -25,6 +24,7 @@ import (
 	"github.com/skyframe/skyframe/frame"
 	"github.com/skyframe/skyframe/frameopt"
 	"github.com/skyframe/skyframe/imgfile"
+	"github.com/skyframe/skyframe/internal/keep"
 	"github.com/skyframe/skyframe/names"
 	"github.com/skyframe/skyframe/overlay"
 	"github.com/skyframe/skyframe/render"
@@ -345,11 +345,11 @@ type drawnFrame struct {
 // release returns the frame's kept buffers for the next frames.
 func (d *drawnFrame) release() {
 	if d.img8 != nil {
-		images.put(d.img8)
+		images.Put(d.img8)
 		d.img8 = nil
 	}
 	if d.fits != nil {
-		buffers.put(d.fits)
+		buffers.Put(d.fits)
 		d.fits = nil
 	}
 }
@@ -375,11 +375,11 @@ func (j *Job) drawFrame(prep *render.Prepared, i int) (*drawnFrame, error) {
 	if err != nil {
 		return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
-	// The frame's buffers are reused across frames (keeper), like the
+	// The frame's buffers are reused across frames (frames), like the
 	// 8-bit image below: a new 4096² float buffer costs about 0.6 CPU-s
 	// of page faults on first touch.
 	dst := getFrame()
-	defer frames.put(dst)
+	defer frames.Put(dst)
 	f, lay, kept, ex, err := jf.renderLinear(dst, prep, fs, obs, proj)
 	if err != nil {
 		return nil, fmt.Errorf("flight: frame %d: %w", i, err)
@@ -401,7 +401,7 @@ func (j *Job) drawFrame(prep *render.Prepared, i int) (*drawnFrame, error) {
 		}
 	}()
 	// The 8-bit image and the encoders' byte buffers are reused across
-	// frames (keeper): allocating and first touching them anew costs
+	// frames (images, buffers): allocating and first touching them anew costs
 	// more than tone mapping at 4096².
 	// The flash check's luminance is summed row by row as the tone map
 	// finishes each row (the same sums as MeanLuminance).
@@ -460,7 +460,7 @@ func (j *Job) writeFrame(d *drawnFrame, enc *imgfile.PNGEncoder) error {
 	info := d.info
 	if ff.PNG != "" {
 		buf := getBuffer()
-		defer buffers.put(buf)
+		defer buffers.Put(buf)
 		if err := enc.Encode(buf, d.img, d.meta); err != nil {
 			return fmt.Errorf("flight: frame %d: %w", i, err)
 		}
@@ -472,7 +472,7 @@ func (j *Job) writeFrame(d *drawnFrame, enc *imgfile.PNGEncoder) error {
 	if d.layer != nil {
 		meta := append(slices.Clip(d.meta), imgfile.KV{Key: "Description", Value: "skyframe overlays alone (sRGB, straight alpha)"})
 		buf := getBuffer()
-		defer buffers.put(buf)
+		defer buffers.Put(buf)
 		if err := enc.Encode(buf, d.layer, meta); err != nil {
 			return fmt.Errorf("flight: frame %d: overlay layer: %w", i, err)
 		}
@@ -506,53 +506,20 @@ func (j *Job) writeFrame(d *drawnFrame, enc *imgfile.PNGEncoder) error {
 	return nil
 }
 
-// keeper holds up to n values (0: one) for reuse by the next frames of a
-// flight, and is safe for frames rendered concurrently (they take new
-// ones when it is empty). Not a sync.Pool: a pool drops its items at the
-// second garbage collection, which a large frame brings on within a frame
-// or two, so a 4096² linear buffer (201 MB) or an 8192² 8-bit image
-// (268 MB) was allocated and faulted in anew every few frames, at about
-// 12 µs per 4 KiB page.
-type keeper[T any] struct {
-	mu    sync.Mutex
-	n     int
-	items []T
-}
-
-// get returns a kept value and true, or the zero value and false.
-func (k *keeper[T]) get() (T, bool) {
-	k.mu.Lock()
-	defer k.mu.Unlock()
-	var v T
-	if len(k.items) == 0 {
-		return v, false
-	}
-	v = k.items[len(k.items)-1]
-	k.items = k.items[:len(k.items)-1]
-	return v, true
-}
-
-// put keeps v for a later frame, unless n values are kept already.
-func (k *keeper[T]) put(v T) {
-	k.mu.Lock()
-	defer k.mu.Unlock()
-	if len(k.items) < max(1, k.n) {
-		k.items = append(k.items, v)
-	}
-}
-
-// What flights keep from frame to frame: the linear frame (its buffer and
-// the star path's memory), the 8-bit image, and the encoded files' bytes
-// (PNG, overlay layer and FITS of one frame).
+// What flights keep from frame to frame (package keep: across garbage
+// collections; frames rendered concurrently take new ones when a list is
+// empty): the linear frame (its buffer and the star path's memory), the
+// 8-bit image, and the encoded files' bytes (PNG, overlay layer and FITS
+// of one frame).
 var (
-	frames  keeper[*render.Frame]
-	images  = keeper[*image.NRGBA]{n: 2}  // one drawn, one being written
-	buffers = keeper[*bytes.Buffer]{n: 6} // PNG, overlay layer and FITS, twice
+	frames  keep.List[*render.Frame]
+	images  = keep.List[*image.NRGBA]{Max: 2}  // one drawn, one being written
+	buffers = keep.List[*bytes.Buffer]{Max: 6} // PNG, overlay layer and FITS, twice
 )
 
 // getFrame returns a kept frame, or a new empty one.
 func getFrame() *render.Frame {
-	if f, ok := frames.get(); ok {
+	if f, ok := frames.Get(); ok {
 		return f
 	}
 	return new(render.Frame)
@@ -561,13 +528,13 @@ func getFrame() *render.Frame {
 // getNRGBA returns a kept image, or nil (ToNRGBAInto then allocates one;
 // it also replaces one of the wrong size).
 func getNRGBA() *image.NRGBA {
-	img, _ := images.get()
+	img, _ := images.Get()
 	return img
 }
 
 // getBuffer returns an empty kept buffer or a new one.
 func getBuffer() *bytes.Buffer {
-	b, ok := buffers.get()
+	b, ok := buffers.Get()
 	if !ok {
 		return new(bytes.Buffer)
 	}

@@ -62,9 +62,8 @@ func DopplerRange(opt Options) (dmin, dmax float64, err error) {
 	if b.Beta() == 0 {
 		return 1, 1, nil
 	}
-	inv := b.Inverse()
-	dir := b.Dir()
 	if p.Kind == camera.Fisheye {
+		inv, dir := b.Inverse(), b.Dir()
 		const eps = 1e-9
 		alpha := math.Acos(math.Max(-1, math.Min(1, r3.Dot(r3.Unit(p.CentreOrientation().Forward), dir))))
 		half := p.FieldOfView() * math.Pi / 180 / 2

@@ -78,15 +78,7 @@ func (t *code8Tab) code8(v float32) uint8 {
 	if u >= code8One {
 		return 255
 	}
-	if u < code8Low {
-		return 0
-	}
-	k := (u - code8Low) >> code8Shift
-	c := t.lo[k]
-	if u >= t.thr[k] {
-		c++
-	}
-	return c
+	return t.code8Unit(u)
 }
 
 // code8Unit is code8 for the bits u of a float32 in [0, 1): values below
