@@ -189,65 +189,125 @@ func newCircleMask(w, h int, cx, cy, r float64) *circleMask {
 // coverage: the image maskNRGBA leaves, in one pass. When done is not nil
 // it is called with each row (its 4·W bytes) once the row is final.
 func (b *Buffer) toNRGBAMasked(dst *image.NRGBA, m ToneMode, workers int, mask *circleMask, done func(y int, row []byte)) *image.NRGBA {
-	img := dst
-	if img == nil || !reusable(img.Rect, img.Stride, 4, b.W, b.H) {
-		img = image.NewNRGBA(image.Rect(0, 0, b.W, b.H))
-	}
-	tab := code8Table()
-	fast := toneFastBits(m)
+	img := packedNRGBA(dst, b.W, b.H)
+	t := newToner(m, mask)
 	b.rows(workers, func(y int) {
-		src := b.Pix[3*y*b.W : 3*(y+1)*b.W]
 		dst := img.Pix[y*img.Stride : y*img.Stride+4*b.W]
-		x0, x1 := 0, b.W
-		if mask != nil {
-			x0, x1 = mask.rows[y].in0, mask.rows[y].in1
-			for x := 0; x < x0; x++ {
-				binary.LittleEndian.PutUint32(dst[4*x:4*x+4], 0xff000000)
-			}
-			for x := x1; x < b.W; x++ {
-				binary.LittleEndian.PutUint32(dst[4*x:4*x+4], 0xff000000)
-			}
-		}
-		for x := x0; x < x1; x++ {
-			s := src[3*x : 3*x+3 : 3*x+3]
-			ur, ug, ub := math.Float32bits(s[0]), math.Float32bits(s[1]), math.Float32bits(s[2])
-			var px uint32
-			switch {
-			case ur|ug|ub == 0:
-				px = 0xff000000
-			case ur < fast && ug < fast && ub < fast:
-				// Every channel in [0, toneFast): the identity (see
-				// toneFastBits), float32 values in [0, 1) coded by table.
-				px = uint32(tab.code8Unit(ur)) | uint32(tab.code8Unit(ug))<<8 | uint32(tab.code8Unit(ub))<<16 | 0xff000000
-			case toneIdentity(m, s[0], s[1], s[2]):
-				// Tone returns the channels themselves (clipped to
-				// [0, 1]), float32 values: their codes by table.
-				px = uint32(tab.code8(s[0])) | uint32(tab.code8(s[1]))<<8 | uint32(tab.code8(s[2]))<<16 | 0xff000000
-			default:
-				r, g, bl := Tone(m, float64(s[0]), float64(s[1]), float64(s[2]))
-				px = uint32(code8Exact(r)) | uint32(code8Exact(g))<<8 | uint32(code8Exact(bl))<<16 | 0xff000000
-			}
-			binary.LittleEndian.PutUint32(dst[4*x:4*x+4], px)
-		}
-		if mask != nil {
-			mk := mask.rows[y]
-			for x := mk.in0; x < mk.in1; x++ {
-				if x == mk.full0 {
-					x = max(mk.full1, mk.full0) - 1
-					continue
-				}
-				c := CircleCoverage(mask.cx, mask.cy, mask.r, x, y)
-				p := dst[4*x : 4*x+3 : 4*x+3]
-				for k := range p {
-					p[k] = uint8(float64(p[k])*c + 0.5)
-				}
-			}
-		}
+		t.row(b.Pix[3*y*b.W:3*(y+1)*b.W], dst, y)
 		if done != nil {
 			done(y, dst)
 		}
 	})
 	return img
+}
+
+// packedNRGBA returns dst when it is a packed w×h image (reusable), else a
+// new one.
+func packedNRGBA(dst *image.NRGBA, w, h int) *image.NRGBA {
+	if dst == nil || !reusable(dst.Rect, dst.Stride, 4, w, h) {
+		return image.NewNRGBA(image.Rect(0, 0, w, h))
+	}
+	return dst
+}
+
+// toner tone-maps rows of a linear buffer with mode m into 8-bit NRGBA,
+// with a fisheye's mask when mask is not nil.
+type toner struct {
+	tab  *code8Tab
+	fast uint32
+	m    ToneMode
+	mask *circleMask
+}
+
+func newToner(m ToneMode, mask *circleMask) toner {
+	return toner{tab: code8Table(), fast: toneFastBits(m), m: m, mask: mask}
+}
+
+// row tone-maps src, row y's 3·W values, into dst, its 4·W bytes: the
+// pixels outside the mask's circle black without being tone-mapped, the
+// rim's scaled by their coverage.
+func (t *toner) row(src []float32, dst []byte, y int) {
+	w := len(src) / 3
+	x0, x1 := 0, w
+	if t.mask != nil {
+		x0, x1 = t.mask.rows[y].in0, t.mask.rows[y].in1
+		for x := 0; x < x0; x++ {
+			binary.LittleEndian.PutUint32(dst[4*x:4*x+4], 0xff000000)
+		}
+		for x := x1; x < w; x++ {
+			binary.LittleEndian.PutUint32(dst[4*x:4*x+4], 0xff000000)
+		}
+	}
+	tab, fast, zero := t.tab, t.fast, t.tab.zero
+	for x := x0; x < x1; x++ {
+		s := src[3*x : 3*x+3 : 3*x+3]
+		ur, ug, ub := math.Float32bits(s[0]), math.Float32bits(s[1]), math.Float32bits(s[2])
+		var px uint32
+		switch {
+		case max(ur, ug, ub) < zero:
+			// Every channel in [0, 1.5·10⁻⁴): the identity, code 0. Most
+			// of a frame of space.
+			px = 0xff000000
+		case ur < fast && ug < fast && ub < fast:
+			// Every channel in [0, toneFast): the identity (see
+			// toneFastBits), float32 values in [0, 1) coded by table.
+			px = uint32(tab.code8Unit(ur)) | uint32(tab.code8Unit(ug))<<8 | uint32(tab.code8Unit(ub))<<16 | 0xff000000
+		default:
+			px = t.slow(s[0], s[1], s[2])
+		}
+		binary.LittleEndian.PutUint32(dst[4*x:4*x+4], px)
+	}
+	if t.mask != nil {
+		mk := t.mask.rows[y]
+		for x := mk.in0; x < mk.in1; x++ {
+			if x == mk.full0 {
+				x = max(mk.full1, mk.full0) - 1
+				continue
+			}
+			t.cover(dst, x, y)
+		}
+	}
+}
+
+// pixel returns the opaque NRGBA word (R in the low byte) of the linear
+// pixel (r, g, b), unmasked: what row writes inside the circle.
+func (t *toner) pixel(r, g, b float32) uint32 {
+	ur, ug, ub := math.Float32bits(r), math.Float32bits(g), math.Float32bits(b)
+	switch {
+	case max(ur, ug, ub) < t.tab.zero:
+		return 0xff000000
+	case ur < t.fast && ug < t.fast && ub < t.fast:
+		return uint32(t.tab.code8Unit(ur)) | uint32(t.tab.code8Unit(ug))<<8 | uint32(t.tab.code8Unit(ub))<<16 | 0xff000000
+	}
+	return t.slow(r, g, b)
+}
+
+// slow is pixel past the fast path.
+func (t *toner) slow(r, g, b float32) uint32 {
+	if toneIdentity(t.m, r, g, b) {
+		// Tone returns the channels themselves (clipped to [0, 1]),
+		// float32 values: their codes by table.
+		return uint32(t.tab.code8(r)) | uint32(t.tab.code8(g))<<8 | uint32(t.tab.code8(b))<<16 | 0xff000000
+	}
+	rr, gg, bb := Tone(t.m, float64(r), float64(g), float64(b))
+	return uint32(code8Exact(rr)) | uint32(code8Exact(gg))<<8 | uint32(code8Exact(bb))<<16 | 0xff000000
+}
+
+// cover scales pixel x of row y (dst the row's bytes) by its coverage of
+// the mask's circle; pixels wholly inside are left alone.
+func (t *toner) cover(dst []byte, x, y int) {
+	if t.mask == nil {
+		return
+	}
+	mk := t.mask.rows[y]
+	if x < mk.in0 || x >= mk.in1 || (x >= mk.full0 && x < mk.full1) {
+		return
+	}
+	c := CircleCoverage(t.mask.cx, t.mask.cy, t.mask.r, x, y)
+	p := dst[4*x : 4*x+3 : 4*x+3]
+	for k := range p {
+		p[k] = uint8(float64(p[k])*c + 0.5)
+	}
 }
 
 // toneFast is a channel value below which ToneShoulder is the identity

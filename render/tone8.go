@@ -36,6 +36,9 @@ const (
 type code8Tab struct {
 	lo  [code8N]uint8
 	thr [code8N]uint32
+	// zero is the float32 bits of the least value whose code is not 0:
+	// a pixel whose channels' bits all are below it is black.
+	zero uint32
 }
 
 var code8Table = sync.OnceValue(buildCode8)
@@ -64,6 +67,16 @@ func buildCode8() *code8Tab {
 			}
 		}
 		t.thr[k] = b
+	}
+	for k := range code8N {
+		if t.lo[k] > 0 {
+			t.zero = uint32(code8Low + k<<code8Shift)
+			break
+		}
+		if t.thr[k] != code8None {
+			t.zero = t.thr[k]
+			break
+		}
 	}
 	return t
 }
