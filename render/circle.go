@@ -90,11 +90,15 @@ func (f *Frame) ToNRGBAInto(dst *image.NRGBA, m ToneMode) *image.NRGBA {
 // it is still in cache: once per row, from the tone map's goroutines, in
 // no set order. A nil row is not called.
 func (f *Frame) ToNRGBARows(dst *image.NRGBA, m ToneMode, row func(y int, pix []byte)) *image.NRGBA {
-	var mask *circleMask
+	return f.Buffer.toNRGBAMasked(dst, m, f.Options.Workers, f.circleMask(), row)
+}
+
+// circleMask returns a fisheye frame's image circle mask, else nil.
+func (f *Frame) circleMask() *circleMask {
 	if cx, cy, r, ok := f.Options.Projection.ImageCircle(); ok {
-		mask = newCircleMask(f.W, f.H, cx, cy, r)
+		return newCircleMask(f.W, f.H, cx, cy, r)
 	}
-	return f.Buffer.toNRGBAMasked(dst, m, f.Options.Workers, mask, row)
+	return nil
 }
 
 // ToNRGBA64 is ToNRGBA with 16 bits per channel.

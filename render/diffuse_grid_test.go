@@ -233,7 +233,7 @@ func BenchmarkAddDiffuseModelExact(b *testing.B) { benchDiffuseModel(b, true) }
 
 // galacticCentre4096 is the built-in sky's unresolved light and a black
 // 4096² fisheye frame at 0.9 c toward the galactic centre, looking there.
-func galacticCentre4096(b *testing.B) (UnresolvedSky, *Frame) {
+func galacticCentre4096(b testing.TB) (UnresolvedSky, *Frame) {
 	u := builtInUnresolved(b)
 	gc := camera.FromGalacticLB(0, 0)
 	boost, err := camera.NewBoost(gc, 0.9)

@@ -67,6 +67,9 @@ type DiffuseMemo struct {
 	key     diffuseKey
 	rec     *gridRecord
 	replays int
+	lent    int         // replays lent as PendingLayers
+	users   int         // PendingLayers lent and not released
+	img     *layerImage // the last layer's tone-mapped image (PendingLayer)
 }
 
 // diffuseKey is everything an unresolved layer depends on.
@@ -91,6 +94,13 @@ func (m *DiffuseMemo) Replays() int {
 	return m.replays
 }
 
+// Lent returns how many of the replays were lent as PendingLayers.
+func (m *DiffuseMemo) Lent() int {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	return m.lent
+}
+
 // memoKey returns the key of f's layer of sky with opt, and whether it can
 // be kept.
 func memoKey(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (diffuseKey, bool) {
@@ -113,9 +123,10 @@ func (m *DiffuseMemo) draw(d *diffuseDraw, key diffuseKey) error {
 		m.replays++
 		return nil
 	}
-	// The record kept before lends its storage to the new one.
+	// The record kept before lends its storage to the new one, unless a
+	// PendingLayer holds it.
 	rec := m.rec
-	if rec == nil {
+	if rec == nil || m.users > 0 {
 		rec = new(gridRecord)
 	}
 	m.rec = nil

@@ -171,7 +171,10 @@
 // layers) against point stars, so that a reduced preview keeps the full
 // frame's value per pixel. A DiffuseMemo keeps the layer for the next frame with the same
 // one (a view held on the ship at constant velocity), which replays it bit
-// for bit. Tone mapping and sRGB encoding follow; the 8-bit codes of
+// for bit; or lends it (DiffusePending) for the tone map to add
+// (Frame.ToNRGBAPending), which then takes the pixels the stars leave black
+// from the layer's own kept image and tone-maps only the lit ones, the same
+// image byte for byte. Tone mapping and sRGB encoding follow; the 8-bit codes of
 // pixels the tone map leaves as they are come from a table on the float32
 // bits, equal to the computed codes for every value.
 // The overlays (coordinate graticule, the D = 1 circle, the lattice of

@@ -40,6 +40,18 @@ func (l Layers) AddLinear(f *Frame) error {
 	return nil
 }
 
+// AddLinearPending is AddLinear leaving the unresolved layer out of f,
+// pending (DiffusePending), when it is the only layer and its memo holds
+// it: the tone map then adds it (Frame.ToNRGBAPending) and the caller
+// releases it. With the CMB every pixel is lit, so nothing would be gained:
+// the layers are added and the result is nil.
+func (l Layers) AddLinearPending(f *Frame) (*PendingLayer, error) {
+	if l.CMB || l.Unresolved == nil {
+		return nil, l.AddLinear(f)
+	}
+	return DiffusePending(f, l.Unresolved, l.DiffuseOptions)
+}
+
 // Names of the linear contributions, as recorded in file metadata (FITS
 // LAYERS, PNG text, sidecar) and used as OpenEXR layer prefixes.
 const (

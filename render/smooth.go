@@ -1,7 +1,9 @@
 package render
 
 import (
+	"cmp"
 	"math"
+	"slices"
 	"sync"
 	"unsafe"
 
@@ -135,6 +137,10 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecor
 			}
 		}
 		c.fill(y0, fillEnd(y1, k == bands-1))
+		if c.rec != nil {
+			// In pixel order, for the lookup of a row's (gridBand.exactRow).
+			slices.SortFunc(c.rec.exact, func(a, b exactPix) int { return cmp.Compare(a.i, b.i) })
+		}
 	})
 	for _, err := range errs {
 		if err != nil {
@@ -314,18 +320,20 @@ func (c *smoothCellState) fill(y0, ye int) {
 // pixels wide), row by row.
 func fillLeaves(dst []float32, w int, leaves []smoothLeaf, y0, ye int) {
 	for y := y0; y < ye; y++ {
+		row := dst[3*y*w : 3*(y+1)*w]
 		for i := range leaves {
 			lf := &leaves[i]
 			if y < lf.y0 || y >= lf.ye {
 				continue
 			}
-			interpRow(dst, w, lf, y)
+			interpRow(row, lf, y)
 		}
 	}
 }
 
-// interpRow adds row y of leaf lf's bilinear interpolation to dst.
-func interpRow(dst []float32, w int, lf *smoothLeaf, y int) {
+// interpRow adds row y of leaf lf's bilinear interpolation to row, the
+// frame's row y (3·W values).
+func interpRow(row []float32, lf *smoothLeaf, y int) {
 	v := &lf.v
 	ix, iy := 1/float64(lf.x1-lf.x0), 1/float64(lf.y1-lf.y0)
 	ty := float64(y-lf.y0) * iy
@@ -334,7 +342,7 @@ func interpRow(dst []float32, w int, lf *smoothLeaf, y int) {
 		l[k] = v[0][k] + ty*(v[2][k]-v[0][k])
 		d[k] = v[1][k] + ty*(v[3][k]-v[1][k]) - l[k]
 	}
-	row := dst[3*(y*w+lf.x0) : 3*(y*w+lf.xe)]
+	row = row[3*lf.x0 : 3*lf.xe]
 	l0, l1, l2, d0, d1, d2 := l[0], l[1], l[2], d[0], d[1], d[2]
 	for k, n := 0, 0; k+2 < len(row); k, n = k+3, n+1 {
 		tx := float64(n) * ix
@@ -402,11 +410,59 @@ type gridRecord struct {
 	bands      []gridBand
 }
 
-// gridBand is one band's part of a gridRecord: rows y0 ≤ y < ye.
+// gridBand is one band's part of a gridRecord: rows y0 ≤ y < ye, exact
+// pixels in pixel order. Every pixel of the band is in at most one leaf or
+// exact pixel (the cells' fills partition the band).
 type gridBand struct {
 	y0, ye int
 	leaves []smoothLeaf
 	exact  []exactPix
+}
+
+// band returns the band holding row y, or nil.
+func (r *gridRecord) band(y int) *gridBand {
+	k, ok := slices.BinarySearchFunc(r.bands, y, func(b gridBand, y int) int {
+		switch {
+		case y < b.y0:
+			return 1
+		case y >= b.ye:
+			return -1
+		}
+		return 0
+	})
+	if !ok {
+		return nil
+	}
+	return &r.bands[k]
+}
+
+// exactRow returns the band's exact pixels in row y of a w-pixel-wide
+// frame.
+func (b *gridBand) exactRow(y, w int) []exactPix {
+	at := func(i int) int {
+		k, _ := slices.BinarySearchFunc(b.exact, i, func(e exactPix, i int) int { return cmp.Compare(int(e.i), i) })
+		return k
+	}
+	return b.exact[at(y*w):at((y+1)*w)]
+}
+
+// addRow adds row y of the recorded layer to row (3·W values).
+func (r *gridRecord) addRow(row []float32, y int) {
+	b := r.band(y)
+	if b == nil {
+		return
+	}
+	for _, e := range b.exactRow(y, r.w) {
+		p := row[3*(int(e.i)-y*r.w):][:3:3]
+		p[0] += e.v[0]
+		p[1] += e.v[1]
+		p[2] += e.v[2]
+	}
+	for i := range b.leaves {
+		if lf := &b.leaves[i]; y >= lf.y0 && y < lf.ye {
+			interpRow(row, lf, y)
+		}
+	}
 }
 
 // bytes returns the record's size.

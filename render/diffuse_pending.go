@@ -1,0 +1,227 @@
+package render
+
+import (
+	"errors"
+	"fmt"
+	"image"
+	"math"
+	"sync/atomic"
+)
+
+// PendingLayer is an unresolved layer that a DiffuseMemo holds and that
+// DiffusePending (Layers.AddLinearPending) left out of its frame for the
+// tone map to add (Frame.ToNRGBAPending): a frame held on one view adds
+// the same layer to every frame, and all but the pixels the stars light
+// show the same 8-bit values every frame.
+//
+// The image ToNRGBAPending returns is byte for byte the one AddLinear
+// followed by ToNRGBARows gives (TestPendingMatchesReplay): a pixel the
+// stars leave black takes its value from the layer's own tone-mapped
+// image, kept in the memo (0 + v is v), and a lit pixel adds the layer's
+// value as the replay would (one float32 addition) and is tone-mapped. The
+// frame's buffer is left without the layer: AddTo adds it when the linear
+// frame is needed (FITS, OpenEXR, a 16-bit image).
+//
+// A PendingLayer holds the memo's layer until Release; the memo draws a
+// new layer into new storage meanwhile.
+type PendingLayer struct {
+	m       *DiffuseMemo
+	rec     *gridRecord
+	f       *Frame
+	workers int
+	held    bool
+}
+
+// ErrPending reports a PendingLayer used with another frame than its own
+// or after Release.
+var ErrPending = errors.New("render: pending layer")
+
+// DiffusePending is AddDiffuse leaving the layer out of f when opt.Memo
+// holds it (and opt.Into is nil): it returns the layer, to be added by
+// Frame.ToNRGBAPending or AddTo and released. Otherwise it draws the layer
+// into f as AddDiffuse does and returns nil.
+func DiffusePending(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*PendingLayer, error) {
+	d, err := prepareDiffuse(f, sky, opt)
+	if err != nil {
+		return nil, err
+	}
+	if opt.Memo == nil {
+		return nil, d.draw(d.newEval)
+	}
+	key, ok := memoKey(f, sky, opt)
+	if !ok {
+		return nil, d.draw(d.newEval)
+	}
+	if opt.Into == nil {
+		if p := opt.Memo.lend(key, f, d.workers); p != nil {
+			return p, nil
+		}
+	}
+	return nil, opt.Memo.draw(d, key)
+}
+
+// lend returns the memo's layer of key for frame f, counted as a replay,
+// or nil when the memo holds another.
+func (m *DiffuseMemo) lend(key diffuseKey, f *Frame, workers int) *PendingLayer {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	if m.rec == nil || m.key != key {
+		return nil
+	}
+	m.users++
+	m.replays++
+	m.lent++
+	return &PendingLayer{m: m, rec: m.rec, f: f, workers: workers, held: true}
+}
+
+// Release gives the layer back to its memo. It may be called more than
+// once; a nil PendingLayer does nothing.
+func (p *PendingLayer) Release() {
+	if p == nil || !p.held {
+		return
+	}
+	p.m.mu.Lock()
+	defer p.m.mu.Unlock()
+	p.m.users--
+	p.held = false
+}
+
+// AddTo adds the layer to f's buffer, as the replay does: f is then what
+// AddDiffuse would have left. f must be the frame the layer was left out
+// of; it is added at most once (the layer is then no longer pending for
+// ToNRGBAPending, which tone-maps the frame as it is).
+func (p *PendingLayer) AddTo(f *Frame) error {
+	if err := p.check(f); err != nil {
+		return err
+	}
+	p.rec.replay(f.Pix, p.workers)
+	p.f = nil
+	return nil
+}
+
+func (p *PendingLayer) check(f *Frame) error {
+	switch {
+	case !p.held:
+		return fmt.Errorf("%w: used after Release", ErrPending)
+	case p.f == nil:
+		return fmt.Errorf("%w: already added", ErrPending)
+	case f != p.f || f.W != p.rec.w || len(f.Pix) != 3*f.W*f.H:
+		return fmt.Errorf("%w: not this frame's", ErrPending)
+	}
+	return nil
+}
+
+// layerImage is a recorded layer alone, tone-mapped with tone (and masked
+// when masked): the 8-bit pixels of a frame the stars leave black; and the
+// layer's values as the replay adds them (0 where it adds nothing), for
+// the pixels the stars light.
+type layerImage struct {
+	rec    *gridRecord
+	tone   ToneMode
+	masked bool
+	pix    []byte    // 4·W·H, rows packed
+	lin    []float32 // 3·W·H, interleaved RGB
+}
+
+// image returns the layer's tone-mapped image with t, from the memo or
+// drawn into it (once per layer and tone mode).
+func (p *PendingLayer) image(t *toner, w, h int) *layerImage {
+	m := p.m
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	if li := m.img; li != nil && li.rec == p.rec && li.tone == t.m && li.masked == (t.mask != nil) {
+		return li
+	}
+	li := &layerImage{rec: p.rec, tone: t.m, masked: t.mask != nil}
+	if old := m.img; old != nil && m.users == 1 && len(old.pix) == 4*w*h {
+		// Held by no other frame: its storage is lent.
+		li.pix, li.lin = old.pix, old.lin
+	} else {
+		li.pix, li.lin = make([]byte, 4*w*h), make([]float32, 3*w*h)
+	}
+	const band = 16
+	parallel(p.workers, (h+band-1)/band, func(k int) {
+		for y := k * band; y < min(h, (k+1)*band); y++ {
+			row := li.lin[3*w*y : 3*w*(y+1)]
+			clear(row)
+			p.rec.addRow(row, y)
+			t.row(row, li.pix[4*w*y:4*w*(y+1)], y)
+		}
+	})
+	m.img = li
+	return li
+}
+
+// ToNRGBAPending is ToNRGBARows of f with the pending layer p added (nil:
+// none), without adding it to f's buffer (see PendingLayer): the same
+// image, the same rows handed to row.
+func (f *Frame) ToNRGBAPending(dst *image.NRGBA, m ToneMode, p *PendingLayer, row func(y int, pix []byte)) (*image.NRGBA, error) {
+	if p == nil {
+		return f.ToNRGBARows(dst, m, row), nil
+	}
+	if err := p.check(f); err != nil {
+		return nil, err
+	}
+	t := newToner(m, f.circleMask())
+	w, h := f.W, f.H
+	li := p.image(&t, w, h)
+	img := packedNRGBA(dst, w, h)
+	const band = 16
+	parallel(p.workers, (h+band-1)/band, func(k int) {
+		for y := k * band; y < min(h, (k+1)*band); y++ {
+			d := img.Pix[4*w*y : 4*w*(y+1)]
+			copy(d, li.pix[4*w*y:4*w*(y+1)])
+			litRow(&t, d, f.Pix[3*w*y:3*w*(y+1)], li.lin[3*w*y:3*w*(y+1)], y)
+			if row != nil {
+				row(y, d)
+			}
+		}
+	})
+	return img, nil
+}
+
+// litRow tone-maps into d, row y of the image (holding the layer's own
+// pixels), the pixels src (row y of the buffer) lights, with the layer's
+// values lin added to each as the replay adds them.
+func litRow(t *toner, d []byte, src, lin []float32, y int) {
+	w := len(src) / 3
+	x0, x1 := 0, w
+	if t.mask != nil {
+		x0, x1 = t.mask.rows[y].in0, t.mask.rows[y].in1
+	}
+	// The lit pixels, found eight values at a time (most are 0). The
+	// layer's values are read ahead along the row as the buffer is
+	// scanned, which streams them in; looked up only at the lit pixels,
+	// they were fetched from memory one by one, costing more than the
+	// rest of the row's work.
+	next := x0
+	var ahead uint32
+	for i := 3 * x0; i < 3*x1; i += 8 {
+		e := min(i+8, 3*x1)
+		if i&15 < 8 {
+			ahead |= math.Float32bits(lin[e-1])
+		}
+		if b := src[i:e]; len(b) == 8 {
+			if math.Float32bits(b[0])|math.Float32bits(b[1])|math.Float32bits(b[2])|math.Float32bits(b[3])|
+				math.Float32bits(b[4])|math.Float32bits(b[5])|math.Float32bits(b[6])|math.Float32bits(b[7]) == 0 {
+				continue
+			}
+		}
+		// The pixels holding values i to e−1 not looked at yet.
+		for x := max(i/3, next); x <= (e-1)/3; x++ {
+			c := src[3*x : 3*x+3 : 3*x+3]
+			if math.Float32bits(c[0])|math.Float32bits(c[1])|math.Float32bits(c[2]) == 0 {
+				continue
+			}
+			v := lin[3*x : 3*x+3 : 3*x+3]
+			px := t.pixel(c[0]+v[0], c[1]+v[1], c[2]+v[2])
+			d[4*x], d[4*x+1], d[4*x+2] = byte(px), byte(px>>8), byte(px>>16)
+			t.cover(d, x, y)
+		}
+		next = (e-1)/3 + 1
+	}
+	aheadSink.Store(ahead)
+}
+
+// aheadSink keeps litRow's reads ahead from being optimised away.
+var aheadSink atomic.Uint32
