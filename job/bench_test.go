@@ -53,20 +53,23 @@ func benchLoad(b testing.TB, camera string) *Job {
 // map, mean luminance, encode, files, each frame drawn while the previous
 // one is written (RunOptions.Overlap; "seq": one frame at a time). With
 // the camera held on the ship (1024, 4096, 8192) every frame after the
-// first replays the unresolved layer (render.DiffuseMemo); with it panning
-// (4096pan: 15°/s, the shutter closed) every frame draws it.
+// first replays the unresolved layer (render.DiffuseMemo), left to the
+// tone map (RunOptions.HeldLayer, as the flight command does when
+// --memory holds HeldLayerBytes; "unheld", "seq": replayed into the
+// buffer); with it panning (4096pan: 15°/s, the shutter closed) every
+// frame draws it.
 func BenchmarkFlightFrameFisheye(b *testing.B) {
 	const pan = "\nshutter = 0\n[[camera.look]]\nat = 0\nlook = \"0,-10\"\n[[camera.look]]\nat = 2\nlook = \"0,10\""
 	for _, c := range []struct {
-		name    string
-		size    int
-		look    string
-		overlap bool
+		name          string
+		size          int
+		look          string
+		overlap, held bool
 	}{
-		{"1024", 1024, "", true},
-		{"4096", 4096, "", true}, {"4096seq", 4096, "", false},
-		{"8192", 8192, "", true}, {"8192seq", 8192, "", false},
-		{"4096pan", 4096, pan, true},
+		{"1024", 1024, "", true, true},
+		{"4096", 4096, "", true, true}, {"4096unheld", 4096, "", true, false}, {"4096seq", 4096, "", false, false},
+		{"8192", 8192, "", true, true}, {"8192unheld", 8192, "", true, false}, {"8192seq", 8192, "", false, false},
+		{"4096pan", 4096, pan, true, true},
 	} {
 		b.Run(c.name, func(b *testing.B) {
 			if testing.Short() && c.size > 4096 {
@@ -77,7 +80,8 @@ func BenchmarkFlightFrameFisheye(b *testing.B) {
 			// The maps, pools and memo, and with overlap the second
 			// frame's buffers, before the clock starts.
 			j.Frames = []int{0, n - 1}
-			if _, err := j.Run(context.Background(), RunOptions{Overlap: c.overlap}); err != nil {
+			o := RunOptions{Overlap: c.overlap, HeldLayer: c.held}
+			if _, err := j.Run(context.Background(), o); err != nil {
 				b.Fatal(err)
 			}
 			j.Frames = j.Frames[:0]
@@ -87,7 +91,7 @@ func BenchmarkFlightFrameFisheye(b *testing.B) {
 			b.ReportAllocs()
 			c0 := cpuSeconds()
 			b.ResetTimer()
-			res, err := j.Run(context.Background(), RunOptions{Overlap: c.overlap})
+			res, err := j.Run(context.Background(), o)
 			if err != nil {
 				b.Fatal(err)
 			}

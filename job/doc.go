@@ -26,7 +26,9 @@
 // runs write the same bytes as a single run. With RunOptions.Overlap a
 // run draws each frame while the previous one is encoded and written
 // (one goroutine writes; frames are written, and Done called, in order),
-// for a second frame's image and files in memory (OverlapBytes). The command owns flags,
+// for a second frame's image and files in memory (OverlapBytes); with
+// RunOptions.HeldLayer a held view's unresolved layer is left to the tone
+// map, for its values and image in memory (HeldLayerBytes). The command owns flags,
 // printing, progress, the clock (times such as a lock's start are passed
 // in) and signals; this package returns values and errors (*InputError for
 // problems with the plan, settings or output directory, exit status 2) and

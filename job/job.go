@@ -315,7 +315,7 @@ func (j *Job) FrameLayers(fs flight.FrameState, obs camera.Observer) frame.Layer
 // sidecar last so that its presence marks a complete frame. It returns
 // the frame's luminance for the flash check.
 func (j *Job) RenderFrame(prep *render.Prepared, enc *imgfile.PNGEncoder, i int) (Lum, error) {
-	d, err := j.drawFrame(prep, i)
+	d, err := j.drawFrame(prep, i, false)
 	if err != nil {
 		return Lum{}, err
 	}
@@ -357,7 +357,9 @@ func (d *drawnFrame) release() {
 // drawFrame renders frame i up to its files' contents: the linear frame,
 // the tone-mapped image and its luminance, the overlays, and the FITS and
 // OpenEXR files. writeFrame encodes the PNG files and writes everything.
-func (j *Job) drawFrame(prep *render.Prepared, i int) (*drawnFrame, error) {
+// With held, the unresolved layer is left to the tone map when the memo
+// holds it (RunOptions.HeldLayer).
+func (j *Job) drawFrame(prep *render.Prepared, i int, held bool) (*drawnFrame, error) {
 	fs, err := j.Plan.FrameState(i)
 	if err != nil {
 		return nil, err
@@ -380,10 +382,17 @@ func (j *Job) drawFrame(prep *render.Prepared, i int) (*drawnFrame, error) {
 	// of page faults on first touch.
 	dst := getFrame()
 	defer frames.Put(dst)
-	f, lay, kept, ex, err := jf.renderLinear(dst, prep, fs, obs, proj)
+	// The unresolved layer of a frame held on one view is left for the
+	// tone map to add when nothing needs the linear frame whole (FITS,
+	// OpenEXR and 16-bit images do): the pixels the stars leave black
+	// then take the layer's kept 8-bit values (render.PendingLayer).
+	ff := j.Files(i)
+	lin, err := jf.renderLinear(dst, prep, fs, obs, proj, held && j.heldLayerUsable())
+	defer lin.pending.Release()
 	if err != nil {
 		return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
+	f, lay, kept, ex := lin.f, lin.lay, lin.kept, lin.ex
 	spec := &frame.Spec{Proj: proj, Opt: f.Options, Tone: fr.Tone, Depth: fr.Depth, Look: fs.Look.Look, Source: "skyframe flight",
 		Credit: j.Credit, Layers: lay, EXR: j.EXR, Version: j.Version, Stars: stars, Heading: fs.State.Dir,
 		Beaming: f.Options.Beaming}
@@ -406,13 +415,14 @@ func (j *Job) drawFrame(prep *render.Prepared, i int) (*drawnFrame, error) {
 	// The flash check's luminance is summed row by row as the tone map
 	// finishes each row (the same sums as MeanLuminance).
 	sums := newLumSums(f.W, f.H)
-	d.img8 = f.ToNRGBARows(getNRGBA(), fr.Tone, sums.row)
+	if d.img8, err = f.ToNRGBAPending(getNRGBA(), fr.Tone, lin.pending, sums.row); err != nil {
+		return nil, fmt.Errorf("flight: frame %d: %w", i, err)
+	}
 	d.lum = sums.lum()
 	d.img = d.img8
 	if fr.Depth == 16 {
 		d.img = spec.Image(f)
 	}
-	ff := j.Files(i)
 	if ff.Overlay != "" {
 		if d.layer, err = spec.OverlayLayer(f); err != nil {
 			return nil, fmt.Errorf("flight: frame %d: %w", i, err)
@@ -655,61 +665,79 @@ func (j *Job) RemoveFrameTemps(frames ...int) error {
 // statistics are those of its own instant. With an EXR file it keeps the
 // linear contributions apart and the Doppler channel.
 func (j *Job) RenderLinear(prep *render.Prepared, fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, frame.Layers, []render.Contribution, Exposure, error) {
-	return j.renderLinear(nil, prep, fs, obs, proj)
+	l, err := j.renderLinear(nil, prep, fs, obs, proj, false)
+	return l.f, l.lay, l.kept, l.ex, err
+}
+
+// linearFrame is a frame's linear buffer as renderLinear leaves it: the
+// frame, its layers, its contributions kept apart (OpenEXR), its exposure,
+// and its unresolved layer when left pending.
+type linearFrame struct {
+	f       *render.Frame
+	lay     frame.Layers
+	kept    []render.Contribution
+	ex      Exposure
+	pending *render.PendingLayer
 }
 
 // renderLinear is RenderLinear drawing into dst (render.Prepared.RenderInto,
 // RenderMotionInto: bit-identical), or into a new frame when dst is nil.
-func (j *Job) renderLinear(dst *render.Frame, prep *render.Prepared, fs flight.FrameState, obs camera.Observer, proj camera.Projection) (*render.Frame, frame.Layers, []render.Contribution, Exposure, error) {
+// With pend, an instant's unresolved layer is left pending when the memo
+// holds it (render.Layers.AddLinearPending): the caller tone-maps the
+// frame with it (render.Frame.ToNRGBAPending) and releases it.
+func (j *Job) renderLinear(dst *render.Frame, prep *render.Prepared, fs flight.FrameState, obs camera.Observer, proj camera.Projection, pend bool) (linearFrame, error) {
 	fr := j.Frame
 	keep := j.Plan.Output.EXR
 	opt := j.instantOptions(fs, obs, proj)
 	opt.Doppler = keep && (j.EXR.Layers == nil || slices.Contains(j.EXR.Layers, frame.EXRDoppler))
-	ex, err := PlanExposure(j.Plan, fs.Index, fr.Shutter, fr.FWHM, j.Projection)
+	var l linearFrame
+	var err error
+	l.ex, err = PlanExposure(j.Plan, fs.Index, fr.Shutter, fr.FWHM, j.Projection)
 	if err != nil {
-		return nil, frame.Layers{}, nil, ex, err
+		return linearFrame{ex: l.ex}, err
 	}
-	lay := j.FrameLayers(fs, obs)
-	var f *render.Frame
-	var kept []render.Contribution
-	if ex.Knots == nil {
+	l.lay = j.FrameLayers(fs, obs)
+	if l.ex.Knots == nil {
 		if dst == nil {
-			f, err = prep.Render(opt)
+			l.f, err = prep.Render(opt)
 		} else {
-			f, err = dst, prep.RenderInto(dst, opt)
+			l.f, err = dst, prep.RenderInto(dst, opt)
 		}
 		if err != nil {
-			return nil, frame.Layers{}, nil, ex, err
+			return linearFrame{ex: l.ex}, err
 		}
-		if keep {
-			kept, err = lay.AddLinearKept(f)
-		} else {
-			err = lay.AddLinear(f)
+		switch {
+		case keep:
+			l.kept, err = l.lay.AddLinearKept(l.f)
+		case pend:
+			l.pending, err = l.lay.AddLinearPending(l.f)
+		default:
+			err = l.lay.AddLinear(l.f)
 		}
-		return f, lay, kept, ex, err
+		return l, err
 	}
-	knots, err := Instants(j.Plan, fs.Index, ex.Knots, j.Projection)
+	knots, err := Instants(j.Plan, fs.Index, l.ex.Knots, j.Projection)
 	if err != nil {
-		return nil, frame.Layers{}, nil, ex, err
+		return linearFrame{ex: l.ex}, err
 	}
 	if dst == nil {
-		f, err = prep.RenderMotion(opt, knots)
+		l.f, err = prep.RenderMotion(opt, knots)
 	} else {
-		f, err = dst, prep.RenderMotionInto(dst, opt, knots)
+		l.f, err = dst, prep.RenderMotionInto(dst, opt, knots)
 	}
 	if err != nil {
-		return nil, frame.Layers{}, nil, ex, err
+		return linearFrame{ex: l.ex}, err
 	}
-	at, err := Instants(j.Plan, fs.Index, ex.Layers, j.Projection)
+	at, err := Instants(j.Plan, fs.Index, l.ex.Layers, j.Projection)
 	if err != nil {
-		return nil, frame.Layers{}, nil, ex, err
+		return linearFrame{ex: l.ex}, err
 	}
 	if keep {
-		kept, err = lay.AddLinearMotionKept(f, at, ex.LayerWeights)
+		l.kept, err = l.lay.AddLinearMotionKept(l.f, at, l.ex.LayerWeights)
 	} else {
-		err = lay.AddLinearMotion(f, at, ex.LayerWeights)
+		err = l.lay.AddLinearMotion(l.f, at, l.ex.LayerWeights)
 	}
-	return f, lay, kept, ex, err
+	return l, err
 }
 
 // frameEXR encodes a flight frame's OpenEXR file: the frame, its kept

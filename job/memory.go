@@ -71,6 +71,26 @@ func (j *Job) MemoryNeed() render.MemoryNeed {
 	return m
 }
 
+// HeldLayerBytes is what RunOptions.HeldLayer adds to the need
+// (MemoryNeed): the unresolved layer's values (float32 RGB) and its
+// tone-mapped image (8-bit RGBA), 16 bytes per pixel; 0 when the frames
+// cannot use it (no unresolved layer or no memo, the CMB, FITS, OpenEXR or
+// 16-bit PNG files: render.Layers.AddLinearPending).
+func (j *Job) HeldLayerBytes() int64 {
+	if !j.heldLayerUsable() {
+		return 0
+	}
+	return 16 * int64(j.Frame.Width) * int64(j.Frame.Height)
+}
+
+// heldLayerUsable reports whether the job's frames can leave their
+// unresolved layer to the tone map (RunOptions.HeldLayer).
+func (j *Job) heldLayerUsable() bool {
+	o := j.Plan.Output
+	return j.Layers.Unresolved != nil && j.Layers.DiffuseOptions.Memo != nil && !j.Layers.CMB &&
+		!o.FITS && !o.EXR && j.Frame.Depth != 16
+}
+
 // OverlapBytes is what RunOptions.Overlap adds to need (MemoryNeed): a
 // second frame's image, PNG encoder and other files, held while the next
 // frame is drawn.

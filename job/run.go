@@ -42,6 +42,13 @@ type RunOptions struct {
 	// files). It holds a second frame's image, PNG and other files
 	// (OverlapBytes). The files are the same either way.
 	Overlap bool
+	// HeldLayer lets a frame whose unresolved layer is the last one's
+	// (a view held still: render.DiffuseMemo) leave the layer to the tone
+	// map, which then works only on the pixels the stars light
+	// (render.PendingLayer). It keeps the layer's values and image
+	// (HeldLayerBytes) and applies to 8-bit PNG frames without FITS or
+	// OpenEXR files. The files are the same either way.
+	HeldLayer bool
 }
 
 // RunResult is what a run did: the frames it rendered (Rendered), the
@@ -181,7 +188,7 @@ func (j *Job) Run(ctx context.Context, o RunOptions) (RunResult, error) {
 			}
 			return res, fmt.Errorf("%w after frame %d", ErrInterrupted, last)
 		}
-		d, err := j.drawFrame(prep, i)
+		d, err := j.drawFrame(prep, i, o.HeldLayer)
 		if err != nil {
 			if ferr := finish(); ferr != nil {
 				return res, ferr

@@ -10,6 +10,63 @@ import (
 	"testing"
 )
 
+// A held view's frames are the same files, byte for byte, with the layer
+// left to the tone map (RunOptions.HeldLayer) and without, with and without
+// drawing ahead, and their luminances the same; the held frames did lend
+// the layer. With FITS files the layer is never left pending.
+func TestRunHeldLayer(t *testing.T) {
+	cam := "projection = \"fisheye\"\nsize = \"200x200\""
+	frames := []int{0, 1, 2, 3, 4, 5}
+	var ref *Job
+	var refRes RunResult
+	for _, o := range []RunOptions{{}, {HeldLayer: true}, {HeldLayer: true, Overlap: true}} {
+		j := benchLoad(t, cam)
+		j.Frames = frames
+		res, err := j.Run(context.Background(), o)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if lent := j.Layers.DiffuseOptions.Memo.Lent(); (lent > 0) != o.HeldLayer || o.HeldLayer && lent != len(frames)-1 {
+			t.Fatalf("%+v: %d layers lent", o, lent)
+		}
+		if ref == nil {
+			ref, refRes = j, res
+			continue
+		}
+		if !reflect.DeepEqual(res.Lum, refRes.Lum) {
+			t.Errorf("%+v: luminances differ", o)
+		}
+		for _, i := range frames {
+			ff := j.Files(i)
+			for _, name := range []string{ff.PNG, ff.Sidecar} {
+				a, err := os.ReadFile(filepath.Join(ref.OutDir, name))
+				if err != nil {
+					t.Fatal(err)
+				}
+				b, err := os.ReadFile(filepath.Join(j.OutDir, name))
+				if err != nil {
+					t.Fatal(err)
+				}
+				if !bytes.Equal(a, b) {
+					t.Errorf("%+v: frame %d: %s differs", o, i, name)
+				}
+			}
+		}
+	}
+	j := benchLoad(t, cam)
+	j.Frames = frames
+	j.Plan.Output.FITS = true
+	if j.HeldLayerBytes() != 0 {
+		t.Errorf("with FITS: HeldLayerBytes %d", j.HeldLayerBytes())
+	}
+	if _, err := j.Run(context.Background(), RunOptions{HeldLayer: true}); err != nil {
+		t.Fatal(err)
+	}
+	if lent := j.Layers.DiffuseOptions.Memo.Lent(); lent != 0 {
+		t.Errorf("with FITS: %d layers lent", lent)
+	}
+}
+
 // A run that draws each frame while the previous one is written
 // (RunOptions.Overlap) writes the very files of a run that does one frame
 // at a time, reports the same luminances and calls Done in frame order;

@@ -18,9 +18,10 @@ import (
 const envTestPace = "SKYFRAME_TEST_PACE"
 
 // renderFlight renders the job's frames (job.Job.Run), skipping intact
-// ones with resume and drawing each frame while the previous one is
-// written with overlap, with progress, warnings and the summary line.
-func renderFlight(e *env, j *flightjob.Job, resume, overlap bool) error {
+// ones with resume, drawing each frame while the previous one is written
+// with overlap and leaving a held view's unresolved layer to the tone map
+// with held, with progress, warnings and the summary line.
+func renderFlight(e *env, j *flightjob.Job, resume, overlap, held bool) error {
 	var pace time.Duration
 	if s := e.getenv(envTestPace); s != "" {
 		d, err := time.ParseDuration(s)
@@ -32,7 +33,7 @@ func renderFlight(e *env, j *flightjob.Job, resume, overlap bool) error {
 	var start time.Time
 	var prog *frameProgress
 	res, err := j.Run(e.ctx, flightjob.RunOptions{
-		Resume: resume, Now: time.Now, Pace: pace, Overlap: overlap,
+		Resume: resume, Now: time.Now, Pace: pace, Overlap: overlap, HeldLayer: held,
 		Note: func(n string) { fmt.Fprintf(e.stderr, "skyframe: %s\n", n) },
 		Resumed: func(done, total int) {
 			fmt.Fprintf(e.stderr, "resume: %d of %d frames already done\n", done, total)

@@ -170,10 +170,16 @@ func runFlight(e *env, args []string) error {
 	if err := checkMemory(need, budget, "reduce camera.width and camera.height (or render a --preview)"); err != nil {
 		return err
 	}
-	// Each frame is drawn while the previous one is written when the
-	// budget holds both.
-	overlap := need.Total()+flightjob.OverlapBytes(need) <= budget
-	return renderFlight(e, job, f.resume, overlap)
+	// A view held still keeps its unresolved layer's values and image
+	// when the budget holds them, and each frame is drawn while the
+	// previous one is written when it holds that too.
+	total := need.Total()
+	held := total+job.HeldLayerBytes() <= budget
+	if held {
+		total += job.HeldLayerBytes()
+	}
+	overlap := total+flightjob.OverlapBytes(need) <= budget
+	return renderFlight(e, job, f.resume, overlap, held)
 }
 
 // fmtDuration rounds d for progress lines.
