@@ -415,6 +415,11 @@ func (j *Job) drawFrame(prep *render.Prepared, i int, held bool) (*drawnFrame, e
 	// The flash check's luminance is summed row by row as the tone map
 	// finishes each row (the same sums as MeanLuminance).
 	sums := newLumSums(f.W, f.H)
+	if lin.pending != nil {
+		// Nothing reads the buffer after the tone map, and the next
+		// frame is drawn into it: it is left black on the way.
+		lin.pending.ClearBuffer = true
+	}
 	if d.img8, err = f.ToNRGBAPending(getNRGBA(), fr.Tone, lin.pending, sums.row); err != nil {
 		return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 	}

@@ -25,6 +25,14 @@ import (
 // A PendingLayer holds the memo's layer until Release; the memo draws a
 // new layer into new storage meanwhile.
 type PendingLayer struct {
+	// ClearBuffer has ToNRGBAPending leave the frame's buffer black, each
+	// value read set to 0 as it goes (the rows are then in cache), and
+	// marked so, so that the next render into the frame does not clear it
+	// again: for a caller that reads nothing of the buffer after the tone
+	// map and renders the next frame into it (a flight). AddTo is then
+	// refused.
+	ClearBuffer bool
+
 	m       *DiffuseMemo
 	rec     *gridRecord
 	f       *Frame
@@ -104,7 +112,7 @@ func (p *PendingLayer) check(f *Frame) error {
 	case !p.held:
 		return fmt.Errorf("%w: used after Release", ErrPending)
 	case p.f == nil:
-		return fmt.Errorf("%w: already added", ErrPending)
+		return fmt.Errorf("%w: already added, or the buffer cleared", ErrPending)
 	case f != p.f || f.W != p.rec.w || len(f.Pix) != 3*f.W*f.H:
 		return fmt.Errorf("%w: not this frame's", ErrPending)
 	}
@@ -166,28 +174,37 @@ func (f *Frame) ToNRGBAPending(dst *image.NRGBA, m ToneMode, p *PendingLayer, ro
 	w, h := f.W, f.H
 	li := p.image(&t, w, h)
 	img := packedNRGBA(dst, w, h)
+	zero := p.ClearBuffer && f.Doppler == nil
 	const band = 16
 	parallel(p.workers, (h+band-1)/band, func(k int) {
 		for y := k * band; y < min(h, (k+1)*band); y++ {
 			d := img.Pix[4*w*y : 4*w*(y+1)]
 			copy(d, li.pix[4*w*y:4*w*(y+1)])
-			litRow(&t, d, f.Pix[3*w*y:3*w*(y+1)], li.lin[3*w*y:3*w*(y+1)], y)
+			litRow(&t, d, f.Pix[3*w*y:3*w*(y+1)], li.lin[3*w*y:3*w*(y+1)], y, zero)
 			if row != nil {
 				row(y, d)
 			}
 		}
 	})
+	if zero {
+		f.black, p.f = true, nil
+	}
 	return img, nil
 }
 
 // litRow tone-maps into d, row y of the image (holding the layer's own
 // pixels), the pixels src (row y of the buffer) lights, with the layer's
-// values lin added to each as the replay adds them.
-func litRow(t *toner, d []byte, src, lin []float32, y int) {
+// values lin added to each as the replay adds them. With zero it leaves
+// src black.
+func litRow(t *toner, d []byte, src, lin []float32, y int, zero bool) {
 	w := len(src) / 3
 	x0, x1 := 0, w
 	if t.mask != nil {
 		x0, x1 = t.mask.rows[y].in0, t.mask.rows[y].in1
+	}
+	if zero {
+		clear(src[:3*x0]) // outside the circle: black in the image
+		clear(src[3*x1:])
 	}
 	// The lit pixels, found eight values at a time (most are 0). The
 	// layer's values are read ahead along the row as the buffer is
@@ -215,6 +232,9 @@ func litRow(t *toner, d []byte, src, lin []float32, y int) {
 			}
 			v := lin[3*x : 3*x+3 : 3*x+3]
 			px := t.pixel(c[0]+v[0], c[1]+v[1], c[2]+v[2])
+			if zero {
+				c[0], c[1], c[2] = 0, 0, 0
+			}
 			d[4*x], d[4*x+1], d[4*x+2] = byte(px), byte(px>>8), byte(px>>16)
 			t.cover(d, x, y)
 		}

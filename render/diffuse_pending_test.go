@@ -2,6 +2,7 @@ package render
 
 import (
 	"errors"
+	"math"
 	"math/rand/v2"
 	"slices"
 	"testing"
@@ -289,5 +290,71 @@ func BenchmarkToNRGBAPending4096(b *testing.B) {
 			}
 			b.ReportMetric((cpuSeconds()-c0)/float64(b.N), "CPU-s/op")
 		})
+	}
+}
+
+// With ClearBuffer the image is the same and the buffer is left black; the
+// next render into the frame, which then skips clearing it, is the frame
+// rendered afresh, held or not, and AddTo is refused.
+func TestPendingClearBuffer(t *testing.T) {
+	u := builtInUnresolved(t)
+	stars := randomStars(20_000, -1, 9, 23)
+	prep, err := Prepare(stars)
+	if err != nil {
+		t.Fatal(err)
+	}
+	opt := Options{Projection: proj(t, camera.Fisheye, 300, 300), Observer: observer(t, camera.FromGalacticLB(0, 2), 0.6), Exposure: 1}
+	m := new(DiffuseMemo)
+	dopt := DiffuseOptions{Memo: m}
+	want := func(opt Options) (*Frame, []byte) {
+		f, err := prep.Render(opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := AddDiffuse(f, u, dopt); err != nil {
+			t.Fatal(err)
+		}
+		return f, f.ToNRGBA(ToneShoulder).Pix
+	}
+	_, held := want(opt)
+	var dst Frame
+	for i := range 5 {
+		o := opt
+		if i == 2 {
+			o.Exposure = 2 // another layer: drawn into the buffer, not pending
+		}
+		drawn := i == 2 || i == 3 // and the first again
+		if err := prep.RenderInto(&dst, o); err != nil {
+			t.Fatal(err)
+		}
+		p, err := DiffusePending(&dst, u, dopt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if (p == nil) != drawn {
+			t.Fatalf("frame %d: pending %v", i, p)
+		}
+		if p == nil {
+			f, img := want(o)
+			if !slices.Equal(dst.Pix, f.Pix) || !slices.Equal(dst.ToNRGBA(ToneShoulder).Pix, img) {
+				t.Fatalf("frame %d, rendered into the cleared buffer, differs from the frame rendered afresh", i)
+			}
+			continue
+		}
+		p.ClearBuffer = true
+		img, err := dst.ToNRGBAPending(nil, ToneShoulder, p, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !slices.Equal(img.Pix, held) {
+			t.Fatalf("frame %d: image differs from the replayed frame's", i)
+		}
+		if k := slices.IndexFunc(dst.Pix, func(v float32) bool { return math.Float32bits(v) != 0 }); k >= 0 {
+			t.Fatalf("frame %d: value %d is %g after ClearBuffer", i, k, dst.Pix[k])
+		}
+		if err := p.AddTo(&dst); !errors.Is(err, ErrPending) {
+			t.Fatalf("AddTo after ClearBuffer: %v", err)
+		}
+		p.Release()
 	}
 }

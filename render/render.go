@@ -134,6 +134,9 @@ type Frame struct {
 	// work is the star path's working memory, kept for the next
 	// RenderInto this frame is given to (nil otherwise).
 	work *starScratch
+	// black marks Pix all 0 (PendingLayer.ClearBuffer), so that the next
+	// render into the frame need not clear it.
+	black bool
 }
 
 // extended returns the buffer scale of extended light (star discs, the
@@ -355,7 +358,9 @@ func startFrame(dst *Frame, opt Options, psf *PSF, workers int) (*Frame, *starSc
 	var sc *starScratch
 	if dst != nil && dst.W == w && dst.H == h && len(dst.Pix) == 3*w*h &&
 		(dst.Doppler != nil) == opt.Doppler && (!opt.Doppler || len(dst.Doppler) == w*h) {
-		clearBuffer(&dst.Buffer, workers)
+		if !dst.black || dst.Doppler != nil {
+			clearBuffer(&dst.Buffer, workers)
+		}
 		*dst = Frame{Buffer: dst.Buffer, work: dst.work}
 		f = dst
 	} else {
