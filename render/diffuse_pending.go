@@ -202,10 +202,15 @@ func litRow(t *toner, d []byte, src, lin []float32, y int, zero bool) {
 	if t.mask != nil {
 		x0, x1 = t.mask.rows[y].in0, t.mask.rows[y].in1
 	}
+	f0, f1 := x1, x1 // pixels [f0, f1) lie wholly inside the circle
+	if t.mask != nil {
+		f0, f1 = t.mask.rows[y].full0, t.mask.rows[y].full1
+	}
 	if zero {
 		clear(src[:3*x0]) // outside the circle: black in the image
 		clear(src[3*x1:])
 	}
+	tab, fast, black := t.tab, t.fast, t.tab.zero
 	// The lit pixels, found eight values at a time (most are 0). The
 	// layer's values are read ahead along the row as the buffer is
 	// scanned, which streams them in; looked up only at the lit pixels,
@@ -231,12 +236,25 @@ func litRow(t *toner, d []byte, src, lin []float32, y int, zero bool) {
 				continue
 			}
 			v := lin[3*x : 3*x+3 : 3*x+3]
-			px := t.pixel(c[0]+v[0], c[1]+v[1], c[2]+v[2])
+			r, g, b := c[0]+v[0], c[1]+v[1], c[2]+v[2]
 			if zero {
 				c[0], c[1], c[2] = 0, 0, 0
 			}
+			// toner.row's cases, inline.
+			ur, ug, ub := math.Float32bits(r), math.Float32bits(g), math.Float32bits(b)
+			var px uint32
+			switch m := max(ur, ug, ub); {
+			case m < black:
+				px = 0
+			case m < fast:
+				px = uint32(tab.code8Unit(ur)) | uint32(tab.code8Unit(ug))<<8 | uint32(tab.code8Unit(ub))<<16
+			default:
+				px = t.slow(r, g, b)
+			}
 			d[4*x], d[4*x+1], d[4*x+2] = byte(px), byte(px>>8), byte(px>>16)
-			t.cover(d, x, y)
+			if x < f0 || x >= f1 {
+				t.cover(d, x, y)
+			}
 		}
 		next = (e-1)/3 + 1
 	}

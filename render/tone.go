@@ -269,20 +269,8 @@ func (t *toner) row(src []float32, dst []byte, y int) {
 	}
 }
 
-// pixel returns the opaque NRGBA word (R in the low byte) of the linear
-// pixel (r, g, b), unmasked: what row writes inside the circle.
-func (t *toner) pixel(r, g, b float32) uint32 {
-	ur, ug, ub := math.Float32bits(r), math.Float32bits(g), math.Float32bits(b)
-	switch {
-	case max(ur, ug, ub) < t.tab.zero:
-		return 0xff000000
-	case ur < t.fast && ug < t.fast && ub < t.fast:
-		return uint32(t.tab.code8Unit(ur)) | uint32(t.tab.code8Unit(ug))<<8 | uint32(t.tab.code8Unit(ub))<<16 | 0xff000000
-	}
-	return t.slow(r, g, b)
-}
-
-// slow is pixel past the fast path.
+// slow is the code of the linear pixel (r, g, b), unmasked, past row's
+// fast paths: an opaque NRGBA word, R in the low byte.
 func (t *toner) slow(r, g, b float32) uint32 {
 	if toneIdentity(t.m, r, g, b) {
 		// Tone returns the channels themselves (clipped to [0, 1]),
