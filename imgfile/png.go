@@ -597,6 +597,11 @@ func adler32Update(adler uint32, p []byte) uint32 {
 		p = p[len(chunk):]
 		for ; len(chunk) >= 8; chunk = chunk[8:] {
 			x := binary.LittleEndian.Uint64(chunk)
+			if x == 0 {
+				// Eight zero bytes (most of a frame of space): s1 stays.
+				s2 += 8 * s1
+				continue
+			}
 			even, odd := x&lanes, x>>8&lanes
 			s2 += 8*s1 + (even*0x0008000600040002)>>48 + (odd*0x0007000500030001)>>48
 			s1 += ((even + odd) * 0x0001000100010001) >> 48

@@ -243,6 +243,10 @@ func TestWritePNGWorkers(t *testing.T) {
 	// reductions, from the first sums and from the largest ones (against
 	// the combination rule, checked below, since hash/adler32 cannot start
 	// from given sums).
+	zeros := make([]byte, 3<<20+5)
+	if have, want := adler32Update(1, zeros), adler32.Checksum(zeros); have != want {
+		t.Fatalf("adler32Update (3 MiB of 0): have %08x, want %08x", have, want)
+	}
 	ones := bytes.Repeat([]byte{0xff}, 3<<20+5)
 	if have, want := adler32Update(1, ones), adler32.Checksum(ones); have != want {
 		t.Fatalf("adler32Update (3 MiB of 0xff): have %08x, want %08x", have, want)
@@ -252,15 +256,19 @@ func TestWritePNGWorkers(t *testing.T) {
 		t.Fatalf("adler32Update from %08x over 3 MiB of 0xff: have %08x, want %08x", uint32(top), have, want)
 	}
 	rng := rand.New(rand.NewPCG(5, 5))
-	for range 50 {
+	for k := range 50 {
 		a := make([]byte, rng.IntN(200000))
 		b := make([]byte, rng.IntN(200000))
-		for i := range a {
-			a[i] = byte(rng.UintN(256))
+		fill := func(p []byte) {
+			for i := range p {
+				p[i] = byte(rng.UintN(256))
+				if k%2 == 1 && i%37 < 30 {
+					p[i] = 0 // runs of zeros, whole words and not
+				}
+			}
 		}
-		for i := range b {
-			b[i] = byte(rng.UintN(256))
-		}
+		fill(a)
+		fill(b)
 		if have, want := adler32Update(1, a), adler32.Checksum(a); have != want {
 			t.Fatalf("adler32Update (%d bytes): have %08x, want hash/adler32's %08x", len(a), have, want)
 		}
