@@ -545,7 +545,10 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 			copy(dst[j:j+6], src[i:i+6])
 		}
 	}
-	if y0 > 0 {
+	// The fast levels filter no row (filter type None): each row goes
+	// straight into its line, after the filter byte.
+	none := e.Compression == PNGFast || e.Compression == PNGNone
+	if y0 > 0 && !none {
 		rowOf(y0-1, prev)
 	} else {
 		clear(prev)
@@ -553,13 +556,13 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 	ad := uint32(1) // Adler-32 of nothing
 	var n int64
 	for y := y0; y < y1; y++ {
-		rowOf(y, cur)
 		var line []byte
-		if e.Compression == PNGFast || e.Compression == PNGNone {
+		if none {
 			line = filt[0]
 			line[0] = 0
-			copy(line[1:], cur)
+			rowOf(y, line[1:])
 		} else {
+			rowOf(y, cur)
 			line = filterRow(cur, prev, bpp, filt)
 		}
 		ad = adler32Update(ad, line)
