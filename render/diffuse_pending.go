@@ -17,10 +17,12 @@ import (
 // The image ToNRGBAPending returns is byte for byte the one AddLinear
 // followed by ToNRGBARows gives (TestPendingMatchesReplay): a pixel the
 // stars leave black takes its value from the layer's own tone-mapped
-// image, kept in the memo (0 + v is v), and a lit pixel adds the layer's
-// value as the replay would (one float32 addition) and is tone-mapped. The
-// frame's buffer is left without the layer: AddTo adds it when the linear
-// frame is needed (FITS, OpenEXR, a 16-bit image).
+// image (0 + v is v), and a lit pixel adds the layer's value, as the
+// replay adds it (one float32 addition), and is tone-mapped. The memo keeps
+// both, the image and the values, 16 bytes per pixel, built on the first
+// frame that lends the layer. The frame's buffer is left without the
+// layer: AddTo adds it when the linear frame is needed (FITS, OpenEXR, a
+// 16-bit image).
 //
 // A PendingLayer holds the memo's layer until Release; the memo draws a
 // new layer into new storage meanwhile.
