@@ -11,6 +11,7 @@ import (
 
 	"github.com/skyframe/skyframe/camera"
 	"github.com/skyframe/skyframe/catalog"
+	"github.com/skyframe/skyframe/internal/keep"
 	"github.com/skyframe/skyframe/spectrum"
 )
 
@@ -293,8 +294,9 @@ func (p *Prepared) render(dst *Frame, opt Options) (*Frame, error) {
 	parallel(workers, nChunks, func(c int) {
 		lo := c * chunkSize
 		hi := min(lo+chunkSize, n)
-		t := newTransformer(p, &f.Options, &psf, f.Scale)
+		t := keptTransformer(p, &f.Options, &psf, f.Scale)
 		t.run(lo, hi, recs[lo:hi], &chunks[c])
+		transformers.Put(t)
 	})
 	discs, err := p.gather(f, chunks)
 	if err != nil {
@@ -447,7 +449,29 @@ func parallel(workers, n int, fn func(int)) {
 }
 
 func newTransformer(p *Prepared, opt *Options, psf *PSF, scale float64) *transformer {
-	t := &transformer{p: p, opt: opt, proj: opt.Projection, psf: psf, lnScale: math.Log(scale),
+	t := new(transformer)
+	t.init(p, opt, psf, scale)
+	return t
+}
+
+// transformers keeps the chunks' transformers (about 40 kB each, one per
+// chunk of a frame) for the next chunks and frames (keptTransformer).
+var transformers = keep.List[*transformer]{Max: 8}
+
+// keptTransformer is newTransformer reusing a kept transformer, reset
+// whole; the caller puts it back in transformers when done.
+func keptTransformer(p *Prepared, opt *Options, psf *PSF, scale float64) *transformer {
+	t, ok := transformers.Get()
+	if !ok {
+		t = new(transformer)
+	}
+	t.init(p, opt, psf, scale)
+	return t
+}
+
+// init sets t up for p with opt, psf and scale, everything else zero.
+func (t *transformer) init(p *Prepared, opt *Options, psf *PSF, scale float64) {
+	*t = transformer{p: p, opt: opt, proj: opt.Projection, psf: psf, lnScale: math.Log(scale),
 		beamExp: float64(opt.Beaming.FluxExponent() - 4),
 		w:       float64(opt.Projection.Width), h: float64(opt.Projection.Height)}
 	t.rFish = math.Min(t.w, t.h) / 2
@@ -459,7 +483,6 @@ func newTransformer(p *Prepared, opt *Options, psf *PSF, scale float64) *transfo
 	if psf != nil {
 		t.margin = psf.Radius() + 1
 	}
-	return t
 }
 
 // chunkResult is what one chunk of stars produced.

@@ -207,8 +207,9 @@ func renderStream(dst *Frame, next func() (*catalog.Stars, error), opt Options) 
 		parallel(workers, nChunks, func(c int) {
 			lo := c * chunkSize
 			hi := min(lo+chunkSize, n)
-			t := newTransformer(p, &f.Options, &psf, f.Scale)
+			t := keptTransformer(p, &f.Options, &psf, f.Scale)
 			t.run(lo, hi, recs[lo:hi], &chunks[c])
+			transformers.Put(t)
 		})
 		for c := range chunks {
 			r := &chunks[c]
