@@ -104,6 +104,8 @@ func (p *PendingLayer) AddTo(f *Frame) error {
 	if err := p.check(f); err != nil {
 		return err
 	}
+	p.m.mu.Lock() // image may be sorting the record's exact pixels
+	defer p.m.mu.Unlock()
 	p.rec.replay(f.Pix, p.workers)
 	p.f = nil
 	return nil
@@ -142,6 +144,7 @@ func (p *PendingLayer) image(t *toner, w, h int) *layerImage {
 	if li := m.img; li != nil && li.rec == p.rec && li.tone == t.m && li.masked == (t.mask != nil) {
 		return li
 	}
+	p.rec.sortExact() // under the memo's lock, as every replay of the record
 	li := &layerImage{rec: p.rec, tone: t.m, masked: t.mask != nil}
 	if old := m.img; old != nil && m.users == 1 && len(old.pix) == 4*w*h {
 		// Held by no other frame: its storage is lent.

@@ -105,7 +105,7 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecor
 	errs := make([]error, bands)
 	if rec != nil {
 		// A record drawn before lends its bands' storage.
-		rec.w, rec.workers = g.w, g.workers
+		rec.w, rec.workers, rec.sorted = g.w, g.workers, false
 		if len(rec.bands) != bands {
 			rec.bands = make([]gridBand, bands)
 		}
@@ -137,10 +137,6 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecor
 			}
 		}
 		c.fill(y0, fillEnd(y1, k == bands-1))
-		if c.rec != nil {
-			// In pixel order, for the lookup of a row's (gridBand.exactRow).
-			slices.SortFunc(c.rec.exact, func(a, b exactPix) int { return cmp.Compare(a.i, b.i) })
-		}
 	})
 	for _, err := range errs {
 		if err != nil {
@@ -408,11 +404,12 @@ func (e exactPix) add(dst []float32) {
 type gridRecord struct {
 	w, workers int
 	bands      []gridBand
+	sorted     bool // exact pixels in pixel order (sortExact)
 }
 
-// gridBand is one band's part of a gridRecord: rows y0 ≤ y < ye, exact
-// pixels in pixel order. Every pixel of the band is in at most one leaf or
-// exact pixel (the cells' fills partition the band).
+// gridBand is one band's part of a gridRecord: rows y0 ≤ y < ye. Every
+// pixel of the band is in at most one leaf or exact pixel (the cells' fills
+// partition the band), so their order does not matter to the replay.
 type gridBand struct {
 	y0, ye int
 	leaves []smoothLeaf
@@ -436,8 +433,20 @@ func (r *gridRecord) band(y int) *gridBand {
 	return &r.bands[k]
 }
 
+// sortExact puts every band's exact pixels in pixel order, for exactRow
+// (once per record: sorted marks it).
+func (r *gridRecord) sortExact() {
+	if r.sorted {
+		return
+	}
+	for k := range r.bands {
+		slices.SortFunc(r.bands[k].exact, func(a, b exactPix) int { return cmp.Compare(a.i, b.i) })
+	}
+	r.sorted = true
+}
+
 // exactRow returns the band's exact pixels in row y of a w-pixel-wide
-// frame.
+// frame; they must be in pixel order (gridRecord.sortExact).
 func (b *gridBand) exactRow(y, w int) []exactPix {
 	at := func(i int) int {
 		k, _ := slices.BinarySearchFunc(b.exact, i, func(e exactPix, i int) int { return cmp.Compare(int(e.i), i) })
@@ -446,7 +455,8 @@ func (b *gridBand) exactRow(y, w int) []exactPix {
 	return b.exact[at(y*w):at((y+1)*w)]
 }
 
-// addRow adds row y of the recorded layer to row (3·W values).
+// addRow adds row y of the recorded layer to row (3·W values); the exact
+// pixels must be sorted (sortExact).
 func (r *gridRecord) addRow(row []float32, y int) {
 	b := r.band(y)
 	if b == nil {
