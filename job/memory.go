@@ -72,15 +72,15 @@ func (j *Job) MemoryNeed() render.MemoryNeed {
 }
 
 // HeldLayerBytes is what RunOptions.HeldLayer adds to the need
-// (MemoryNeed): the unresolved layer's values (float32 RGB) and its
-// tone-mapped image (8-bit RGBA), 16 bytes per pixel; 0 when the frames
+// (MemoryNeed): the unresolved layer's values and its tone-mapped image
+// (render.PendingBytesPerPixel); 0 when the frames
 // cannot use it (no unresolved layer or no memo, the CMB, FITS, OpenEXR or
 // 16-bit PNG files: render.Layers.AddLinearPending).
 func (j *Job) HeldLayerBytes() int64 {
 	if !j.heldLayerUsable() {
 		return 0
 	}
-	return 16 * int64(j.Frame.Width) * int64(j.Frame.Height)
+	return render.PendingBytesPerPixel * int64(j.Frame.Width) * int64(j.Frame.Height)
 }
 
 // heldLayerUsable reports whether the job's frames can leave their

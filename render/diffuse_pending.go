@@ -19,7 +19,7 @@ import (
 // stars leave black takes its value from the layer's own tone-mapped
 // image (0 + v is v), and a lit pixel adds the layer's value, as the
 // replay adds it (one float32 addition), and is tone-mapped. The memo keeps
-// both, the image and the values, 16 bytes per pixel, built on the first
+// both, the image and the values (PendingBytesPerPixel), built on the first
 // frame that lends the layer. The frame's buffer is left without the
 // layer: AddTo adds it when the linear frame is needed (FITS, OpenEXR, a
 // 16-bit image).
@@ -41,6 +41,11 @@ type PendingLayer struct {
 	workers int
 	held    bool
 }
+
+// PendingBytesPerPixel is what a DiffuseMemo keeps per pixel for the
+// frames its layer is lent to (PendingLayer): the layer's 8-bit RGBA image
+// and its float32 RGB values.
+const PendingBytesPerPixel = 4 + 12
 
 // ErrPending reports a PendingLayer used with another frame than its own
 // or after Release.
@@ -207,7 +212,7 @@ func litRow(t *toner, d []byte, src, lin []float32, y int, zero bool) {
 	if t.mask != nil {
 		x0, x1 = t.mask.rows[y].in0, t.mask.rows[y].in1
 	}
-	f0, f1 := x1, x1 // pixels [f0, f1) lie wholly inside the circle
+	f0, f1 := 0, w // pixels [f0, f1) lie wholly inside the circle (no rim to cover)
 	if t.mask != nil {
 		f0, f1 = t.mask.rows[y].full0, t.mask.rows[y].full1
 	}

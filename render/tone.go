@@ -186,7 +186,8 @@ func newCircleMask(w, h int, cx, cy, r float64) *circleMask {
 
 // toNRGBAMasked is toNRGBAInto with, when mask is not nil, the pixels of
 // coverage 0 black without being tone-mapped and the rim's scaled by their
-// coverage: the image maskNRGBA leaves, in one pass. When done is not nil
+// coverage, in the same pass (TestToNRGBAMaskedOnePass: the image a
+// separate mask pass leaves). When done is not nil
 // it is called with each row (its 4·W bytes) once the row is final.
 func (b *Buffer) toNRGBAMasked(dst *image.NRGBA, m ToneMode, workers int, mask *circleMask, done func(y int, row []byte)) *image.NRGBA {
 	img := packedNRGBA(dst, b.W, b.H)
