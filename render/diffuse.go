@@ -418,6 +418,9 @@ func (d *diffuseSampler) pixel(i, j int, sc *diffuseScratch, w []float64) (X, Y,
 		}
 	} else if d.ms > 1 && d.circle.ok && d.circle.meets(i, j, i+1, j+1) {
 		s = d.ms // the rim of a fisheye: some sub-samples may be inside
+		if d.one {
+			return d.rim(i, j, sc, w)
+		}
 	} else {
 		return 0, 0, 0, 0, nil
 	}
@@ -434,28 +437,9 @@ func (d *diffuseSampler) pixel(i, j int, sc *diffuseScratch, w []float64) (X, Y,
 				omega = d.sa.sub(x, y, s, np)
 				n, dInv = d.shipIn.Apply(np)
 			}
-			d.sky.Dilutions(n, w)
-			// ln T′_k = ln T_k + ln D, D = 1/dInv: the transform of
-			// DiffuseSeen, in logarithms for the tables.
-			lnD := -lnFast(dInv)
-			for k, l := range d.lnT {
-				sc.lnT[k] = l + lnD
-			}
-			spectrum.LookupBatch(sc.lnT, sc.lnY, nil, sc.x, sc.y)
-			var sx, sy, sz float64
-			for k, wk := range w {
-				if wk == 0 {
-					continue
-				}
-				if !(wk > 0) || math.IsInf(wk, 0) {
-					return 0, 0, 0, s, fmt.Errorf("%w: dilution %g of the %g K component toward (%.6f, %.6f, %.6f), want finite ≥ 0",
-						ErrDiffuse, wk, d.temps[k], n.X, n.Y, n.Z)
-				}
-				yk := wk * expFast(sc.lnY[k])
-				cx, cy := sc.x[k], sc.y[k]
-				sx += cx / cy * yk
-				sy += yk
-				sz += (1 - cx - cy) / cy * yk
+			sx, sy, sz, err := d.radiance(n, dInv, sc, w)
+			if err != nil {
+				return 0, 0, 0, s, err
 			}
 			X += omega * sx
 			Y += omega * sy
@@ -463,6 +447,75 @@ func (d *diffuseSampler) pixel(i, j int, sc *diffuseScratch, w []float64) (X, Y,
 		}
 	}
 	return X, Y, Z, s, nil
+}
+
+// radiance returns Σ_k W_k(n) e^LnY(D T_k) and the matching X and Z for the
+// catalogue-frame direction n seen with Doppler factor D = 1/dInv.
+func (d *diffuseSampler) radiance(n r3.Vec, dInv float64, sc *diffuseScratch, w []float64) (sx, sy, sz float64, err error) {
+	d.sky.Dilutions(n, w)
+	// ln T′_k = ln T_k + ln D, D = 1/dInv: the transform of DiffuseSeen,
+	// in logarithms for the tables.
+	lnD := -lnFast(dInv)
+	for k, l := range d.lnT {
+		sc.lnT[k] = l + lnD
+	}
+	spectrum.LookupBatch(sc.lnT, sc.lnY, nil, sc.x, sc.y)
+	for k, wk := range w {
+		if wk == 0 {
+			continue
+		}
+		if !(wk > 0) || math.IsInf(wk, 0) {
+			return 0, 0, 0, fmt.Errorf("%w: dilution %g of the %g K component toward (%.6f, %.6f, %.6f), want finite ≥ 0",
+				ErrDiffuse, wk, d.temps[k], n.X, n.Y, n.Z)
+		}
+		yk := wk * expFast(sc.lnY[k])
+		cx, cy := sc.x[k], sc.y[k]
+		sx += cx / cy * yk
+		sy += yk
+		sz += (1 - cx - cy) / cy * yk
+	}
+	return sx, sy, sz, nil
+}
+
+// rim returns pixel's value for a pixel of a fisheye's rim whose centre
+// lies outside the image circle, where one sample per pixel suffices
+// everywhere (d.one): the layer barely changes across a pixel, so it is
+// evaluated once, at the centroid of the pixel's s×s sub-sample centres
+// inside the circle (inside it too: the disc is convex), and weighted by
+// their summed solid angle, the pixel's share of the field. That share is
+// what sampling every sub-sample gives; the value differs from it by the
+// layer's change across the pixel, which the one-sample criteria bound.
+// A rim pixel costs one evaluation instead of up to s².
+func (d *diffuseSampler) rim(i, j int, sc *diffuseScratch, w []float64) (X, Y, Z float64, s int, err error) {
+	s = d.ms
+	inv := 1 / float64(s)
+	c := d.circle
+	var omega, mx, my float64
+	in := 0
+	for b := 0; b < s; b++ {
+		y := float64(j) + (float64(b)+0.5)*inv
+		for a := 0; a < s; a++ {
+			x := float64(i) + (float64(a)+0.5)*inv
+			if dx, dy := x-c.cx, y-c.cy; dx*dx+dy*dy > c.r*c.r {
+				continue
+			}
+			omega += d.sa.fisheye(x, y)
+			mx += x
+			my += y
+			in++
+		}
+	}
+	if in == 0 {
+		return 0, 0, 0, s, nil
+	}
+	np, ok := d.p.Inverse(mx/float64(in), my/float64(in))
+	if !ok {
+		return 0, 0, 0, s, nil // only by rounding on the circle itself
+	}
+	n, dInv := d.shipIn.Apply(np)
+	sx, sy, sz, err := d.radiance(n, dInv, sc, w)
+	omega *= inv * inv
+	return omega * sx, omega * sy, omega * sz, s, err
 }
 
 // addDiffuseMean adds to dst (a buffer of f's size) the weighted mean of

@@ -293,6 +293,51 @@ func TestDiffuseFieldSolidAngles(t *testing.T) {
 	}
 }
 
+// A fisheye's rim pixel whose centre lies outside the circle, where one
+// sample per pixel suffices (here 0.08° pixels, D ≤ 1.7), gets one
+// evaluation at the centroid of its 8×8 sub-samples inside the circle,
+// weighted by their solid angle: the same as sampling each of them (the
+// mean of a smooth function over a region differs from its value at the
+// region's centroid only at second order in the pixel's size) within
+// 10⁻⁵, and the same share of the field.
+func TestDiffuseFisheyeRimOneSample(t *testing.T) {
+	p := looking(t, camera.Fisheye, 128, 128, 10, r3.Unit(r3.Vec{X: 1, Z: 0.12}))
+	obs := observer(t, r3.Unit(r3.Vec{X: 0.6, Y: 0.5, Z: 0.3}), 0.5)
+	one, all := blankFrame(t, p, obs), blankFrame(t, p, obs)
+	if err := AddDiffuse(one, bandSky{}, DiffuseOptions{Exact: true}); err != nil {
+		t.Fatal(err)
+	}
+	// Footprint tiny: every pixel, the rim too, samples all 8×8.
+	if err := AddDiffuse(all, bandSky{}, DiffuseOptions{Exact: true, Footprint: 1e-9}); err != nil {
+		t.Fatal(err)
+	}
+	rim, worst := 0, 0.0
+	for j := range p.Height {
+		for i := range p.Width {
+			dx, dy := float64(i)+0.5-64, float64(j)+0.5-64
+			if dx*dx+dy*dy <= 64*64 || !(math.Abs(dx) < 64.5 && math.Abs(dy) < 64.5) {
+				continue
+			}
+			lo, la := one.Luminance(i, j), all.Luminance(i, j)
+			if la == 0 {
+				if lo != 0 {
+					t.Errorf("pixel (%d,%d): %g, want 0 (no sub-sample inside)", i, j, lo)
+				}
+				continue
+			}
+			rim++
+			worst = max(worst, math.Abs(lo/la-1))
+		}
+	}
+	t.Logf("%d rim pixels with light, worst relative difference %.2e", rim, worst)
+	if rim < 150 || worst > 1e-5 {
+		t.Errorf("%d rim pixels, worst relative difference %.2e: want > 150 and ≤ 1e-5", rim, worst)
+	}
+	if worst == 0 {
+		t.Error("the rim pixels are those of full sampling bit for bit: the one-sample rim was not used")
+	}
+}
+
 // Where D varies fast within a pixel the default sampling follows it: a
 // uniform sky seen at γ = 20 in a 384×192 equirect frame (0.94° pixels, so
 // up to 7×7 samples near the beam's edge at θ′ ≈ 1/γ) whose poles are
