@@ -303,6 +303,7 @@ func prepareDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*diffuseDr
 	// both criteria (with room for rounding): then it is not called.
 	dMax := math.Sqrt(1+d.gb*d.gb) + d.gb // γ + γβ
 	d.one = ms == 1 || math.Sqrt(sa.max())*dMax*max(1/fp, d.gb/mlnD) < 0.999
+	d.colour = newLnDTable(lnT, boost.Rapidity())
 	k := f.extended() / math.Pi // buffer luminance per (cd/m² · sr)
 	color := f.Options.Color
 	newEval := func() pixelEval {
@@ -375,6 +376,7 @@ type diffuseSampler struct {
 	ms       int
 	circle   imageCircle // a fisheye's image circle: no light outside it
 	one      bool        // every pixel with a centre direction takes one sample
+	colour   *lnDTable   // the components' photometry against ln D, or nil
 }
 
 // samples returns the number of samples per side for the pixel whose centre
@@ -456,6 +458,11 @@ func (d *diffuseSampler) radiance(n r3.Vec, dInv float64, sc *diffuseScratch, w 
 	// ln T′_k = ln T_k + ln D, D = 1/dInv: the transform of DiffuseSeen,
 	// in logarithms for the tables.
 	lnD := -lnFast(dInv)
+	if c := d.colour; c != nil {
+		if m, t, ok := c.at(lnD); ok {
+			return c.radiance(m, t, w, d.temps, n)
+		}
+	}
 	for k, l := range d.lnT {
 		sc.lnT[k] = l + lnD
 	}
@@ -465,8 +472,7 @@ func (d *diffuseSampler) radiance(n r3.Vec, dInv float64, sc *diffuseScratch, w 
 			continue
 		}
 		if !(wk > 0) || math.IsInf(wk, 0) {
-			return 0, 0, 0, fmt.Errorf("%w: dilution %g of the %g K component toward (%.6f, %.6f, %.6f), want finite ≥ 0",
-				ErrDiffuse, wk, d.temps[k], n.X, n.Y, n.Z)
+			return 0, 0, 0, badDilution(wk, d.temps[k], n)
 		}
 		yk := wk * expFast(sc.lnY[k])
 		cx, cy := sc.x[k], sc.y[k]
