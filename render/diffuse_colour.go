@@ -18,21 +18,30 @@ import (
 // costs one index and K linear interpolations instead of K lookups with
 // two divisions each.
 //
-// Per node and component it keeps ln Y (spectrum.Sample.LnY) and the
-// ratios X/Y = x/y and Z/Y = (1 − x − y)/y. ln Y is interpolated, not Y:
-// across the tables' range it is close to linear in ln T (its second
-// derivative is −c₂/λT in the Wien limit, about −50 at 300 K), so with
-// h = 1/2048 linear interpolation errs by at most h²·|lnY″|/8, 1.5·10⁻⁶
-// relative at 300 K and a few 10⁻⁸ at the layer's 2000–60000 K, against
-// the 2·10⁻⁵ to which the layer is checked (TestDiffuseAtSpeedIndependent);
-// the chromaticity ratios vary more slowly (TestLnDTable measures both
-// against spectrum.LookupBatch: at most 1.9·10⁻⁶ down to 250 K).
+// Per node m and component it keeps Y_m = e^(ln Y) (spectrum.Sample.LnY),
+// the step Δ = ln Y_{m+1} − ln Y_m, and the ratios X/Y = x/y and Z/Y =
+// (1 − x − y)/y with their steps to the next node, so a direction reads
+// one node. ln Y is interpolated linearly, not Y: across the tables' range
+// it is close to linear in ln T (its second derivative is −c₂/λT in the
+// Wien limit, about −50 at 300 K), so with h = 1/2048 linear interpolation
+// errs by at most h²·|lnY″|/8, 1.5·10⁻⁶ relative at 300 K and a few 10⁻⁸
+// at the layer's 2000–60000 K, against the 2·10⁻⁵ to which the layer is
+// checked (TestDiffuseAtSpeedIndependent). Y = Y_m·e^(fΔ) takes e^x from
+// its degree-4 Taylor series while |x| ≤ 1/16 (error < 10⁻⁸; |Δ| = h·|lnY′|
+// is below 0.01 above 1500 K), from expFast beyond. The chromaticity
+// ratios vary more slowly (TestLnDTable measures both against
+// spectrum.LookupBatch: at most 1.9·10⁻⁶ down to 250 K).
 type lnDTable struct {
 	u0, invH float64
-	n        int       // nodes
-	k        int       // components
-	v        []float64 // v[(m·k + c)·3 + {0,1,2}] = ln Y, X/Y, Z/Y at node m
+	n        int // nodes
+	k        int // components
+	// v[(m·k + c)·lnDStride + {0…5}] = Y, Δ, X/Y, its step, Z/Y, its
+	// step, for component c at node m.
+	v []float64
 }
+
+// lnDStride is the number of values per node and component.
+const lnDStride = 6
 
 // badDilution reports a dilution wk of the component at T K toward n that
 // is negative, infinite or NaN.
@@ -42,7 +51,8 @@ func badDilution(wk, T float64, n r3.Vec) error {
 }
 
 // lnDTableStep is the node spacing h in ln D, and lnDTableMaxNodes caps a
-// table's size (K·3·8 bytes per node: 0.4 MB at 0.5 c, 1.4 MB at 0.97 c);
+// table's size (K·6·8 bytes per node: 0.8 MB for the built-in sky's 7
+// components at 0.5 c, 2.9 MB at 0.97 c, 11 MB at most);
 // beyond φ ≈ 8 (γ ≈ 1500) the layer looks the tables up directly.
 const (
 	lnDTableStep     = 1.0 / 2048
@@ -60,20 +70,27 @@ func newLnDTable(lnT []float64, phi float64) *lnDTable {
 		return nil
 	}
 	K := len(lnT)
-	t := &lnDTable{u0: -phi - lnDTableStep, invH: 1 / lnDTableStep, n: n, k: K, v: make([]float64, n*K*3)}
-	lt, ly, x, y := make([]float64, K), make([]float64, K), make([]float64, K), make([]float64, K)
+	// The looked-up values at every node, then the table from each node
+	// and the next.
+	ly, x, y := make([]float64, n*K), make([]float64, n*K), make([]float64, n*K)
+	lt := make([]float64, K)
 	for m := range n {
-		u := t.u0 + float64(m)*lnDTableStep
+		u := -phi - lnDTableStep + float64(m)*lnDTableStep
 		for c, l := range lnT {
 			lt[c] = l + u
 		}
-		spectrum.LookupBatch(lt, ly, nil, x, y)
-		for c := range K {
-			e := t.v[(m*K+c)*3:]
-			e[0], e[1], e[2] = ly[c], x[c]/y[c], (1-x[c]-y[c])/y[c]
-			if math.IsInf(e[0], 0) || math.IsNaN(e[0]+e[1]+e[2]) || math.IsInf(e[1]+e[2], 0) {
-				return nil
-			}
+		spectrum.LookupBatch(lt, ly[m*K:(m+1)*K], nil, x[m*K:(m+1)*K], y[m*K:(m+1)*K])
+	}
+	t := &lnDTable{u0: -phi - lnDTableStep, invH: 1 / lnDTableStep, n: n, k: K, v: make([]float64, n*K*lnDStride)}
+	for i := range ly {
+		rx, rz := x[i]/y[i], (1-x[i]-y[i])/y[i]
+		if math.IsInf(ly[i], 0) || math.IsNaN(ly[i]+rx+rz) || math.IsInf(rx+rz, 0) {
+			return nil
+		}
+		e := t.v[i*lnDStride : (i+1)*lnDStride]
+		e[0], e[2], e[4] = math.Exp(ly[i]), rx, rz
+		if j := i + K; j < len(ly) { // the last node's steps are never read
+			e[1], e[3], e[5] = ly[j]-ly[i], x[j]/y[j]-rx, (1-x[j]-y[j])/y[j]-rz
 		}
 	}
 	return t
@@ -95,8 +112,7 @@ func (t *lnDTable) at(u float64) (m int, f float64, ok bool) {
 // as there; temps and n only name a bad one).
 func (t *lnDTable) radiance(m int, f float64, w, temps []float64, n r3.Vec) (sx, sy, sz float64, err error) {
 	K := t.k
-	a := t.v[m*K*3 : (m+1)*K*3 : (m+1)*K*3]
-	b := t.v[(m+1)*K*3 : (m+2)*K*3 : (m+2)*K*3]
+	a := t.v[m*K*lnDStride : (m+1)*K*lnDStride : (m+1)*K*lnDStride]
 	for c, wk := range w[:K] {
 		if wk == 0 {
 			continue
@@ -104,11 +120,18 @@ func (t *lnDTable) radiance(m int, f float64, w, temps []float64, n r3.Vec) (sx,
 		if !(wk > 0) || math.IsInf(wk, 0) {
 			return 0, 0, 0, badDilution(wk, temps[c], n)
 		}
-		a0, a1, a2 := a[3*c], a[3*c+1], a[3*c+2]
-		yk := wk * expFast(a0+f*(b[3*c]-a0))
-		sx += (a1 + f*(b[3*c+1]-a1)) * yk
+		e := a[c*lnDStride : (c+1)*lnDStride : (c+1)*lnDStride]
+		x := f * e[1]
+		var g float64
+		if x <= 1.0/16 && x >= -1.0/16 {
+			g = 1 + x*(1+x*(1.0/2+x*(1.0/6+x*(1.0/24))))
+		} else {
+			g = expFast(x)
+		}
+		yk := wk * e[0] * g
+		sx += (e[2] + f*e[3]) * yk
 		sy += yk
-		sz += (a2 + f*(b[3*c+2]-a2)) * yk
+		sz += (e[4] + f*e[5]) * yk
 	}
 	return sx, sy, sz, nil
 }
