@@ -22,6 +22,20 @@ func (l *Layers) SidecarInfo(side *render.Sidecar) {
 	side.CMB = l.CMB
 	if l.Unresolved != nil {
 		side.Unresolved = &render.UnresolvedInfo{DepthV: l.UnresolvedDepth, Components: len(l.Unresolved.Temperatures())}
+		if !l.DiffuseOptions.Exact {
+			side.Unresolved.GridTolerance = l.DiffuseOptions.GridTolerance()
+		}
+	}
+}
+
+// ForEightBit draws the unresolved layer with render.EightBitTolerance
+// when eightBitOnly (the frame is written only as 8-bit sRGB: no FITS, no
+// OpenEXR, no 16-bit PNG), where its error stays within one code of the
+// exact layer's; otherwise it leaves the default, which the linear files
+// keep.
+func (l *Layers) ForEightBit(eightBitOnly bool) {
+	if eightBitOnly {
+		l.DiffuseOptions.Tolerance = render.EightBitTolerance
 	}
 }
 

@@ -28,11 +28,17 @@ func cpuSeconds() float64 {
 // show the unresolved light, the Sun and aberration.
 func benchLoad(b testing.TB, camera string) *Job {
 	b.Helper()
+	return benchLoadOutput(b, camera, "")
+}
+
+// benchLoadOutput is benchLoad with more lines for the [output] table.
+func benchLoadOutput(b testing.TB, camera, output string) *Job {
+	b.Helper()
 	dir := b.TempDir()
 	plan := filepath.Join(dir, "plan.toml")
 	body := "[start]\nposition = [-4.32735407e-06, -1.92213901e-06, 1.04106624e-06]\nspeed = 0.5\nra = 0\ndec = 0\n" +
 		"[[leg]]\nkind = \"cruise\"\nship_years = 1\nspeed = 0.5\nra = 0\ndec = 0\n" +
-		"[show]\nfps = 30\nseconds = 2\n[camera]\n" + camera + "\n[output]\ndir = \"out\"\n"
+		"[show]\nfps = 30\nseconds = 2\n[camera]\n" + camera + "\n[output]\ndir = \"out\"\n" + output + "\n"
 	if err := os.WriteFile(plan, []byte(body), 0o644); err != nil {
 		b.Fatal(err)
 	}

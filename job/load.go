@@ -154,6 +154,7 @@ func Load(ctx context.Context, planPath string, f LoadOptions) (*Job, []string, 
 		// bit for bit (render.DiffuseMemo).
 		job.Layers.DiffuseOptions.Memo = new(render.DiffuseMemo)
 	}
+	job.Layers.ForEightBit(job.eightBitOnly())
 	job.Credit = scene.NamesCredit(index, scene.LabelsShown(job.Layers.Labels))
 	if fs0, err := plan.FrameState(0); err == nil {
 		if p0, err := job.Projection(fs0); err == nil {

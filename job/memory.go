@@ -86,9 +86,14 @@ func (j *Job) HeldLayerBytes() int64 {
 // heldLayerUsable reports whether the job's frames can leave their
 // unresolved layer to the tone map (RunOptions.HeldLayer).
 func (j *Job) heldLayerUsable() bool {
+	return j.Layers.Unresolved != nil && j.Layers.DiffuseOptions.Memo != nil && !j.Layers.CMB && j.eightBitOnly()
+}
+
+// eightBitOnly reports whether the job's frames are written only as 8-bit
+// sRGB: no FITS, no OpenEXR, no 16-bit PNG.
+func (j *Job) eightBitOnly() bool {
 	o := j.Plan.Output
-	return j.Layers.Unresolved != nil && j.Layers.DiffuseOptions.Memo != nil && !j.Layers.CMB &&
-		!o.FITS && !o.EXR && j.Frame.Depth != 16
+	return !o.FITS && !o.EXR && j.Frame.Depth != 16
 }
 
 // OverlapBytes is what RunOptions.Overlap adds to need (MemoryNeed): a

@@ -3,11 +3,14 @@ package job
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"errors"
 	"os"
 	"path/filepath"
 	"reflect"
 	"testing"
+
+	"github.com/skyframe/skyframe/render"
 )
 
 // A held view's frames are the same files, byte for byte, with the layer
@@ -135,5 +138,39 @@ func TestRunOverlap(t *testing.T) {
 	}
 	if want := []string{"00000.json", "00000.png", "00001.json", "00001.png", "00002.json", "00002.png"}; !reflect.DeepEqual(names, want) {
 		t.Errorf("after the interruption: %v, want %v", names, want)
+	}
+}
+
+// A flight written only as 8-bit PNG draws its unresolved layer at
+// render.EightBitTolerance (within one code of the exact layer,
+// TestDiffuseEightBitTolerance); one that also writes FITS keeps the
+// default for its linear file. The sidecar records which.
+func TestRunEightBitTolerance(t *testing.T) {
+	for _, c := range []struct {
+		output string
+		want   float64
+	}{
+		{"", render.EightBitTolerance},
+		{"fits = true", render.DefaultSmoothTolerance},
+	} {
+		j := benchLoadOutput(t, "projection = \"fisheye\"\nsize = \"64x64\"", c.output)
+		if have := j.Layers.DiffuseOptions.GridTolerance(); have != c.want {
+			t.Errorf("%q: grid tolerance %g, want %g", c.output, have, c.want)
+		}
+		j.Frames = []int{0}
+		if _, err := j.Run(context.Background(), RunOptions{}); err != nil {
+			t.Fatal(err)
+		}
+		b, err := os.ReadFile(filepath.Join(j.OutDir, j.Files(0).Sidecar))
+		if err != nil {
+			t.Fatal(err)
+		}
+		var side render.Sidecar
+		if err := json.Unmarshal(b, &side); err != nil {
+			t.Fatal(err)
+		}
+		if side.Unresolved == nil || side.Unresolved.GridTolerance != c.want {
+			t.Errorf("%q: sidecar unresolved %+v, want grid_tolerance %g", c.output, side.Unresolved, c.want)
+		}
 	}
 }

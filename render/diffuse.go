@@ -83,12 +83,22 @@ type DiffuseOptions struct {
 	Exact bool
 	// Tolerance is the largest error the grid may leave where it checks
 	// the interpolation, relative to the pixel's largest channel; 0 means
-	// DefaultSmoothTolerance.
+	// DefaultSmoothTolerance. EightBitTolerance suits a frame written
+	// only as 8-bit sRGB.
 	Tolerance float64
 	// Memo, when not nil, keeps the layer for the next frame with the
 	// same one, which replays it bit for bit (see DiffuseMemo). Layers
 	// averaged over a shutter (AddLinearMotion) do not use it.
 	Memo *DiffuseMemo
+}
+
+// GridTolerance returns the tolerance the adaptive grid draws with (unless
+// o.Exact): o.Tolerance, or DefaultSmoothTolerance when that is 0.
+func (o DiffuseOptions) GridTolerance() float64 {
+	if o.Tolerance == 0 {
+		return DefaultSmoothTolerance
+	}
+	return o.Tolerance
 }
 
 // Add adds o's pixels to b's (same size); the Doppler channel is left as
@@ -249,10 +259,7 @@ func prepareDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*diffuseDr
 	if !(fp > 0) || !(mlnD > 0) || ms < 1 || ms > 64 {
 		return nil, fmt.Errorf("%w: Footprint %g rad, MaxLnD %g, MaxSamples %d: want > 0, > 0 and 1..64", ErrDiffuse, opt.Footprint, opt.MaxLnD, opt.MaxSamples)
 	}
-	tol := opt.Tolerance
-	if tol == 0 {
-		tol = DefaultSmoothTolerance
-	}
+	tol := opt.GridTolerance()
 	if !(tol > 0) || math.IsInf(tol, 0) {
 		return nil, fmt.Errorf("%w: Tolerance %g, want finite > 0", ErrDiffuse, opt.Tolerance)
 	}

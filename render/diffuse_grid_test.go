@@ -338,3 +338,71 @@ func TestDiffuseMeanGridBound(t *testing.T) {
 		}
 	}
 }
+
+// TestDiffuseEightBitTolerance: 8-bit frames of the built-in sky's
+// unresolved layer drawn on the grid at EightBitTolerance are within one
+// sRGB code of those of the exact layer in every pixel and channel, with
+// the layer's brightest pixel exposed to full scale (where a relative
+// error moves the code most) and 4× over (clipped and under the shoulder),
+// in both tone modes, for fisheye frames at rest and at 0.5 c toward the
+// galactic centre and a pinhole frame across the plane at 0.9 c.
+func TestDiffuseEightBitTolerance(t *testing.T) {
+	u := builtInUnresolved(t)
+	gc := camera.FromGalacticLB(0, 0)
+	cases := []struct {
+		name  string
+		kind  camera.Kind
+		w, h  int
+		fov   float64
+		look  r3.Vec
+		beta  float64
+		along r3.Vec
+	}{
+		{"fisheye at rest", camera.Fisheye, 1024, 1024, 180, camera.FromGalacticLB(90, 30), 0, gc},
+		{"fisheye 0.5 c", camera.Fisheye, 1024, 1024, 180, gc, 0.5, gc},
+		{"pinhole 0.9 c", camera.Pinhole, 960, 540, 60, camera.FromGalacticLB(60, 0), 0.9, gc},
+	}
+	for _, c := range cases {
+		obs := camera.Observer{}
+		if c.beta > 0 {
+			obs = observer(t, c.along, c.beta)
+		}
+		p := looking(t, c.kind, c.w, c.h, c.fov, c.look)
+		fe, fg := blankFrame(t, p, obs), blankFrame(t, p, obs)
+		if err := AddDiffuse(fe, u, DiffuseOptions{Exact: true}); err != nil {
+			t.Fatal(err)
+		}
+		if err := AddDiffuse(fg, u, DiffuseOptions{Tolerance: EightBitTolerance}); err != nil {
+			t.Fatal(err)
+		}
+		top := float32(0)
+		for _, v := range fe.Pix {
+			top = max(top, v)
+		}
+		if !(top > 0) {
+			t.Fatalf("%s: the exact layer is black", c.name)
+		}
+		for _, gain := range []float32{1, 4} {
+			for _, m := range []ToneMode{ToneLinear, ToneShoulder} {
+				se, sg := blankFrame(t, p, obs), blankFrame(t, p, obs)
+				for i := range fe.Pix {
+					se.Pix[i] = fe.Pix[i] * gain / top
+					sg.Pix[i] = fg.Pix[i] * gain / top
+				}
+				ie, ig := se.ToNRGBA(m), sg.ToNRGBA(m)
+				worst, off := 0, 0
+				for i := range ie.Pix {
+					d := int(ie.Pix[i]) - int(ig.Pix[i])
+					worst = max(worst, d, -d)
+					if d != 0 {
+						off++
+					}
+				}
+				t.Logf("%s, gain %g, %v: largest difference %d codes, %.3f%% of channels differ", c.name, gain, m, worst, 100*float64(off)/float64(len(ie.Pix)))
+				if worst > 1 {
+					t.Errorf("%s, gain %g, %v: a channel differs by %d codes from the exact layer's, want ≤ 1", c.name, gain, m, worst)
+				}
+			}
+		}
+	}
+}

@@ -64,6 +64,11 @@ type UnresolvedInfo struct {
 	// Components is the number of diluted-blackbody components per
 	// direction.
 	Components int `json:"components"`
+	// GridTolerance is the largest error the adaptive grid left where it
+	// checked its interpolation, relative to the pixel's largest channel
+	// (DiffuseOptions.GridTolerance): 0.001 by default, 0.004 for frames
+	// written only as 8-bit sRGB; absent when every pixel was evaluated.
+	GridTolerance float64 `json:"grid_tolerance,omitempty"`
 }
 
 // Direction is a unit vector given as ICRS right ascension and declination.

@@ -56,6 +56,15 @@ const (
 	// pixel's largest channel (see DiffuseOptions.Tolerance): 10⁻³ is a
 	// tenth of an 8-bit sRGB step at full scale and smaller elsewhere.
 	DefaultSmoothTolerance = 1e-3
+	// EightBitTolerance is the tolerance for a layer whose frame is
+	// written only as 8-bit sRGB. An error of ε times the pixel's largest
+	// channel M moves that channel's sRGB code by at most 255·(1.055/2.4)·
+	// M^(1/2.4)·ε ≤ 112ε codes (at full scale; less below it, under the
+	// shoulder and where clipped), 0.45 of a step at 4·10⁻³, and a
+	// channel at a quarter of M by up to one step.
+	// TestDiffuseEightBitTolerance holds 8-bit frames of the built-in
+	// sky's layer drawn with it to within one code of the exact layer's.
+	EightBitTolerance = 4e-3
 )
 
 // pixelEval evaluates a layer exactly at pixel (i, j): the linear RGB to

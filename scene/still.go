@@ -167,6 +167,7 @@ func AddLayers(o *frameopt.Options, sc *Scene, spec *Spec, out OutputPaths) erro
 	if spec.Layers, err = FrameLayers(o, sc, &spec.Opt); err != nil {
 		return err
 	}
+	spec.Layers.ForEightBit(out.FITS == "" && out.EXR == "" && spec.Depth != 16)
 	if out.EXR != "" {
 		if spec.EXR, err = o.EXR(); err != nil {
 			return &InputError{err}

@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"github.com/skyframe/skyframe/internal/sharedcat"
+	"github.com/skyframe/skyframe/render"
 )
 
 func readSidecarMap(t *testing.T, path string) map[string]any {
@@ -63,7 +64,19 @@ func TestStillBuiltInDepth(t *testing.T) {
 	if code != 0 || strings.Contains(errs, "warning") {
 		t.Fatalf("exit %d, stderr %q; want success without a warning", code, errs)
 	}
-	c := readSidecarMap(t, filepath.Join(dir, "a.json"))["catalog"].(map[string]any)
+	side := readSidecarMap(t, filepath.Join(dir, "a.json"))
+	c := side["catalog"].(map[string]any)
+	// Written only as 8-bit PNG, the unresolved layer is drawn to
+	// render.EightBitTolerance; with a FITS file, to the default.
+	if u, ok := side["unresolved"].(map[string]any); !ok || u["grid_tolerance"] != render.EightBitTolerance {
+		t.Errorf("sidecar unresolved %v: want grid_tolerance %g", side["unresolved"], render.EightBitTolerance)
+	}
+	if _, errs, code := runCmd(t, "still", "--size", "96x54", "-o", png, "--fits", filepath.Join(dir, "a.fits")); code != 0 {
+		t.Fatalf("with --fits: exit %d: %s", code, errs)
+	}
+	if u, ok := readSidecarMap(t, filepath.Join(dir, "a.json"))["unresolved"].(map[string]any); !ok || u["grid_tolerance"] != render.DefaultSmoothTolerance {
+		t.Errorf("with --fits: sidecar unresolved %v: want grid_tolerance %g", u, render.DefaultSmoothTolerance)
+	}
 	// 0.9 c ahead, V′ = 6.5 just visible: about V = 10.4 needed (the coolest
 	// built-in stars, B−V = 2, brighten by 3.9 mag at D = 4.36).
 	if d := c["depth_v"].(float64); !(d >= 10.2 && d <= 10.6) || c["rows"].(float64) < 2e5 {
