@@ -415,13 +415,19 @@ func (j *Job) drawFrame(prep *render.Prepared, i int, held bool) (*drawnFrame, e
 	// The flash check's luminance is summed row by row as the tone map
 	// finishes each row (the same sums as MeanLuminance).
 	sums := newLumSums(f.W, f.H)
-	if lin.pending != nil {
-		// Nothing reads the buffer after the tone map, and the next
-		// frame is drawn into it: it is left black on the way.
+	// Written only as 8-bit PNG, nothing reads the buffer after the tone
+	// map, and the next frame is drawn into it: it is left black on the
+	// way, instead of cleared in a pass of its own.
+	switch {
+	case lin.pending != nil:
 		lin.pending.ClearBuffer = true
-	}
-	if d.img8, err = f.ToNRGBAPending(getNRGBA(), fr.Tone, lin.pending, sums.row); err != nil {
-		return nil, fmt.Errorf("flight: frame %d: %w", i, err)
+		if d.img8, err = f.ToNRGBAPending(getNRGBA(), fr.Tone, lin.pending, sums.row); err != nil {
+			return nil, fmt.Errorf("flight: frame %d: %w", i, err)
+		}
+	case j.eightBitOnly():
+		d.img8 = f.ToNRGBAClearing(getNRGBA(), fr.Tone, sums.row)
+	default:
+		d.img8 = f.ToNRGBARows(getNRGBA(), fr.Tone, sums.row)
 	}
 	d.lum = sums.lum()
 	d.img = d.img8

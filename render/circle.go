@@ -90,7 +90,21 @@ func (f *Frame) ToNRGBAInto(dst *image.NRGBA, m ToneMode) *image.NRGBA {
 // it is still in cache: once per row, from the tone map's goroutines, in
 // no set order. A nil row is not called.
 func (f *Frame) ToNRGBARows(dst *image.NRGBA, m ToneMode, row func(y int, pix []byte)) *image.NRGBA {
-	return f.Buffer.toNRGBAMasked(dst, m, f.Options.Workers, f.circleMask(), row)
+	return f.Buffer.toNRGBAMasked(dst, m, f.Options.Workers, f.circleMask(), row, false)
+}
+
+// ToNRGBAClearing is ToNRGBARows leaving f's buffer black: each row of
+// values is zeroed as soon as it is toned, while it is in cache, so that
+// the next render into f need not clear the buffer in a pass of its own
+// (as PendingLayer.ClearBuffer does for a held layer). For a frame nothing
+// reads after the tone map (no FITS, OpenEXR or 16-bit image). A frame
+// with a Doppler channel is toned as by ToNRGBARows: the next render
+// clears it whole anyway.
+func (f *Frame) ToNRGBAClearing(dst *image.NRGBA, m ToneMode, row func(y int, pix []byte)) *image.NRGBA {
+	zero := f.Doppler == nil
+	img := f.Buffer.toNRGBAMasked(dst, m, f.Options.Workers, f.circleMask(), row, zero)
+	f.black = zero
+	return img
 }
 
 // circleMask returns a fisheye frame's image circle mask, else nil.

@@ -359,3 +359,52 @@ func TestPendingClearBuffer(t *testing.T) {
 		p.Release()
 	}
 }
+
+// ToNRGBAClearing gives ToNRGBARows's image and rows and leaves the buffer
+// black, and frames rendered into it after (stars and a layer drawn anew
+// each time, as a panning flight draws them) are those rendered afresh,
+// value for value.
+func TestToNRGBAClearing(t *testing.T) {
+	u := builtInUnresolved(t)
+	stars := randomStars(20_000, -1, 9, 29)
+	prep, err := Prepare(stars)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var dst Frame
+	for i := range 3 {
+		opt := Options{Projection: proj(t, camera.Fisheye, 300, 300), Observer: observer(t, camera.FromGalacticLB(float64(20*i), 2), 0.6), Exposure: 1}
+		fresh, err := prep.Render(opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := prep.RenderInto(&dst, opt); err != nil {
+			t.Fatal(err)
+		}
+		for _, f := range []*Frame{fresh, &dst} {
+			if err := AddDiffuse(f, u, DiffuseOptions{}); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if !slices.Equal(dst.Pix, fresh.Pix) {
+			t.Fatalf("frame %d, rendered into the buffer left black, differs from the frame rendered afresh", i)
+		}
+		rows := make([][]byte, dst.H)
+		want := fresh.ToNRGBARows(nil, ToneShoulder, nil)
+		img := dst.ToNRGBAClearing(nil, ToneShoulder, func(y int, pix []byte) { rows[y] = slices.Clone(pix) })
+		if !slices.Equal(img.Pix, want.Pix) {
+			t.Fatalf("frame %d: image differs from ToNRGBARows's", i)
+		}
+		for y, r := range rows {
+			if !slices.Equal(r, want.Pix[y*want.Stride:y*want.Stride+4*dst.W]) {
+				t.Fatalf("frame %d: row %d handed on differs from the image's", i, y)
+			}
+		}
+		if k := slices.IndexFunc(dst.Pix, func(v float32) bool { return math.Float32bits(v) != 0 }); k >= 0 {
+			t.Fatalf("frame %d: value %d is %g after ToNRGBAClearing", i, k, dst.Pix[k])
+		}
+		if !dst.black {
+			t.Fatalf("frame %d: not marked black", i)
+		}
+	}
+}

@@ -163,7 +163,7 @@ func (b *Buffer) ToNRGBAInto(dst *image.NRGBA, m ToneMode) *image.NRGBA {
 
 // toNRGBAInto is ToNRGBAInto on workers goroutines (0: GOMAXPROCS).
 func (b *Buffer) toNRGBAInto(dst *image.NRGBA, m ToneMode, workers int) *image.NRGBA {
-	return b.toNRGBAMasked(dst, m, workers, nil, nil)
+	return b.toNRGBAMasked(dst, m, workers, nil, nil, false)
 }
 
 // circleMask is an image circle of centre (cx, cy) and radius r, pixels,
@@ -188,13 +188,18 @@ func newCircleMask(w, h int, cx, cy, r float64) *circleMask {
 // coverage 0 black without being tone-mapped and the rim's scaled by their
 // coverage, in the same pass (TestToNRGBAMaskedOnePass: the image a
 // separate mask pass leaves). When done is not nil
-// it is called with each row (its 4·W bytes) once the row is final.
-func (b *Buffer) toNRGBAMasked(dst *image.NRGBA, m ToneMode, workers int, mask *circleMask, done func(y int, row []byte)) *image.NRGBA {
+// it is called with each row (its 4·W bytes) once the row is final. With
+// zero each row of b is zeroed once toned.
+func (b *Buffer) toNRGBAMasked(dst *image.NRGBA, m ToneMode, workers int, mask *circleMask, done func(y int, row []byte), zero bool) *image.NRGBA {
 	img := packedNRGBA(dst, b.W, b.H)
 	t := newToner(m, mask)
 	b.rows(workers, func(y int) {
 		dst := img.Pix[y*img.Stride : y*img.Stride+4*b.W]
-		t.row(b.Pix[3*y*b.W:3*(y+1)*b.W], dst, y)
+		src := b.Pix[3*y*b.W : 3*(y+1)*b.W]
+		t.row(src, dst, y)
+		if zero {
+			clear(src)
+		}
 		if done != nil {
 			done(y, dst)
 		}
