@@ -101,6 +101,22 @@ func (m *DiffuseMemo) Lent() int {
 	return m.lent
 }
 
+// newRecord returns the storage for a new layer (m.mu held): the record
+// kept before, unless a PendingLayer holds it, which is then no longer
+// the memo's; and the tone-mapped image built from it, if any, no longer
+// its image (the storage stays for the next one).
+func (m *DiffuseMemo) newRecord() *gridRecord {
+	rec := m.rec
+	if rec == nil || m.users > 0 {
+		rec = new(gridRecord)
+	}
+	if m.img != nil && m.img.rec == rec {
+		m.img.rec = nil
+	}
+	m.rec = nil
+	return rec
+}
+
 // memoKey returns the key of f's layer of sky with opt, and whether it can
 // be kept.
 func memoKey(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (diffuseKey, bool) {
@@ -125,11 +141,7 @@ func (m *DiffuseMemo) draw(d *diffuseDraw, key diffuseKey) error {
 	}
 	// The record kept before lends its storage to the new one, unless a
 	// PendingLayer holds it.
-	rec := m.rec
-	if rec == nil || m.users > 0 {
-		rec = new(gridRecord)
-	}
-	m.rec = nil
+	rec := m.newRecord()
 	if err := d.drawRecord(d.newEval, rec); err != nil {
 		return err
 	}

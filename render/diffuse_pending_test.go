@@ -408,3 +408,45 @@ func TestToNRGBAClearing(t *testing.T) {
 		}
 	}
 }
+
+// A held view after a change of view (another layer drawn into the
+// record's storage between them) lends its own layer, not the image built
+// for the view before: frames of views A, A, B, B, A, A, each lent when
+// its layer is held, are those of AddDiffuse and ToNRGBA.
+func TestPendingAfterViewChange(t *testing.T) {
+	u := builtInUnresolved(t)
+	prep, err := Prepare(randomStars(2000, -1, 9, 23))
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := new(DiffuseMemo)
+	var dst Frame
+	for i, ex := range []float64{1, 1, 2, 2, 1, 1} {
+		opt := Options{Projection: proj(t, camera.Fisheye, 200, 200), Observer: observer(t, camera.FromGalacticLB(0, 2), 0.6), Exposure: ex}
+		f, err := prep.Render(opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := AddDiffuse(f, u, DiffuseOptions{}); err != nil {
+			t.Fatal(err)
+		}
+		if err := prep.RenderInto(&dst, opt); err != nil {
+			t.Fatal(err)
+		}
+		p, err := DiffusePending(&dst, u, DiffuseOptions{Memo: m})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if (p != nil) != (i%2 == 1) {
+			t.Fatalf("frame %d: pending %v, want it on the second frame of each view", i, p != nil)
+		}
+		img, err := dst.ToNRGBAPending(nil, ToneShoulder, p, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !slices.Equal(img.Pix, f.ToNRGBA(ToneShoulder).Pix) {
+			t.Errorf("frame %d (pending %v): image differs from AddDiffuse's", i, p != nil)
+		}
+		p.Release()
+	}
+}
