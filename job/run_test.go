@@ -70,6 +70,45 @@ func TestRunHeldLayer(t *testing.T) {
 	}
 }
 
+// A view held, turned and held again: the frames of the second hold are
+// those drawn without the held layer, byte for byte (they lend their own
+// layer, not the image kept for the first hold).
+func TestRunHeldLayerTurn(t *testing.T) {
+	cam := "projection = \"fisheye\"\nsize = \"120x120\"\nshutter = 0\n" +
+		"[[camera.look]]\nat = 0\nlook = \"0,-10\"\n[[camera.look]]\nat = 0.5\nlook = \"0,-10\"\n" +
+		"[[camera.look]]\nat = 1\nlook = \"0,10\"\n[[camera.look]]\nat = 2\nlook = \"0,10\""
+	frames := []int{0, 1, 2, 20, 21, 40, 41, 42}
+	var dirs [2]string
+	for k, o := range []RunOptions{{}, {HeldLayer: true}} {
+		j := benchLoad(t, cam)
+		j.Frames = frames
+		if _, err := j.Run(context.Background(), o); err != nil {
+			t.Fatal(err)
+		}
+		if lent := j.Layers.DiffuseOptions.Memo.Lent(); (lent > 0) != o.HeldLayer {
+			t.Fatalf("%+v: %d layers lent", o, lent)
+		}
+		dirs[k] = j.OutDir
+		if k == 0 {
+			continue
+		}
+		for _, i := range frames {
+			name := j.Files(i).PNG
+			a, err := os.ReadFile(filepath.Join(dirs[0], name))
+			if err != nil {
+				t.Fatal(err)
+			}
+			b, err := os.ReadFile(filepath.Join(dirs[1], name))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !bytes.Equal(a, b) {
+				t.Errorf("frame %d: %s differs with the held layer", i, name)
+			}
+		}
+	}
+}
+
 // A run that draws each frame while the previous one is written
 // (RunOptions.Overlap) writes the very files of a run that does one frame
 // at a time, reports the same luminances and calls Done in frame order;
