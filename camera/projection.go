@@ -329,6 +329,40 @@ func (p *Projection) Inverse(x, y float64) (dir r3.Vec, ok bool) {
 	return fr.inverse(p.Kind, p.Width, p.Height, x, y)
 }
 
+// InverseBeyond is Inverse continued past a Fisheye's image circle: the
+// equidistant mapping θ = r/k holds out to θ = π (the direction opposite
+// the centre), so that a position just outside the circle gets the
+// direction a wider fisheye would image there. Inside the circle it is
+// Inverse, bit for bit; for the other kinds it is Inverse.
+func (p *Projection) InverseBeyond(x, y float64) (dir r3.Vec, ok bool) {
+	if p.Kind != Fisheye {
+		return p.Inverse(x, y)
+	}
+	if math.IsNaN(x+y) || math.IsInf(x+y, 0) {
+		return r3.Vec{}, false
+	}
+	if p.current() {
+		return p.cache.fisheyeInverse(x, y, math.Pi)
+	}
+	fr := p.derive()
+	return fr.fisheyeInverse(x, y, math.Pi)
+}
+
+// fisheyeInverse is the Fisheye inverse out to θ = limit from the centre.
+func (fr *frame) fisheyeInverse(x, y, limit float64) (r3.Vec, bool) {
+	dx, dy := x-fr.cx, fr.cy-y
+	s := hypot(dx, dy)
+	th := s / fr.k
+	if th > limit {
+		return r3.Vec{}, false
+	}
+	if s == 0 {
+		return fr.f, true
+	}
+	st, ct := math.Sincos(th)
+	return fr.combine(ct, st*dx/s, st*dy/s), true
+}
+
 var nan = math.NaN()
 
 func (fr *frame) forward(kind Kind, dir r3.Vec) (x, y float64, ok bool) {
@@ -415,17 +449,7 @@ func (fr *frame) inverse(kind Kind, width, height int, x, y float64) (r3.Vec, bo
 		sb, cb := math.Sincos(lat)
 		return fr.combine(cb*cl, cb*sl, sb), true
 	case Fisheye:
-		dx, dy := x-fr.cx, fr.cy-y
-		s := hypot(dx, dy)
-		th := s / fr.k
-		if th > fr.half {
-			return r3.Vec{}, false
-		}
-		if s == 0 {
-			return fr.f, true
-		}
-		st, ct := math.Sincos(th)
-		return fr.combine(ct, st*dx/s, st*dy/s), true
+		return fr.fisheyeInverse(x, y, fr.half)
 	case Cube:
 		if x < 0 || x > float64(width) || y < 0 || y > float64(height) {
 			return r3.Vec{}, false

@@ -478,3 +478,52 @@ func TestForwardBatch(t *testing.T) {
 		}
 	}
 }
+
+// InverseBeyond is Inverse inside a fisheye's circle, bit for bit, and
+// beyond it continues the equidistant mapping θ = r/k: the direction at
+// 100 px outside a 180° 800×400 fisheye's circle (k = 200/(π/2) px/rad) is
+// 90° + 100/k from the centre along the same image direction
+// [pub: equidistant fisheye r = kθ], out to θ = π; other kinds are Inverse.
+func TestInverseBeyond(t *testing.T) {
+	o, _ := LookAt(r3.Vec{X: 1, Y: 2, Z: 0.5}, r3.Vec{Z: 1}, 17)
+	p := Projection{Kind: Fisheye, Width: 800, Height: 400, Orient: o}
+	if err := p.Prepare(); err != nil {
+		t.Fatal(err)
+	}
+	r := rand.New(rand.NewPCG(3, 4))
+	for range 1000 {
+		x, y := r.Float64()*800, r.Float64()*400
+		a, okA := p.Inverse(x, y)
+		b, okB := p.InverseBeyond(x, y)
+		if okA && (!okB || a != b) {
+			t.Fatalf("(%g, %g) inside: InverseBeyond %v %v, Inverse %v", x, y, b, okB, a)
+		}
+	}
+	k := 200 / (math.Pi / 2)
+	for _, c := range []struct{ dx, dy float64 }{{300, 0}, {0, -300}, {-212.1, 212.1}} {
+		rr := math.Hypot(c.dx, c.dy)
+		d, ok := p.InverseBeyond(400+c.dx, 200+c.dy)
+		if !ok {
+			t.Fatalf("%v: not ok", c)
+		}
+		if th := math.Acos(r3.Dot(d, o.Forward)); !scalar.EqualWithinAbs(th, rr/k, 1e-12) {
+			t.Errorf("%v: θ = %.12f, want r/k = %.12f", c, th, rr/k)
+		}
+		// The same image direction: toward Right for +x, Up for −y.
+		side := r3.Add(r3.Scale(c.dx/rr, o.Right), r3.Scale(-c.dy/rr, o.Up))
+		if r3.Dot(r3.Sub(d, r3.Scale(r3.Dot(d, o.Forward), o.Forward)), side) <= 0 {
+			t.Errorf("%v: direction %v not on the side of the image direction", c, d)
+		}
+	}
+	if _, ok := p.InverseBeyond(400+k*math.Pi+1, 200); ok {
+		t.Error("beyond θ = π: ok")
+	}
+	q := Projection{Kind: Pinhole, Width: 800, Height: 400, Orient: o}
+	if err := q.Prepare(); err != nil {
+		t.Fatal(err)
+	}
+	a, _ := q.Inverse(10, 20)
+	if b, ok := q.InverseBeyond(10, 20); !ok || a != b {
+		t.Errorf("pinhole: InverseBeyond %v, Inverse %v", b, a)
+	}
+}
