@@ -28,14 +28,16 @@ func (l *Layers) SidecarInfo(side *render.Sidecar) {
 	}
 }
 
-// ForEightBit draws the unresolved layer with render.EightBitTolerance
-// when eightBitOnly (the frame is written only as 8-bit sRGB: no FITS, no
-// OpenEXR, no 16-bit PNG), where its error stays within one code of the
-// exact layer's; otherwise it leaves the default, which the linear files
-// keep.
+// ForEightBit draws the unresolved layer for a frame written only as 8-bit
+// sRGB (eightBitOnly: no FITS, no OpenEXR, no 16-bit PNG) with
+// render.EightBitTolerance, where its error stays within one code of the
+// exact layer's, and continued past a fisheye's circle, which masks the
+// image (DiffuseOptions.BeyondRim); otherwise it leaves the defaults, which
+// the linear files keep.
 func (l *Layers) ForEightBit(eightBitOnly bool) {
 	if eightBitOnly {
 		l.DiffuseOptions.Tolerance = render.EightBitTolerance
+		l.DiffuseOptions.BeyondRim = true
 	}
 }
 

@@ -86,6 +86,19 @@ type DiffuseOptions struct {
 	// DefaultSmoothTolerance. EightBitTolerance suits a frame written
 	// only as 8-bit sRGB.
 	Tolerance float64
+	// BeyondRim continues a fisheye's layer past its image circle, for a
+	// frame whose image the circle masks (the tone map leaves the pixels
+	// outside it black and scales the rim's by their coverage): a pixel
+	// whose centre lies outside the circle takes the value at the
+	// direction the projection continued past the circle images there
+	// (camera.Projection.InverseBeyond), as one inside does, so the cells
+	// that cross the rim are interpolated like any other instead of being
+	// split down to 4 pixels and drawn exactly, and the mask cuts the layer
+	// at the circle as it cuts the stars. The buffer then holds light
+	// outside the circle (up to a cell's width): for frames written only as
+	// masked images, not FITS or OpenEXR. It applies where one sample per
+	// pixel suffices (else it changes nothing).
+	BeyondRim bool
 	// Memo, when not nil, keeps the layer for the next frame with the
 	// same one, which replays it bit for bit (see DiffuseMemo). Layers
 	// averaged over a shutter (AddLinearMotion) do not use it.
@@ -310,6 +323,7 @@ func prepareDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*diffuseDr
 	// both criteria (with room for rounding): then it is not called.
 	dMax := math.Sqrt(1+d.gb*d.gb) + d.gb // γ + γβ
 	d.one = ms == 1 || math.Sqrt(sa.max())*dMax*max(1/fp, d.gb/mlnD) < 0.999
+	d.beyond = opt.BeyondRim && d.one && d.circle.ok
 	d.colour = newLnDTable(lnT, boost.Rapidity())
 	k := f.extended() / math.Pi // buffer luminance per (cd/m² · sr)
 	color := f.Options.Color
@@ -384,6 +398,7 @@ type diffuseSampler struct {
 	circle   imageCircle // a fisheye's image circle: no light outside it
 	one      bool        // every pixel with a centre direction takes one sample
 	colour   *lnDTable   // the components' photometry against ln D, or nil
+	beyond   bool        // a fisheye's layer continues past its circle (BeyondRim)
 }
 
 // samples returns the number of samples per side for the pixel whose centre
@@ -413,6 +428,9 @@ func (d *diffuseSampler) samples(np r3.Vec, D, omega float64) int {
 // sub-samples).
 func (d *diffuseSampler) pixel(i, j int, sc *diffuseScratch, w []float64) (X, Y, Z float64, s int, err error) {
 	np, ok := d.p.Inverse(float64(i)+0.5, float64(j)+0.5)
+	if !ok && d.beyond {
+		np, ok = d.p.InverseBeyond(float64(i)+0.5, float64(j)+0.5)
+	}
 	s = 1
 	// The centre's catalogue direction, Doppler factor and solid angle
 	// serve as the single sample when s = 1 (sub(i+½, j+½, 1, np) is
