@@ -63,9 +63,11 @@ func benchLoadOutput(b testing.TB, camera, output string) *Job {
 // tone map (RunOptions.HeldLayer, as the flight command does when
 // --memory holds HeldLayerBytes; "unheld", "seq": replayed into the
 // buffer); with it panning (4096pan, 8192pan: 15°/s, the shutter closed)
-// every frame draws it.
+// every frame draws it, and with the shutter at 180° (4096blur) draws its
+// mean over the frame's instants.
 func BenchmarkFlightFrameFisheye(b *testing.B) {
-	const pan = "\nshutter = 0\n[[camera.look]]\nat = 0\nlook = \"0,-10\"\n[[camera.look]]\nat = 2\nlook = \"0,10\""
+	const keys = "\n[[camera.look]]\nat = 0\nlook = \"0,-10\"\n[[camera.look]]\nat = 2\nlook = \"0,10\""
+	const pan, blur = "\nshutter = 0" + keys, "\nshutter = 180" + keys
 	for _, c := range []struct {
 		name          string
 		size          int
@@ -75,7 +77,7 @@ func BenchmarkFlightFrameFisheye(b *testing.B) {
 		{"1024", 1024, "", true, true},
 		{"4096", 4096, "", true, true}, {"4096unheld", 4096, "", true, false}, {"4096seq", 4096, "", false, false},
 		{"8192", 8192, "", true, true}, {"8192unheld", 8192, "", true, false}, {"8192seq", 8192, "", false, false},
-		{"4096pan", 4096, pan, true, true}, {"8192pan", 8192, pan, true, true},
+		{"4096pan", 4096, pan, true, true}, {"8192pan", 8192, pan, true, true}, {"4096blur", 4096, blur, true, true},
 	} {
 		b.Run(c.name, func(b *testing.B) {
 			if testing.Short() && c.size > 4096 {
