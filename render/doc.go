@@ -165,8 +165,13 @@
 // W_k(n)·B(T_k) in the catalogue frame, seen through the exact inverse
 // aberration: each component keeps its dilution and has T′ = D·T_k, so its
 // bolometric surface brightness goes as D⁴ (AddDiffuse; sub-sampled where
-// D or the catalogue-frame footprint changes fast within a pixel). A
-// uniform layer and stars carrying the same flux give the same buffer
+// D or the catalogue-frame footprint changes fast within a pixel;
+// evaluated exactly at the nodes of an adaptive grid of cells checked to
+// DiffuseOptions.Tolerance, 10⁻³ of the pixel's brightest channel, or
+// EightBitTolerance for frames written only as 8-bit sRGB, which also
+// continue a fisheye's layer past the circle their mask cuts, BeyondRim;
+// the components' photometry comes from a table over ln D built for each
+// drawing). A uniform layer and stars carrying the same flux give the same buffer
 // total. Options.ExtendedScale scales all extended light (discs and these
 // layers) against point stars, so that a reduced preview keeps the full
 // frame's value per pixel. A DiffuseMemo keeps the layer for the next frame with the same
