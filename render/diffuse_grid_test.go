@@ -344,31 +344,19 @@ func TestDiffuseMeanGridBound(t *testing.T) {
 // sRGB code of those of the exact layer in every pixel and channel, with
 // the layer's brightest pixel exposed to full scale (where a relative
 // error moves the code most) and 4× over (clipped and under the shoulder),
-// in both tone modes, for fisheye frames at rest and at 0.5 c toward the
-// galactic centre and a pinhole frame across the plane at 0.9 c.
+// in both tone modes, for fisheye frames at rest and at 0.5 c (looking at
+// the galactic centre) and a pinhole frame across the plane at 0.9 c.
 func TestDiffuseEightBitTolerance(t *testing.T) {
-	u := builtInUnresolved(t)
+	model := func(t testing.TB) UnresolvedSky { return builtInUnresolved(t) }
 	gc := camera.FromGalacticLB(0, 0)
-	cases := []struct {
-		name  string
-		kind  camera.Kind
-		w, h  int
-		fov   float64
-		look  r3.Vec
-		beta  float64
-		along r3.Vec
-	}{
-		{"fisheye at rest", camera.Fisheye, 1024, 1024, 180, camera.FromGalacticLB(90, 30), 0, gc},
-		{"fisheye 0.5 c", camera.Fisheye, 1024, 1024, 180, gc, 0.5, gc},
-		{"pinhole 0.9 c", camera.Pinhole, 960, 540, 60, camera.FromGalacticLB(60, 0), 0.9, gc},
-	}
-	for _, c := range cases {
-		obs := camera.Observer{}
-		if c.beta > 0 {
-			obs = observer(t, c.along, c.beta)
-		}
-		p := looking(t, c.kind, c.w, c.h, c.fov, c.look)
-		fe, fg := blankFrame(t, p, obs), blankFrame(t, p, obs)
+	for _, c := range []gridCase{
+		{"fisheye at rest", camera.Fisheye, 1024, 1024, 180, camera.FromGalacticLB(90, 30), 0, model, 0},
+		{"fisheye 0.5 c", camera.Fisheye, 1024, 1024, 180, gc, 0.5, model, 0},
+		{"pinhole 0.9 c", camera.Pinhole, 960, 540, 60, camera.FromGalacticLB(60, 0), 0.9, model, 0},
+	} {
+		u := c.sky(t)
+		fe, _ := c.frames(t)
+		fg, _ := c.frames(t)
 		if err := AddDiffuse(fe, u, DiffuseOptions{Exact: true}); err != nil {
 			t.Fatal(err)
 		}
@@ -384,7 +372,8 @@ func TestDiffuseEightBitTolerance(t *testing.T) {
 		}
 		for _, gain := range []float32{1, 4} {
 			for _, m := range []ToneMode{ToneLinear, ToneShoulder} {
-				se, sg := blankFrame(t, p, obs), blankFrame(t, p, obs)
+				se, _ := c.frames(t)
+				sg, _ := c.frames(t)
 				for i := range fe.Pix {
 					se.Pix[i] = fe.Pix[i] * gain / top
 					sg.Pix[i] = fg.Pix[i] * gain / top
