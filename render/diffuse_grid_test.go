@@ -70,6 +70,8 @@ func gridCases() []gridCase {
 		{"model equirect rest", camera.Equirect, 512, 256, 0, gc, 0, model, 1},
 		{"model equirect 0.7c", camera.Equirect, 480, 240, 0, side, 0.7, model, 1},
 		{"model cube 0.9c", camera.Cube, 6 * 80, 80, 0, side, 0.9, model, 1},
+		// Small pixels (0.014°): top-level cells of 64 px (smoothCellAngle).
+		{"model pinhole 0.9c, 64 px cells", camera.Pinhole, 640, 360, 9, side, 0.9, model, 0},
 		// A smooth analytic sky, fast changes of D.
 		{"band fisheye 0.999c", camera.Fisheye, 300, 300, 200, gc, 0.999, band, 0},
 		// A band of σ = 8 px, sharper than any layer skyframe draws
@@ -157,7 +159,9 @@ func TestDiffuseGridBound(t *testing.T) {
 
 // The grid's speed comes from evaluating few directions: on the default
 // 1920×1080 still at 0.9 c toward the galactic centre, fewer than 0.35
-// directions per pixel (every pixel exact is 1). Measured: 0.279 (0.304 before a quarter reused its parent's check as its centre), since
+// directions per pixel (every pixel exact is 1). Measured: 0.233 (0.279
+// in an earlier session's notes, 0.304 before a quarter reused its parent's
+// check as its centre), since
 // cells are refined on the relative tolerance alone (no absolute floor),
 // which splits the cells along the model map's kinks down to 4 px.
 func TestDiffuseGridEvaluatesFew(t *testing.T) {
@@ -178,6 +182,31 @@ func TestDiffuseGridEvaluatesFew(t *testing.T) {
 	t.Logf("directions evaluated per pixel: %.4f", share)
 	if share > 0.35 {
 		t.Errorf("the grid evaluated %.3f directions per pixel, want < 0.35", share)
+	}
+}
+
+// The top-level cells grow from 32 px while they span at most 1.5° at the
+// image centre: 32 px in a 4096² fisheye (0.044° pixels) and a 1920×1080
+// 60° pinhole (0.031°), 64 px in an 8192² fisheye (0.022°) and a 9° pinhole
+// 640 px wide (0.014°), 128 px in a 4° one.
+func TestSmoothGridCell(t *testing.T) {
+	for _, c := range []struct {
+		kind camera.Kind
+		w, h int
+		fov  float64
+		want int
+	}{
+		{camera.Fisheye, 4096, 4096, 180, 32},
+		{camera.Pinhole, 1920, 1080, 60, 32},
+		{camera.Fisheye, 8192, 8192, 180, 64},
+		{camera.Pinhole, 640, 360, 9, 64},
+		{camera.Pinhole, 640, 360, 4, 128},
+		{camera.Equirect, 512, 256, 0, 32},
+	} {
+		p := looking(t, c.kind, c.w, c.h, c.fov, axisX)
+		if g := newSmoothGrid(&p, DefaultSmoothTolerance, 1); g.cell != c.want {
+			t.Errorf("%v %d×%d %g°: cells of %d px, want %d", c.kind, c.w, c.h, c.fov, g.cell, c.want)
+		}
 	}
 }
 

@@ -16,7 +16,8 @@ import (
 // A diffuse layer changes little from one pixel to the next almost
 // everywhere, so evaluating it exactly at every pixel wastes most of the
 // work. addSmooth evaluates it exactly at the corners of square cells of
-// smoothCell pixels and fills each cell by bilinear interpolation of the
+// smoothCell pixels (more where pixels are small: smoothGrid.cell) and
+// fills each cell by bilinear interpolation of the
 // corner values, after checking the interpolation against exact values at
 // nine points: the cell's centre, the midpoints of its four edges and the
 // centres of its four quarters. For a function with continuous second
@@ -46,8 +47,18 @@ import (
 
 // Parameters of the adaptive grid.
 const (
-	// smoothCell is the side of the top-level cells, pixels.
+	// smoothCell is the least side of the top-level cells, pixels; the
+	// side doubles while it spans at most smoothCellAngle at the image
+	// centre (64 px in an 8192² fisheye), the angle 32 px span in a 4096²
+	// one, since the layer's structure is set on the sky (the model map's
+	// nodes are 2° apart in longitude and 0.5° in latitude near the
+	// plane), not in pixels: a larger top cell that passes its checks
+	// costs 13 evaluations for 4 times the pixels, and one that fails
+	// hands its checks down as its quarters' corners and centres.
 	smoothCell = 32
+	// smoothCellAngle is the largest angle, degrees, a top-level cell
+	// larger than smoothCell may span.
+	smoothCellAngle = 1.5
 	// smoothMinCell is the side below which a failing cell is evaluated
 	// exactly instead of split.
 	smoothMinCell = 4
@@ -75,6 +86,7 @@ type pixelEval func(i, j int) (v [3]float64, smooth bool, err error)
 // smoothGrid describes the cells of one image.
 type smoothGrid struct {
 	w, h    int
+	cell    int      // the top-level cells' side, pixels
 	segs    [][2]int // column segments [a, b): cube faces, else the whole width
 	circle  imageCircle
 	tol     float64
@@ -82,7 +94,12 @@ type smoothGrid struct {
 }
 
 func newSmoothGrid(p *camera.Projection, tol float64, workers int) smoothGrid {
-	g := smoothGrid{w: p.Width, h: p.Height, tol: tol, workers: workers}
+	g := smoothGrid{w: p.Width, h: p.Height, cell: smoothCell, tol: tol, workers: workers}
+	if s := p.PixelScale(); s > 0 {
+		for 2*float64(g.cell)*s <= smoothCellAngle && g.cell < 256 {
+			g.cell *= 2
+		}
+	}
 	if p.Kind == camera.Cube && p.Width%6 == 0 && p.Width/6 == p.Height {
 		for k := 0; k < 6; k++ {
 			g.segs = append(g.segs, [2]int{k * p.Height, (k + 1) * p.Height})
@@ -94,11 +111,10 @@ func newSmoothGrid(p *camera.Projection, tol float64, workers int) smoothGrid {
 	return g
 }
 
-// nodes returns the node pixels of the span [a, b): a, a+smoothCell, … and
-// b−1.
-func nodes(a, b int) []int {
+// nodes returns the node pixels of the span [a, b): a, a+side, … and b−1.
+func nodes(a, b, side int) []int {
 	var n []int
-	for x := a; x < b-1; x += smoothCell {
+	for x := a; x < b-1; x += side {
 		n = append(n, x)
 	}
 	return append(n, b-1)
@@ -109,7 +125,7 @@ func nodes(a, b int) []int {
 // not nil it also records the layer there (rec.bands, one per band of
 // cells), for replay.
 func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecord) error {
-	rows := nodes(0, g.h)
+	rows := nodes(0, g.h, g.cell)
 	bands := max(1, len(rows)-1)
 	errs := make([]error, bands)
 	if rec != nil {
@@ -135,7 +151,7 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecor
 		}
 		defer func() { *lp = c.leaves[:0]; leaves.Put(lp) }()
 		for _, s := range g.segs {
-			cols := nodes(s[0], s[1])
+			cols := nodes(s[0], s[1], g.cell)
 			for m := 0; m < max(1, len(cols)-1); m++ {
 				x0, x1 := cols[m], cols[min(m+1, len(cols)-1)]
 				lastX, lastY := m+1 >= len(cols)-1, k == bands-1
