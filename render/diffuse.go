@@ -148,7 +148,8 @@ func (b *Buffer) Add(o *Buffer) error {
 // convention); the diffuse transform is always exact.
 //
 // Interpolation. Unless opt.Exact, the layer is evaluated exactly (as
-// below) at the corners of cells of up to 32×32 pixels and interpolated
+// below) at the corners of cells of up to 32×32 pixels (more where 64
+// pixels span at most 1.5°, smoothCellAngle) and interpolated
 // bilinearly inside each cell, after checking the interpolation against
 // exact values at the cell's centre, edge midpoints and quarter centres;
 // a cell that misses by more than opt.Tolerance is split, down to 4
