@@ -6,6 +6,7 @@ import (
 	"math"
 	"runtime"
 	"slices"
+	"sync"
 
 	"gonum.org/v1/gonum/spatial/r3"
 
@@ -325,7 +326,7 @@ func prepareDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*diffuseDr
 	dMax := math.Sqrt(1+d.gb*d.gb) + d.gb // γ + γβ
 	d.one = ms == 1 || math.Sqrt(sa.max())*dMax*max(1/fp, d.gb/mlnD) < 0.999
 	d.beyond = opt.BeyondRim && d.one && d.circle.ok
-	d.colour = newLnDTable(lnT, boost.Rapidity())
+	d.phi = boost.Rapidity()
 	k := f.extended() / math.Pi // buffer luminance per (cd/m² · sr)
 	color := f.Options.Color
 	newEval := func() pixelEval {
@@ -398,8 +399,19 @@ type diffuseSampler struct {
 	ms       int
 	circle   imageCircle // a fisheye's image circle: no light outside it
 	one      bool        // every pixel with a centre direction takes one sample
-	colour   *lnDTable   // the components' photometry against ln D, or nil
 	beyond   bool        // a fisheye's layer continues past its circle (BeyondRim)
+	// colour is the components' photometry against ln D for the boost's
+	// rapidity phi, or nil (newLnDTable), built on the first evaluation:
+	// a layer lent or replayed from a memo never builds it.
+	colour     *lnDTable
+	colourOnce sync.Once
+	phi        float64
+}
+
+// table returns d.colour, built on the first call.
+func (d *diffuseSampler) table() *lnDTable {
+	d.colourOnce.Do(func() { d.colour = newLnDTable(d.lnT, d.phi) })
+	return d.colour
 }
 
 // samples returns the number of samples per side for the pixel whose centre
@@ -484,7 +496,7 @@ func (d *diffuseSampler) radiance(n r3.Vec, dInv float64, sc *diffuseScratch, w 
 	// ln T′_k = ln T_k + ln D, D = 1/dInv: the transform of DiffuseSeen,
 	// in logarithms for the tables.
 	lnD := -lnFast(dInv)
-	if c := d.colour; c != nil {
+	if c := d.table(); c != nil {
 		if m, t, ok := c.at(lnD); ok {
 			return c.radiance(m, t, w, d.temps, n)
 		}
