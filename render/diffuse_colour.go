@@ -13,10 +13,10 @@ import (
 // of each of its components against u = ln D: a blackbody at T_k seen
 // with Doppler factor D is one at D·T_k, so every direction of a frame
 // needs the spectrum tables at the same K points shifted by the same ln D.
-// Tabulated once per drawing on nodes u_m = u0 + m·h over the frame's
-// whole range of D, e^−φ ≤ D ≤ e^φ (φ the rapidity), each direction then
-// costs one index and K linear interpolations instead of K lookups with
-// two divisions each.
+// Tabulated once per drawing (on its first evaluation), on nodes
+// u_m = u0 + m·h over the frame's whole range of D, e^−φ ≤ D ≤ e^φ (φ the
+// rapidity), each direction then costs one index and K linear
+// interpolations instead of K lookups with two divisions each.
 //
 // Per node m and component it keeps Y_m = e^(ln Y) (spectrum.Sample.LnY),
 // the step Δ = ln Y_{m+1} − ln Y_m, and the ratios X/Y = x/y and Z/Y =
