@@ -1,9 +1,6 @@
 package job
 
 import (
-	"bytes"
-	"os"
-	"path/filepath"
 	"testing"
 
 	"github.com/skyframe/skyframe/imgfile"
@@ -33,15 +30,7 @@ func TestFlightDiffuseMemo(t *testing.T) {
 		}
 		p := with.Files(i)
 		for _, name := range []string{p.PNG, p.FITS, p.Sidecar} {
-			a, err := os.ReadFile(filepath.Join(with.OutDir, name))
-			if err != nil {
-				t.Fatal(err)
-			}
-			b, err := os.ReadFile(filepath.Join(without.OutDir, name))
-			if err != nil {
-				t.Fatal(err)
-			}
-			if !bytes.Equal(a, b) {
+			if !sameFile(t, with.OutDir, without.OutDir, name) {
 				t.Errorf("frame %d: %s differs with the memo", i, name)
 			}
 		}

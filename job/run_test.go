@@ -42,15 +42,7 @@ func TestRunHeldLayer(t *testing.T) {
 		for _, i := range frames {
 			ff := j.Files(i)
 			for _, name := range []string{ff.PNG, ff.Sidecar} {
-				a, err := os.ReadFile(filepath.Join(ref.OutDir, name))
-				if err != nil {
-					t.Fatal(err)
-				}
-				b, err := os.ReadFile(filepath.Join(j.OutDir, name))
-				if err != nil {
-					t.Fatal(err)
-				}
-				if !bytes.Equal(a, b) {
+				if !sameFile(t, ref.OutDir, j.OutDir, name) {
 					t.Errorf("%+v: frame %d: %s differs", o, i, name)
 				}
 			}
@@ -68,6 +60,21 @@ func TestRunHeldLayer(t *testing.T) {
 	if lent := j.Layers.DiffuseOptions.Memo.Lent(); lent != 0 {
 		t.Errorf("with FITS: %d layers lent", lent)
 	}
+}
+
+// sameFile reports whether file name (relative) has the same bytes in
+// directories a and b; a file that cannot be read stops the test.
+func sameFile(t *testing.T, a, b, name string) bool {
+	t.Helper()
+	x, err := os.ReadFile(filepath.Join(a, name))
+	if err != nil {
+		t.Fatal(err)
+	}
+	y, err := os.ReadFile(filepath.Join(b, name))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return bytes.Equal(x, y)
 }
 
 // A view held, turned and held again: the frames of the second hold are
@@ -93,16 +100,7 @@ func TestRunHeldLayerTurn(t *testing.T) {
 			continue
 		}
 		for _, i := range frames {
-			name := j.Files(i).PNG
-			a, err := os.ReadFile(filepath.Join(dirs[0], name))
-			if err != nil {
-				t.Fatal(err)
-			}
-			b, err := os.ReadFile(filepath.Join(dirs[1], name))
-			if err != nil {
-				t.Fatal(err)
-			}
-			if !bytes.Equal(a, b) {
+			if name := j.Files(i).PNG; !sameFile(t, dirs[0], dirs[1], name) {
 				t.Errorf("frame %d: %s differs with the held layer", i, name)
 			}
 		}
@@ -139,15 +137,7 @@ func TestRunOverlap(t *testing.T) {
 	for _, i := range frames {
 		ff := seq.Files(i)
 		for _, name := range []string{ff.PNG, ff.FITS, ff.Sidecar} {
-			a, err := os.ReadFile(filepath.Join(seq.OutDir, name))
-			if err != nil {
-				t.Fatal(err)
-			}
-			b, err := os.ReadFile(filepath.Join(ovl.OutDir, name))
-			if err != nil {
-				t.Fatal(err)
-			}
-			if !bytes.Equal(a, b) {
+			if !sameFile(t, seq.OutDir, ovl.OutDir, name) {
 				t.Errorf("frame %d: %s differs with overlap", i, name)
 			}
 		}
