@@ -301,8 +301,21 @@ type SynthCell struct {
 	Radius float64
 }
 
-// synthCellCap returns the cap holding cell c.
-func synthCellCap(c int) SynthCell {
+// synthCellCap returns the cap holding cell c, from a table computed once
+// (a frame of the built-in sky asks for every cell's).
+func synthCellCap(c int) SynthCell { return synthCaps()[c] }
+
+// synthCaps holds every cell's cap, in cell order.
+var synthCaps = sync.OnceValue(func() *[synthCells]SynthCell {
+	var t [synthCells]SynthCell
+	for c := range t {
+		t[c] = cellCap(c)
+	}
+	return &t
+})
+
+// cellCap computes the cap holding cell c.
+func cellCap(c int) SynthCell {
 	s0, s1, l0, l1 := synthCellGeom(c)
 	sc := 0.5 * (s0 + s1)
 	lc := 0.5 * (l0 + l1) * math.Pi / 180

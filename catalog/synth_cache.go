@@ -3,6 +3,7 @@ package catalog
 import (
 	"math"
 	"runtime"
+	"slices"
 	"sync"
 )
 
@@ -156,9 +157,5 @@ func (b *synthBlock) appendTo(s *Stars, lim float64) {
 // SynthCells returns the cells of the synthetic sky's sampling grid, as
 // SynthOptions.CellLimit sees them, in cell order.
 func SynthCells() []SynthCell {
-	out := make([]SynthCell, synthCells)
-	for c := range out {
-		out[c] = synthCellCap(c)
-	}
-	return out
+	return slices.Clone(synthCaps()[:])
 }
