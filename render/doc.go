@@ -101,6 +101,15 @@
 // of its value [cp: float32 has a 24-bit significand]. Library code never reads the
 // clock, never uses global randomness and never sets GOMAXPROCS.
 //
+// Two per-pixel loops run eight pixels a step in AVX2 assembly where the
+// CPU has it (amd64, golang.org/x/sys/cpu; the purego build tag turns
+// them off): the adaptive grid's bilinear fill along a row (interpRow)
+// and the tone map's table path (toner.row, for pixels whose channels are
+// all below toneFast). Each computes exactly what its Go loop computes,
+// every float32 product and sum rounded in the same order and no fused
+// multiply-add, so frames are the same bit for bit on machines with and
+// without it (TestInterpRowAVX2, TestToneRowAVX2).
+//
 // The order rule for catalogues read only as deep as a frame needs: the
 // canonical order of a catalogue is (catalogue V, input row), the order
 // of a sorted cache (catalog.SortByV). RenderChunks reads a sorted cache

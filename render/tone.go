@@ -244,24 +244,12 @@ func (t *toner) row(src []float32, dst []byte, y int) {
 			binary.LittleEndian.PutUint32(dst[4*x:4*x+4], 0xff000000)
 		}
 	}
-	tab, fast, zero := t.tab, t.fast, t.tab.zero
-	for x := x0; x < x1; x++ {
-		s := src[3*x : 3*x+3 : 3*x+3]
-		ur, ug, ub := math.Float32bits(s[0]), math.Float32bits(s[1]), math.Float32bits(s[2])
-		var px uint32
-		switch {
-		case max(ur, ug, ub) < zero:
-			// Every channel in [0, 1.5·10⁻⁴): the identity, code 0. Most
-			// of a frame of space.
-			px = 0xff000000
-		case ur < fast && ug < fast && ub < fast:
-			// Every channel in [0, toneFast): the identity (see
-			// toneFastBits), float32 values in [0, 1) coded by table.
-			px = uint32(tab.code8Unit(ur)) | uint32(tab.code8Unit(ug))<<8 | uint32(tab.code8Unit(ub))<<16 | 0xff000000
-		default:
-			px = t.slow(s[0], s[1], s[2])
-		}
-		binary.LittleEndian.PutUint32(dst[4*x:4*x+4], px)
+	x := x0
+	if haveAVX2 {
+		x = t.rowAVX2(src, dst, x0, x1)
+	}
+	for ; x < x1; x++ {
+		binary.LittleEndian.PutUint32(dst[4*x:4*x+4], t.pixel(src[3*x:3*x+3:3*x+3]))
 	}
 	if t.mask != nil {
 		mk := t.mask.rows[y]
@@ -273,6 +261,40 @@ func (t *toner) row(src []float32, dst []byte, y int) {
 			t.cover(dst, x, y)
 		}
 	}
+}
+
+// pixel is the NRGBA word of the linear pixel s (3 values), unmasked.
+func (t *toner) pixel(s []float32) uint32 {
+	ur, ug, ub := math.Float32bits(s[0]), math.Float32bits(s[1]), math.Float32bits(s[2])
+	switch tab, fast := t.tab, t.fast; {
+	case max(ur, ug, ub) < tab.zero:
+		// Every channel in [0, 1.5·10⁻⁴): the identity, code 0. Most
+		// of a frame of space.
+		return 0xff000000
+	case ur < fast && ug < fast && ub < fast:
+		// Every channel in [0, toneFast): the identity (see
+		// toneFastBits), float32 values in [0, 1) coded by table.
+		return uint32(tab.code8Unit(ur)) | uint32(tab.code8Unit(ug))<<8 | uint32(tab.code8Unit(ub))<<16 | 0xff000000
+	}
+	return t.slow(s[0], s[1], s[2])
+}
+
+// rowAVX2 codes pixels x0 ≤ x < x1 of row src into dst eight at a time
+// (toneRowAVX2, the table path's codes bit for bit), a group with a
+// channel past the table path pixel by pixel, and returns the first pixel
+// of the last, partial group, which it leaves.
+func (t *toner) rowAVX2(src []float32, dst []byte, x0, x1 int) int {
+	x := x0
+	for x1-x >= 8 {
+		x += 8 * toneRowAVX2(&src[3*x], &dst[4*x], (x1-x)/8, &t.tab.ent[0], t.fast)
+		if x1-x < 8 {
+			break
+		}
+		for e := x + 8; x < e; x++ {
+			binary.LittleEndian.PutUint32(dst[4*x:4*x+4], t.pixel(src[3*x:3*x+3:3*x+3]))
+		}
+	}
+	return x
 }
 
 // slow is the code of the linear pixel (r, g, b), unmasked, past row's

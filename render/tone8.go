@@ -16,7 +16,7 @@ import (
 // of a frame) holds float32 values, and code8 finds their codes from the
 // float32 bits: the value's exponent and top code8Bits mantissa bits pick a
 // bucket, which holds the code at its start and, when the next code begins
-// inside it, that code's first value. No bucket holds two thresholds: the
+// inside it, where. No bucket holds two thresholds: the
 // code rises by at most 255·dE/dv·v·2⁻¹⁰ ≤ 0.12 across a bucket (the sRGB
 // slope times the bucket's width v·2⁻¹⁰), and TestCode8Table checks it.
 // code8 equals code8Exact bit for bit without the square root and
@@ -30,15 +30,36 @@ const (
 	code8None  = uint32(math.MaxUint32) // no threshold in the bucket
 )
 
-// code8Tab holds, per bucket, the code at the bucket's first value and the
-// float32 bits of the first value of the next code (code8None if that
-// begins beyond the bucket).
+// code8Tab holds, per bucket, one word: the code at the bucket's first
+// value in the low byte and above it the place in the bucket (the float32
+// bits' low code8Shift bits, 1 to 2^code8Shift − 1) where the next code
+// begins, or 2^code8Shift if that begins beyond the bucket. One word a
+// bucket is one load a channel (one gather for eight, toneRowAVX2).
 type code8Tab struct {
-	lo  [code8N]uint8
-	thr [code8N]uint32
+	ent [code8N]uint32
 	// zero is the float32 bits of the least value whose code is not 0:
 	// a pixel whose channels' bits all are below it is black.
 	zero uint32
+}
+
+// code8Place is the place-in-bucket mask and code8Beyond the place of a
+// bucket without a threshold.
+const (
+	code8Place  = 1<<code8Shift - 1
+	code8Beyond = 1 << code8Shift
+)
+
+// lo returns bucket k's code at its first value.
+func (t *code8Tab) lo(k int) uint8 { return uint8(t.ent[k]) }
+
+// thr returns the float32 bits where bucket k's next code begins, or
+// code8None.
+func (t *code8Tab) thr(k int) uint32 {
+	p := t.ent[k] >> 8
+	if p == code8Beyond {
+		return code8None
+	}
+	return uint32(code8Low+k<<code8Shift) + p
 }
 
 var code8Table = sync.OnceValue(buildCode8)
@@ -52,7 +73,7 @@ func buildCode8() *code8Tab {
 		start := uint32(code8Low + k<<code8Shift)
 		end := min(start+1<<code8Shift-1, code8One) // last value of the bucket
 		lo := code8Exact(float64(math.Float32frombits(start)))
-		t.lo[k], t.thr[k] = lo, code8None
+		t.ent[k] = uint32(lo) | code8Beyond<<8
 		if code8Exact(float64(math.Float32frombits(end))) == lo {
 			continue
 		}
@@ -66,15 +87,15 @@ func buildCode8() *code8Tab {
 				b = m
 			}
 		}
-		t.thr[k] = b
+		t.ent[k] = uint32(lo) | (b-start)<<8
 	}
 	for k := range code8N {
-		if t.lo[k] > 0 {
+		if t.lo(k) > 0 {
 			t.zero = uint32(code8Low + k<<code8Shift)
 			break
 		}
-		if t.thr[k] != code8None {
-			t.zero = t.thr[k]
+		if thr := t.thr(k); thr != code8None {
+			t.zero = thr
 			break
 		}
 	}
@@ -99,8 +120,9 @@ func (t *code8Tab) code8(v float32) uint8 {
 // the bucket's threshold (a threshold is above its bucket's start).
 func (t *code8Tab) code8Unit(u uint32) uint8 {
 	u = max(u, code8Low)
-	k := (u - code8Low) >> code8Shift
-	// One more than lo when u ≥ thr, without a branch (the sign of
-	// thr − u − 1 in 64 bits; thr may be code8None).
-	return t.lo[k] + uint8((uint64(t.thr[k])-uint64(u)-1)>>63)
+	e := t.ent[(u-code8Low)>>code8Shift]
+	// One more than the bucket's first code when u's place in the bucket
+	// reaches the threshold's, without a branch: the sign of place(thr) −
+	// place(u) − 1, both at most 2^code8Shift.
+	return uint8(e) + uint8(((e>>8)-(u&code8Place)-1)>>31)
 }

@@ -22,7 +22,7 @@ func TestCode8Table(t *testing.T) {
 		if int(hi) > int(lo)+1 || hi < lo {
 			t.Fatalf("bucket %d: codes %d to %d", k, lo, hi)
 		}
-		if thr := tab.thr[k]; thr != code8None {
+		if thr := tab.thr(k); thr != code8None {
 			steps++
 			below := code8Exact(float64(math.Float32frombits(thr - 1)))
 			at := code8Exact(float64(math.Float32frombits(thr)))
