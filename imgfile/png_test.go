@@ -504,3 +504,32 @@ func ExampleWritePNG() {
 	// IDAT
 	// IEND 0
 }
+
+// rgbaToRGB copies each pixel's R, G, B bytes, for every length up to 70
+// pixels (the AVX2 steps of eight, the Go words of four and single
+// pixels, and the 8 bytes of room the AVX2 store needs), writing nothing
+// past 3n bytes. CI runs it with and without AVX2 (-tags purego).
+func TestRGBAToRGB(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 7))
+	for n := range 71 {
+		src := make([]byte, 4*n)
+		for i := range src {
+			src[i] = byte(rng.UintN(256))
+		}
+		dst := make([]byte, 3*n+5)
+		for i := range dst {
+			dst[i] = 0xa5
+		}
+		rgbaToRGB(dst[:3*n], src)
+		for i := range n {
+			if !bytes.Equal(dst[3*i:3*i+3], src[4*i:4*i+3]) {
+				t.Fatalf("%d pixels: pixel %d is % x, want % x", n, i, dst[3*i:3*i+3], src[4*i:4*i+3])
+			}
+		}
+		for i := 3 * n; i < len(dst); i++ {
+			if dst[i] != 0xa5 {
+				t.Fatalf("%d pixels: byte %d past the output written", n, i)
+			}
+		}
+	}
+}
