@@ -8,6 +8,10 @@ import "golang.org/x/sys/cpu"
 // toneRowAVX2) may run.
 var haveAVX2 = cpu.X86.HasAVX2
 
+// simdBuilt reports whether this build has the AVX2 kernels (amd64 without
+// the purego tag).
+const simdBuilt = true
+
 // interpRowAVX2 is interpRowGo over the first 8·groups pixels of the row
 // at row (groups ≥ 1), eight pixels a step (interp_amd64.s), with ld = l0,
 // l1, l2, 0, d0, d1, d2, 0: bit for bit the same values.

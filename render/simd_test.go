@@ -9,6 +9,21 @@ import (
 	"testing"
 )
 
+// skipWithoutAVX2 skips a test of the AVX2 kernels in a build without them
+// (-tags purego, other architectures), and on a CPU without AVX2 outside
+// CI; CI runs on machines with AVX2, where they must be tested.
+func skipWithoutAVX2(t *testing.T) {
+	t.Helper()
+	switch {
+	case !simdBuilt:
+		t.Skip("built without the AVX2 kernels (purego or not amd64): the Go loops run alone")
+	case os.Getenv("CI") != "":
+		t.Fatal("CI runs on a machine with AVX2: the AVX2 kernels must be tested there")
+	default:
+		t.Skip("no AVX2 on this CPU: the Go loops run alone")
+	}
+}
+
 // interpRow's AVX2 steps give the values of its Go loop bit for bit, for
 // rows of every length up to 40 pixels (0–5 steps of eight and every
 // remainder), random coefficients of both signs over 12 decades and
@@ -16,10 +31,7 @@ import (
 // with and without AVX2.
 func TestInterpRowAVX2(t *testing.T) {
 	if !haveAVX2 {
-		if os.Getenv("CI") != "" {
-			t.Fatal("CI runs on a machine with AVX2: the eight-pixel steps must be tested there")
-		}
-		t.Skip("no AVX2 on this CPU: interpRow runs its Go loop alone")
+		skipWithoutAVX2(t)
 	}
 	r := rand.New(rand.NewPCG(1, 2))
 	val := func() float32 {
@@ -67,10 +79,7 @@ func BenchmarkInterpRow(b *testing.B) {
 // values near every code threshold, in both tone modes.
 func TestToneRowAVX2(t *testing.T) {
 	if !haveAVX2 {
-		if os.Getenv("CI") != "" {
-			t.Fatal("CI runs on a machine with AVX2: the eight-pixel groups must be tested there")
-		}
-		t.Skip("no AVX2 on this CPU: the tone map runs pixel by pixel")
+		skipWithoutAVX2(t)
 	}
 	r := rand.New(rand.NewPCG(3, 4))
 	tab := code8Table()
