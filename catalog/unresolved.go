@@ -46,6 +46,8 @@ type UnresolvedSky struct {
 	s []float64
 	// latIndex maps floor((b + 90)·unresLatRes) to the node at or below b.
 	latIndex []int32
+	// latInv[ib] = 1/(lat[ib+1] − lat[ib]), so a lookup multiplies.
+	latInv []float64
 }
 
 // Grid and temperature bins of UnresolvedSky.
@@ -129,6 +131,10 @@ func NewUnresolvedSky(depth float64, w0 func(T float64) float64, opt SynthOption
 			ib++
 		}
 		u.latIndex[i] = int32(ib)
+	}
+	u.latInv = make([]float64, len(u.lat)-1)
+	for ib := range u.latInv {
+		u.latInv[ib] = 1 / (u.lat[ib+1] - u.lat[ib])
 	}
 
 	tab := newUnresTables(opt)
@@ -240,15 +246,17 @@ func (u *UnresolvedSky) interp(n r3.Vec, w []float64) {
 	j := int((b + 90) * unresLatRes)
 	j = max(0, min(len(u.latIndex)-1, j))
 	ib := int(u.latIndex[j])
-	fb := (b - u.lat[ib]) / (u.lat[ib+1] - u.lat[ib])
+	fb := (b - u.lat[ib]) * u.latInv[ib]
 	fb = max(0, min(1, fb))
 	K := len(u.temps)
-	p00 := u.s[(ib*unresNL+il)*K:]
-	p01 := u.s[(ib*unresNL+il1)*K:]
-	p10 := u.s[((ib+1)*unresNL+il)*K:]
-	p11 := u.s[((ib+1)*unresNL+il1)*K:]
-	for k := range w[:K] {
-		a := p00[k] + fl*(p01[k]-p00[k])
+	r0, r1 := ib*unresNL*K, (ib+1)*unresNL*K
+	p00 := u.s[r0+il*K : r0+il*K+K]
+	p01 := u.s[r0+il1*K:][:len(p00)]
+	p10 := u.s[r1+il*K:][:len(p00)]
+	p11 := u.s[r1+il1*K:][:len(p00)]
+	w = w[:len(p00)]
+	for k, v00 := range p00 {
+		a := v00 + fl*(p01[k]-v00)
 		c := p10[k] + fl*(p11[k]-p10[k])
 		w[k] = a + fb*(c-a)
 	}
