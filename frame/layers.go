@@ -24,19 +24,21 @@ func (l *Layers) SidecarInfo(side *render.Sidecar) {
 		side.Unresolved = &render.UnresolvedInfo{DepthV: l.UnresolvedDepth, Components: len(l.Unresolved.Temperatures())}
 		if !l.DiffuseOptions.Exact {
 			side.Unresolved.GridTolerance = l.DiffuseOptions.GridTolerance()
+			side.Unresolved.GridCodes = l.DiffuseOptions.Codes
 		}
 	}
 }
 
 // ForEightBit draws the unresolved layer for a frame written only as 8-bit
 // sRGB (eightBitOnly: no FITS, no OpenEXR, no 16-bit PNG) with
-// render.EightBitTolerance, where its error stays within one code of the
-// exact layer's, and continued past a fisheye's circle, which masks the
+// render.EightBitTolerance and render.EightBitCodes, where its error stays
+// within one code of the exact layer's, and continued past a fisheye's circle, which masks the
 // image (DiffuseOptions.BeyondRim); otherwise it leaves the defaults, which
 // the linear files keep.
 func (l *Layers) ForEightBit(eightBitOnly bool) {
 	if eightBitOnly {
 		l.DiffuseOptions.Tolerance = render.EightBitTolerance
+		l.DiffuseOptions.Codes = render.EightBitCodes
 		l.DiffuseOptions.BeyondRim = true
 	}
 }

@@ -171,16 +171,16 @@ func TestRunOverlap(t *testing.T) {
 }
 
 // A flight written only as 8-bit PNG draws its unresolved layer at
-// render.EightBitTolerance (within one code of the exact layer,
-// TestDiffuseEightBitTolerance); one that also writes FITS keeps the
-// default for its linear file. The sidecar records which.
+// render.EightBitTolerance and render.EightBitCodes (within one code of the
+// exact layer, TestDiffuseEightBitTolerance); one that also writes FITS
+// keeps the default for its linear file. The sidecar records which.
 func TestRunEightBitTolerance(t *testing.T) {
 	for _, c := range []struct {
-		output string
-		want   float64
+		output      string
+		want, codes float64
 	}{
-		{"", render.EightBitTolerance},
-		{"fits = true", render.DefaultSmoothTolerance},
+		{"", render.EightBitTolerance, render.EightBitCodes},
+		{"fits = true", render.DefaultSmoothTolerance, 0},
 	} {
 		j := benchLoadOutput(t, "projection = \"fisheye\"\nsize = \"64x64\"", c.output)
 		if have := j.Layers.DiffuseOptions.GridTolerance(); have != c.want {
@@ -198,8 +198,8 @@ func TestRunEightBitTolerance(t *testing.T) {
 		if err := json.Unmarshal(b, &side); err != nil {
 			t.Fatal(err)
 		}
-		if side.Unresolved == nil || side.Unresolved.GridTolerance != c.want {
-			t.Errorf("%q: sidecar unresolved %+v, want grid_tolerance %g", c.output, side.Unresolved, c.want)
+		if side.Unresolved == nil || side.Unresolved.GridTolerance != c.want || side.Unresolved.GridCodes != c.codes {
+			t.Errorf("%q: sidecar unresolved %+v, want grid_tolerance %g, grid_codes %g", c.output, side.Unresolved, c.want, c.codes)
 		}
 	}
 }

@@ -87,6 +87,17 @@ type DiffuseOptions struct {
 	// DefaultSmoothTolerance. EightBitTolerance suits a frame written
 	// only as 8-bit sRGB.
 	Tolerance float64
+	// Codes, when above 0, also passes a check for a channel whose error
+	// is within Codes steps of its 8-bit sRGB code: at most Codes times
+	// the least change of linear value that moves the code by one, over
+	// the span between the exact and the interpolated value (the sRGB
+	// curve's slope is largest at the lower end). For a frame written
+	// only as 8-bit sRGB (EightBitCodes): where the layer is too dim for
+	// its shape to show in the codes, the grid need not follow it. The
+	// stars' light adds to the layer, which only lowers the slope, and
+	// the tone map's shoulder lowers it too, so the bound holds for the
+	// written pixel. 0 checks by Tolerance alone.
+	Codes float64
 	// BeyondRim continues a fisheye's layer past its image circle, for a
 	// frame whose image the circle masks (the tone map leaves the pixels
 	// outside it black and scales the rim's by their coverage): a pixel
@@ -200,6 +211,7 @@ type diffuseDraw struct {
 	dst     *Buffer
 	workers int
 	tol     float64
+	codes   float64 // DiffuseOptions.Codes
 	exact   bool
 }
 
@@ -214,6 +226,7 @@ func (d *diffuseDraw) draw(newEval func() pixelEval) error {
 func (d *diffuseDraw) drawRecord(newEval func() pixelEval, rec *gridRecord) error {
 	if !d.exact {
 		g := newSmoothGrid(&d.p, d.tol, d.workers)
+		g.codes = d.codes
 		return g.add(d.dst.Pix, newEval, rec)
 	}
 	w, h := d.dst.W, d.dst.H
@@ -281,6 +294,9 @@ func prepareDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*diffuseDr
 	if opt.Workers < 0 {
 		return nil, fmt.Errorf("%w: negative Workers %d", ErrDiffuse, opt.Workers)
 	}
+	if !(opt.Codes >= 0) || math.IsInf(opt.Codes, 0) {
+		return nil, fmt.Errorf("%w: Codes %g, want finite ≥ 0", ErrDiffuse, opt.Codes)
+	}
 	p := f.Options.Projection
 	if err := p.Prepare(); err != nil {
 		return nil, err
@@ -346,7 +362,7 @@ func prepareDiffuse(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*diffuseDr
 			return [3]float64{r, g, b}, s == 1, nil
 		}
 	}
-	return &diffuseDraw{newEval: newEval, p: p, dst: dst, workers: workers, tol: tol, exact: opt.Exact}, nil
+	return &diffuseDraw{newEval: newEval, p: p, dst: dst, workers: workers, tol: tol, codes: opt.Codes, exact: opt.Exact}, nil
 }
 
 // DiffuseSeen returns what a ship with the given boost sees of sky in the

@@ -369,12 +369,16 @@ func TestDiffuseMeanGridBound(t *testing.T) {
 }
 
 // TestDiffuseEightBitTolerance: 8-bit frames of the built-in sky's
-// unresolved layer drawn on the grid at EightBitTolerance are within one
-// sRGB code of those of the exact layer in every pixel and channel, with
-// the layer's brightest pixel exposed to full scale (where a relative
-// error moves the code most) and 4× over (clipped and under the shoulder),
-// in both tone modes, for fisheye frames at rest and at 0.5 c (looking at
-// the galactic centre) and a pinhole frame across the plane at 0.9 c.
+// unresolved layer drawn on the grid as frames written only as 8-bit sRGB
+// draw it (EightBitTolerance and EightBitCodes) are within one sRGB code of
+// those of the exact layer in every pixel and channel, drawn at four
+// exposures: the layer's brightest pixel at full scale (where a relative
+// error moves the code most), 4× over (clipped and under the shoulder), and
+// 1/16 and 1/256 of it (as dim as a flight's layer mostly is, where the
+// codes let the grid skip detail no code shows), in both tone modes, for
+// fisheye frames at rest and at 0.5 c (looking at the galactic centre) and
+// a pinhole frame across the plane at 0.9 c. With Codes 4 instead they
+// miss by up to 4 codes (checked by hand).
 func TestDiffuseEightBitTolerance(t *testing.T) {
 	model := func(t testing.TB) UnresolvedSky { return builtInUnresolved(t) }
 	gc := camera.FromGalacticLB(0, 0)
@@ -384,29 +388,31 @@ func TestDiffuseEightBitTolerance(t *testing.T) {
 		{"pinhole 0.9 c", camera.Pinhole, 960, 540, 60, camera.FromGalacticLB(60, 0), 0.9, model, 0},
 	} {
 		u := c.sky(t)
-		fe, _ := c.frames(t)
-		fg, _ := c.frames(t)
-		if err := AddDiffuse(fe, u, DiffuseOptions{Exact: true}); err != nil {
-			t.Fatal(err)
-		}
-		if err := AddDiffuse(fg, u, DiffuseOptions{Tolerance: EightBitTolerance}); err != nil {
+		f0, _ := c.frames(t)
+		if err := AddDiffuse(f0, u, DiffuseOptions{Exact: true}); err != nil {
 			t.Fatal(err)
 		}
 		top := float32(0)
-		for _, v := range fe.Pix {
+		for _, v := range f0.Pix {
 			top = max(top, v)
 		}
 		if !(top > 0) {
 			t.Fatalf("%s: the exact layer is black", c.name)
 		}
-		for _, gain := range []float32{1, 4} {
-			for _, m := range []ToneMode{ToneLinear, ToneShoulder} {
-				se, _ := c.frames(t)
-				sg, _ := c.frames(t)
-				for i := range fe.Pix {
-					se.Pix[i] = fe.Pix[i] * gain / top
-					sg.Pix[i] = fg.Pix[i] * gain / top
+		for _, gain := range []float64{1, 4, 1.0 / 16, 1.0 / 256} {
+			draw := func(o DiffuseOptions) (*Frame, int64) {
+				f, _ := c.frames(t)
+				f.Scale *= gain / float64(top)
+				cnt := &countingSky{UnresolvedSky: u}
+				if err := AddDiffuse(f, cnt, o); err != nil {
+					t.Fatal(err)
 				}
+				return f, cnt.calls.Load()
+			}
+			se, _ := draw(DiffuseOptions{Exact: true})
+			sg, n := draw(DiffuseOptions{Tolerance: EightBitTolerance, Codes: EightBitCodes})
+			_, nTol := draw(DiffuseOptions{Tolerance: EightBitTolerance})
+			for _, m := range []ToneMode{ToneLinear, ToneShoulder} {
 				ie, ig := se.ToNRGBA(m), sg.ToNRGBA(m)
 				worst, off := 0, 0
 				for i := range ie.Pix {
@@ -416,7 +422,8 @@ func TestDiffuseEightBitTolerance(t *testing.T) {
 						off++
 					}
 				}
-				t.Logf("%s, gain %g, %v: largest difference %d codes, %.3f%% of channels differ", c.name, gain, m, worst, 100*float64(off)/float64(len(ie.Pix)))
+				t.Logf("%s, gain %g, %v: largest difference %d codes, %.3f%% of channels differ; %d directions evaluated (%d without Codes)",
+					c.name, gain, m, worst, 100*float64(off)/float64(len(ie.Pix)), n, nTol)
 				if worst > 1 {
 					t.Errorf("%s, gain %g, %v: a channel differs by %d codes from the exact layer's, want ≤ 1", c.name, gain, m, worst)
 				}
@@ -483,5 +490,26 @@ func TestDiffuseBeyondRim(t *testing.T) {
 	}
 	if float64(nBeyond) > 0.9*float64(nPlain) {
 		t.Errorf("%d directions evaluated with BeyondRim, %d without: want at least 10%% fewer", nBeyond, nPlain)
+	}
+}
+
+// code8Step is a lower bound on the change of linear value that moves an
+// 8-bit sRGB code by one, and not a loose one: for values from 10⁻⁶ to 4,
+// 255·(E(v + step) − E(v)) lies in [0.4, 1] codes, with E the sRGB
+// transfer function of IEC 61966-2-1 (12.92·v up to 0.0031308, else
+// 1.055·v^(1/2.4) − 0.055) written out here.
+func TestCode8Step(t *testing.T) {
+	srgb := func(v float64) float64 {
+		if v <= 0.0031308 {
+			return 12.92 * v
+		}
+		return 1.055*math.Pow(v, 1/2.4) - 0.055
+	}
+	for k := 0; k <= 4000; k++ {
+		v := math.Pow(10, -6+6.6*float64(k)/4000)
+		s := code8Step(v)
+		if d := 255 * (srgb(v+s) - srgb(v)); d > 1+1e-9 || d < 0.4 {
+			t.Fatalf("code8Step(%g) = %g moves the code by %.4f, want 0.4–1", v, s, d)
+		}
 	}
 }

@@ -85,6 +85,7 @@ type diffuseKey struct {
 	fp, mlnD  float64
 	ms        int
 	tol       float64
+	codes     float64
 	beyond    bool
 }
 
@@ -127,7 +128,7 @@ func memoKey(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (diffuseKey, bool)
 	p := f.Options.Projection
 	return diffuseKey{sky: sky, boost: f.Options.Observer.Boost, kind: p.Kind, w: p.Width, h: p.Height,
 		fov: p.FOV, tilt: p.Tilt, orient: p.Orient, scale: f.extended(), color: f.Options.Color,
-		fp: opt.Footprint, mlnD: opt.MaxLnD, ms: opt.MaxSamples, tol: opt.Tolerance, beyond: opt.BeyondRim}, true
+		fp: opt.Footprint, mlnD: opt.MaxLnD, ms: opt.MaxSamples, tol: opt.Tolerance, codes: opt.Codes, beyond: opt.BeyondRim}, true
 }
 
 // draw adds the layer d to d.dst: replayed when the memo holds key's

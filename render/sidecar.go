@@ -69,6 +69,10 @@ type UnresolvedInfo struct {
 	// (DiffuseOptions.GridTolerance): 0.001 by default, 0.004 for frames
 	// written only as 8-bit sRGB; absent when every pixel was evaluated.
 	GridTolerance float64 `json:"grid_tolerance,omitempty"`
+	// GridCodes, when present, is the error in 8-bit sRGB code steps the
+	// grid also accepted per channel where that exceeds GridTolerance
+	// (DiffuseOptions.Codes): 0.45 for frames written only as 8-bit sRGB.
+	GridCodes float64 `json:"grid_codes,omitempty"`
 }
 
 // Direction is a unit vector given as ICRS right ascension and declination.

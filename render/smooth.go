@@ -76,6 +76,11 @@ const (
 	// TestDiffuseEightBitTolerance holds 8-bit frames of the built-in
 	// sky's layer drawn with it to within one code of the exact layer's.
 	EightBitTolerance = 4e-3
+	// EightBitCodes is DiffuseOptions.Codes for a layer whose frame is
+	// written only as 8-bit sRGB: an error of 0.45 of a code step, with
+	// rounding, moves a code by at most one. TestDiffuseEightBitTolerance
+	// holds such layers within one code of the exact layer's.
+	EightBitCodes = 0.45
 )
 
 // pixelEval evaluates a layer exactly at pixel (i, j): the linear RGB to
@@ -90,6 +95,7 @@ type smoothGrid struct {
 	segs    [][2]int // column segments [a, b): cube faces, else the whole width
 	circle  imageCircle
 	tol     float64
+	codes   float64 // DiffuseOptions.Codes
 	workers int
 }
 
@@ -143,7 +149,7 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecor
 		if lp == nil {
 			lp = new([]smoothLeaf)
 		}
-		c := smoothCellState{dst: dst, w: g.w, ev: ev, tol: g.tol, circle: g.circle, leaves: (*lp)[:0]}
+		c := smoothCellState{dst: dst, w: g.w, ev: ev, tol: g.tol, codes: g.codes, circle: g.circle, leaves: (*lp)[:0]}
 		if rec != nil {
 			c.rec = &rec.bands[k]
 			c.rec.y0, c.rec.ye = y0, fillEnd(y1, k == bands-1)
@@ -176,6 +182,7 @@ type smoothCellState struct {
 	w      int
 	ev     pixelEval
 	tol    float64
+	codes  float64     // DiffuseOptions.Codes
 	circle imageCircle // pixels wholly outside it get nothing
 	// leaves are the band's interpolated cells, filled row by row once
 	// the band is decided (fill): along whole rows the buffer is read and
@@ -255,7 +262,7 @@ func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nod
 		if good {
 			tx := float64(p[0]-x0) / float64(x1-x0)
 			ty := float64(p[1]-y0) / float64(y1-y0)
-			good = e[q].ok && within(bilerp(&cv, tx, ty), e[q].v, c.tol)
+			good = e[q].ok && within(bilerp(&cv, tx, ty), e[q].v, c.tol, c.codes)
 		}
 	}
 	if good {
@@ -294,18 +301,46 @@ type knownVal struct {
 }
 
 // within reports whether the interpolated value a is within tol of the
-// exact value e relative to e's largest channel. There is no absolute
+// exact value e relative to e's largest channel, or, with codes above 0,
+// each channel that is not within codes steps of its 8-bit sRGB code
+// (DiffuseOptions.Codes; code8Step). Without codes there is no absolute
 // floor: a frame may be drawn at any scale (a weighted instant of a
 // motion-blurred layer, a dim exposure), so no level is safely invisible.
-func within(a, e [3]float64, tol float64) bool {
+func within(a, e [3]float64, tol, codes float64) bool {
 	lim := tol * math.Max(math.Abs(e[0]), math.Max(math.Abs(e[1]), math.Abs(e[2])))
 	for k := range a {
-		if !(math.Abs(a[k]-e[k]) <= lim) {
+		d := math.Abs(a[k] - e[k])
+		if !(d <= lim) && !(codes > 0 && d <= codes*code8Step(math.Min(a[k], e[k]))) {
 			return false
 		}
 	}
 	return true
 }
+
+// code8Step returns a lower bound on the change of a linear value at or
+// above v (buffer units, 1 = full scale) that moves its 8-bit sRGB code
+// (255·E(v), E the sRGB transfer function, IEC 61966-2-1) by one: 1/(255·
+// E′), with E′ = 12.92 on the linear segment (v ≤ 0.0031308) and E′(v) =
+// (1.055/2.4)·v^(1/2.4 − 1) above, decreasing, so the step at v bounds it
+// at every larger value. Above the segment v is taken down to a power of
+// two, 2^⌊log₂ v⌋, whose step is below v's (code8Steps): no power function
+// per check.
+func code8Step(v float64) float64 {
+	if !(v > 0.0031308) {
+		return 1 / (255 * 12.92)
+	}
+	return code8Steps()[math.Float64bits(v)>>52&0x7ff]
+}
+
+// code8Steps holds, per float64 exponent field x (2^(x−1023)), the sRGB
+// step 2.4/(255·1.055)·2^((x−1023)(1 − 1/2.4)) at that power of two.
+var code8Steps = sync.OnceValue(func() *[2048]float64 {
+	var t [2048]float64
+	for x := range t {
+		t[x] = 2.4 / (255 * 1.055) * math.Exp2(float64(x-1023)*(1-1/2.4))
+	}
+	return &t
+})
 
 func bilerp(v *[4][3]float64, tx, ty float64) [3]float64 {
 	var o [3]float64
