@@ -22,6 +22,24 @@ DATA tonePerm<>+24(SB)/4, $6
 DATA tonePerm<>+28(SB)/4, $7
 GLOBL tonePerm<>(SB), RODATA|NOPTR, $32
 
+// CODES replaces the eight float32 bits in V with their codes: lo +
+// (place(u) ≥ place(thr)) from the table word of bucket k = (max(u,
+// code8Low) − code8Low) >> 13, as code8Tab.code8Unit does. Y4–Y7 are
+// scratch; Y8 holds code8Place, Y9 a byte's mask, Y12 −1 (the gather's
+// mask, and one to add), Y14 code8Low, R9 the table.
+#define CODES(V) \
+	VPMAXUD    Y14, V, V; \
+	VPSUBD     Y14, V, Y4; \
+	VPSRLD     $13, Y4, Y4; \
+	VMOVDQA    Y12, Y5; \
+	VPGATHERDD Y5, (R9)(Y4*4), Y6; \
+	VPAND      Y8, V, V; \
+	VPSRLD     $8, Y6, Y7; \
+	VPCMPGTD   V, Y7, Y7; \
+	VPAND      Y9, Y6, Y6; \
+	VPSUBD     Y12, Y6, Y6; \
+	VPADDD     Y7, Y6, V
+
 // func toneRowAVX2(src *float32, dst *byte, groups int, ent *uint32, fast uint32) int
 //
 // Codes groups of eight pixels (24 float32 in, 32 bytes of NRGBA out)
@@ -69,43 +87,9 @@ loop:
 	CMPL      AX, $0xffffffff
 	JNE       done
 
-	// code = lo + (place(u) ≥ place(thr)) from the word of bucket
-	// k = (max(u, code8Low) − code8Low) >> 13
-	VPMAXUD    Y14, Y0, Y0
-	VPSUBD     Y14, Y0, Y4
-	VPSRLD     $13, Y4, Y4
-	VMOVDQA    Y12, Y5
-	VPGATHERDD Y5, (R9)(Y4*4), Y6
-	VPAND      Y8, Y0, Y0          // u's place in its bucket
-	VPSRLD     $8, Y6, Y7         // the threshold's
-	VPCMPGTD   Y0, Y7, Y7        // −1 where place(thr) > place(u): no step
-	VPAND      Y9, Y6, Y6         // the bucket's first code
-	VPSUBD     Y12, Y6, Y6        // plus one
-	VPADDD     Y7, Y6, Y0
-
-	VPMAXUD    Y14, Y1, Y1
-	VPSUBD     Y14, Y1, Y4
-	VPSRLD     $13, Y4, Y4
-	VMOVDQA    Y12, Y5
-	VPGATHERDD Y5, (R9)(Y4*4), Y6
-	VPAND      Y8, Y1, Y1          // u's place in its bucket
-	VPSRLD     $8, Y6, Y7         // the threshold's
-	VPCMPGTD   Y1, Y7, Y7        // −1 where place(thr) > place(u): no step
-	VPAND      Y9, Y6, Y6         // the bucket's first code
-	VPSUBD     Y12, Y6, Y6        // plus one
-	VPADDD     Y7, Y6, Y1
-
-	VPMAXUD    Y14, Y2, Y2
-	VPSUBD     Y14, Y2, Y4
-	VPSRLD     $13, Y4, Y4
-	VMOVDQA    Y12, Y5
-	VPGATHERDD Y5, (R9)(Y4*4), Y6
-	VPAND      Y8, Y2, Y2          // u's place in its bucket
-	VPSRLD     $8, Y6, Y7         // the threshold's
-	VPCMPGTD   Y2, Y7, Y7        // −1 where place(thr) > place(u): no step
-	VPAND      Y9, Y6, Y6         // the bucket's first code
-	VPSUBD     Y12, Y6, Y6        // plus one
-	VPADDD     Y7, Y6, Y2
+	CODES(Y0)
+	CODES(Y1)
+	CODES(Y2)
 
 	// 24 codes in channel order, then four RGBA words per lane.
 	VPACKUSDW Y1, Y0, Y3
