@@ -55,6 +55,17 @@ DATA interpPat<>+184(SB)/4, $7
 DATA interpPat<>+188(SB)/4, $7
 GLOBL interpPat<>(SB), RODATA|NOPTR, $192
 
+// STEP adds to the eight values at OFF(DI) l + tx·d, tx = n·fx: N holds
+// the lanes' pixels n (int32), L and D the lanes' l and d, Y15 fx, and T
+// is scratch; every product and sum rounded to float32.
+#define STEP(N, L, D, OFF, T) \
+	VCVTDQ2PS N, T; \
+	VMULPS    Y15, T, T; \
+	VMULPS    D, T, T; \
+	VADDPS    L, T, T; \
+	VADDPS    OFF(DI), T, T; \
+	VMOVUPS   T, OFF(DI)
+
 // func interpRowAVX2(row *float32, groups int, ld *[8]float32, fx float32)
 //
 // For n in [0, 8·groups) and c in 0..2:
@@ -84,24 +95,9 @@ TEXT ·interpRowAVX2(SB), NOSPLIT, $0-28
 	VPBROADCASTD X12, Y12
 
 loop:
-	VCVTDQ2PS Y9, Y13
-	VMULPS    Y15, Y13, Y13 // tx = n·fx
-	VMULPS    Y6, Y13, Y13  // tx·d
-	VADDPS    Y3, Y13, Y13  // l + tx·d
-	VADDPS    0(DI), Y13, Y13
-	VMOVUPS   Y13, 0(DI)
-	VCVTDQ2PS Y10, Y14
-	VMULPS    Y15, Y14, Y14
-	VMULPS    Y7, Y14, Y14
-	VADDPS    Y4, Y14, Y14
-	VADDPS    32(DI), Y14, Y14
-	VMOVUPS   Y14, 32(DI)
-	VCVTDQ2PS Y11, Y13
-	VMULPS    Y15, Y13, Y13
-	VMULPS    Y8, Y13, Y13
-	VADDPS    Y5, Y13, Y13
-	VADDPS    64(DI), Y13, Y13
-	VMOVUPS   Y13, 64(DI)
+	STEP(Y9, Y3, Y6, 0, Y13)
+	STEP(Y10, Y4, Y7, 32, Y14)
+	STEP(Y11, Y5, Y8, 64, Y13)
 	VPADDD    Y12, Y9, Y9
 	VPADDD    Y12, Y10, Y10
 	VPADDD    Y12, Y11, Y11
