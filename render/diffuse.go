@@ -85,7 +85,7 @@ type DiffuseOptions struct {
 	// Tolerance is the largest error the grid may leave where it checks
 	// the interpolation, relative to the pixel's largest channel; 0 means
 	// DefaultSmoothTolerance. EightBitTolerance suits a frame written
-	// only as 8-bit sRGB.
+	// only as 8-bit sRGB (with Codes).
 	Tolerance float64
 	// Codes, when above 0, also passes a check for a channel whose error
 	// is within Codes steps of its 8-bit sRGB code: at most Codes times

@@ -178,7 +178,10 @@
 // evaluated exactly at the nodes of an adaptive grid of cells checked to
 // DiffuseOptions.Tolerance, 10⁻³ of the pixel's brightest channel, or
 // EightBitTolerance for frames written only as 8-bit sRGB, which also
-// continue a fisheye's layer past the circle their mask cuts, BeyondRim;
+// accept per channel an error within EightBitCodes of its 8-bit code's
+// step (DiffuseOptions.Codes: where the layer is too dim for its shape to
+// show in the codes the grid need not follow it) and continue a fisheye's
+// layer past the circle their mask cuts, BeyondRim;
 // the components' photometry comes from a table over ln D built for each
 // drawing). A uniform layer and stars carrying the same flux give the same buffer
 // total. Options.ExtendedScale scales all extended light (discs and these
