@@ -32,9 +32,8 @@
 // written only as 8-bit PNG (no FITS, OpenEXR or 16-bit files) draw their
 // unresolved layer to render.EightBitTolerance and render.EightBitCodes and
 // past a fisheye's circle (frame.Layers.ForEightBit), and leave their
-// buffer black through the
-// tone map for the next frame. The command owns flags,
-// printing, progress, the clock (times such as a lock's start are passed
+// buffer black through the tone map for the next frame. The command owns
+// flags, printing, progress, the clock (times such as a lock's start are passed
 // in) and signals; this package returns values and errors (*InputError for
 // problems with the plan, settings or output directory, exit status 2) and
 // never prints.
