@@ -32,9 +32,9 @@ func (l *Layers) SidecarInfo(side *render.Sidecar) {
 // ForEightBit draws the unresolved layer for a frame written only as 8-bit
 // sRGB (eightBitOnly: no FITS, no OpenEXR, no 16-bit PNG) with
 // render.EightBitTolerance and render.EightBitCodes, where its error stays
-// within one code of the exact layer's, and continued past a fisheye's circle, which masks the
-// image (DiffuseOptions.BeyondRim); otherwise it leaves the defaults, which
-// the linear files keep.
+// within one code of the exact layer's, and continued past a fisheye's
+// circle, which masks the image (DiffuseOptions.BeyondRim); otherwise it
+// leaves the defaults, which the linear files keep.
 func (l *Layers) ForEightBit(eightBitOnly bool) {
 	if eightBitOnly {
 		l.DiffuseOptions.Tolerance = render.EightBitTolerance
