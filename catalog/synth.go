@@ -711,14 +711,34 @@ func (s *Stars) grow(n int) {
 
 // appendStars appends the core columns of b (a block of sampled stars: no
 // optional columns, no names).
-func (s *Stars) appendStars(b *Stars) {
-	s.ID = append(s.ID, b.ID...)
-	s.X = append(s.X, b.X...)
-	s.Y = append(s.Y, b.Y...)
-	s.Z = append(s.Z, b.Z...)
-	s.Dist = append(s.Dist, b.Dist...)
-	s.Vmag = append(s.Vmag, b.Vmag...)
-	s.Teff = append(s.Teff, b.Teff...)
-	s.BV = append(s.BV, b.BV...)
-	s.Flags = append(s.Flags, b.Flags...)
+func (s *Stars) appendStars(b *Stars) { s.appendRows(b, 0, b.Len()) }
+
+// appendRows appends the core columns of b's rows lo ≤ i < hi.
+func (s *Stars) appendRows(b *Stars, lo, hi int) {
+	s.ID = append(s.ID, b.ID[lo:hi]...)
+	s.X = append(s.X, b.X[lo:hi]...)
+	s.Y = append(s.Y, b.Y[lo:hi]...)
+	s.Z = append(s.Z, b.Z[lo:hi]...)
+	s.Dist = append(s.Dist, b.Dist[lo:hi]...)
+	s.Vmag = append(s.Vmag, b.Vmag[lo:hi]...)
+	s.Teff = append(s.Teff, b.Teff[lo:hi]...)
+	s.BV = append(s.BV, b.BV[lo:hi]...)
+	s.Flags = append(s.Flags, b.Flags[lo:hi]...)
+}
+
+// padOptional extends the optional columns present to Len rows, as Concat
+// fills them for rows without: proper motion 0, radial velocity NaN.
+func (s *Stars) padOptional() {
+	n := s.Len()
+	if s.PMRA != nil {
+		for len(s.PMRA) < n {
+			s.PMRA, s.PMDec = append(s.PMRA, 0), append(s.PMDec, 0)
+		}
+	}
+	if s.RV != nil {
+		nan := float32(math.NaN())
+		for len(s.RV) < n {
+			s.RV = append(s.RV, nan)
+		}
+	}
 }

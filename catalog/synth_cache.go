@@ -1,6 +1,7 @@
 package catalog
 
 import (
+	"maps"
 	"math"
 	"runtime"
 	"slices"
@@ -46,19 +47,79 @@ func (c *SkyCache) Held() int {
 // cache's seed, nearby stars and dust, drawing only the cells not yet drawn
 // as deep as asked.
 func (c *SkyCache) Sky(magLimit float64, cellLimit func(SynthCell) float64) *Stars {
+	return c.SkyAfter(nil, 0, magLimit, cellLimit)
+}
+
+// SkyAfter returns base's rows (none when base is nil) followed by those
+// of Sky(magLimit, cellLimit) from row skip on: what Concat(base,
+// Sky(magLimit, cellLimit).Slice(skip, …)) holds, copied once. A frame of
+// the built-in sky drawn deeper than it, rebuilt whenever the frame's
+// cells change (most frames of a turning camera), costs one copy instead of
+// two, the sky's rows copying nothing before skip.
+func (c *SkyCache) SkyAfter(base *Stars, skip int, magLimit float64, cellLimit func(SynthCell) float64) *Stars {
 	opt := c.opt
 	opt.MagLimit, opt.CellLimit = magLimit, cellLimit
 	c.mu.Lock()
 	defer c.mu.Unlock()
+	limits, nSlices := c.draw(opt)
+	var nearby []Star
+	if !opt.NoNearby {
+		for k := range nearbyStars {
+			nearby = append(nearby, nearbyStars[k].star(k))
+		}
+	}
+	n := len(nearby)
+	for cell := range c.blk {
+		for sl := 0; sl < min(nSlices, len(c.blk[cell])); sl++ {
+			n += c.blk[cell][sl].count(limits[cell])
+		}
+	}
+	nb := 0
+	if base != nil {
+		nb = base.Len()
+	}
+	s := &Stars{Epoch: 2000, Source: SyntheticSource, Format: SyntheticFormat}
+	if base != nil {
+		s.Epoch, s.Source, s.Format = base.Epoch, base.Source, base.Format
+	}
+	s.grow(nb + max(0, n-skip))
+	if base != nil {
+		s.appendStars(base)
+		s.PMRA, s.PMDec, s.RV = slices.Clone(base.PMRA), slices.Clone(base.PMDec), slices.Clone(base.RV)
+		if base.Names != nil {
+			s.Names = maps.Clone(base.Names)
+		}
+	}
+	for k := range nearby {
+		if skip > 0 {
+			skip--
+			continue
+		}
+		s.Append(nearby[k])
+	}
+	for sl := 0; sl < nSlices; sl++ {
+		for cell := range c.blk {
+			if sl < len(c.blk[cell]) {
+				skip = c.blk[cell][sl].appendTo(s, limits[cell], skip)
+			}
+		}
+	}
+	s.padOptional()
+	return s
+}
+
+// draw draws, on up to 8 goroutines, the cells that opt asks deeper than
+// they were drawn, and returns each cell's limit and the number of
+// magnitude slices the deepest reaches. c.mu is held.
+func (c *SkyCache) draw(opt SynthOptions) (limits []float64, nSlices int) {
 	g := newSynthGen(opt)
 	g.keepV = true
-	limits := make([]float64, synthCells)
-	nSlices := 0
+	limits = make([]float64, synthCells)
 	var todo []int
 	for cell := range limits {
 		lim := g.vlim
-		if cellLimit != nil {
-			if l := cellLimit(synthCellCap(cell)); l < lim {
+		if opt.CellLimit != nil {
+			if l := opt.CellLimit(synthCellCap(cell)); l < lim {
 				lim = l
 			}
 		}
@@ -68,56 +129,37 @@ func (c *SkyCache) Sky(magLimit float64, cellLimit func(SynthCell) float64) *Sta
 			todo = append(todo, cell)
 		}
 	}
-	if len(todo) > 0 {
-		cells := make(chan int)
-		var wg sync.WaitGroup
-		for range min(runtime.GOMAXPROCS(0), 8, len(todo)) {
-			wg.Add(1)
-			go func() {
-				defer wg.Done()
-				w := *g
-				w.cumPhi = make([]float64, len(g.comps))
-				for cell := range cells {
-					c.blk[cell] = w.cell(cell, limits[cell])
-				}
-			}()
-		}
-		for _, cell := range todo {
-			cells <- cell
-		}
-		close(cells)
-		wg.Wait()
-		c.n = 0
-		for _, cell := range todo {
-			c.lim[cell] = limits[cell]
-		}
-		for cell := range c.blk {
-			for _, b := range c.blk[cell] {
-				c.n += b.s.Len()
+	if len(todo) == 0 {
+		return limits, nSlices
+	}
+	cells := make(chan int)
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), 8, len(todo)) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			w := *g
+			w.cumPhi = make([]float64, len(g.comps))
+			for cell := range cells {
+				c.blk[cell] = w.cell(cell, limits[cell])
 			}
-		}
+		}()
 	}
-	s := &Stars{Epoch: 2000, Source: SyntheticSource, Format: SyntheticFormat}
-	if !opt.NoNearby {
-		for k := range nearbyStars {
-			s.Append(nearbyStars[k].star(k))
-		}
+	for _, cell := range todo {
+		cells <- cell
 	}
-	n := s.Len()
+	close(cells)
+	wg.Wait()
+	c.n = 0
+	for _, cell := range todo {
+		c.lim[cell] = limits[cell]
+	}
 	for cell := range c.blk {
-		for sl := 0; sl < min(nSlices, len(c.blk[cell])); sl++ {
-			n += c.blk[cell][sl].count(limits[cell])
+		for _, b := range c.blk[cell] {
+			c.n += b.s.Len()
 		}
 	}
-	s.grow(n)
-	for sl := 0; sl < nSlices; sl++ {
-		for cell := range c.blk {
-			if sl < len(c.blk[cell]) {
-				c.blk[cell][sl].appendTo(s, limits[cell])
-			}
-		}
-	}
-	return s
+	return limits, nSlices
 }
 
 // count returns the number of the block's stars with V ≤ lim (the exact
@@ -132,14 +174,23 @@ func (b *synthBlock) count(lim float64) int {
 	return n
 }
 
-// appendTo appends the block's stars with V ≤ lim to s.
-func (b *synthBlock) appendTo(s *Stars, lim float64) {
-	if b.count(lim) == len(b.v) {
-		s.appendStars(&b.s)
-		return
+// appendTo appends the block's stars with V ≤ lim to s, leaving out the
+// first skip of them, and returns how many of skip remain to leave out.
+func (b *synthBlock) appendTo(s *Stars, lim float64, skip int) int {
+	cnt := b.count(lim)
+	if skip >= cnt {
+		return skip - cnt
+	}
+	if cnt == len(b.v) {
+		s.appendRows(&b.s, skip, cnt)
+		return 0
 	}
 	for i, v := range b.v {
 		if v > lim {
+			continue
+		}
+		if skip > 0 {
+			skip--
 			continue
 		}
 		s.ID = append(s.ID, b.s.ID[i])
@@ -152,6 +203,7 @@ func (b *synthBlock) appendTo(s *Stars, lim float64) {
 		s.BV = append(s.BV, b.s.BV[i])
 		s.Flags = append(s.Flags, b.s.Flags[i])
 	}
+	return 0
 }
 
 // SynthCells returns the cells of the synthetic sky's sampling grid, as

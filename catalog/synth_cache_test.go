@@ -1,6 +1,8 @@
 package catalog
 
 import (
+	"fmt"
+	"maps"
 	"math"
 	"slices"
 	"testing"
@@ -68,6 +70,52 @@ func TestSkyCacheIsSynthetic(t *testing.T) {
 	// references into it stay valid).
 	b, d := BuiltIn(), c.Sky(deep, half(deep))
 	sameStars(t, "prefix", d.Slice(0, b.Len()), b)
+}
+
+// TestSkyAfter: SkyAfter(base, skip, …) holds exactly Concat(base,
+// Sky(…).Slice(skip, …)) — every column, optional ones and names
+// included — for skips before, at and inside the magnitude blocks, past
+// the end, and without a base.
+func TestSkyAfter(t *testing.T) {
+	halfTo := func(v float64) func(SynthCell) float64 {
+		return func(c SynthCell) float64 {
+			if c.Dir[2] > 0.3 {
+				return v
+			}
+			return DefaultSynthMagLimit
+		}
+	}
+	half := halfTo(8.9)
+	c := NewSkyCache(SynthOptions{})
+	// Drawn deeper first: the blocks then hold stars beyond 8.9 to pass
+	// over.
+	c.Sky(9.3, halfTo(9.3))
+	full := c.Sky(8.9, half)
+	nb := BuiltIn().Len()
+	if full.Len() < nb+1000 {
+		t.Fatalf("only %d rows beyond the built-in sky's %d", full.Len()-nb, nb)
+	}
+	base := &Stars{Source: "base", Epoch: 2016}
+	base.Append(Star{ID: 7, Name: "Base One", RA: 10, Dec: 20, Dist: 5, Vmag: 3, Teff: 5000, BV: 0.5, PMRA: 3, PMDec: -1, RV: 12})
+	base.Append(Star{ID: 8, RA: 30, Dec: -5, Dist: 7, Vmag: 4, Teff: 6000, BV: 0.4, RV: math.NaN()})
+	for _, skip := range []int{0, 1, nb - 3, nb, nb + 1, nb + 517, full.Len() - 301, full.Len() - 1, full.Len(), full.Len() + 5} {
+		want := Concat(base, full.Slice(min(skip, full.Len()), full.Len()))
+		got := c.SkyAfter(base, skip, 8.9, half)
+		what := fmt.Sprintf("skip %d", skip)
+		sameStars(t, what, got, want)
+		if got.Source != "base" || got.Epoch != 2016 || !maps.Equal(got.Names, want.Names) ||
+			!slices.Equal(got.PMRA, want.PMRA) || !slices.Equal(got.PMDec, want.PMDec) ||
+			!slices.EqualFunc(got.RV, want.RV, func(x, y float32) bool { return x == y || x != x && y != y }) {
+			t.Errorf("%s: header, names or optional columns differ from Concat's", what)
+		}
+		if err := got.Validate(); err != nil {
+			t.Errorf("%s: %v", what, err)
+		}
+	}
+	sameStars(t, "no base", c.SkyAfter(nil, nb, 8.9, half), full.Slice(nb, full.Len()))
+	if base.Len() != 2 || len(base.Names) != 1 {
+		t.Error("SkyAfter modified its base")
+	}
 }
 
 // Concat keeps both catalogues' rows, names and optional columns.
