@@ -185,6 +185,20 @@ func Prepare(stars *catalog.Stars) (*Prepared, error) {
 	return p, nil
 }
 
+// PrepareOnce is Prepare for a catalogue drawn at one instant: it
+// validates stars but stores none of the rest values (40 bytes a star,
+// fresh memory for every new catalogue), which the transform then computes
+// block by block with the same functions, so the frames are the same bit
+// for bit (TestDirectMatchesPreparedAtSun). A frame of a turning camera,
+// whose catalogue changes with the cells in view, draws its catalogue once.
+func PrepareOnce(stars *catalog.Stars) (*Prepared, error) {
+	p := &Prepared{}
+	if err := prepareInto(p, stars, runtime.GOMAXPROCS(0), true); err != nil {
+		return nil, err
+	}
+	return p, nil
+}
+
 // chunkSize is the number of stars transformed per work item. It is fixed
 // so that the work split does not depend on the worker count.
 const chunkSize = 8192
@@ -247,8 +261,8 @@ func renderInto(dst *Frame, stars *catalog.Stars, opt Options) (*Frame, error) {
 		passes := (n + rows - 1) / rows
 		return renderStream(dst, Chunks(stars, (n+passes-1)/passes), opt)
 	}
-	p := &Prepared{}
-	if err := prepareInto(p, stars, runtime.GOMAXPROCS(0), true); err != nil {
+	p, err := PrepareOnce(stars)
+	if err != nil {
 		return nil, err
 	}
 	return p.render(dst, opt)

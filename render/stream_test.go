@@ -159,27 +159,40 @@ func TestRenderIntoMatchesRender(t *testing.T) {
 
 // TestDirectMatchesPreparedAtSun: seen from the Sun the transform boosts
 // the catalogue directions straight from the columns (stored or computed
-// per block); both forms give the frame bit for bit [cp].
+// per block), and from elsewhere it moves them to the observer first;
+// Prepare's stored rest values and PrepareOnce's computed ones give the
+// frame bit for bit either way [cp].
 func TestDirectMatchesPreparedAtSun(t *testing.T) {
 	stars := randomStars(20_000, -1, 9, 22)
-	opt := Options{Projection: proj(t, camera.Equirect, 400, 200), Observer: observer(t, r3.Unit(r3.Vec{X: -1, Y: 0.5, Z: 0.2}), 0.8),
-		Exposure: 3, Doppler: true, Workers: 2}
-	want, err := Render(stars, opt)
-	if err != nil {
-		t.Fatal(err)
+	for _, pos := range []r3.Vec{{}, {X: 0.3, Y: -0.2, Z: 0.1}} {
+		obs := observer(t, r3.Unit(r3.Vec{X: -1, Y: 0.5, Z: 0.2}), 0.8)
+		obs.Position = pos
+		opt := Options{Projection: proj(t, camera.Equirect, 400, 200), Observer: obs, Exposure: 3, Doppler: true, Workers: 2}
+		want, err := Render(stars, opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if want.Stats.Drawn < 1000 {
+			t.Fatalf("at %v: only %d stars drawn", pos, want.Stats.Drawn)
+		}
+		for _, prep := range []func(*catalog.Stars) (*Prepared, error){Prepare, PrepareOnce} {
+			p, err := prep(stars)
+			if err != nil {
+				t.Fatal(err)
+			}
+			have, err := p.Render(opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			sameFrame(t, have, want)
+		}
 	}
-	if want.Stats.Drawn < 1000 {
-		t.Fatalf("only %d stars drawn", want.Stats.Drawn)
+	if p, _ := Prepare(stars); p.direct {
+		t.Error("Prepare: no rest values stored")
 	}
-	p, err := Prepare(stars)
-	if err != nil {
-		t.Fatal(err)
+	if p, _ := PrepareOnce(stars); !p.direct {
+		t.Error("PrepareOnce: rest values stored")
 	}
-	have, err := p.Render(opt)
-	if err != nil {
-		t.Fatal(err)
-	}
-	sameFrame(t, have, want)
 }
 
 // TestRenderCacheFileMatchesRender: streaming from a cache file through
