@@ -95,8 +95,25 @@ func TestBuiltInFrames(t *testing.T) {
 	if s1.Len() <= base.Len() || float64(s1.Len()) > 0.8*n10 {
 		t.Errorf("0.9 c ahead: %d stars, want more than the %d of the default sky and fewer than 80 %% of the whole sky's %.0f", s1.Len(), base.Len(), n10)
 	}
-	if s, p, _ := f.Stars(au); s != s1 || p != p1 {
-		t.Error("the same frame twice: a second catalogue")
+	// Asked again (a held view), the frame keeps its catalogue and
+	// prepares it in full once: a new Prepared, kept after.
+	sa, pa, _ := f.Stars(au)
+	if sa != s1 || pa == p1 {
+		t.Errorf("the same frame twice: catalogue kept %v, prepared again %v; want both", sa == s1, pa != p1)
+	}
+	if s, p, _ := f.Stars(au); s != s1 || p != pa {
+		t.Error("the same frame three times: a third catalogue or Prepared")
+	}
+	// A frame of several instants (an open shutter) is prepared in full
+	// at once.
+	open, err := src.Frame(append(fast[:1:1], frameOpt(t, 0.9, galacticCentre, au)), math.NaN())
+	if err != nil {
+		t.Fatal(err)
+	}
+	src.last = [2]entry{}
+	s3, p3, _ := open.Stars(au)
+	if s, p, _ := open.Stars(au); s != s3 || p != p3 {
+		t.Error("a frame of two instants asked twice: prepared again")
 	}
 	// A fresh source that saw other frames first gives the same rows.
 	src2 := NewSource(catalog.BuiltIn(), true)

@@ -39,6 +39,7 @@ type entry struct {
 	key   uint64
 	stars *catalog.Stars
 	prep  *render.Prepared
+	once  bool // prep is render.PrepareOnce's
 }
 
 // NewSource returns the source of the catalogue s; builtIn says s is the
@@ -91,6 +92,9 @@ type Frame struct {
 	src   *Source
 	limit map[catalog.SynthCell]float64 // built-in sky: per-cell depth
 	key   uint64
+	// instants is the number of instants the frame draws its catalogue
+	// at (more than one: an open shutter).
+	instants int
 }
 
 // Frame settles the catalogue of a frame whose instants (the frame's own
@@ -109,7 +113,7 @@ func (src *Source) Frame(instants []render.Options, maxV float64) (*Frame, error
 		if err != nil {
 			return nil, err
 		}
-		return &Frame{Report: rep, Depth: rep.Have, src: src}, nil
+		return &Frame{Report: rep, Depth: rep.Have, src: src, instants: len(instants)}, nil
 	}
 	tmin, tmax := BuiltInTemps()
 	profs := make([]*render.DepthProfile, len(instants))
@@ -135,7 +139,7 @@ func (src *Source) Frame(instants []render.Options, maxV float64) (*Frame, error
 		vres = math.Max(MinDepth, math.Min(AutoMaxDepth, math.Ceil(vis*10)/10))
 	}
 	rep.Have, rep.Deep = vres, vres > MinDepth
-	f := &Frame{Report: rep, Depth: vres, src: src}
+	f := &Frame{Report: rep, Depth: vres, src: src, instants: len(instants)}
 	if !rep.Deep {
 		return f, nil
 	}
@@ -197,8 +201,7 @@ func (f *Frame) Catalogue(pos r3.Vec) *catalog.Stars {
 	if f.limit == nil {
 		return base
 	}
-	deep := src.cache.Sky(f.Depth, func(c catalog.SynthCell) float64 { return f.limit[c] })
-	return catalog.Concat(base, deep.Slice(src.nBuilt, deep.Len()))
+	return src.cache.SkyAfter(base, src.nBuilt, f.Depth, func(c catalog.SynthCell) float64 { return f.limit[c] })
 }
 
 // Stars returns the frame's catalogue for an instant whose observer is at
@@ -206,7 +209,10 @@ func (f *Frame) Catalogue(pos r3.Vec) *catalog.Stars {
 // instants or frames: Base's rows (the Sun's dimmed at the origin), then,
 // for the built-in sky drawn deeper, its stars fainter than the default
 // sky's in catalog.Synthetic's order. The same depth and cells give the
-// same catalogue and the same Prepared.
+// same catalogue and the same Prepared. A new catalogue for a frame of one
+// instant is prepared as render.PrepareOnce does, since a turning camera
+// changes its cells, and so its catalogue, nearly every frame; it is
+// prepared in full when a frame asks for it again (a held view).
 func (f *Frame) Stars(pos r3.Vec) (*catalog.Stars, *render.Prepared, error) {
 	src := f.src
 	origin := !catalog.SunShown([3]float64{pos.X, pos.Y, pos.Z})
@@ -216,20 +222,45 @@ func (f *Frame) Stars(pos r3.Vec) (*catalog.Stars, *render.Prepared, error) {
 		if e.stars != nil && e.key == key {
 			src.last[0], src.last[i] = src.last[i], src.last[0]
 			src.mu.Unlock()
-			return e.stars, e.prep, nil
+			if !e.once {
+				return e.stars, e.prep, nil
+			}
+			return src.prepareAgain(e)
 		}
 	}
 	src.mu.Unlock()
 	s := f.Catalogue(pos)
-	prep, err := render.Prepare(s)
+	once := f.instants == 1
+	prepare := render.Prepare
+	if once {
+		prepare = render.PrepareOnce
+	}
+	prep, err := prepare(s)
 	if err != nil {
 		return nil, nil, err
 	}
 	src.mu.Lock()
 	src.last[1] = src.last[0]
-	src.last[0] = entry{key: key, stars: s, prep: prep}
+	src.last[0] = entry{key: key, stars: s, prep: prep, once: once}
 	src.mu.Unlock()
 	return s, prep, nil
+}
+
+// prepareAgain prepares in full the catalogue of e, an entry prepared for
+// one instant that a frame asks for again, and keeps it for the next.
+func (src *Source) prepareAgain(e entry) (*catalog.Stars, *render.Prepared, error) {
+	prep, err := render.Prepare(e.stars)
+	if err != nil {
+		return nil, nil, err
+	}
+	src.mu.Lock()
+	for i := range src.last {
+		if src.last[i].stars == e.stars {
+			src.last[i].prep, src.last[i].once = prep, false
+		}
+	}
+	src.mu.Unlock()
+	return e.stars, prep, nil
 }
 
 func b2u(b bool) uint64 {
