@@ -47,7 +47,7 @@ func (c *SkyCache) Held() int {
 // cache's seed, nearby stars and dust, drawing only the cells not yet drawn
 // as deep as asked.
 func (c *SkyCache) Sky(magLimit float64, cellLimit func(SynthCell) float64) *Stars {
-	return c.SkyAfter(nil, 0, magLimit, cellLimit)
+	return c.SkyAfter(nil, nil, 0, magLimit, cellLimit)
 }
 
 // SkyAfter returns base's rows (none when base is nil) followed by those
@@ -55,8 +55,11 @@ func (c *SkyCache) Sky(magLimit float64, cellLimit func(SynthCell) float64) *Sta
 // Sky(magLimit, cellLimit).Slice(skip, …)) holds, copied once. A frame of
 // the built-in sky drawn deeper than it, rebuilt whenever the frame's
 // cells change (most frames of a turning camera), costs one copy instead of
-// two, the sky's rows copying nothing before skip.
-func (c *SkyCache) SkyAfter(base *Stars, skip int, magLimit float64, cellLimit func(SynthCell) float64) *Stars {
+// two, the sky's rows copying nothing before skip. dst, when not nil, lends
+// the storage of its core columns, which it then shares with the result:
+// a catalogue no longer in use, whose memory, unlike new memory, is
+// already mapped and in cache.
+func (c *SkyCache) SkyAfter(dst, base *Stars, skip int, magLimit float64, cellLimit func(SynthCell) float64) *Stars {
 	opt := c.opt
 	opt.MagLimit, opt.CellLimit = magLimit, cellLimit
 	c.mu.Lock()
@@ -79,6 +82,10 @@ func (c *SkyCache) SkyAfter(base *Stars, skip int, magLimit float64, cellLimit f
 		nb = base.Len()
 	}
 	s := &Stars{Epoch: 2000, Source: SyntheticSource, Format: SyntheticFormat}
+	if dst != nil {
+		s.ID, s.X, s.Y, s.Z, s.Dist = dst.ID[:0], dst.X[:0], dst.Y[:0], dst.Z[:0], dst.Dist[:0]
+		s.Vmag, s.Teff, s.BV, s.Flags = dst.Vmag[:0], dst.Teff[:0], dst.BV[:0], dst.Flags[:0]
+	}
 	if base != nil {
 		s.Epoch, s.Source, s.Format = base.Epoch, base.Source, base.Format
 	}

@@ -98,10 +98,15 @@ func TestSkyAfter(t *testing.T) {
 	base := &Stars{Source: "base", Epoch: 2016}
 	base.Append(Star{ID: 7, Name: "Base One", RA: 10, Dec: 20, Dist: 5, Vmag: 3, Teff: 5000, BV: 0.5, PMRA: 3, PMDec: -1, RV: 12})
 	base.Append(Star{ID: 8, RA: 30, Dec: -5, Dist: 7, Vmag: 4, Teff: 6000, BV: 0.4, RV: math.NaN()})
+	// Each case after the first draws into the storage of the one before.
+	var lend *Stars
 	for _, skip := range []int{0, 1, nb - 3, nb, nb + 1, nb + 517, full.Len() - 301, full.Len() - 1, full.Len(), full.Len() + 5} {
 		want := Concat(base, full.Slice(min(skip, full.Len()), full.Len()))
-		got := c.SkyAfter(base, skip, 8.9, half)
+		got := c.SkyAfter(lend, base, skip, 8.9, half)
 		what := fmt.Sprintf("skip %d", skip)
+		if lend != nil && got.Len() > 0 && &got.X[0] != &lend.X[:1][0] {
+			t.Errorf("%s: %d rows in new storage, not the %d of the catalogue lent", what, got.Len(), cap(lend.X))
+		}
 		sameStars(t, what, got, want)
 		if got.Source != "base" || got.Epoch != 2016 || !maps.Equal(got.Names, want.Names) ||
 			!slices.Equal(got.PMRA, want.PMRA) || !slices.Equal(got.PMDec, want.PMDec) ||
@@ -111,8 +116,9 @@ func TestSkyAfter(t *testing.T) {
 		if err := got.Validate(); err != nil {
 			t.Errorf("%s: %v", what, err)
 		}
+		lend = got
 	}
-	sameStars(t, "no base", c.SkyAfter(nil, nb, 8.9, half), full.Slice(nb, full.Len()))
+	sameStars(t, "no base", c.SkyAfter(nil, nil, nb, 8.9, half), full.Slice(nb, full.Len()))
 	if base.Len() != 2 || len(base.Names) != 1 {
 		t.Error("SkyAfter modified its base")
 	}
