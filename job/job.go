@@ -377,6 +377,11 @@ func (j *Job) drawFrame(prep *render.Prepared, i int, held bool) (*drawnFrame, e
 	if err != nil {
 		return nil, fmt.Errorf("flight: frame %d: %w", i, err)
 	}
+	if j.Sky != nil {
+		// Nothing keeps the catalogue after the frame is drawn: the
+		// labels, sidecar and files read it here.
+		defer j.Sky.Release(stars)
+	}
 	// The frame's buffers are reused across frames (frames), like the
 	// 8-bit image below: a new 4096² float buffer costs about 0.6 CPU-s
 	// of page faults on first touch.

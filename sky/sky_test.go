@@ -165,6 +165,53 @@ func TestBuiltInFrames(t *testing.T) {
 	}
 }
 
+// TestReleaseLendsStorage: a built catalogue lends its storage to the
+// next only once it is out of the recent pair and released by every
+// caller; one still in use keeps its rows while later frames are built.
+func TestReleaseLendsStorage(t *testing.T) {
+	src := NewSource(catalog.BuiltIn(), true)
+	au := r3.Vec{X: catalog.AUParsec}
+	frame := func(beta float64) *Frame {
+		f, err := src.Frame([]render.Options{frameOpt(t, beta, galacticCentre, au)}, math.NaN())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !f.Report.Deep {
+			t.Fatalf("β = %v: not drawn deeper", beta)
+		}
+		return f
+	}
+	stars := func(f *Frame) *catalog.Stars {
+		s, _, err := f.Stars(au)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return s
+	}
+	fa, fb, fc := frame(0.9), frame(0.93), frame(0.96)
+	sa := stars(fa)
+	want := fa.Catalogue(au) // the same rows in storage of its own
+	sb := stars(fb)
+	src.Release(sb)
+	stars(fc) // sa leaves the recent pair while in use
+	for _, beta := range []float64{0.91, 0.92} {
+		s := stars(frame(beta)) // sb's storage, then new storage
+		if &s.X[0] == &sa.X[0] {
+			t.Fatalf("β = %v: built in the storage of a catalogue in use", beta)
+		}
+		src.Release(s)
+	}
+	sameRows(t, "a catalogue in use", sa, want)
+	src.Release(sa)
+	// Built again (out of the recent pair), fa's catalogue takes sa's
+	// storage, now spare.
+	if s := stars(fa); &s.X[0] != &sa.X[0] {
+		t.Error("a released catalogue's storage not lent to the next")
+	} else {
+		sameRows(t, "rebuilt in lent storage", s, want)
+	}
+}
+
 // A catalogue file: the Sun is appended once; the report compares the
 // catalogue's estimated depth with the frame's bound (for its cull limit,
 // here V′ = 6.5). A BSC5-like catalogue (the built-in sky cut at 6.5) is

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"hash/fnv"
 	"math"
+	"slices"
 	"sync"
 
 	"gonum.org/v1/gonum/spatial/r3"
@@ -30,6 +31,13 @@ type Source struct {
 
 	mu   sync.Mutex
 	last [2]entry // the most recent frame catalogues, newest first
+	// lent are catalogues the source built, gone from last while a
+	// caller still used them, newest last (at most maxLent: the storage
+	// of older ones is left to the garbage collector).
+	lent []entry
+	// spare is a catalogue the source built that nothing uses any more:
+	// the next one built takes its storage (catalog.SkyAfter).
+	spare *catalog.Stars
 
 	profiles render.DepthProfiles // the built-in sky's depth profiles, recent tables reused
 }
@@ -40,7 +48,12 @@ type entry struct {
 	stars *catalog.Stars
 	prep  *render.Prepared
 	once  bool // prep is render.PrepareOnce's
+	built bool // stars was built for the frame (its storage may be reused)
+	users int  // Stars calls not yet Released
 }
+
+// maxLent bounds Source.lent.
+const maxLent = 4
 
 // NewSource returns the source of the catalogue s; builtIn says s is the
 // built-in sky (catalog.BuiltIn()), which is then drawn as deep as each
@@ -192,7 +205,11 @@ func cellReaches(c catalog.SynthCell, opt render.Options, prof *render.DepthProf
 // Catalogue returns the frame's catalogue for an instant whose observer
 // is at pos (pc), as Stars does, without preparing it (a single frame is
 // drawn straight from it).
-func (f *Frame) Catalogue(pos r3.Vec) *catalog.Stars {
+func (f *Frame) Catalogue(pos r3.Vec) *catalog.Stars { return f.build(pos, nil) }
+
+// build is Catalogue in dst's storage (nil: new storage; see
+// catalog.SkyCache.SkyAfter).
+func (f *Frame) build(pos r3.Vec, dst *catalog.Stars) *catalog.Stars {
 	src := f.src
 	base := src.base
 	if !catalog.SunShown([3]float64{pos.X, pos.Y, pos.Z}) {
@@ -201,7 +218,7 @@ func (f *Frame) Catalogue(pos r3.Vec) *catalog.Stars {
 	if f.limit == nil {
 		return base
 	}
-	return src.cache.SkyAfter(base, src.nBuilt, f.Depth, func(c catalog.SynthCell) float64 { return f.limit[c] })
+	return src.cache.SkyAfter(dst, base, src.nBuilt, f.Depth, func(c catalog.SynthCell) float64 { return f.limit[c] })
 }
 
 // Stars returns the frame's catalogue for an instant whose observer is at
@@ -212,7 +229,8 @@ func (f *Frame) Catalogue(pos r3.Vec) *catalog.Stars {
 // same catalogue and the same Prepared. A new catalogue for a frame of one
 // instant is prepared as render.PrepareOnce does, since a turning camera
 // changes its cells, and so its catalogue, nearly every frame; it is
-// prepared in full when a frame asks for it again (a held view).
+// prepared in full when a frame asks for it again (a held view). A caller
+// done with the catalogue says so with Release.
 func (f *Frame) Stars(pos r3.Vec) (*catalog.Stars, *render.Prepared, error) {
 	src := f.src
 	origin := !catalog.SunShown([3]float64{pos.X, pos.Y, pos.Z})
@@ -220,6 +238,7 @@ func (f *Frame) Stars(pos r3.Vec) (*catalog.Stars, *render.Prepared, error) {
 	src.mu.Lock()
 	for i, e := range src.last {
 		if e.stars != nil && e.key == key {
+			src.last[i].users++
 			src.last[0], src.last[i] = src.last[i], src.last[0]
 			src.mu.Unlock()
 			if !e.once {
@@ -228,8 +247,12 @@ func (f *Frame) Stars(pos r3.Vec) (*catalog.Stars, *render.Prepared, error) {
 			return src.prepareAgain(e)
 		}
 	}
+	var spare *catalog.Stars
+	if f.limit != nil {
+		spare, src.spare = src.spare, nil
+	}
 	src.mu.Unlock()
-	s := f.Catalogue(pos)
+	s := f.build(pos, spare)
 	once := f.instants == 1
 	prepare := render.Prepare
 	if once {
@@ -240,10 +263,53 @@ func (f *Frame) Stars(pos r3.Vec) (*catalog.Stars, *render.Prepared, error) {
 		return nil, nil, err
 	}
 	src.mu.Lock()
+	src.retire(src.last[1])
 	src.last[1] = src.last[0]
-	src.last[0] = entry{key: key, stars: s, prep: prep, once: once}
+	src.last[0] = entry{key: key, stars: s, prep: prep, once: once, built: f.limit != nil, users: 1}
 	src.mu.Unlock()
 	return s, prep, nil
+}
+
+// Release says that a caller of Stars is done with the catalogue s that
+// call returned and with its Prepared; each call is released at most once.
+// Once nothing uses it, a catalogue the source built lends its storage to
+// the next one it builds (about 40 bytes a star of memory already mapped,
+// where new memory costs a page fault per 4 KiB). A caller that never
+// releases only forgoes that.
+func (src *Source) Release(s *catalog.Stars) {
+	src.mu.Lock()
+	defer src.mu.Unlock()
+	for i := range src.last {
+		if e := &src.last[i]; e.stars == s && e.users > 0 {
+			e.users--
+			return
+		}
+	}
+	for i := range src.lent {
+		if e := &src.lent[i]; e.stars == s {
+			if e.users--; e.users == 0 {
+				src.spare = s
+				src.lent = slices.Delete(src.lent, i, i+1)
+			}
+			return
+		}
+	}
+}
+
+// retire handles e leaving src.last: a catalogue the source built goes to
+// spare when nothing uses it, else to lent. src.mu is held.
+func (src *Source) retire(e entry) {
+	if !e.built {
+		return
+	}
+	if e.users == 0 {
+		src.spare = e.stars
+		return
+	}
+	if len(src.lent) == maxLent {
+		src.lent = slices.Delete(src.lent, 0, 1)
+	}
+	src.lent = append(src.lent, e)
 }
 
 // prepareAgain prepares in full the catalogue of e, an entry prepared for
