@@ -21,7 +21,8 @@ func interpRowAVX2(row *float32, groups int, ld *[8]float32, fx float32)
 
 // toneRowAVX2 codes groups of eight pixels of a row as toner.row's table
 // path does, bit for bit, while every channel of a group is below fast
-// (tone_amd64.s), and returns the number of groups coded.
+// (tone_amd64.s), and returns the number of groups coded; a group whose
+// channels all are below zero is black without the table.
 //
 //go:noescape
-func toneRowAVX2(src *float32, dst *byte, groups int, ent *uint32, fast uint32) int
+func toneRowAVX2(src *float32, dst *byte, groups int, ent *uint32, fast, zero uint32) int

@@ -12,6 +12,6 @@ const simdBuilt = false
 func interpRowAVX2(*float32, int, *[8]float32, float32) { panic("render: interpRowAVX2 without AVX2") }
 
 // toneRowAVX2 is never called without AVX2 (haveAVX2).
-func toneRowAVX2(*float32, *byte, int, *uint32, uint32) int {
+func toneRowAVX2(*float32, *byte, int, *uint32, uint32, uint32) int {
 	panic("render: toneRowAVX2 without AVX2")
 }

@@ -113,9 +113,17 @@ func TestToneRowAVX2(t *testing.T) {
 			for k := range src {
 				src[k] = val()
 			}
-			if trial%3 == 0 { // mostly dim rows, whose groups all take AVX2
+			switch trial % 3 {
+			case 0: // mostly dim rows, whose groups all take AVX2
 				for k := range src {
 					src[k] = float32(math.Pow(10, -6+5.6*r.Float64()))
+				}
+			case 1: // mostly black (below tab.zero), some groups wholly
+				for k := range src {
+					src[k] = float32(math.Pow(10, -7+3.4*r.Float64()))
+					if r.IntN(50) == 0 {
+						src[k] = math.Float32frombits(tab.zero - 1 + uint32(r.IntN(2)))
+					}
 				}
 			}
 			got, want := make([]byte, 4*n), make([]byte, 4*n)

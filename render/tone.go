@@ -286,7 +286,7 @@ func (t *toner) pixel(s []float32) uint32 {
 func (t *toner) rowAVX2(src []float32, dst []byte, x0, x1 int) int {
 	x := x0
 	for x1-x >= 8 {
-		x += 8 * toneRowAVX2(&src[3*x], &dst[4*x], (x1-x)/8, &t.tab.ent[0], t.fast)
+		x += 8 * toneRowAVX2(&src[3*x], &dst[4*x], (x1-x)/8, &t.tab.ent[0], t.fast, t.tab.zero)
 		if x1-x < 8 {
 			break
 		}

@@ -24,15 +24,15 @@ GLOBL tonePerm<>(SB), RODATA|NOPTR, $32
 
 // CODES replaces the eight float32 bits in V with their codes: lo +
 // (place(u) ≥ place(thr)) from the table word of bucket k = (max(u,
-// code8Low) − code8Low) >> 13, as code8Tab.code8Unit does. Y4–Y7 are
+// code8Low) − code8Low) >> 13, as code8Tab.code8Unit does. Y3, Y5–Y7 are
 // scratch; Y8 holds code8Place, Y9 a byte's mask, Y12 −1 (the gather's
 // mask, and one to add), Y14 code8Low, R9 the table.
 #define CODES(V) \
 	VPMAXUD    Y14, V, V; \
-	VPSUBD     Y14, V, Y4; \
-	VPSRLD     $13, Y4, Y4; \
+	VPSUBD     Y14, V, Y3; \
+	VPSRLD     $13, Y3, Y3; \
 	VMOVDQA    Y12, Y5; \
-	VPGATHERDD Y5, (R9)(Y4*4), Y6; \
+	VPGATHERDD Y5, (R9)(Y3*4), Y6; \
 	VPAND      Y8, V, V; \
 	VPSRLD     $8, Y6, Y7; \
 	VPCMPGTD   V, Y7, Y7; \
@@ -40,18 +40,24 @@ GLOBL tonePerm<>(SB), RODATA|NOPTR, $32
 	VPSUBD     Y12, Y6, Y6; \
 	VPADDD     Y7, Y6, V
 
-// func toneRowAVX2(src *float32, dst *byte, groups int, ent *uint32, fast uint32) int
+// func toneRowAVX2(src *float32, dst *byte, groups int, ent *uint32, fast, zero uint32) int
 //
 // Codes groups of eight pixels (24 float32 in, 32 bytes of NRGBA out)
 // while every channel's bits of the group are below fast, as
 // code8Tab.code8Unit does each (ent: the table's words), and
 // returns the number of groups coded: it stops before the first group
-// with a channel at or above fast (or negative, or NaN).
+// with a channel at or above fast (or negative, or NaN). A group whose
+// channels' bits all are below zero (code8Tab.zero) is black without
+// the table: most of a frame of space.
 TEXT ·toneRowAVX2(SB), NOSPLIT, $0-48
 	MOVQ         src+0(FP), SI
 	MOVQ         dst+8(FP), DI
 	MOVQ         groups+16(FP), CX
 	MOVQ         ent+24(FP), R9
+	MOVL         zero+36(FP), AX
+	DECL         AX
+	VMOVD        AX, X4
+	VPBROADCASTD X4, Y4                    // zero − 1
 	MOVL         fast+32(FP), AX
 	DECL         AX
 	VMOVD        AX, X15
@@ -81,6 +87,11 @@ loop:
 	VMOVDQU   64(SI), Y2
 	VPMAXUD   Y0, Y1, Y3
 	VPMAXUD   Y2, Y3, Y3
+	VPMAXUD   Y4, Y3, Y5
+	VPCMPEQD  Y4, Y5, Y5   // every lane ≤ zero − 1
+	VPMOVMSKB Y5, AX
+	CMPL      AX, $0xffffffff
+	JEQ       black
 	VPMAXUD   Y15, Y3, Y3
 	VPCMPEQD  Y15, Y3, Y3  // every lane ≤ fast − 1
 	VPMOVMSKB Y3, AX
@@ -93,18 +104,24 @@ loop:
 
 	// 24 codes in channel order, then four RGBA words per lane.
 	VPACKUSDW Y1, Y0, Y3
-	VPACKUSDW Y2, Y2, Y4
-	VPACKUSWB Y4, Y3, Y3
+	VPACKUSDW Y2, Y2, Y5
+	VPACKUSWB Y5, Y3, Y3
 	VPERMD    Y3, Y10, Y3
 	VPSHUFB   Y11, Y3, Y3
 	VPOR      Y13, Y3, Y3
 	VMOVDQU   Y3, 0(DI)
 
+next:
 	ADDQ $96, SI
 	ADDQ $32, DI
 	INCQ DX
 	CMPQ DX, CX
 	JLT  loop
+	JMP  done
+
+black:
+	VMOVDQU Y13, 0(DI)
+	JMP     next
 
 done:
 	VZEROUPPER
