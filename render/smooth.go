@@ -127,13 +127,19 @@ func nodes(a, b, side int) []int {
 }
 
 // add draws the layer into dst (W×H interleaved RGB) with one pixelEval per
-// worker from newEval. It returns the first error in band order. With rec
-// not nil it also records the layer there (rec.bands, one per band of
-// cells), for replay.
+// worker from newEval. The top-level cells' corners are evaluated first,
+// each once (a corner is shared by up to four cells), then the cells band
+// by band. It returns the first error of the corners in row order, else
+// the first in band order. With rec not nil it also records the layer
+// there (rec.bands, one per band of cells), for replay.
 func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecord) error {
 	rows := nodes(0, g.h, g.cell)
 	bands := max(1, len(rows)-1)
 	errs := make([]error, bands)
+	corners, err := g.corners(rows, newEval)
+	if err != nil {
+		return err
+	}
 	if rec != nil {
 		// A record drawn before lends its bands' storage.
 		rec.w, rec.workers, rec.sorted = g.w, g.workers, false
@@ -156,12 +162,19 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecor
 			c.rec.exact = c.rec.exact[:0]
 		}
 		defer func() { *lp = c.leaves[:0]; leaves.Put(lp) }()
-		for _, s := range g.segs {
-			cols := nodes(s[0], s[1], g.cell)
+		top, bottom := corners.row(k), corners.row(min(k+1, len(rows)-1))
+		for si := range g.segs {
+			cols := corners.cols[si]
+			off := corners.off[si]
 			for m := 0; m < max(1, len(cols)-1); m++ {
 				x0, x1 := cols[m], cols[min(m+1, len(cols)-1)]
+				if !c.circle.meets(x0, y0, x1+1, y1+1) {
+					continue // outside a fisheye's circle: no light
+				}
+				a, b := off+m, off+min(m+1, len(cols)-1)
 				lastX, lastY := m+1 >= len(cols)-1, k == bands-1
-				if err := c.cell(x0, x1, y0, y1, lastX, lastY); err != nil {
+				v := [4]nodeVal{top[a], top[b], bottom[a], bottom[b]}
+				if err := c.refine(x0, x1, y0, y1, lastX, lastY, v, nil); err != nil {
 					errs[k] = err
 					return
 				}
@@ -175,6 +188,74 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecor
 		}
 	}
 	return nil
+}
+
+// cornerGrid holds the exact values at the corners of the top-level
+// cells: node row r (pixel row rows[r]), node column cols[s][m] of
+// segment s at val[r·n + off[s] + m].
+type cornerGrid struct {
+	cols [][]int
+	off  []int
+	n    int // nodes per row
+	val  []nodeVal
+}
+
+func (cg *cornerGrid) row(r int) []nodeVal { return cg.val[r*cg.n : (r+1)*cg.n] }
+
+// corners evaluates, on g.workers goroutines, the corners of every
+// top-level cell that meets the image circle (the others stay zero): what
+// cell would evaluate for each of its corners, once for all the cells
+// that share it.
+func (g *smoothGrid) corners(rows []int, newEval func() pixelEval) (*cornerGrid, error) {
+	cg := &cornerGrid{cols: make([][]int, len(g.segs)), off: make([]int, len(g.segs))}
+	for si, s := range g.segs {
+		cg.cols[si] = nodes(s[0], s[1], g.cell)
+		cg.off[si] = cg.n
+		cg.n += len(cg.cols[si])
+	}
+	cg.val = make([]nodeVal, len(rows)*cg.n)
+	need := make([]bool, len(cg.val))
+	bands := max(1, len(rows)-1)
+	for k := range bands {
+		r0, r1 := k, min(k+1, len(rows)-1)
+		y0, y1 := rows[r0], rows[r1]
+		for si, cols := range cg.cols {
+			for m := 0; m < max(1, len(cols)-1); m++ {
+				m1 := min(m+1, len(cols)-1)
+				if !g.circle.meets(cols[m], y0, cols[m1]+1, y1+1) {
+					continue
+				}
+				for _, r := range [2]int{r0, r1} {
+					need[r*cg.n+cg.off[si]+m] = true
+					need[r*cg.n+cg.off[si]+m1] = true
+				}
+			}
+		}
+	}
+	errs := make([]error, len(rows))
+	parallel(g.workers, len(rows), func(r int) {
+		ev := newEval()
+		for si, cols := range cg.cols {
+			for m, x := range cols {
+				i := r*cg.n + cg.off[si] + m
+				if !need[i] {
+					continue
+				}
+				v, ok, err := ev(x, rows[r])
+				if err != nil {
+					errs[r] = err
+					return
+				}
+				cg.val[i] = nodeVal{v: v, ok: ok}
+			}
+		}
+	})
+	for _, err := range errs {
+		if err != nil {
+			return nil, err
+		}
+	}
+	return cg, nil
 }
 
 type smoothCellState struct {
@@ -198,23 +279,6 @@ type smoothCellState struct {
 type smoothLeaf struct {
 	x0, x1, xe, y0, y1, ye int
 	v                      [4][3]float64
-}
-
-// cell draws the top-level cell with corner pixels (x0, y0)–(x1, y1): it
-// fills the pixels x0 ≤ x < x1 (≤ x1 when lastX) and y0 ≤ y < y1 (≤ y1
-// when lastY).
-func (c *smoothCellState) cell(x0, x1, y0, y1 int, lastX, lastY bool) error {
-	if !c.circle.meets(x0, y0, x1+1, y1+1) {
-		return nil // outside a fisheye's circle: no light
-	}
-	var v [4]nodeVal
-	for q, p := range [4][2]int{{x0, y0}, {x1, y0}, {x0, y1}, {x1, y1}} {
-		var err error
-		if v[q].v, v[q].ok, err = c.ev(p[0], p[1]); err != nil {
-			return err
-		}
-	}
-	return c.refine(x0, x1, y0, y1, lastX, lastY, v, nil)
 }
 
 // nodeVal is an exact value at a node and whether it is smooth.
