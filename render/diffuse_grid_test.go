@@ -203,6 +203,112 @@ func TestSmoothGridCell(t *testing.T) {
 	}
 }
 
+// TestSmoothGridSharedOnce: the top-level cells' corners and edge
+// midpoints, each shared by the cells on either side, are evaluated once
+// each and only where a cell needs them — for a fisheye (cells beyond its
+// circle skipped), a cube (segments whose edge nodes are distinct pixels)
+// and an odd-sized pinhole (last cells of 2 and 4 pixels) — with a layer
+// that is not smooth in a disc inside one cell, which splits down to
+// exact pixels. (Cells of 2 × 2 pixels, whose quarter centres are their
+// corners, evaluate those again: none touches a top-level node here.)
+func TestSmoothGridSharedOnce(t *testing.T) {
+	for _, c := range []struct {
+		kind camera.Kind
+		w, h int
+		fov  float64
+	}{
+		{camera.Fisheye, 300, 300, 180},
+		{camera.Cube, 6 * 70, 70, 0},
+		{camera.Pinhole, 259, 133, 60},
+	} {
+		p := looking(t, c.kind, c.w, c.h, c.fov, axisX)
+		g := newSmoothGrid(&p, DefaultSmoothTolerance, 2)
+		var mu sync.Mutex
+		count := map[[2]int]int{}
+		newEval := func() pixelEval {
+			return func(i, j int) ([3]float64, bool, error) {
+				mu.Lock()
+				count[[2]int{i, j}]++
+				mu.Unlock()
+				v := 1 + 1e-3*float64(i) + 2e-3*float64(j)
+				dx, dy := float64(i-3*g.cell/2), float64(j-3*g.cell/2)
+				if rough := dx*dx+dy*dy < float64(g.cell*g.cell)/36; rough {
+					v += math.Sin(float64(i * j))
+					return [3]float64{v, v, v}, false, nil
+				}
+				return [3]float64{v, v, v}, true, nil
+			}
+		}
+		dst := make([]float32, 3*c.w*c.h)
+		if err := g.add(dst, newEval, nil); err != nil {
+			t.Fatal(err)
+		}
+		rows := nodes(0, c.h, g.cell)
+		shared, skipped := 0, 0
+		for k := 0; k+1 < len(rows); k++ {
+			y0, y1 := rows[k], rows[k+1]
+			for _, s := range g.segs {
+				cols := nodes(s[0], s[1], g.cell)
+				for m := 0; m+1 < len(cols); m++ {
+					x0, x1 := cols[m], cols[m+1]
+					pts := [][2]int{{x0, y0}, {x1, y0}, {x0, y1}, {x1, y1}}
+					if x1-x0 >= 2 && y1-y0 >= 2 {
+						xm, ym := (x0+x1)/2, (y0+y1)/2
+						pts = append(pts, [2]int{xm, y0}, [2]int{xm, y1}, [2]int{x0, ym}, [2]int{x1, ym})
+					}
+					if !g.circle.meets(x0, y0, x1+1, y1+1) {
+						skipped++
+						for _, q := range pts {
+							if count[q] > 0 && !touched(g, rows, q) {
+								t.Errorf("%v: node %v of a cell beyond the circle evaluated", c.kind, q)
+							}
+						}
+						continue
+					}
+					for _, q := range pts {
+						shared++
+						if count[q] != 1 {
+							t.Fatalf("%v: node %v of cell (%d–%d, %d–%d) evaluated %d times, want once", c.kind, q, x0, x1, y0, y1, count[q])
+						}
+					}
+				}
+			}
+		}
+		if c.kind == camera.Fisheye && skipped == 0 {
+			t.Errorf("fisheye: no cell beyond the circle")
+		}
+		if shared < 100 {
+			t.Errorf("%v: only %d nodes checked", c.kind, shared)
+		}
+		if n := count[[2]int{3 * g.cell / 2, 3 * g.cell / 2}]; n == 0 {
+			t.Errorf("%v: the rough disc's centre not evaluated: no cell split to it", c.kind)
+		}
+	}
+}
+
+// touched reports whether node q is a corner or edge midpoint of some
+// top-level cell of g that meets its circle (rows: the node rows).
+func touched(g smoothGrid, rows []int, q [2]int) bool {
+	for k := 0; k+1 < len(rows); k++ {
+		for _, s := range g.segs {
+			cols := nodes(s[0], s[1], g.cell)
+			for m := 0; m+1 < len(cols); m++ {
+				x0, x1, y0, y1 := cols[m], cols[m+1], rows[k], rows[k+1]
+				if !g.circle.meets(x0, y0, x1+1, y1+1) {
+					continue
+				}
+				xm, ym := (x0+x1)/2, (y0+y1)/2
+				for _, p := range [][2]int{{x0, y0}, {x1, y0}, {x0, y1}, {x1, y1}, {xm, y0}, {xm, y1}, {x0, ym}, {x1, ym}} {
+					if p == q {
+						return true
+					}
+				}
+			}
+		}
+	}
+	return false
+}
+
 // The grid's result is the same for any worker count, bit for bit.
 func TestDiffuseGridDeterministic(t *testing.T) {
 	var pix [][]float32

@@ -162,7 +162,9 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecor
 			c.rec.exact = c.rec.exact[:0]
 		}
 		defer func() { *lp = c.leaves[:0]; leaves.Put(lp) }()
-		top, bottom := corners.row(k), corners.row(min(k+1, len(rows)-1))
+		kb := min(k+1, len(rows)-1)
+		n := corners.n
+		top, bottom := corners.row(k), corners.row(kb)
 		for si := range g.segs {
 			cols := corners.cols[si]
 			off := corners.off[si]
@@ -174,7 +176,8 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecor
 				a, b := off+m, off+min(m+1, len(cols)-1)
 				lastX, lastY := m+1 >= len(cols)-1, k == bands-1
 				v := [4]nodeVal{top[a], top[b], bottom[a], bottom[b]}
-				if err := c.refine(x0, x1, y0, y1, lastX, lastY, v, nil); err != nil {
+				edges := [4]nodeVal{corners.hmid[k*n+a], corners.hmid[kb*n+a], corners.vmid[k*n+a], corners.vmid[k*n+b]}
+				if err := c.refine(x0, x1, y0, y1, lastX, lastY, v, nil, &edges); err != nil {
 					errs[k] = err
 					return
 				}
@@ -191,21 +194,26 @@ func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecor
 }
 
 // cornerGrid holds the exact values at the corners of the top-level
-// cells: node row r (pixel row rows[r]), node column cols[s][m] of
-// segment s at val[r·n + off[s] + m].
+// cells and at the midpoints of their edges, each shared by the cells on
+// either side: node row r (pixel row rows[r]), node column cols[s][m] of
+// segment s at val[r·n + off[s] + m]; the midpoint of the edge from that
+// node to the next column's at hmid[r·n + off[s] + m], and of the edge
+// from it to the next row's (band r) at vmid[r·n + off[s] + m].
 type cornerGrid struct {
-	cols [][]int
-	off  []int
-	n    int // nodes per row
-	val  []nodeVal
+	cols       [][]int
+	off        []int
+	n          int // nodes per row
+	val        []nodeVal
+	hmid, vmid []nodeVal
 }
 
 func (cg *cornerGrid) row(r int) []nodeVal { return cg.val[r*cg.n : (r+1)*cg.n] }
 
-// corners evaluates, on g.workers goroutines, the corners of every
-// top-level cell that meets the image circle (the others stay zero): what
-// cell would evaluate for each of its corners, once for all the cells
-// that share it.
+// corners evaluates, on g.workers goroutines, what the top-level cells
+// that meet the image circle (the others stay zero) share: first their
+// corners, then the midpoints of the edges of those whose checks refine
+// evaluates (two pixels or more each way, and smooth corners or room to
+// split), each once for all the cells that share it.
 func (g *smoothGrid) corners(rows []int, newEval func() pixelEval) (*cornerGrid, error) {
 	cg := &cornerGrid{cols: make([][]int, len(g.segs)), off: make([]int, len(g.segs))}
 	for si, s := range g.segs {
@@ -213,47 +221,93 @@ func (g *smoothGrid) corners(rows []int, newEval func() pixelEval) (*cornerGrid,
 		cg.off[si] = cg.n
 		cg.n += len(cg.cols[si])
 	}
-	cg.val = make([]nodeVal, len(rows)*cg.n)
+	n := cg.n
+	cg.val = make([]nodeVal, len(rows)*n)
+	cg.hmid, cg.vmid = make([]nodeVal, len(rows)*n), make([]nodeVal, len(rows)*n)
 	need := make([]bool, len(cg.val))
+	hneed, vneed := make([]bool, len(cg.val)), make([]bool, len(cg.val))
 	bands := max(1, len(rows)-1)
-	for k := range bands {
-		r0, r1 := k, min(k+1, len(rows)-1)
-		y0, y1 := rows[r0], rows[r1]
-		for si, cols := range cg.cols {
-			for m := 0; m < max(1, len(cols)-1); m++ {
-				m1 := min(m+1, len(cols)-1)
-				if !g.circle.meets(cols[m], y0, cols[m1]+1, y1+1) {
-					continue
-				}
-				for _, r := range [2]int{r0, r1} {
-					need[r*cg.n+cg.off[si]+m] = true
-					need[r*cg.n+cg.off[si]+m1] = true
+	// cells calls fn for every top-level cell that meets the circle: its
+	// band k, node rows r0 and r1, and node indices a and b of its left and
+	// right corners in a row.
+	cells := func(fn func(k, r0, r1, a, b int)) {
+		for k := range bands {
+			r0, r1 := k, min(k+1, len(rows)-1)
+			for si, cols := range cg.cols {
+				for m := 0; m < max(1, len(cols)-1); m++ {
+					m1 := min(m+1, len(cols)-1)
+					if g.circle.meets(cols[m], rows[r0], cols[m1]+1, rows[r1]+1) {
+						fn(k, r0, r1, cg.off[si]+m, cg.off[si]+m1)
+					}
 				}
 			}
 		}
 	}
-	errs := make([]error, len(rows))
-	parallel(g.workers, len(rows), func(r int) {
-		ev := newEval()
-		for si, cols := range cg.cols {
-			for m, x := range cols {
-				i := r*cg.n + cg.off[si] + m
-				if !need[i] {
-					continue
-				}
-				v, ok, err := ev(x, rows[r])
-				if err != nil {
-					errs[r] = err
-					return
-				}
-				cg.val[i] = nodeVal{v: v, ok: ok}
+	cells(func(_, r0, r1, a, b int) {
+		need[r0*n+a], need[r0*n+b], need[r1*n+a], need[r1*n+b] = true, true, true, true
+	})
+	// x and mid give a node's column and the midpoint of its edge to the
+	// next (−1 at a segment's last node).
+	x, mid := make([]int, n), make([]int, n)
+	for si, cols := range cg.cols {
+		for m, c := range cols {
+			x[cg.off[si]+m], mid[cg.off[si]+m] = c, -1
+			if m+1 < len(cols) {
+				mid[cg.off[si]+m] = (c + cols[m+1]) / 2
 			}
 		}
-	})
-	for _, err := range errs {
-		if err != nil {
-			return nil, err
+	}
+	errs := make([]error, len(rows))
+	eval := func(r int, ev pixelEval, need []bool, dst []nodeVal, px func(i int) (int, int)) bool {
+		for i := r * n; i < (r+1)*n; i++ {
+			if !need[i] {
+				continue
+			}
+			xi, yi := px(i - r*n)
+			v, ok, err := ev(xi, yi)
+			if err != nil {
+				errs[r] = err
+				return false
+			}
+			dst[i] = nodeVal{v: v, ok: ok}
 		}
+		return true
+	}
+	firstErr := func() error {
+		for _, err := range errs {
+			if err != nil {
+				return err
+			}
+		}
+		return nil
+	}
+	parallel(g.workers, len(rows), func(r int) {
+		eval(r, newEval(), need, cg.val, func(i int) (int, int) { return x[i], rows[r] })
+	})
+	if err := firstErr(); err != nil {
+		return nil, err
+	}
+	cells(func(k, r0, r1, a, b int) {
+		if x[b]-x[a] < 2 || rows[r1]-rows[r0] < 2 {
+			return // refine evaluates the cell exactly, without checks
+		}
+		v := cg.val
+		good := v[r0*n+a].ok && v[r0*n+b].ok && v[r1*n+a].ok && v[r1*n+b].ok
+		if !good && max(x[b]-x[a], rows[r1]-rows[r0]) <= smoothMinCell {
+			return // the same
+		}
+		hneed[r0*n+a], hneed[r1*n+a], vneed[k*n+a], vneed[k*n+b] = true, true, true, true
+	})
+	parallel(g.workers, len(rows), func(r int) {
+		ev := newEval()
+		if !eval(r, ev, hneed, cg.hmid, func(i int) (int, int) { return mid[i], rows[r] }) || r >= bands {
+			return
+		}
+		ym := (rows[r] + rows[min(r+1, len(rows)-1)]) / 2
+		eval(r, ev, vneed, cg.vmid, func(i int) (int, int) { return x[i], ym })
+	})
+	if err := firstErr(); err != nil {
+		return nil, err
 	}
 	return cg, nil
 }
@@ -292,8 +346,10 @@ type nodeVal struct {
 // is smooth and the checks pass, else split into four, else exactly.
 // centre, when not nil, is the value at the cell's centre check, known
 // from the parent's checks (a quarter's centre is its parent's quarter
-// check).
-func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nodeVal, centre *nodeVal) error {
+// check); edges, when not nil, are the values at its top, bottom, left
+// and right midpoint checks (a top-level cell's, shared with its
+// neighbours: smoothGrid.corners).
+func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nodeVal, centre *nodeVal, edges *[4]nodeVal) error {
 	corners := [4]knownVal{{x0, y0, v[0].v}, {x1, y0, v[1].v}, {x0, y1, v[2].v}, {x1, y1, v[3].v}}
 	if x1-x0 < 2 || y1-y0 < 2 {
 		return c.exact(x0, x1, y0, y1, lastX, lastY, corners[:])
@@ -317,6 +373,8 @@ func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nod
 	for q, p := range pts {
 		if q == 0 && centre != nil {
 			e[0] = *centre
+		} else if q >= 1 && q <= 4 && edges != nil {
+			e[q] = edges[q-1]
 		} else {
 			var err error
 			if e[q].v, e[q].ok, err = c.ev(p[0], p[1]); err != nil {
@@ -346,16 +404,16 @@ func (c *smoothCellState) refine(x0, x1, y0, y1 int, lastX, lastY bool, v [4]nod
 	cc, t, b, l, r := e[0], e[1], e[2], e[3], e[4]
 	// The quarters' centres ((x0+xm)/2, (y0+ym)/2) … are the checks
 	// e[5:9].
-	if err := c.refine(x0, xm, y0, ym, false, false, [4]nodeVal{v[0], t, l, cc}, &e[5]); err != nil {
+	if err := c.refine(x0, xm, y0, ym, false, false, [4]nodeVal{v[0], t, l, cc}, &e[5], nil); err != nil {
 		return err
 	}
-	if err := c.refine(xm, x1, y0, ym, lastX, false, [4]nodeVal{t, v[1], cc, r}, &e[6]); err != nil {
+	if err := c.refine(xm, x1, y0, ym, lastX, false, [4]nodeVal{t, v[1], cc, r}, &e[6], nil); err != nil {
 		return err
 	}
-	if err := c.refine(x0, xm, ym, y1, false, lastY, [4]nodeVal{l, cc, v[2], b}, &e[7]); err != nil {
+	if err := c.refine(x0, xm, ym, y1, false, lastY, [4]nodeVal{l, cc, v[2], b}, &e[7], nil); err != nil {
 		return err
 	}
-	return c.refine(xm, x1, ym, y1, lastX, lastY, [4]nodeVal{cc, r, b, v[3]}, &e[8])
+	return c.refine(xm, x1, ym, y1, lastX, lastY, [4]nodeVal{cc, r, b, v[3]}, &e[8], nil)
 }
 
 // knownVal is the exact value of pixel (x, y), already evaluated.
