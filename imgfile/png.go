@@ -404,8 +404,36 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 	if width < 1 || height < 1 {
 		return fmt.Errorf("imgfile: encoding PNG: image size %d×%d", width, height)
 	}
+	// An 8-bit image whose first row is opaque is taken to be opaque and
+	// encoded without alpha, each row checked as it is converted
+	// (rgbaToRGB): the image is read once, not also in a pass of its own.
+	// One with a transparent pixel further on is encoded again with
+	// alpha, nothing having been written.
+	if depth == 8 && isOpaque(pix, stride, width, 1, depth) {
+		err := e.encodeStripsAs(w, width, height, pix, stride, depth, extra, true, true)
+		if !errors.Is(err, errTransparent) {
+			return err
+		}
+		return e.encodeStripsAs(w, width, height, pix, stride, depth, extra, false, false)
+	}
+	opaque := depth == 16 && isOpaque(pix, stride, width, height, depth)
+	return e.encodeStripsAs(w, width, height, pix, stride, depth, extra, opaque, false)
+}
+
+// errTransparent is encodeStripsAs's error for an image taken to be
+// opaque that is not; errAborted marks a strip left undone after another
+// strip's error.
+var (
+	errTransparent = errors.New("imgfile: a transparent pixel")
+	errAborted     = errors.New("imgfile: strip not encoded")
+)
+
+// encodeStripsAs encodes the image as encodeStrips does, without alpha
+// when opaque. With guess, opaque is a guess the rows' conversion checks:
+// the strips are all deflated before anything is written, and a
+// transparent pixel ends the encoding with errTransparent.
+func (e *PNGEncoder) encodeStripsAs(w io.Writer, width, height int, pix []byte, stride, depth int, extra []byte, opaque, guess bool) error {
 	srcBpp := 4 * depth / 8
-	opaque := isOpaque(pix, stride, width, height, depth)
 	colorType, bpp := byte(6), srcBpp
 	if opaque {
 		colorType, bpp = 2, 3*depth/8
@@ -420,9 +448,6 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 	ihdr = append(ihdr, byte(depth), colorType, 0, 0, 0)
 	hdr = appendChunk(hdr, "IHDR", ihdr)
 	hdr = append(hdr, extra...)
-	if _, err := w.Write(hdr); err != nil {
-		return fmt.Errorf("imgfile: writing PNG: %w", err)
-	}
 
 	rowsPer := max(1, pngStripBytes/(rowBytes+1))
 	nStrips := (height + rowsPer - 1) / rowsPer
@@ -459,18 +484,42 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 				}
 				s := &strips[i]
 				if abort.Load() {
+					s.err = errAborted
 					close(s.done)
 					continue
 				}
 				y0, y1 := i*rowsPer, min(height, (i+1)*rowsPer)
 				s.data, s.adler, s.n, s.err = e.deflateStrip(pix, stride, width, depth, opaque, y0, y1, i == nStrips-1, level, cur, prev, &filt)
+				if s.err != nil {
+					abort.Store(true) // the error ends the encoding
+				}
 				close(s.done)
 			}
 		}()
 	}
 	defer wg.Wait()
+	if guess {
+		// Nothing is written until every strip is: a transparent pixel
+		// in any of them means encoding again.
+		var first error
+		for i := range strips {
+			<-strips[i].done
+			if err := strips[i].err; err != nil && (first == nil || errors.Is(first, errAborted)) {
+				first = err
+			}
+		}
+		if first != nil {
+			for i := range strips {
+				if d := strips[i].data; d != nil {
+					stripBufs.Put(d)
+				}
+			}
+			return first
+		}
+	}
 
-	// Write the IDAT chunks in order as strips complete.
+	// Write the IDAT chunks in order as strips complete (all of them
+	// first, with guess).
 	var werr error
 	zh := zlibHeader(level)
 	var total uint32 = 1
@@ -484,6 +533,13 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 			werr = s.err
 			abort.Store(true)
 			continue
+		}
+		if i == 0 {
+			if _, err := w.Write(hdr); err != nil {
+				werr = fmt.Errorf("imgfile: writing PNG: %w", err)
+				abort.Store(true)
+				continue
+			}
 		}
 		total = adler32Combine(total, s.adler, s.n)
 		var head, tail []byte
@@ -501,6 +557,16 @@ func (e *PNGEncoder) encodeStrips(w io.Writer, width, height int, pix []byte, st
 		s.data = nil
 	}
 	if werr != nil {
+		// Every strip is done: the error that ended the encoding, not
+		// a strip it skipped.
+		for i := range strips {
+			if d := strips[i].data; d != nil {
+				stripBufs.Put(d)
+			}
+			if err := strips[i].err; errors.Is(werr, errAborted) && err != nil && !errors.Is(err, errAborted) {
+				werr = err
+			}
+		}
 		return werr
 	}
 	if _, err := w.Write(appendChunk(nil, "IEND", nil)); err != nil {
@@ -531,6 +597,7 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 	defer pool.Put(fw)
 
 	bpp := len(cur) / width
+	transparent := false // a converted row had a pixel that is not opaque
 	rowOf := func(y int, dst []byte) {
 		src := pix[y*stride:]
 		if !opaque {
@@ -538,7 +605,9 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 			return
 		}
 		if depth == 8 {
-			rgbaToRGB(dst, src)
+			if !rgbaToRGB(dst, src) {
+				transparent = true
+			}
 			return
 		}
 		for i, j := 0, 0; j < len(dst); i, j = i+8, j+6 {
@@ -564,6 +633,9 @@ func (e *PNGEncoder) deflateStrip(pix []byte, stride, width, depth int, opaque b
 		} else {
 			rowOf(y, cur)
 			line = filterRow(cur, prev, bpp, filt)
+		}
+		if transparent {
+			return nil, 0, 0, errTransparent
 		}
 		ad = adler32Update(ad, line)
 		n += int64(len(line))
@@ -638,21 +710,25 @@ func adler32Update(adler uint32, p []byte) uint32 {
 const adlerChunks = 1024
 
 // rgbaToRGB copies the RGB bytes of len(dst)/3 RGBA pixels of src into
-// dst: eight pixels a step with AVX2 (while 8 bytes of dst remain past
-// the step's 24), then four at a time as two 64-bit words in and a 64- and
-// a 32-bit word out, then one by one.
-func rgbaToRGB(dst, src []byte) {
+// dst and reports whether every one of them is opaque (alpha 255): eight
+// pixels a step with AVX2 (while 8 bytes of dst remain past the step's
+// 24), then four at a time as two 64-bit words in and a 64- and a 32-bit
+// word out, then one by one.
+func rgbaToRGB(dst, src []byte) bool {
 	n := len(dst) / 3
 	src = src[:4*n]
 	const rgb = 0x00ffffff
 	k := 0
+	all := uint64(1<<64 - 1)                 // the AND of the words read
 	if g := (n - 3) / 8; haveAVX2 && g > 0 { // 24g + 8 ≤ 3n
-		rgbaToRGBAVX2(&dst[0], &src[0], g)
+		a := uint64(rgbaToRGBAVX2(&dst[0], &src[0], g))
+		all &= a | a<<32
 		k = 8 * g
 	}
 	for ; k+4 <= n; k += 4 {
 		s := src[4*k : 4*k+16 : 4*k+16]
 		a, b := binary.LittleEndian.Uint64(s[:8]), binary.LittleEndian.Uint64(s[8:])
+		all &= a & b
 		p0, p1, p2, p3 := a&rgb, a>>32&rgb, b&rgb, b>>32&rgb
 		d := dst[3*k : 3*k+12 : 3*k+12]
 		binary.LittleEndian.PutUint64(d[:8], p0|p1<<24|p2<<48)
@@ -660,8 +736,14 @@ func rgbaToRGB(dst, src []byte) {
 	}
 	for ; k < n; k++ {
 		dst[3*k], dst[3*k+1], dst[3*k+2] = src[4*k], src[4*k+1], src[4*k+2]
+		all &= uint64(src[4*k+3])<<56 | uint64(src[4*k+3])<<24 | 0x00ffffff_00ffffff
 	}
+	return all&alpha2 == alpha2
 }
+
+// alpha2 masks the alpha bytes of two 8-bit RGBA pixels read as a
+// little-endian word.
+const alpha2 = 0xff000000_ff000000
 
 // isOpaque reports whether every pixel of the RGBA (depth 8) or RGBA64
 // (depth 16) rows is fully opaque, reading eight bytes at a time.

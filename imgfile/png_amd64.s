@@ -21,20 +21,23 @@ DATA rgbPerm<>+24(SB)/4, $3
 DATA rgbPerm<>+28(SB)/4, $7
 GLOBL rgbPerm<>(SB), RODATA|NOPTR, $32
 
-// func rgbaToRGBAVX2(dst, src *byte, groups int)
+// func rgbaToRGBAVX2(dst, src *byte, groups int) uint32
 //
 // Copies the RGB bytes of 8·groups RGBA pixels at src to dst, eight
 // pixels a step; each step stores 32 bytes, the last 8 of them garbage,
-// so dst must have 8 bytes of room past 24·groups.
-TEXT ·rgbaToRGBAVX2(SB), NOSPLIT, $0-24
-	MOVQ    dst+0(FP), DI
-	MOVQ    src+8(FP), SI
-	MOVQ    groups+16(FP), CX
-	VMOVDQU rgbShuf<>(SB), Y1
-	VMOVDQU rgbPerm<>(SB), Y2
+// so dst must have 8 bytes of room past 24·groups. Returns the AND of
+// the pixels' 32-bit words: its top byte is 0xff when every alpha is.
+TEXT ·rgbaToRGBAVX2(SB), NOSPLIT, $0-28
+	MOVQ     dst+0(FP), DI
+	MOVQ     src+8(FP), SI
+	MOVQ     groups+16(FP), CX
+	VMOVDQU  rgbShuf<>(SB), Y1
+	VMOVDQU  rgbPerm<>(SB), Y2
+	VPCMPEQD Y3, Y3, Y3 // the AND of the words so far: all ones
 
 rgbLoop:
 	VMOVDQU 0(SI), Y0
+	VPAND   Y0, Y3, Y3
 	VPSHUFB Y1, Y0, Y0
 	VPERMD  Y0, Y2, Y0
 	VMOVDQU Y0, 0(DI)
@@ -42,6 +45,14 @@ rgbLoop:
 	ADDQ    $24, DI
 	DECQ    CX
 	JNZ     rgbLoop
+	VEXTRACTI128 $1, Y3, X4
+	VPAND        X4, X3, X3
+	VPSHUFD      $0x4e, X3, X4
+	VPAND        X4, X3, X3
+	VPSHUFD      $0xb1, X3, X4
+	VPAND        X4, X3, X3
+	VMOVD        X3, AX
+	MOVL         AX, ret+24(FP)
 	VZEROUPPER
 	RET
 

@@ -89,6 +89,12 @@ func lastTranslucent(m *image.NRGBA) *image.NRGBA {
 	return m
 }
 
+// translucentAt lowers the alpha of pixel (x, y) of m.
+func translucentAt(m *image.NRGBA, x, y int) *image.NRGBA {
+	m.Pix[y*m.Stride+4*x+3] = 0x80
+	return m
+}
+
 func alpha16(m *image.NRGBA64) *image.NRGBA64 {
 	m.Pix[6], m.Pix[7] = 0x12, 0x34
 	return m
@@ -124,20 +130,25 @@ func TestWritePNGRoundTrip(t *testing.T) {
 		name  string
 		img   image.Image
 		depth byte // IHDR bit depth, §11.2.2 [pub]
+		color byte // IHDR colour type, §11.2.2 [pub]: 2 RGB, 6 RGBA, 0 grey
 	}{
-		{"nrgba8 alpha", testNRGBA(37, 23, 1), 8},
-		{"nrgba8 opaque", opaque8(testNRGBA(29, 31, 11)), 8},
-		{"nrgba8 opaque one column", opaque8(testNRGBA(1, 7, 14)), 8},
-		{"nrgba8 opaque six columns", opaque8(testNRGBA(6, 5, 16)), 8},
-		{"nrgba8 opaque seven columns", opaque8(testNRGBA(7, 5, 17)), 8},
-		{"nrgba8 last pixel translucent", lastTranslucent(testNRGBA(29, 5, 15)), 8},
-		{"nrgba64 opaque", testNRGBA64(19, 41, 2), 16},
-		{"nrgba64 alpha", alpha16(testNRGBA64(23, 17, 12)), 16},
-		{"nrgba8 many strips", sparseStars(700, 900, false), 8},
-		{"nrgba64 many strips", sparseStars(300, 1000, true), 16},
-		{"sub-image", testNRGBA(40, 40, 13).SubImage(image.Rect(3, 5, 31, 29)), 8},
-		{"rgba via image/png", image.Image(testRGBA(21, 13)), 8},
-		{"gray16 via image/png", testGray16(17, 9), 16},
+		{"nrgba8 alpha", testNRGBA(37, 23, 1), 8, 6},
+		{"nrgba8 opaque", opaque8(testNRGBA(29, 31, 11)), 8, 2},
+		{"nrgba8 opaque one column", opaque8(testNRGBA(1, 7, 14)), 8, 2},
+		{"nrgba8 opaque six columns", opaque8(testNRGBA(6, 5, 16)), 8, 2},
+		{"nrgba8 opaque seven columns", opaque8(testNRGBA(7, 5, 17)), 8, 2},
+		{"nrgba8 last pixel translucent", lastTranslucent(testNRGBA(29, 5, 15)), 8, 6},
+		{"nrgba64 opaque", testNRGBA64(19, 41, 2), 16, 2},
+		{"nrgba64 alpha", alpha16(testNRGBA64(23, 17, 12)), 16, 6},
+		{"nrgba8 many strips", sparseStars(700, 900, false), 8, 2},
+		// Opaque but for one pixel in a later strip than the first: the
+		// rows' conversion finds it, and the image is encoded again with
+		// alpha.
+		{"nrgba8 translucent in a later strip", translucentAt(sparseStars(700, 900, false).(*image.NRGBA), 411, 800), 8, 6},
+		{"nrgba64 many strips", sparseStars(300, 1000, true), 16, 2},
+		{"sub-image", testNRGBA(40, 40, 13).SubImage(image.Rect(3, 5, 31, 29)), 8, 6},
+		{"rgba via image/png", image.Image(testRGBA(21, 13)), 8, 2},
+		{"gray16 via image/png", testGray16(17, 9), 16, 0},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			var buf bytes.Buffer
@@ -166,8 +177,8 @@ func TestWritePNGRoundTrip(t *testing.T) {
 			if len(ch) < 10 {
 				t.Fatalf("only %d chunks", len(ch))
 			}
-			if ch[0].typ != "IHDR" || ch[0].data[8] != tc.depth {
-				t.Fatalf("first chunk %s depth %d, want IHDR depth %d", ch[0].typ, ch[0].data[8], tc.depth)
+			if ch[0].typ != "IHDR" || ch[0].data[8] != tc.depth || ch[0].data[9] != tc.color {
+				t.Fatalf("first chunk %s depth %d colour type %d, want IHDR depth %d colour type %d", ch[0].typ, ch[0].data[8], ch[0].data[9], tc.depth, tc.color)
 			}
 			// Our chunks follow IHDR directly, before any IDAT (§5.6) [pub].
 			wantTypes := []string{"IHDR", "cHRM", "gAMA", "sRGB", "tEXt", "tEXt", "tEXt", "iTXt", "IDAT"}
@@ -520,7 +531,9 @@ func TestRGBAToRGB(t *testing.T) {
 		for i := range dst {
 			dst[i] = 0xa5
 		}
-		rgbaToRGB(dst[:3*n], src)
+		if op := rgbaToRGB(dst[:3*n], src); op != opaqueBytes(src) {
+			t.Fatalf("%d random pixels: opaque %v", n, op)
+		}
 		for i := range n {
 			if !bytes.Equal(dst[3*i:3*i+3], src[4*i:4*i+3]) {
 				t.Fatalf("%d pixels: pixel %d is % x, want % x", n, i, dst[3*i:3*i+3], src[4*i:4*i+3])
@@ -531,5 +544,30 @@ func TestRGBAToRGB(t *testing.T) {
 				t.Fatalf("%d pixels: byte %d past the output written", n, i)
 			}
 		}
+		// Opaque, then each pixel in turn translucent: the AVX2 steps,
+		// the fours and the last ones each report it.
+		for i := 3; i < len(src); i += 4 {
+			src[i] = 0xff
+		}
+		if !rgbaToRGB(dst[:3*n], src) {
+			t.Fatalf("%d opaque pixels: not opaque", n)
+		}
+		for i := range n {
+			src[4*i+3] = 0xfe
+			if rgbaToRGB(dst[:3*n], src) {
+				t.Fatalf("%d pixels, pixel %d translucent: opaque", n, i)
+			}
+			src[4*i+3] = 0xff
+		}
 	}
+}
+
+// opaqueBytes reports whether every alpha byte of RGBA pixels p is 255.
+func opaqueBytes(p []byte) bool {
+	for i := 3; i < len(p); i += 4 {
+		if p[i] != 0xff {
+			return false
+		}
+	}
+	return true
 }

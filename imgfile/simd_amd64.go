@@ -9,10 +9,11 @@ import "golang.org/x/sys/cpu"
 var haveAVX2 = cpu.X86.HasAVX2
 
 // rgbaToRGBAVX2 is rgbaToRGB over 8·groups pixels, eight a step
-// (png_amd64.s); dst needs 8 bytes of room past 24·groups.
+// (png_amd64.s), and returns the AND of their 32-bit words; dst needs 8
+// bytes of room past 24·groups.
 //
 //go:noescape
-func rgbaToRGBAVX2(dst, src *byte, groups int)
+func rgbaToRGBAVX2(dst, src *byte, groups int) uint32
 
 // adler32AVX2 returns, over chunks (1 to adlerChunks) 32-byte chunks at p,
 // the byte sum, the sum of the chunks' prefix sums and the sum of each

@@ -6,7 +6,7 @@ package imgfile
 const haveAVX2 = false
 
 // rgbaToRGBAVX2 is never called without AVX2 (haveAVX2).
-func rgbaToRGBAVX2(*byte, *byte, int) { panic("imgfile: rgbaToRGBAVX2 without AVX2") }
+func rgbaToRGBAVX2(*byte, *byte, int) uint32 { panic("imgfile: rgbaToRGBAVX2 without AVX2") }
 
 // adler32AVX2 is never called without AVX2 (haveAVX2).
 func adler32AVX2(*byte, int) (uint64, uint64, uint64) { panic("imgfile: adler32AVX2 without AVX2") }
