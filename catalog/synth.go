@@ -343,6 +343,9 @@ func cellCap(c int) SynthCell {
 type synthBlock struct {
 	s Stars
 	v []float64
+	// vmax bounds v from above (it is at least 0): a limit at or above
+	// it keeps every star without reading v.
+	vmax float64
 }
 
 // run samples every sky cell to its limit and appends the stars to s, slice
@@ -448,6 +451,7 @@ func (g *synthGen) cell(c int, lim float64) []synthBlock {
 			g.draw(rng, blk, id+int64(j), total, v1, v2, lim, s0, s1, l0, l1)
 			if g.keepV && len(out[sl].v) < blk.Len() {
 				out[sl].v = append(out[sl].v, g.lastV)
+				out[sl].vmax = max(out[sl].vmax, g.lastV)
 			}
 		}
 	}

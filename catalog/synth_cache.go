@@ -172,6 +172,9 @@ func (c *SkyCache) draw(opt SynthOptions) (limits []float64, nSlices int) {
 // count returns the number of the block's stars with V ≤ lim (the exact
 // float64 V each was drawn with, as Synthetic compares it).
 func (b *synthBlock) count(lim float64) int {
+	if b.vmax <= lim {
+		return len(b.v)
+	}
 	n := 0
 	for _, v := range b.v {
 		if v <= lim {

@@ -91,6 +91,7 @@ func TestSkyAfter(t *testing.T) {
 	// over.
 	c.Sky(9.3, halfTo(9.3))
 	full := c.Sky(8.9, half)
+	sameStars(t, "Sky after a deeper one", full, Synthetic(SynthOptions{MagLimit: 8.9, CellLimit: half}))
 	nb := BuiltIn().Len()
 	if full.Len() < nb+1000 {
 		t.Fatalf("only %d rows beyond the built-in sky's %d", full.Len()-nb, nb)
