@@ -389,10 +389,15 @@ type pngStrip struct {
 // in use at a time), across garbage collections (package keep).
 var flateWriters = [4]keep.List[*flate.Writer]{{Max: 8}, {Max: 8}, {Max: 8}, {Max: 8}}
 
-// stripBufs keeps the strips' output buffers (a few are in use at a time:
-// the workers' and those waiting for their turn); growing new ones cost a
-// 4096² frame about a tenth of its encode time.
-var stripBufs = keep.List[*bytes.Buffer]{Max: 32}
+// stripBufs keeps the strips' output buffers (all of an image's are in
+// use at once when its opacity is checked as it is encoded); growing new
+// ones cost a 4096² frame about a tenth of its encode time.
+var stripBufs = keep.List[*bytes.Buffer]{Max: pngMaxStrips}
+
+// pngMaxStrips bounds the strips of an image: a larger one is cut into
+// longer strips (a 4096² frame into 32 of 128 rows, 1.5 MB each), so that
+// stripBufs holds them all.
+const pngMaxStrips = 32
 
 // pngStripBytes is the target size of the filtered data deflated as one
 // strip: large enough that restarting the deflate dictionary costs nothing
@@ -450,6 +455,9 @@ func (e *PNGEncoder) encodeStripsAs(w io.Writer, width, height int, pix []byte, 
 	hdr = append(hdr, extra...)
 
 	rowsPer := max(1, pngStripBytes/(rowBytes+1))
+	if height > pngMaxStrips*rowsPer {
+		rowsPer = (height + pngMaxStrips - 1) / pngMaxStrips
+	}
 	nStrips := (height + rowsPer - 1) / rowsPer
 	strips := make([]pngStrip, nStrips)
 	for i := range strips {

@@ -250,6 +250,35 @@ func TestWritePNGWorkers(t *testing.T) {
 			}
 		}
 	}
+	// More strips of the set size than pngMaxStrips: longer strips, the
+	// same pixels, and no more strips than that.
+	pngStripBytes = 3000 // 1.9 rows a strip: 333 strips, cut to 31 of 11 rows
+	var buf bytes.Buffer
+	if err := (&PNGEncoder{Workers: 3}).Encode(&buf, img, nil); err != nil {
+		t.Fatal(err)
+	}
+	dec, err := png.Decode(bytes.NewReader(buf.Bytes()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for y := range 333 {
+		for x := range 517 {
+			if have, want := color.NRGBAModel.Convert(dec.At(x, y)), img.At(x, y); have != want {
+				t.Fatalf("capped strips: pixel (%d,%d) %v, want %v", x, y, have, want)
+			}
+		}
+	}
+	// One IDAT chunk a strip: ⌈333/32⌉ = 11 rows each, so 31.
+	idat := 0
+	for _, c := range parsePNGChunks(t, buf.Bytes()) {
+		if c.typ == "IDAT" {
+			idat++
+		}
+	}
+	if idat != 31 {
+		t.Errorf("capped strips: %d IDAT chunks, want 31", idat)
+	}
+
 	// The largest sums: 3 MiB of 0xff bytes, past the MiB between
 	// reductions, from the first sums and from the largest ones (against
 	// the combination rule, checked below, since hash/adler32 cannot start
