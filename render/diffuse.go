@@ -163,7 +163,9 @@ func (b *Buffer) Add(o *Buffer) error {
 // below) at the corners of cells of up to 32×32 pixels (more where 64
 // pixels span at most 1.5°, smoothCellAngle) and interpolated
 // bilinearly inside each cell, after checking the interpolation against
-// exact values at the cell's centre, edge midpoints and quarter centres;
+// exact values at the cell's centre, edge midpoints and quarter centres
+// (the top-level cells' corners and edge midpoints, each shared with the
+// neighbours, are evaluated once each, before the cells);
 // a cell that misses by more than opt.Tolerance is split, down to 4
 // pixels, and then drawn exactly, and so is every cell that touches a
 // sub-sampled pixel or a pixel without a direction (a fisheye's rim). Cells never straddle an

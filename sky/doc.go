@@ -19,6 +19,8 @@
 // Determinism: the stars drawn for a frame depend only on that frame's
 // options, never on the frames drawn before (catalog.SkyCache gives
 // catalog.Synthetic's rows exactly), so the frames of a flight come out the
-// same in one process, resumed or sharded. The package never prints; a
-// warning is returned as text for the command to write.
+// same in one process, resumed or sharded. A frame's catalogue is built
+// in the storage of one the caller has released (Source.Release), which
+// changes where its rows are, never what they are. The package never
+// prints; a warning is returned as text for the command to write.
 package sky
