@@ -364,24 +364,11 @@ func (g *synthGen) run(s *Stars, opt SynthOptions) {
 		nSlices = max(nSlices, synthSliceOf(lim)+1)
 	}
 	blocks := make([][]synthBlock, synthCells)
-	cells := make(chan int)
-	var wg sync.WaitGroup
-	for range min(runtime.GOMAXPROCS(0), 8) {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			w := *g
-			w.cumPhi = make([]float64, len(g.comps))
-			for c := range cells {
-				blocks[c] = w.cell(c, limits[c])
-			}
-		}()
+	all := make([]int, synthCells)
+	for c := range all {
+		all[c] = c
 	}
-	for c := range limits {
-		cells <- c
-	}
-	close(cells)
-	wg.Wait()
+	g.drawCells(all, limits, blocks)
 	n := s.Len()
 	for c := range blocks {
 		for _, b := range blocks[c] {
@@ -456,6 +443,29 @@ func (g *synthGen) cell(c int, lim float64) []synthBlock {
 		}
 	}
 	return out
+}
+
+// drawCells draws each cell c of todo to limits[c] into blocks[c], on up
+// to 8 goroutines, each with its own copy of g's per-cell state. A cell's
+// blocks come from its own random streams, so they do not depend on the
+// goroutine or the order.
+func (g *synthGen) drawCells(todo []int, limits []float64, blocks [][]synthBlock) {
+	cells := make(chan int)
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), 8, len(todo)) {
+		wg.Go(func() {
+			w := *g
+			w.cumPhi = make([]float64, len(g.comps))
+			for c := range cells {
+				blocks[c] = w.cell(c, limits[c])
+			}
+		})
+	}
+	for _, c := range todo {
+		cells <- c
+	}
+	close(cells)
+	wg.Wait()
 }
 
 // lineOfSight fills the per-cell tables for the direction with cos b·cos l =

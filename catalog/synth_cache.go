@@ -3,7 +3,6 @@ package catalog
 import (
 	"maps"
 	"math"
-	"runtime"
 	"slices"
 	"sync"
 )
@@ -139,24 +138,7 @@ func (c *SkyCache) draw(opt SynthOptions) (limits []float64, nSlices int) {
 	if len(todo) == 0 {
 		return limits, nSlices
 	}
-	cells := make(chan int)
-	var wg sync.WaitGroup
-	for range min(runtime.GOMAXPROCS(0), 8, len(todo)) {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			w := *g
-			w.cumPhi = make([]float64, len(g.comps))
-			for cell := range cells {
-				c.blk[cell] = w.cell(cell, limits[cell])
-			}
-		}()
-	}
-	for _, cell := range todo {
-		cells <- cell
-	}
-	close(cells)
-	wg.Wait()
+	g.drawCells(todo, limits, c.blk)
 	c.n = 0
 	for _, cell := range todo {
 		c.lim[cell] = limits[cell]

@@ -24,20 +24,24 @@ func sameStars(t *testing.T, what string, a, b *Stars) {
 	}
 }
 
+// deeperAbove is a CellLimit: v for the cells whose direction's component
+// k exceeds above, DefaultSynthMagLimit for the others.
+func deeperAbove(k int, above, v float64) func(SynthCell) float64 {
+	return func(c SynthCell) float64 {
+		if c.Dir[k] > above {
+			return v
+		}
+		return DefaultSynthMagLimit
+	}
+}
+
 // TestSkyCacheIsSynthetic: whatever was asked of the cache before (deeper,
 // shallower, other cells), Sky gives Synthetic's catalogue for the same
 // options bit for bit — the determinism a flight's frames rely on — and
 // draws a cell only when asked deeper than before.
 func TestSkyCacheIsSynthetic(t *testing.T) {
 	// Cells toward one half of the sky deeper than the rest.
-	half := func(v float64) func(SynthCell) float64 {
-		return func(c SynthCell) float64 {
-			if c.Dir[0] > 0 {
-				return v
-			}
-			return DefaultSynthMagLimit
-		}
-	}
+	half := func(v float64) func(SynthCell) float64 { return deeperAbove(0, 0, v) }
 	deep := 9.6
 	if testing.Short() {
 		deep = 9.1
@@ -77,14 +81,7 @@ func TestSkyCacheIsSynthetic(t *testing.T) {
 // included — for skips before, at and inside the magnitude blocks, past
 // the end, and without a base.
 func TestSkyAfter(t *testing.T) {
-	halfTo := func(v float64) func(SynthCell) float64 {
-		return func(c SynthCell) float64 {
-			if c.Dir[2] > 0.3 {
-				return v
-			}
-			return DefaultSynthMagLimit
-		}
-	}
+	halfTo := func(v float64) func(SynthCell) float64 { return deeperAbove(2, 0.3, v) }
 	half := halfTo(8.9)
 	c := NewSkyCache(SynthOptions{})
 	// Drawn deeper first: the blocks then hold stars beyond 8.9 to pass

@@ -73,15 +73,7 @@ func TestRenderStreamMatchesRender(t *testing.T) {
 		}
 		// Render computes the rest values per block; Prepare stores them
 		// for a sequence of frames. Both must give the same bits.
-		p, err := Prepare(stars)
-		if err != nil {
-			t.Fatal(err)
-		}
-		stored, err := p.Render(opt)
-		if err != nil {
-			t.Fatal(err)
-		}
-		sameFrame(t, stored, want)
+		sameFrame(t, renderPrepared(t, Prepare, stars, opt), want)
 		// Three chunks of unequal length: 9001, 9001, rest.
 		have, err := RenderStream(Chunks(stars, 9001+(n-3*9001)/2), opt)
 		if err != nil {
@@ -176,15 +168,7 @@ func TestDirectMatchesPreparedAtSun(t *testing.T) {
 			t.Fatalf("at %v: only %d stars drawn", pos, want.Stats.Drawn)
 		}
 		for _, prep := range []func(*catalog.Stars) (*Prepared, error){Prepare, PrepareOnce} {
-			p, err := prep(stars)
-			if err != nil {
-				t.Fatal(err)
-			}
-			have, err := p.Render(opt)
-			if err != nil {
-				t.Fatal(err)
-			}
-			sameFrame(t, have, want)
+			sameFrame(t, renderPrepared(t, prep, stars, opt), want)
 		}
 	}
 	if p, _ := Prepare(stars); p.direct {
@@ -193,6 +177,20 @@ func TestDirectMatchesPreparedAtSun(t *testing.T) {
 	if p, _ := PrepareOnce(stars); !p.direct {
 		t.Error("PrepareOnce: rest values stored")
 	}
+}
+
+// renderPrepared draws stars prepared by prep with opt.
+func renderPrepared(t *testing.T, prep func(*catalog.Stars) (*Prepared, error), stars *catalog.Stars, opt Options) *Frame {
+	t.Helper()
+	p, err := prep(stars)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f, err := p.Render(opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return f
 }
 
 // TestRenderCacheFileMatchesRender: streaming from a cache file through
