@@ -517,11 +517,7 @@ func (e *PNGEncoder) encodeStripsAs(w io.Writer, width, height int, pix []byte, 
 			}
 		}
 		if first != nil {
-			for i := range strips {
-				if d := strips[i].data; d != nil {
-					stripBufs.Put(d)
-				}
-			}
+			putStrips(strips)
 			return first
 		}
 	}
@@ -567,10 +563,8 @@ func (e *PNGEncoder) encodeStripsAs(w io.Writer, width, height int, pix []byte, 
 	if werr != nil {
 		// Every strip is done: the error that ended the encoding, not
 		// a strip it skipped.
+		putStrips(strips)
 		for i := range strips {
-			if d := strips[i].data; d != nil {
-				stripBufs.Put(d)
-			}
 			if err := strips[i].err; errors.Is(werr, errAborted) && err != nil && !errors.Is(err, errAborted) {
 				werr = err
 			}
@@ -581,6 +575,17 @@ func (e *PNGEncoder) encodeStripsAs(w io.Writer, width, height int, pix []byte, 
 		return fmt.Errorf("imgfile: writing PNG: %w", err)
 	}
 	return nil
+}
+
+// putStrips returns the output buffers the strips still hold to
+// stripBufs.
+func putStrips(strips []pngStrip) {
+	for i := range strips {
+		if d := strips[i].data; d != nil {
+			stripBufs.Put(d)
+			strips[i].data = nil
+		}
+	}
 }
 
 // deflateStrip filters rows y0..y1−1 and deflates them, ending with a sync
