@@ -6,8 +6,10 @@
 //     chunks and the metadata as tEXt (Latin-1) or iTXt (UTF-8) chunks
 //     (W3C PNG Specification, 2nd ed., §11.3). Its own encoder deflates
 //     strips of rows in parallel into one zlib stream, byte-identical for
-//     any worker count, with github.com/klauspost/compress/flate (about
-//     1.5× the speed of compress/flate at the fastest level, and smaller).
+//     any worker count: at the fast level (the default) with package
+//     rowflate, which matches only runs one pixel back and one row up, and
+//     at the others with github.com/klauspost/compress/flate (about 1.5×
+//     the speed of compress/flate at its fastest level, and smaller).
 //   - FITS (WriteFITS, ReadFITS, ReadFITSHeader, FITSMeta): a BITPIX −32
 //     primary array, 2-D or a 3-plane cube (R, G, B), with the header cards
 //     given (FITS Standard 4.0, IAU FITS Working Group 2016). FITS rows run
