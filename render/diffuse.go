@@ -419,8 +419,9 @@ type diffuseSampler struct {
 	one      bool        // every pixel with a centre direction takes one sample
 	beyond   bool        // a fisheye's layer continues past its circle (BeyondRim)
 	// colour is the components' photometry against ln D for the boost's
-	// rapidity phi, or nil (newLnDTable), built on the first evaluation:
-	// a layer lent or replayed from a memo never builds it.
+	// rapidity phi, or nil (newLnDTable), found or built on the first
+	// evaluation (lnDTableFor): a layer lent or replayed from a memo
+	// never needs it.
 	colour     *lnDTable
 	colourOnce sync.Once
 	phi        float64
@@ -428,7 +429,7 @@ type diffuseSampler struct {
 
 // table returns d.colour, built on the first call.
 func (d *diffuseSampler) table() *lnDTable {
-	d.colourOnce.Do(func() { d.colour = newLnDTable(d.lnT, d.phi) })
+	d.colourOnce.Do(func() { d.colour = lnDTableFor(d.lnT, d.phi) })
 	return d.colour
 }
 

@@ -3,6 +3,7 @@ package render
 import (
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"testing"
 
 	"gonum.org/v1/gonum/spatial/r3"
@@ -71,5 +72,34 @@ func TestLnDTable(t *testing.T) {
 	}
 	if newLnDTable(lnT, 9) != nil {
 		t.Error("φ = 9: want no table (over lnDTableMaxNodes)")
+	}
+}
+
+// lnDTableFor returns the table newLnDTable builds, the same one again for
+// the same components and rapidity (the last two kept), and a new one for
+// another rapidity or other components.
+func TestLnDTableFor(t *testing.T) {
+	lnT := []float64{math.Log(3000), math.Log(9000)}
+	a := lnDTableFor(lnT, 0.55)
+	if !reflect.DeepEqual(a, newLnDTable(lnT, 0.55)) {
+		t.Fatal("lnDTableFor's table differs from newLnDTable's")
+	}
+	b := lnDTableFor(lnT, 0.56)
+	if b == a || !reflect.DeepEqual(b, newLnDTable(lnT, 0.56)) {
+		t.Fatal("another rapidity: not its own table")
+	}
+	if lnDTableFor(lnT, 0.55) != a || lnDTableFor(lnT, 0.56) != b {
+		t.Error("the last two tables are not kept")
+	}
+	other := []float64{math.Log(3000), math.Log(9001)}
+	if c := lnDTableFor(other, 0.55); c == a || !reflect.DeepEqual(c, newLnDTable(other, 0.55)) {
+		t.Error("other components: not their own table")
+	}
+	lnDTableFor(lnT, 0.1)
+	if lnDTableFor(lnT, 0.55) == a {
+		t.Error("a table three rapidities back is still kept")
+	}
+	if lnDTableFor(lnT, 9) != nil {
+		t.Error("φ = 9: want no table")
 	}
 }
