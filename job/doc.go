@@ -28,7 +28,8 @@
 // (one goroutine writes; frames are written, and Done called, in order),
 // for a second frame's image and files in memory (OverlapBytes); with
 // RunOptions.HeldLayer a held view's unresolved layer is left to the tone
-// map, for its values and image in memory (HeldLayerBytes). Frames
+// map, for its values and image in memory (HeldLayerBytes), and any other
+// frame's is added by the tone map row by row. Frames
 // written only as 8-bit PNG (no FITS, OpenEXR or 16-bit files) draw their
 // unresolved layer to render.EightBitTolerance and render.EightBitCodes and
 // past a fisheye's circle (frame.Layers.ForEightBit), and leave their

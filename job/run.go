@@ -45,9 +45,11 @@ type RunOptions struct {
 	// HeldLayer lets a frame whose unresolved layer is the last one's
 	// (a view held still: render.DiffuseMemo) leave the layer to the tone
 	// map, which then works only on the pixels the stars light
-	// (render.PendingLayer). It keeps the layer's values and image
-	// (HeldLayerBytes) and applies to 8-bit PNG frames without FITS or
-	// OpenEXR files. The files are the same either way.
+	// (render.PendingLayer); a frame whose layer changed has the tone map
+	// add it to each row as it tone-maps the row, instead of in a pass
+	// of its own. It keeps the layer's values and image (HeldLayerBytes)
+	// and applies to 8-bit PNG frames without FITS or OpenEXR files. The
+	// files are the same either way.
 	HeldLayer bool
 }
 

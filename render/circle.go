@@ -90,7 +90,7 @@ func (f *Frame) ToNRGBAInto(dst *image.NRGBA, m ToneMode) *image.NRGBA {
 // it is still in cache: once per row, from the tone map's goroutines, in
 // no set order. A nil row is not called.
 func (f *Frame) ToNRGBARows(dst *image.NRGBA, m ToneMode, row func(y int, pix []byte)) *image.NRGBA {
-	return f.Buffer.toNRGBAMasked(dst, m, f.Options.Workers, f.circleMask(), row, false)
+	return f.Buffer.toNRGBAMasked(dst, m, f.Options.Workers, f.circleMask(), row, false, nil)
 }
 
 // ToNRGBAClearing is ToNRGBARows leaving f's buffer black: each row of
@@ -102,7 +102,7 @@ func (f *Frame) ToNRGBARows(dst *image.NRGBA, m ToneMode, row func(y int, pix []
 // clears it whole anyway.
 func (f *Frame) ToNRGBAClearing(dst *image.NRGBA, m ToneMode, row func(y int, pix []byte)) *image.NRGBA {
 	zero := f.Doppler == nil
-	img := f.Buffer.toNRGBAMasked(dst, m, f.Options.Workers, f.circleMask(), row, zero)
+	img := f.Buffer.toNRGBAMasked(dst, m, f.Options.Workers, f.circleMask(), row, zero, nil)
 	f.black = zero
 	return img
 }

@@ -146,7 +146,7 @@ func TestToNRGBAMaskedOnePass(t *testing.T) {
 			want := b.toNRGBAInto(nil, m, 1)
 			maskNRGBA(want, c.cx, c.cy, c.r)
 			for _, workers := range []int{1, 3} {
-				have := b.toNRGBAMasked(nil, m, workers, newCircleMask(c.w, c.h, c.cx, c.cy, c.r), nil, false)
+				have := b.toNRGBAMasked(nil, m, workers, newCircleMask(c.w, c.h, c.cx, c.cy, c.r), nil, false, nil)
 				if !slices.Equal(have.Pix, want.Pix) {
 					t.Errorf("%d×%d circle (%g, %g, %g), %v, %d workers: the one-pass image differs", c.w, c.h, c.cx, c.cy, c.r, m, workers)
 				}

@@ -227,9 +227,7 @@ func (d *diffuseDraw) draw(newEval func() pixelEval) error {
 // with exact).
 func (d *diffuseDraw) drawRecord(newEval func() pixelEval, rec *gridRecord) error {
 	if !d.exact {
-		g := newSmoothGrid(&d.p, d.tol, d.workers)
-		g.codes = d.codes
-		return g.add(d.dst.Pix, newEval, rec)
+		return d.grid().add(d.dst.Pix, newEval, rec)
 	}
 	w, h := d.dst.W, d.dst.H
 	rowErr := make([]error, h)
@@ -257,6 +255,13 @@ func (d *diffuseDraw) drawRecord(newEval func() pixelEval, rec *gridRecord) erro
 		}
 	}
 	return nil
+}
+
+// grid returns the adaptive grid that draws the layer.
+func (d *diffuseDraw) grid() *smoothGrid {
+	g := newSmoothGrid(&d.p, d.tol, d.workers)
+	g.codes = d.codes
+	return &g
 }
 
 // prepareDiffuse checks AddDiffuse's arguments and sets up its drawing.

@@ -131,6 +131,23 @@ func memoKey(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (diffuseKey, bool)
 		fp: opt.Footprint, mlnD: opt.MaxLnD, ms: opt.MaxSamples, tol: opt.Tolerance, codes: opt.Codes, beyond: opt.BeyondRim}, true
 }
 
+// drawPending records the layer d, not drawn into d.dst, and kept when it
+// is small enough, and returns it deferred to f's tone map (PendingLayer).
+// The memo must not hold key's layer (lend).
+func (m *DiffuseMemo) drawPending(d *diffuseDraw, key diffuseKey, f *Frame) (*PendingLayer, error) {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	rec := m.newRecord()
+	if err := d.grid().add(nil, d.newEval, rec); err != nil {
+		return nil, err
+	}
+	if rec.bytes() <= MemoLimit(d.dst.W, d.dst.H) {
+		m.key, m.rec = key, rec
+	}
+	m.users++
+	return &PendingLayer{m: m, rec: rec, f: f, workers: d.workers, held: true, deferred: true}, nil
+}
+
 // draw adds the layer d to d.dst: replayed when the memo holds key's
 // layer, else drawn, and kept when it is small enough.
 func (m *DiffuseMemo) draw(d *diffuseDraw, key diffuseKey) error {

@@ -40,6 +40,11 @@ type PendingLayer struct {
 	f       *Frame
 	workers int
 	held    bool
+	// deferred marks a layer just recorded for this frame (the memo
+	// held another): the tone map adds it row by row, as the replay would,
+	// without a tone-mapped image of the layer alone, which a layer that
+	// may not come again would not repay.
+	deferred bool
 }
 
 // PendingBytesPerPixel is what a DiffuseMemo keeps per pixel for the
@@ -51,10 +56,15 @@ const PendingBytesPerPixel = 4 + 12
 // or after Release.
 var ErrPending = errors.New("render: pending layer")
 
-// DiffusePending is AddDiffuse leaving the layer out of f when opt.Memo
-// holds it (and opt.Into is nil): it returns the layer, to be added by
-// Frame.ToNRGBAPending or AddTo and released. Otherwise it draws the layer
-// into f as AddDiffuse does and returns nil.
+// DiffusePending is AddDiffuse leaving the layer out of f when it has
+// opt.Memo (and opt.Into is nil): it returns the layer, to be added by
+// Frame.ToNRGBAPending or AddTo and released. A layer the memo holds is
+// lent; another is recorded, not drawn, kept by the memo for the frames
+// after, and added row by row as ToNRGBAPending tone-maps them (a camera
+// turning or a ship accelerating: the frame's buffer is then read and
+// written once, not also by the layer's fill). Without a memo, or for a
+// layer that cannot be kept, it draws the layer into f as AddDiffuse does
+// and returns nil.
 func DiffusePending(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*PendingLayer, error) {
 	d, err := prepareDiffuse(f, sky, opt)
 	if err != nil {
@@ -71,6 +81,7 @@ func DiffusePending(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (*PendingLa
 		if p := opt.Memo.lend(key, f, d.workers); p != nil {
 			return p, nil
 		}
+		return opt.Memo.drawPending(d, key, f)
 	}
 	return nil, opt.Memo.draw(d, key)
 }
@@ -180,6 +191,9 @@ func (f *Frame) ToNRGBAPending(dst *image.NRGBA, m ToneMode, p *PendingLayer, ro
 	if err := p.check(f); err != nil {
 		return nil, err
 	}
+	if p.deferred {
+		return p.toneDeferred(dst, m, f, row), nil
+	}
 	t := newToner(m, f.circleMask())
 	w, h := f.W, f.H
 	li := p.image(&t, w, h)
@@ -200,6 +214,22 @@ func (f *Frame) ToNRGBAPending(dst *image.NRGBA, m ToneMode, p *PendingLayer, ro
 		f.black, p.f = true, nil
 	}
 	return img, nil
+}
+
+// toneDeferred is ToNRGBAPending of a deferred layer: each row of the
+// buffer takes the layer's row as the replay adds it (gridRecord.addRow),
+// while in cache, and is tone-mapped: the image of AddTo and ToNRGBARows.
+// With ClearBuffer the buffer is left black, as by ToNRGBAClearing; else
+// it is left holding the layer, which is then no longer pending.
+func (p *PendingLayer) toneDeferred(dst *image.NRGBA, m ToneMode, f *Frame, row func(y int, pix []byte)) *image.NRGBA {
+	p.m.mu.Lock() // another frame lent the record may be sorting it
+	p.rec.sortExact()
+	p.m.mu.Unlock()
+	zero := p.ClearBuffer && f.Doppler == nil
+	img := f.Buffer.toNRGBAMasked(dst, m, p.workers, f.circleMask(), row, zero, p.rec)
+	f.black = zero
+	p.f = nil
+	return img
 }
 
 // litRow tone-maps into d, row y of the image (holding the layer's own

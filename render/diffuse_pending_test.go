@@ -187,8 +187,9 @@ func TestPendingHeldAcrossRedraw(t *testing.T) {
 }
 
 // A pending layer is refused for another frame, after AddTo and after
-// Release; without a memo, or when the memo holds another layer, the layer
-// is drawn and nothing is pending.
+// Release; without a memo the layer is drawn and nothing is pending; when
+// the memo holds another layer, the new one is deferred, and lent to the
+// next frame.
 func TestPendingErrors(t *testing.T) {
 	u := builtInUnresolved(t)
 	c := pendingCases[0]
@@ -199,13 +200,15 @@ func TestPendingErrors(t *testing.T) {
 	}
 	m := new(DiffuseMemo)
 	opt := DiffuseOptions{Memo: m}
-	if p, err := DiffusePending(c.frame(t, scale), u, opt); p != nil || err != nil {
-		t.Fatalf("first frame: %v, %v", p, err)
+	first, err := DiffusePending(c.frame(t, scale), u, opt)
+	if err != nil || first == nil || !first.deferred {
+		t.Fatalf("first frame: %v, %v; want a deferred layer", first, err)
 	}
+	first.Release()
 	f = c.frame(t, scale)
 	p, err := DiffusePending(f, u, opt)
-	if err != nil || p == nil {
-		t.Fatalf("pending %v, %v", p, err)
+	if err != nil || p == nil || p.deferred {
+		t.Fatalf("pending %v, %v; want the memo's layer lent", p, err)
 	}
 	if _, err := c.frame(t, scale).ToNRGBAPending(nil, ToneLinear, p, nil); !errors.Is(err, ErrPending) {
 		t.Fatalf("another frame: %v", err)
@@ -317,14 +320,17 @@ func TestPendingClearBuffer(t *testing.T) {
 		}
 		return f, f.ToNRGBA(ToneShoulder).Pix
 	}
-	_, held := want(opt)
+	o2 := opt
+	o2.Exposure = 2
+	_, other := want(o2)
+	_, held := want(opt) // the layer the memo holds at the first frame
 	var dst Frame
 	for i := range 5 {
-		o := opt
+		o, img0 := opt, held
 		if i == 2 {
-			o.Exposure = 2 // another layer: drawn into the buffer, not pending
+			o, img0 = o2, other // another layer: deferred to the tone map
 		}
-		drawn := i == 2 || i == 3 // and the first again
+		deferred := i == 2 || i == 3 // and the first again
 		if err := prep.RenderInto(&dst, o); err != nil {
 			t.Fatal(err)
 		}
@@ -332,23 +338,16 @@ func TestPendingClearBuffer(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if (p == nil) != drawn {
-			t.Fatalf("frame %d: pending %v", i, p)
-		}
-		if p == nil {
-			f, img := want(o)
-			if !slices.Equal(dst.Pix, f.Pix) || !slices.Equal(dst.ToNRGBA(ToneShoulder).Pix, img) {
-				t.Fatalf("frame %d, rendered into the cleared buffer, differs from the frame rendered afresh", i)
-			}
-			continue
+		if p == nil || p.deferred != deferred {
+			t.Fatalf("frame %d: pending %v, want deferred %v", i, p, deferred)
 		}
 		p.ClearBuffer = true
 		img, err := dst.ToNRGBAPending(nil, ToneShoulder, p, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
-		if !slices.Equal(img.Pix, held) {
-			t.Fatalf("frame %d: image differs from the replayed frame's", i)
+		if !slices.Equal(img.Pix, img0) {
+			t.Fatalf("frame %d (deferred %v): image differs from the frame rendered afresh", i, deferred)
 		}
 		if k := slices.IndexFunc(dst.Pix, func(v float32) bool { return math.Float32bits(v) != 0 }); k >= 0 {
 			t.Fatalf("frame %d: value %d is %g after ClearBuffer", i, k, dst.Pix[k])
@@ -437,8 +436,8 @@ func TestPendingAfterViewChange(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if (p != nil) != (i%2 == 1) {
-			t.Fatalf("frame %d: pending %v, want it on the second frame of each view", i, p != nil)
+		if p == nil || p.deferred != (i%2 == 0) {
+			t.Fatalf("frame %d: pending %v, want it deferred on the first frame of each view, lent on the second", i, p)
 		}
 		img, err := dst.ToNRGBAPending(nil, ToneShoulder, p, nil)
 		if err != nil {
@@ -448,5 +447,70 @@ func TestPendingAfterViewChange(t *testing.T) {
 			t.Errorf("frame %d (pending %v): image differs from AddDiffuse's", i, p != nil)
 		}
 		p.Release()
+	}
+}
+
+// A layer the memo does not hold is deferred: ToNRGBAPending adds it to
+// each row as it tone-maps it, giving byte for byte the image and rows of
+// the layer drawn into the buffer (AddDiffuse, then ToNRGBARows), for both
+// tone modes, and leaves the buffer bit for bit the drawn one (or black,
+// with ClearBuffer); the memo keeps it and lends it to the next frame.
+func TestDeferredMatchesDrawn(t *testing.T) {
+	u := builtInUnresolved(t)
+	scale := ExposureScale(2)
+	for _, c := range pendingCases {
+		for _, mode := range []ToneMode{ToneShoulder, ToneLinear} {
+			for _, clearBuf := range []bool{false, true} {
+				g := c.frame(t, scale)
+				if err := AddDiffuse(g, u, DiffuseOptions{}); err != nil {
+					t.Fatal(err)
+				}
+				wantRows := make([][]byte, g.H)
+				want := g.ToNRGBARows(nil, mode, func(y int, pix []byte) { wantRows[y] = slices.Clone(pix) })
+
+				m := new(DiffuseMemo)
+				f := c.frame(t, scale)
+				p, err := DiffusePending(f, u, DiffuseOptions{Memo: m})
+				if err != nil {
+					t.Fatal(err)
+				}
+				if p == nil || !p.deferred {
+					t.Fatalf("%s: %v, want a deferred layer", c.name, p)
+				}
+				p.ClearBuffer = clearBuf
+				gotRows := make([][]byte, f.H)
+				got, err := f.ToNRGBAPending(nil, mode, p, func(y int, pix []byte) { gotRows[y] = slices.Clone(pix) })
+				if err != nil {
+					t.Fatal(err)
+				}
+				if !slices.Equal(got.Pix, want.Pix) {
+					t.Fatalf("%s %v: image differs from the drawn frame's", c.name, mode)
+				}
+				for y := range gotRows {
+					if !slices.Equal(gotRows[y], wantRows[y]) {
+						t.Fatalf("%s %v: row %d handed over differs", c.name, mode, y)
+					}
+				}
+				if clearBuf {
+					if k := slices.IndexFunc(f.Pix, func(v float32) bool { return v != 0 }); k >= 0 || !f.black {
+						t.Fatalf("%s: value %d left after ClearBuffer (marked black %v)", c.name, k, f.black)
+					}
+				} else if !slices.Equal(f.Pix, g.Pix) {
+					t.Fatalf("%s %v: buffer differs from the drawn one", c.name, mode)
+				}
+				if err := p.AddTo(f); !errors.Is(err, ErrPending) {
+					t.Fatalf("%s: AddTo after the tone map: %v", c.name, err)
+				}
+				p.Release()
+				if m.users != 0 {
+					t.Fatalf("%s: %d users after Release", c.name, m.users)
+				}
+				next, err := DiffusePending(c.frame(t, scale), u, DiffuseOptions{Memo: m})
+				if err != nil || next == nil || next.deferred {
+					t.Fatalf("%s: next frame %v, %v; want the kept layer lent", c.name, next, err)
+				}
+				next.Release()
+			}
+		}
 	}
 }

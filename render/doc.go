@@ -183,15 +183,20 @@
 // show in the codes the grid need not follow it) and continue a fisheye's
 // layer past the circle their mask cuts, BeyondRim;
 // the components' photometry comes from a table over ln D built for each
-// drawing). A uniform layer and stars carrying the same flux give the same buffer
-// total. Options.ExtendedScale scales all extended light (discs and these
+// rapidity, kept for the next drawing at the same one). A uniform layer
+// and stars carrying the same flux give the same buffer total.
+// Options.ExtendedScale scales all extended light (discs and these
 // layers) against point stars, so that a reduced preview keeps the full
 // frame's value per pixel. A DiffuseMemo keeps the layer for the next frame with the same
 // one (a view held on the ship at constant velocity), which replays it bit
 // for bit; or lends it (DiffusePending) for the tone map to add
 // (Frame.ToNRGBAPending), which then takes the pixels the stars leave black
 // from the layer's own kept image and tone-maps only the lit ones, the same
-// image byte for byte. Tone mapping and sRGB encoding follow; the 8-bit codes of
+// image byte for byte. A layer it does not hold yet (the camera turning,
+// the ship accelerating) it records without drawing and defers
+// (DiffusePending) to the tone map, which adds it to each row of the
+// buffer as it tone-maps the row, instead of in a pass of its own over the
+// buffer. Tone mapping and sRGB encoding follow; the 8-bit codes of
 // pixels the tone map leaves as they are come from a table on the float32
 // bits, equal to the computed codes for every value.
 // The overlays (coordinate graticule, the D = 1 circle, the lattice of

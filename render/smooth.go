@@ -131,7 +131,8 @@ func nodes(a, b, side int) []int {
 // each once (a corner is shared by up to four cells), then the cells band
 // by band. It returns the first error of the corners in row order, else
 // the first in band order. With rec not nil it also records the layer
-// there (rec.bands, one per band of cells), for replay.
+// there (rec.bands, one per band of cells), for replay; with dst nil as
+// well, it only records it.
 func (g *smoothGrid) add(dst []float32, newEval func() pixelEval, rec *gridRecord) error {
 	rows := nodes(0, g.h, g.cell)
 	bands := max(1, len(rows)-1)
@@ -487,7 +488,9 @@ func fillEnd(a1 int, last bool) int {
 // empties the list. Each pixel is that of interpolating its cell alone
 // (one addition per pixel, so the order of the cells does not matter).
 func (c *smoothCellState) fill(y0, ye int) {
-	fillLeaves(c.dst, c.w, c.leaves, y0, ye)
+	if c.dst != nil {
+		fillLeaves(c.dst, c.w, c.leaves, y0, ye)
+	}
 	if c.rec != nil {
 		c.rec.leaves = append(c.rec.leaves[:0], c.leaves...)
 	}
@@ -578,7 +581,9 @@ func (c *smoothCellState) put(x, y int, v [3]float64) {
 		return
 	}
 	e := exactPix{i: int32(y*c.w + x), v: [3]float32{float32(v[0]), float32(v[1]), float32(v[2])}}
-	e.add(c.dst)
+	if c.dst != nil {
+		e.add(c.dst)
+	}
 	if c.rec != nil {
 		c.rec.exact = append(c.rec.exact, e)
 	}

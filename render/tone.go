@@ -163,7 +163,7 @@ func (b *Buffer) ToNRGBAInto(dst *image.NRGBA, m ToneMode) *image.NRGBA {
 
 // toNRGBAInto is ToNRGBAInto on workers goroutines (0: GOMAXPROCS).
 func (b *Buffer) toNRGBAInto(dst *image.NRGBA, m ToneMode, workers int) *image.NRGBA {
-	return b.toNRGBAMasked(dst, m, workers, nil, nil, false)
+	return b.toNRGBAMasked(dst, m, workers, nil, nil, false, nil)
 }
 
 // circleMask is an image circle of centre (cx, cy) and radius r, pixels,
@@ -189,13 +189,18 @@ func newCircleMask(w, h int, cx, cy, r float64) *circleMask {
 // coverage, in the same pass (TestToNRGBAMaskedOnePass: the image a
 // separate mask pass leaves). When done is not nil
 // it is called with each row (its 4·W bytes) once the row is final. With
-// zero each row of b is zeroed once toned.
-func (b *Buffer) toNRGBAMasked(dst *image.NRGBA, m ToneMode, workers int, mask *circleMask, done func(y int, row []byte), zero bool) *image.NRGBA {
+// zero each row of b is zeroed once toned. With layer, each row of b
+// first takes the recorded layer's row (gridRecord.addRow, its exact
+// pixels sorted), as a replay would add it.
+func (b *Buffer) toNRGBAMasked(dst *image.NRGBA, m ToneMode, workers int, mask *circleMask, done func(y int, row []byte), zero bool, layer *gridRecord) *image.NRGBA {
 	img := packedNRGBA(dst, b.W, b.H)
 	t := newToner(m, mask)
 	b.rows(workers, func(y int) {
 		dst := img.Pix[y*img.Stride : y*img.Stride+4*b.W]
 		src := b.Pix[3*y*b.W : 3*(y+1)*b.W]
+		if layer != nil {
+			layer.addRow(src, y)
+		}
 		t.row(src, dst, y)
 		if zero {
 			clear(src)

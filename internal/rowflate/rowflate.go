@@ -11,8 +11,8 @@ const (
 	minMatch   = 3
 	maxMatch   = 258
 
-	// BlockTokens is the most symbols (literals and matches) in one
-	// block: a new block, with its own codes, starts after it.
+	// BlockTokens is how many symbols (literals and matches) end a
+	// block: the next, with codes of its own, starts after it.
 	BlockTokens = 1 << 16
 
 	// chunkBytes is about how many bytes of lines are gathered before
@@ -45,11 +45,12 @@ const (
 )
 
 // Reset starts a stream of lines of line bytes each, with bpp bytes a
-// pixel (bpp ≥ 1, line ≥ 1; a line includes the PNG filter byte, which
-// is data like any other here).
+// pixel (1 ≤ bpp ≤ 8, PNG's largest pixel, which the runs of zeros rely
+// on; line ≥ 1, including the PNG filter byte, which is data like any
+// other here).
 func (e *Encoder) Reset(bpp, line int) {
-	if bpp < 1 || line < 1 {
-		panic("rowflate: Reset with bpp or line below 1")
+	if bpp < 1 || bpp > 8 || line < 1 {
+		panic("rowflate: Reset with bpp outside 1…8 or line below 1")
 	}
 	e.bpp, e.line = bpp, line
 	k := max(1, chunkBytes/line)
@@ -160,7 +161,7 @@ func (e *Encoder) match() {
 				}
 			}
 		} else if room == minMatch {
-			// The stream's last three bytes.
+			// The last three bytes of what is pending.
 			for _, j := range [2]int{i - bpp, i - line} {
 				if j >= 0 && (j == i-bpp || up) && b[i] == b[j] && b[i+1] == b[j+1] && b[i+2] == b[j+2] {
 					l, d = minMatch, i-j
