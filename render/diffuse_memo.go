@@ -132,7 +132,9 @@ func memoKey(f *Frame, sky UnresolvedSky, opt DiffuseOptions) (diffuseKey, bool)
 }
 
 // drawPending records the layer d, not drawn into d.dst, and kept when it
-// is small enough, and returns it deferred to f's tone map (PendingLayer).
+// is small enough, and returns it deferred to f's tone map (PendingLayer),
+// its exact pixels sorted for the rows (under the lock every sort of a
+// record takes, so the tone map reads it without).
 // The memo must not hold key's layer (lend).
 func (m *DiffuseMemo) drawPending(d *diffuseDraw, key diffuseKey, f *Frame) (*PendingLayer, error) {
 	m.mu.Lock()
@@ -141,6 +143,7 @@ func (m *DiffuseMemo) drawPending(d *diffuseDraw, key diffuseKey, f *Frame) (*Pe
 	if err := d.grid().add(nil, d.newEval, rec); err != nil {
 		return nil, err
 	}
+	rec.sortExact()
 	if rec.bytes() <= MemoLimit(d.dst.W, d.dst.H) {
 		m.key, m.rec = key, rec
 	}

@@ -60,7 +60,7 @@ var ErrPending = errors.New("render: pending layer")
 // opt.Memo (and opt.Into is nil): it returns the layer, to be added by
 // Frame.ToNRGBAPending or AddTo and released. A layer the memo holds is
 // lent; another is recorded, not drawn, kept by the memo for the frames
-// after, and added row by row as ToNRGBAPending tone-maps them (a camera
+// after (when small enough), and added row by row as ToNRGBAPending tone-maps them (a camera
 // turning or a ship accelerating: the frame's buffer is then read and
 // written once, not also by the layer's fill). Without a memo, or for a
 // layer that cannot be kept, it draws the layer into f as AddDiffuse does
@@ -222,9 +222,6 @@ func (f *Frame) ToNRGBAPending(dst *image.NRGBA, m ToneMode, p *PendingLayer, ro
 // With ClearBuffer the buffer is left black, as by ToNRGBAClearing; else
 // it is left holding the layer, which is then no longer pending.
 func (p *PendingLayer) toneDeferred(dst *image.NRGBA, m ToneMode, f *Frame, row func(y int, pix []byte)) *image.NRGBA {
-	p.m.mu.Lock() // another frame lent the record may be sorting it
-	p.rec.sortExact()
-	p.m.mu.Unlock()
 	zero := p.ClearBuffer && f.Doppler == nil
 	img := f.Buffer.toNRGBAMasked(dst, m, p.workers, f.circleMask(), row, zero, p.rec)
 	f.black = zero
